@@ -1,0 +1,288 @@
+"""The description of a roof, parsed from options or a ROOF.toml mapping.
+
+A :class:`Roof` holds everything the ASCE 7-16 Chapter 7 provisions need to
+know about the roof, in the standard's units (ft, degrees, ft2.h.F/Btu).
+:meth:`Roof.from_mapping` turns the option names of the CLI and ROOF.toml
+(``shape``, ``slope``, ``eave_to_ridge``, ``[[step]]`` ...) into one,
+validating every field; it reads no file (the caller parses the TOML).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Mapping
+from dataclasses import dataclass, field, replace
+
+from engine.choices import choose_key
+from engine.errors import InputError, UnsupportedError
+from engine.units import parse_length, parse_load, parse_slope
+
+#: roof shapes covered by the engine
+SHAPES = ("flat", "monoslope", "gable", "hip")
+#: shapes that ASCE 7-16 covers but neve does not yet: refused with a clear message
+UNSUPPORTED_SHAPES = ("curved", "sawtooth", "folded-plate", "barrel-vault", "dome", "arch")
+SURFACES = ("slippery", "other")
+RISKS = ("I", "II", "III", "IV")
+
+_ROOF_KEYS = {
+    "shape", "slope", "surface", "ct", "thermal", "ce", "terrain", "exposure", "risk",
+    "eave_to_ridge", "r_value", "ventilated", "unobstructed", "prismatic", "name",
+    "step", "parapet", "projection", "overhang",
+}  # fmt: skip
+
+
+def _float(value, name: str, lo: float, hi: float) -> float:
+    try:
+        x = float(value)
+    except (TypeError, ValueError):
+        raise InputError(
+            name, f"{value!r} is not a number", f"a number from {lo} to {hi}"
+        ) from None
+    if not (lo <= x <= hi):
+        raise InputError(name, f"{value!r} is out of range", f"a number from {lo} to {hi}")
+    return x
+
+
+def _bool(value, name: str) -> bool | None:
+    if value is None or isinstance(value, bool):
+        return value
+    text = str(value).strip().lower()
+    if text in ("true", "yes", "1"):
+        return True
+    if text in ("false", "no", "0"):
+        return False
+    raise InputError(name, f"{value!r} is not true or false", "true, false")
+
+
+@dataclass(frozen=True)
+class RoofStep:
+    """A higher roof (or adjacent higher structure) beside this, lower, roof.
+
+    Lengths in [ft], slope in [degrees].
+    """
+
+    name: str
+    height: float  # lower roof surface to top of the upper roof (incl. parapet) [ft]
+    upper_length: float  # length of the upper roof upwind of the step [ft]
+    lower_length: float  # length of this lower roof [ft]
+    separation: float = 0.0  # horizontal gap to an adjacent structure [ft]
+    upper_slope: float | None = None  # slope of the upper roof [deg], for sliding
+    upper_surface: str = "other"
+    upper_eave_to_ridge: float | None = None  # W of the upper roof [ft], for sliding
+    upper_slides_toward: bool = True  # the upper roof's eave is at the step
+
+
+@dataclass(frozen=True)
+class Parapet:
+    name: str
+    height: float  # parapet height above the roof surface [ft]
+    upwind_length: float  # roof length upwind of the parapet [ft]
+
+
+@dataclass(frozen=True)
+class Projection:
+    name: str
+    height: float  # projection height above the roof surface [ft]
+    plan_length: float  # plan length of the projection's side [ft]
+    upwind_length: float  # roof length upwind of the projection [ft]
+
+
+@dataclass(frozen=True)
+class Roof:
+    """A roof in ASCE 7 units; see :meth:`from_mapping` for the option names."""
+
+    shape: str = "flat"
+    slope: float = 0.0  # [deg]
+    surface: str = "other"
+    ct: float | None = None
+    thermal: str | None = None
+    ce: float | None = None
+    terrain: str | None = None
+    exposure: str | None = None
+    risk: str | None = None
+    eave_to_ridge: float | None = None  # W [ft]
+    r_value: float | None = None  # [ft2.h.F/Btu]
+    ventilated: bool | None = None
+    unobstructed: bool | None = None
+    prismatic: bool | None = None
+    name: str = "roof"
+    steps: tuple[RoofStep, ...] = field(default_factory=tuple)
+    parapets: tuple[Parapet, ...] = field(default_factory=tuple)
+    projections: tuple[Projection, ...] = field(default_factory=tuple)
+    overhang: float | None = None  # overhang length beyond the exterior wall [ft]
+
+    def replace(self, **changes) -> Roof:
+        return replace(self, **changes)
+
+    @classmethod
+    def from_mapping(cls, data: Mapping) -> Roof:
+        """Build a roof from option names (``_`` for ``-``) and ROOF.toml tables.
+
+        Values with units are text (``"30ft"``, ``"6:12"``); ``ct``, ``ce``
+        and ``r_value`` are plain numbers.  ``None`` means "not given".
+        Unknown keys are an :class:`InputError` naming them.
+        """
+        data = {str(k).replace("-", "_"): v for k, v in dict(data).items() if v is not None}
+        unknown = sorted(set(data) - _ROOF_KEYS)
+        if unknown:
+            raise InputError(
+                "roof", f"unknown key(s) {', '.join(unknown)}", ", ".join(sorted(_ROOF_KEYS))
+            )
+        shape = str(data.get("shape", "flat")).strip().lower()
+        if shape in UNSUPPORTED_SHAPES:
+            raise UnsupportedError(
+                "shape",
+                f"{shape!r} roofs are not covered by neve yet (ASCE 7-16 Sec. 7.4.3-7.4.4, 7.6.2-7.6.4)",
+                ", ".join(SHAPES),
+            )
+        shape = choose_key("shape", shape, SHAPES)
+        if "slope" in data:
+            slope = parse_slope(data["slope"], "slope")
+        elif shape == "flat":
+            slope = 0.0
+        else:
+            raise InputError(
+                "slope", f"required for a {shape} roof", "rise:run such as 6:12, or 26.6deg"
+            )
+        kw: dict = {"shape": shape, "slope": slope}
+        kw["surface"] = choose_key("surface", data.get("surface", "other"), SURFACES)
+        if "ct" in data and "thermal" in data:
+            raise InputError("ct", "give ct or thermal, not both", "one of ct, thermal")
+        if "ce" in data and ("terrain" in data or "exposure" in data):
+            raise InputError(
+                "ce", "give ce or terrain/exposure, not both", "ce, or terrain with exposure"
+            )
+        if "ct" in data:
+            kw["ct"] = _float(data["ct"], "ct", 0.5, 2.0)
+        if "ce" in data:
+            kw["ce"] = _float(data["ce"], "ce", 0.5, 2.0)
+        from engine.asce7_16.factors import EXPOSURES, TERRAINS, THERMAL
+
+        if "thermal" in data:
+            kw["thermal"] = choose_key("thermal", data["thermal"], THERMAL)
+        if "terrain" in data:
+            kw["terrain"] = choose_key("terrain", data["terrain"], TERRAINS)
+        if "exposure" in data:
+            kw["exposure"] = choose_key("exposure", data["exposure"], EXPOSURES)
+        if "risk" in data:
+            kw["risk"] = choose_key("risk", str(data["risk"]).upper(), RISKS)
+        if "eave_to_ridge" in data:
+            kw["eave_to_ridge"] = parse_length(data["eave_to_ridge"], "eave_to_ridge")
+            if kw["eave_to_ridge"] <= 0:
+                raise InputError("eave_to_ridge", "must be above zero", "a length such as 30ft")
+        if "r_value" in data:
+            kw["r_value"] = _float(data["r_value"], "r_value", 0.0, 1000.0)
+        for key in ("ventilated", "unobstructed", "prismatic"):
+            if key in data:
+                kw[key] = _bool(data[key], key)
+        if "name" in data:
+            kw["name"] = str(data["name"])
+        kw["steps"] = tuple(_steps(data.get("step", [])))
+        kw["parapets"] = tuple(_parapets(data.get("parapet", [])))
+        kw["projections"] = tuple(_projections(data.get("projection", [])))
+        if "overhang" in data:
+            oh = data["overhang"]
+            if isinstance(oh, Mapping):
+                if "length" not in oh:
+                    raise InputError("overhang.length", "missing", "a length such as 2ft")
+                oh = oh["length"]
+            kw["overhang"] = parse_length(oh, "overhang.length")
+        return cls(**kw)
+
+
+def _table_list(value, name: str) -> list[Mapping]:
+    if isinstance(value, Mapping):
+        value = [value]
+    if not isinstance(value, (list, tuple)) or not all(isinstance(v, Mapping) for v in value):
+        raise InputError(name, "must be a table or an array of tables", f"[[{name}]] entries")
+    return list(value)
+
+
+def _need(entry: Mapping, key: str, where: str, example: str):
+    if key not in entry:
+        raise InputError(f"{where}.{key}", "missing", example)
+    return entry[key]
+
+
+def _check_keys(entry: Mapping, where: str, keys: set[str]) -> None:
+    unknown = sorted(set(entry) - keys)
+    if unknown:
+        raise InputError(where, f"unknown key(s) {', '.join(unknown)}", ", ".join(sorted(keys)))
+
+
+def _steps(value) -> list[RoofStep]:
+    out = []
+    keys = {"name", "height", "upper_length", "lower_length", "separation", "upper_slope",
+            "upper_surface", "upper_eave_to_ridge", "upper_slides_toward"}  # fmt: skip
+    for i, e in enumerate(_table_list(value, "step")):
+        w = f"step[{i}]"
+        e = {str(k).replace("-", "_"): v for k, v in e.items()}
+        _check_keys(e, w, keys)
+        up_slope = e.get("upper_slope")
+        out.append(
+            RoofStep(
+                name=str(e.get("name", f"step {i + 1}")),
+                height=parse_length(_need(e, "height", w, "a length such as 10ft"), f"{w}.height"),
+                upper_length=parse_length(
+                    _need(e, "upper_length", w, "a length such as 120ft"), f"{w}.upper_length"
+                ),
+                lower_length=parse_length(
+                    _need(e, "lower_length", w, "a length such as 60ft"), f"{w}.lower_length"
+                ),
+                separation=parse_length(e.get("separation", "0ft"), f"{w}.separation"),
+                upper_slope=None if up_slope is None else parse_slope(up_slope, f"{w}.upper_slope"),
+                upper_surface=choose_key(
+                    f"{w}.upper_surface", e.get("upper_surface", "other"), SURFACES
+                ),
+                upper_eave_to_ridge=None
+                if e.get("upper_eave_to_ridge") is None
+                else parse_length(e["upper_eave_to_ridge"], f"{w}.upper_eave_to_ridge"),
+                upper_slides_toward=bool(
+                    _bool(e.get("upper_slides_toward", True), f"{w}.upper_slides_toward")
+                ),
+            )
+        )
+        if out[-1].height <= 0:
+            raise InputError(f"{w}.height", "must be above zero", "a length such as 10ft")
+    return out
+
+
+def _parapets(value) -> list[Parapet]:
+    out = []
+    for i, e in enumerate(_table_list(value, "parapet")):
+        w = f"parapet[{i}]"
+        _check_keys(e, w, {"name", "height", "upwind_length"})
+        out.append(
+            Parapet(
+                name=str(e.get("name", f"parapet {i + 1}")),
+                height=parse_length(_need(e, "height", w, "a length such as 3ft"), f"{w}.height"),
+                upwind_length=parse_length(
+                    _need(e, "upwind_length", w, "a length such as 100ft"), f"{w}.upwind_length"
+                ),
+            )
+        )
+    return out
+
+
+def _projections(value) -> list[Projection]:
+    out = []
+    for i, e in enumerate(_table_list(value, "projection")):
+        w = f"projection[{i}]"
+        _check_keys(e, w, {"name", "height", "plan_length", "upwind_length"})
+        out.append(
+            Projection(
+                name=str(e.get("name", f"projection {i + 1}")),
+                height=parse_length(_need(e, "height", w, "a length such as 4ft"), f"{w}.height"),
+                plan_length=parse_length(
+                    _need(e, "plan_length", w, "a length such as 20ft"), f"{w}.plan_length"
+                ),
+                upwind_length=parse_length(
+                    _need(e, "upwind_length", w, "a length such as 80ft"), f"{w}.upwind_length"
+                ),
+            )
+        )
+    return out
+
+
+def parse_pg(text, field: str = "pg") -> float:
+    """Parse a ground snow load with its unit into psf (zero or more)."""
+    return parse_load(text, field)

@@ -1,0 +1,245 @@
+"""Quantities with units at neve's edges.
+
+Every quantity that crosses a boundary (CLI, file, JSON, report) carries its
+unit.  Text such as ``35psf``, ``1.68kPa``, ``1.68 kN/m2``, ``412m``,
+``1350ft``, ``6:12`` or ``26.6deg`` is parsed here into the units ASCE 7
+writes its formulas in (psf, ft, pcf, degrees).  A bare number where a unit
+is needed is an :class:`~engine.errors.InputError` that lists the accepted
+units.
+
+Conversion factors are exact by definition of the international foot
+(1 ft = 0.3048 m) and the avoirdupois pound (1 lb = 0.45359237 kg) with
+standard gravity g = 9.80665 m/s^2 (NIST SP 811, Appendix B).
+
+>>> parse_load("1.68 kN/m2", "pg")  # doctest: +ELLIPSIS
+35.087...
+>>> round(parse_slope("6:12", "slope"), 3)
+26.565
+>>> parse_length("412m", "elevation") / FT_PER_M  # doctest: +ELLIPSIS
+412.0...
+"""
+
+from __future__ import annotations
+
+import math
+import re
+
+import numpy as np
+
+from engine.errors import InputError
+
+#: metres in one international foot [m/ft]
+M_PER_FT = 0.3048
+#: feet in one metre [ft/m]
+FT_PER_M = 1.0 / M_PER_FT
+#: pound-force in newtons [N/lbf]: 0.45359237 kg x 9.80665 m/s^2
+N_PER_LBF = 0.45359237 * 9.80665
+#: kilopascals in one psf [kPa/psf]
+KPA_PER_PSF = N_PER_LBF / M_PER_FT**2 / 1000.0
+#: kN/m3 in one pcf [(kN/m3)/pcf]
+KNM3_PER_PCF = N_PER_LBF / M_PER_FT**3 / 1000.0
+#: R-value conversion, SI (m2.K/W) to US (ft2.h.F/Btu)
+RUS_PER_RSI = 5.678263
+
+_NUM = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?"
+_QTY = re.compile(rf"^\s*({_NUM})\s*([^\d\s].*?)?\s*$")
+
+#: load units -> factor to psf
+LOAD_UNITS = {
+    "psf": 1.0,
+    "lb/ft2": 1.0,
+    "lb/ft^2": 1.0,
+    "lbf/ft2": 1.0,
+    "kpa": 1.0 / KPA_PER_PSF,
+    "kn/m2": 1.0 / KPA_PER_PSF,
+    "kn/m^2": 1.0 / KPA_PER_PSF,
+    "kn/m²": 1.0 / KPA_PER_PSF,
+    "pa": 1.0 / KPA_PER_PSF / 1000.0,
+}
+#: length units -> factor to ft
+LENGTH_UNITS = {
+    "ft": 1.0,
+    "feet": 1.0,
+    "foot": 1.0,
+    "'": 1.0,
+    "in": 1.0 / 12.0,
+    "m": FT_PER_M,
+    "meter": FT_PER_M,
+    "metre": FT_PER_M,
+    "meters": FT_PER_M,
+    "metres": FT_PER_M,
+    "mm": FT_PER_M / 1000.0,
+    "cm": FT_PER_M / 100.0,
+    "km": FT_PER_M * 1000.0,
+}
+#: density units -> factor to pcf
+DENSITY_UNITS = {
+    "pcf": 1.0,
+    "lb/ft3": 1.0,
+    "lb/ft^3": 1.0,
+    "kn/m3": 1.0 / KNM3_PER_PCF,
+    "kn/m^3": 1.0 / KNM3_PER_PCF,
+}
+_ANGLE_UNITS = {"deg": 1.0, "degree": 1.0, "degrees": 1.0, "°": 1.0, "rad": 180.0 / math.pi}
+
+_ACCEPTED = {
+    "load": "a number with psf, lb/ft2, kPa, kN/m2 or Pa (e.g. 35psf, 1.68kPa)",
+    "length": "a number with ft, in, m, cm or mm (e.g. 30ft, 9.1m)",
+    "density": "a number with pcf or kN/m3 (e.g. 18pcf)",
+    "slope": "rise:run such as 6:12, or an angle such as 26.6deg (0 to under 90 degrees)",
+}
+
+
+def _split(text: object, field: str, kind: str) -> tuple[float, str]:
+    if isinstance(text, bool) or text is None:
+        raise InputError(field, f"{text!r} is not a quantity", _ACCEPTED[kind])
+    if isinstance(text, (int, float, np.integer, np.floating)):
+        raise InputError(field, f"bare number {text!r} has no unit", _ACCEPTED[kind])
+    match = _QTY.match(str(text))
+    if not match:
+        raise InputError(field, f"{text!r} is not a quantity", _ACCEPTED[kind])
+    number, unit = match.groups()
+    if not unit:
+        raise InputError(field, f"bare number {text!r} has no unit", _ACCEPTED[kind])
+    value = float(number)
+    if not math.isfinite(value):
+        raise InputError(field, f"{text!r} is not a finite number", _ACCEPTED[kind])
+    return value, unit.strip().lower().replace(" ", "")
+
+
+def _parse(text: object, field: str, kind: str, table: dict[str, float]) -> float:
+    value, unit = _split(text, field, kind)
+    if unit not in table:
+        raise InputError(field, f"unknown unit {unit!r} in {text!r}", _ACCEPTED[kind])
+    return value * table[unit]
+
+
+def parse_load(text: object, field: str, *, allow_negative: bool = False) -> float:
+    """Parse a pressure such as ``35psf`` or ``1.68kPa`` into psf.
+
+    Parameters
+    ----------
+    text : str
+        The quantity with its unit.
+    field : str
+        Input field name for error messages.
+    allow_negative : bool
+        Negative loads are rejected unless this is true.
+
+    Returns
+    -------
+    float
+        The load [psf].
+    """
+    value = _parse(text, field, "load", LOAD_UNITS)
+    if value < 0 and not allow_negative:
+        raise InputError(field, f"{text!r} is negative", "a load of zero or more")
+    return value
+
+
+def parse_length(text: object, field: str, *, allow_negative: bool = False) -> float:
+    """Parse a length such as ``30ft`` or ``9.1m`` into feet [ft]."""
+    value = _parse(text, field, "length", LENGTH_UNITS)
+    if value < 0 and not allow_negative:
+        raise InputError(field, f"{text!r} is negative", "a length of zero or more")
+    return value
+
+
+def parse_length_unit(text: object, field: str) -> tuple[float, str]:
+    """Parse a length and return ``(value, unit)`` as written (``m`` or ``ft`` family).
+
+    Used where the original unit must be reported back (elevations).
+    """
+    value, unit = _split(text, field, "length")
+    if unit not in LENGTH_UNITS:
+        raise InputError(field, f"unknown unit {unit!r} in {text!r}", _ACCEPTED["length"])
+    return value, unit
+
+
+def parse_density(text: object, field: str) -> float:
+    """Parse a unit weight such as ``18pcf`` into pcf."""
+    value = _parse(text, field, "density", DENSITY_UNITS)
+    if value <= 0:
+        raise InputError(field, f"{text!r} is not positive", "a density above zero")
+    return value
+
+
+def parse_slope(text: object, field: str = "slope") -> float:
+    """Parse a roof slope into degrees from horizontal.
+
+    Accepts ``rise:run`` (``6:12``, ``0.25:12``), ``rise on run``
+    (``6 on 12``) or an angle (``26.6deg``, ``26.6°``, ``0.46rad``).
+    Slopes at or over 90 degrees and negative slopes are rejected.
+
+    Returns
+    -------
+    float
+        Roof slope [degrees].
+    """
+    if isinstance(text, (int, float)) and not isinstance(text, bool):
+        raise InputError(field, f"bare number {text!r} has no unit", _ACCEPTED["slope"])
+    raw = str(text).strip().lower()
+    ratio = re.match(rf"^({_NUM})\s*(?::|on|/)\s*({_NUM})$", raw)
+    if ratio:
+        rise, run = float(ratio.group(1)), float(ratio.group(2))
+        if rise < 0 or run < 0 or (rise == 0 and run == 0):
+            raise InputError(field, f"{text!r} is not a roof slope", _ACCEPTED["slope"])
+        deg = math.degrees(math.atan2(rise, run))
+    else:
+        value, unit = _split(raw, field, "slope")
+        if unit not in _ANGLE_UNITS:
+            raise InputError(field, f"unknown unit {unit!r} in {text!r}", _ACCEPTED["slope"])
+        deg = value * _ANGLE_UNITS[unit]
+    if deg < 0 or deg >= 90.0:
+        raise InputError(field, f"{text!r} is {deg:.1f} degrees", _ACCEPTED["slope"])
+    return deg
+
+
+def psf_to_kpa(psf):
+    """Convert psf to kPa (works on arrays)."""
+    return np.asarray(psf, dtype=float) * KPA_PER_PSF if np.ndim(psf) else float(psf) * KPA_PER_PSF
+
+
+def kpa_to_psf(kpa):
+    """Convert kPa to psf (works on arrays)."""
+    return np.asarray(kpa, dtype=float) / KPA_PER_PSF if np.ndim(kpa) else float(kpa) / KPA_PER_PSF
+
+
+def ft_to_m(ft):
+    """Convert feet to metres (works on arrays)."""
+    return np.asarray(ft, dtype=float) * M_PER_FT if np.ndim(ft) else float(ft) * M_PER_FT
+
+
+def m_to_ft(m):
+    """Convert metres to feet (works on arrays)."""
+    return np.asarray(m, dtype=float) * FT_PER_M if np.ndim(m) else float(m) * FT_PER_M
+
+
+def _num(x, digits: int):
+    if x is None:
+        return None
+    x = float(x)
+    if not math.isfinite(x):
+        return None
+    return round(x, digits)
+
+
+def load_json(psf) -> dict | None:
+    """A load in the JSON contract's form ``{"psf": x, "kPa": y}`` (None stays None)."""
+    if psf is None:
+        return None
+    return {"psf": _num(psf, 3), "kPa": _num(float(psf) * KPA_PER_PSF, 4)}
+
+
+def length_json(ft) -> dict | None:
+    """A length in the JSON contract's form ``{"ft": x, "m": y}`` (None stays None)."""
+    if ft is None:
+        return None
+    return {"ft": _num(ft, 3), "m": _num(float(ft) * M_PER_FT, 4)}
+
+
+def line_load_json(plf) -> dict | None:
+    """A load per unit length as ``{"plf": x, "kN/m": y}``."""
+    if plf is None:
+        return None
+    return {"plf": _num(plf, 2), "kN/m": _num(float(plf) * N_PER_LBF / M_PER_FT / 1000.0, 4)}

@@ -1,0 +1,111 @@
+"""Option definitions shared by the CLI commands (one place, as in rasterio).
+
+``roof_options`` adds the ASCE 7-16 roof options of DESIGN.md to a command;
+:func:`roof_from_options` turns the parsed values plus an optional ROOF.toml
+into an :class:`engine.roof_spec.Roof` (command-line options override the
+file), or ``None`` when no roof was described.
+"""
+
+from __future__ import annotations
+
+import tomllib
+from pathlib import Path
+
+import click
+
+from engine.errors import InputError
+from engine.roof_spec import Roof
+
+#: roof option names as they appear in kwargs (and ROOF.toml keys)
+ROOF_OPTION_KEYS = (
+    "shape", "slope", "surface", "ct", "thermal", "ce", "terrain", "exposure", "risk",
+    "eave_to_ridge", "r_value", "ventilated", "unobstructed", "prismatic",
+)  # fmt: skip
+
+
+def roof_options(f):
+    """Decorate a click command with the roof options and ``--roof ROOF.toml``."""
+    opts = [
+        click.option(
+            "--roof",
+            "roof_file",
+            type=click.Path(dir_okay=False),
+            help="ROOF.toml describing the roof (options below override it).",
+        ),
+        click.option("--shape", help="Roof shape: flat, monoslope, gable, hip."),
+        click.option("--slope", help="Roof slope, e.g. 6:12 or 26.6deg."),
+        click.option("--surface", help="Roof surface: slippery or other."),
+        click.option("--ct", help="Thermal factor Ct given directly (ASCE 7-16 Table 7.3-2)."),
+        click.option(
+            "--thermal",
+            help="Thermal condition: heated, cold-ventilated, unheated, below-freezing, greenhouse.",
+        ),
+        click.option("--ce", help="Exposure factor Ce given directly (ASCE 7-16 Table 7.3-1)."),
+        click.option("--terrain", help="Surface roughness: B, C, D, above-treeline, treeless."),
+        click.option("--exposure", help="Roof exposure: fully, partially, sheltered."),
+        click.option("--risk", help="Risk category: I, II, III, IV."),
+        click.option(
+            "--eave-to-ridge",
+            "eave_to_ridge",
+            help="Horizontal eave-to-ridge distance W, e.g. 30ft.",
+        ),
+        click.option(
+            "--r-value", "r_value", help="Roof thermal resistance R [ft2.h.F/Btu], e.g. 30."
+        ),
+        click.option(
+            "--ventilated/--unventilated",
+            "ventilated",
+            default=None,
+            help="Whether the roof is ventilated.",
+        ),
+        click.option(
+            "--unobstructed/--obstructed",
+            "unobstructed",
+            default=None,
+            help="Whether snow can slide off the eaves unobstructed.",
+        ),
+        click.option(
+            "--prismatic/--non-prismatic",
+            "prismatic",
+            default=None,
+            help="Simply supported prismatic members from ridge to eave (Sec. 7.6.1).",
+        ),
+    ]
+    for opt in reversed(opts):
+        f = opt(f)
+    return f
+
+
+def read_toml(path: str | Path, field: str) -> dict:
+    """Read a TOML file; a missing or malformed file is an InputError naming ``field``."""
+    p = Path(path)
+    if not p.is_file():
+        raise InputError(field, f"file {str(p)!r} not found", "a path to a TOML file")
+    try:
+        return tomllib.loads(p.read_text(encoding="utf-8"))
+    except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
+        raise InputError(field, f"{str(p)!r} is not valid TOML ({exc})", "a TOML file") from None
+
+
+def roof_mapping(kwargs: dict) -> dict | None:
+    """Merge ``--roof`` file content and the roof options into one mapping."""
+    data: dict = {}
+    if kwargs.get("roof_file"):
+        data = read_toml(kwargs["roof_file"], "roof")
+        if "profile" in data:
+            raise InputError(
+                "roof",
+                "this file defines profiles; name one in the site file's 'roof' column",
+                "a ROOF.toml without [profile.*] tables",
+            )
+    given = {k: kwargs.get(k) for k in ROOF_OPTION_KEYS if kwargs.get(k) is not None}
+    if not data and not given:
+        return None
+    data.update(given)
+    return data
+
+
+def roof_from_options(kwargs: dict) -> Roof | None:
+    """The roof described by the options and ``--roof`` file, or None if none was."""
+    data = roof_mapping(kwargs)
+    return None if data is None else Roof.from_mapping(data)
