@@ -1,0 +1,111 @@
+"""``neve roof``: the ASCE 7-16 roof snow load cases for a given ground load."""
+
+from __future__ import annotations
+
+import json
+
+import click
+
+from engine.errors import InputError
+from engine.roof_spec import Roof, parse_pg
+from geo.options import roof_mapping, roof_options
+
+
+def _load(v: dict | None) -> str:
+    if v is None:
+        return "n/a"
+    return f"{v['psf']:.1f} psf ({v['kPa']:.2f} kPa)"
+
+
+def _length(v: dict | None) -> str:
+    if v is None:
+        return "n/a"
+    return f"{v['ft']:.2f} ft ({v['m']:.2f} m)"
+
+
+def _case_values(case: dict) -> list[str]:
+    skip = {"case", "name", "steps", "not_combined_with", "note", "method", "source", "governs"}
+    out = []
+    for key, value in case.items():
+        if key in skip or not isinstance(value, dict):
+            continue
+        if "psf" in value:
+            out.append(f"{key} = {_load(value)}")
+        elif "ft" in value:
+            out.append(f"{key} = {_length(value)}")
+        elif "plf" in value:
+            out.append(f"{key} = {value['plf']:.0f} plf ({value['kN/m']:.2f} kN/m)")
+        elif "pcf" in value:
+            out.append(f"{key} = {value['pcf']:.1f} pcf")
+    if case.get("governs"):
+        out.append(f"governs = {case['governs']}")
+    return out
+
+
+def roof_text(result: dict, *, show_steps: bool = True) -> str:
+    """A readable summary of a ``neve roof`` JSON object, with its steps."""
+    f = result["factors"]
+    loads = result["loads"]
+    lines = [
+        f"Roof snow loads, {result['standard']}",
+        f"  roof: {result['roof']['shape']}, slope {result['roof']['slope_deg']:.2f} deg, "
+        f"surface {result['roof']['surface']}, risk category {result['roof']['risk']}",
+        f"  pg = {_load(result['pg'])}",
+        f"  Ce = {f['Ce']}, Ct = {f['Ct']}, Is = {f['Is']}, Cs = {f['Cs']}",
+        f"  pf = {_load(loads['pf'])}   ps = {_load(loads['ps'])}   pm = {_load(loads['pm'])}"
+        f"   rain-on-snow = {_load(loads['rain_on_snow'])}",
+        f"  design uniform load = {_load(result['design_uniform'])}",
+        "",
+        "Load cases",
+    ]
+    for case in result["cases"]:
+        lines.append(f"  [{case['case']}] {case['name']}")
+        for v in _case_values(case):
+            lines.append(f"      {v}")
+        if case.get("note"):
+            lines.append(f"      note: {case['note']}")
+        if case.get("not_combined_with"):
+            lines.append(f"      not combined with: {case['not_combined_with']}")
+        if show_steps:
+            for s in case["steps"]:
+                value = s["value"]
+                value = f"{value:.4g}" if isinstance(value, float) else value
+                lines.append(
+                    f"        {s['symbol']:>11} = {value} {s['unit']:<4}  {s['substituted']}   [{s['ref']}]"
+                )
+    if result.get("not_required"):
+        lines.append("")
+        lines.append("Not required")
+        for item in result["not_required"]:
+            name = f" '{item['name']}'" if item.get("name") else ""
+            lines.append(f"  [{item['case']}]{name}: {item['reason']}")
+    lines.append("")
+    lines.append("Flags: " + (", ".join(result["flags"]) if result["flags"] else "none"))
+    lines.append("")
+    lines.append("Cautions")
+    lines.extend(f"  ! {c}" for c in result["cautions"])
+    return "\n".join(lines)
+
+
+@click.command("roof")
+@click.option("--pg", required=True, help="Ground snow load with its unit, e.g. 35psf or 1.68kPa.")
+@roof_options
+@click.option(
+    "--format", "fmt", type=click.Choice(["text", "json"]), default="text", show_default=True
+)
+@click.option("--no-steps", is_flag=True, help="Text output without the step records.")
+def roof(pg, fmt, no_steps, **kwargs):
+    """Roof snow load cases (ASCE 7-16 Chapter 7) for a ground snow load --pg."""
+    from engine.roof import analyze_roof
+
+    pg_psf = parse_pg(pg, "pg")
+    mapping = roof_mapping(kwargs) or {}
+    try:
+        r = Roof.from_mapping(mapping)
+    except InputError:
+        raise
+    result = analyze_roof(pg_psf, r).to_json()
+    if fmt == "json":
+        click.echo(json.dumps(result, indent=2))
+    else:
+        click.echo(roof_text(result, show_steps=not no_steps))
