@@ -1,0 +1,282 @@
+"""Build neve's embedded demo data: the invented jurisdiction of Skerrow Island.
+
+Skerrow Island does not exist.  It is placed in the open North Pacific
+(around 47.5 N, 140 W), far from any real jurisdiction, so that nobody can
+mistake its map for a real one.  Every value here is invented for
+demonstration; every sidecar says ``demo = true``.
+
+Outputs (in ``geo/demo/`` unless ``--out`` is given):
+
+``skerrow_base.gpkg`` (+ ``.toml``)
+    The island-wide base layer, stored in UTM zone 7N (EPSG:32607) to show
+    that layers may use any CRS; values in psf, elevations in ft.  Zones of
+    every rule kind: ``fixed`` (with and without ``elev_max``), ``study``
+    (two study areas), ``elevation_table``, ``formula`` with a ``Z`` column,
+    and a ``pg_min`` floor.
+``port_hallin_amendment.geojson`` (+ ``.toml``)
+    A local amendment of the (invented) town of Port Hallin, in EPSG:4326,
+    values in kPa and elevations in m, to stack above the base layer; one of
+    its zones is elevation-limited.
+``skerrow_dem.tif``
+    A synthetic DEM of the island (two summits), UTM 7N, 200 m cells,
+    float32 metres (band unit metadata ``metre``), nodata over the sea.
+
+The build is deterministic (fixed geometry, no randomness, a fixed
+GeoPackage timestamp), so rebuilding gives the same files.
+
+Run: ``python data_recipes/build_demo.py [--out DIR]``
+"""
+
+from __future__ import annotations
+
+import argparse
+import math
+import os
+from pathlib import Path
+
+import numpy as np
+
+CENTER_LAT, CENTER_LON = 47.5, -140.0
+UTM = "EPSG:32607"
+KM = 1000.0
+#: coordinate grid of the demo zones [m]
+GRID_M = 0.01
+HERE = Path(__file__).resolve().parent
+DEFAULT_OUT = HERE.parent / "geo" / "demo"
+
+SOURCE = (
+    "Invented for the neve demo by data_recipes/build_demo.py; not a published map; "
+    "never for design"
+)
+COMMON = {
+    "standard": "ASCE 7-16",
+    "source": SOURCE,
+    "license": "CC0-1.0",
+    "date": "2026-01-01",
+    "demo": True,
+}
+
+#: summits of the synthetic island: (x [km], y [km], height [m], spread [km])
+SUMMITS = ((4.0, 2.0, 1700.0, 4.5), (-10.0, 6.0, 900.0, 3.0))
+
+
+def island_outline():
+    """Coast of the island in local km (east, north) around the centre."""
+    from shapely.geometry import Polygon
+
+    t = np.linspace(0.0, 2.0 * math.pi, 181)[:-1]
+    r = 1.0 + 0.06 * np.sin(3 * t) + 0.04 * np.cos(5 * t + 0.7)
+    return Polygon(np.column_stack([24.0 * r * np.cos(t), 15.0 * r * np.sin(t)]))
+
+
+def base_zones():
+    """(attributes, geometry in UTM 7N metres) of the base layer's zones.
+
+    Shapes are drawn in local km, moved to UTM, and cut with overlay
+    operations on a 1 cm grid, so that neighbouring zones share their edges
+    exactly (no gaps, no slivers of overlap).
+    """
+    import shapely
+    from shapely.geometry import Point, box
+
+    def cut(a, b, op):
+        return getattr(shapely, op)(a, b, grid_size=GRID_M)
+
+    isl = _to_utm(island_outline())
+    big = 100.0
+    summit = cut(_to_utm(Point(SUMMITS[0][0], SUMMITS[0][1]).buffer(3.0, 64)), isl, "intersection")
+    cape = cut(_to_utm(Point(-19.0, -7.0).buffer(3.0, 64)), isl, "intersection")
+    west = cut(cut(_to_utm(box(-big, -big, -8.0, 3.0)), isl, "intersection"), cape, "difference")
+    north = cut(_to_utm(box(-big, 3.0, 0.0, big)), isl, "intersection")
+    high = cut(cut(_to_utm(box(-8.0, -big, 14.0, 3.0)), isl, "intersection"), summit, "difference")
+    northeast = cut(
+        cut(_to_utm(box(0.0, 3.0, 14.0, big)), isl, "intersection"), summit, "difference"
+    )
+    east = cut(_to_utm(box(14.0, -big, big, big)), isl, "intersection")
+    table = "[[0, 30], [1000, 40], [2500, 70], [4500, 120]]"
+    rows = [
+        ("SK-W", "fixed", 25.0, 1000.0, None, None, None, None, west,
+         "West coast lowland; mapped value valid up to 1000 ft"),
+        ("SK-N", "formula", None, None, None, "Z + 0.015 * max(A - 800, 0)", 28.0, 30.0, north,
+         "North valley; value rises with elevation above 800 ft"),
+        ("SK-H", "elevation_table", None, None, table, None, None, None, high,
+         "Central highlands; table by elevation, study above 4500 ft"),
+        ("SK-NE", "fixed", 45.0, 2000.0, None, None, None, None, northeast,
+         "North-east slopes; mapped value valid up to 2000 ft"),
+        ("SK-E", "fixed", 35.0, None, None, None, None, None, east, "East coast plain"),
+        ("SK-S1", "study", None, None, None, None, None, None, summit,
+         "Summit massif; no mapped value"),
+        ("SK-S2", "study", None, None, None, None, None, None, cape,
+         "Cape Gale; wind-scoured headland, drifting too variable to map"),
+    ]  # fmt: skip
+    for r in rows:
+        if not r[8].is_valid:
+            raise RuntimeError(f"demo zone {r[0]} is invalid: {shapely.is_valid_reason(r[8])}")
+    return rows
+
+
+def town_zones():
+    """(attributes, geometry in local km) of the Port Hallin amendment layer."""
+    from shapely.geometry import box
+
+    return [
+        ("PH-1", "fixed", 1.45, None, box(-16.0, -3.5, -12.0, -0.5),
+         "Port Hallin town centre (amended value)"),
+        ("PH-2", "fixed", 1.90, 180.0, box(-16.0, -0.5, -12.0, 2.0),
+         "Hallin Heights; amended value valid up to 180 m"),
+    ]  # fmt: skip
+
+
+def _to_utm(geom):
+    import shapely
+    from pyproj import Transformer
+
+    cx, cy = Transformer.from_crs(4326, UTM, always_xy=True).transform(CENTER_LON, CENTER_LAT)
+    return shapely.set_precision(shapely.transform(geom, lambda xy: xy * KM + [cx, cy]), GRID_M)
+
+
+def build(out: Path = DEFAULT_OUT) -> list[Path]:
+    """Write the demo layers, sidecars and DEM into ``out``; return the paths."""
+    import geopandas as gpd
+
+    os.environ["OGR_CURRENT_DATE"] = "2026-01-01T00:00:00Z"  # fixed GeoPackage timestamp
+    out.mkdir(parents=True, exist_ok=True)
+    rows = base_zones()
+    cols = ["zone_id", "rule", "pg", "elev_max", "table", "expr", "Z", "pg_min"]
+    data = {c: [r[i] for r in rows] for i, c in enumerate(cols)}
+    data["note"] = [r[9] for r in rows]
+    data["source"] = ["Skerrow Island demo map (invented), sheet 1"] * len(rows)
+    base = gpd.GeoDataFrame(data, geometry=[r[8] for r in rows], crs=UTM)
+    for c in ("pg", "elev_max", "Z", "pg_min"):
+        base[c] = base[c].astype(float)
+    base_path = out / "skerrow_base.gpkg"
+    base_path.unlink(missing_ok=True)
+    base.to_file(base_path, layer="zones", driver="GPKG", engine="pyogrio")
+    _sidecar(
+        base_path,
+        name="Skerrow Island ground snow load map (DEMO)",
+        jurisdiction="Skerrow Island Building Office (fictional)",
+        value_units="psf",
+        elevation_units="ft",
+        boundary_tolerance_m=250,
+    )
+    town = town_zones()
+    tgdf = gpd.GeoDataFrame(
+        {
+            "zone_id": [r[0] for r in town],
+            "rule": [r[1] for r in town],
+            "pg": [r[2] for r in town],
+            "elev_max": [float("nan") if r[3] is None else r[3] for r in town],
+            "note": [r[5] for r in town],
+            "source": ["Port Hallin amendment no. 1 (invented)"] * len(town),
+        },
+        geometry=[_to_utm(r[4]) for r in town],
+        crs=UTM,
+    ).to_crs(4326)
+    town_path = out / "port_hallin_amendment.geojson"
+    town_path.unlink(missing_ok=True)
+    tgdf.to_file(town_path, driver="GeoJSON", engine="pyogrio", layer_options={
+        "COORDINATE_PRECISION": 7, "WRITE_NAME": "NO"})  # fmt: skip
+    _sidecar(
+        town_path,
+        name="Port Hallin local amendment (DEMO)",
+        jurisdiction="Town of Port Hallin, Skerrow Island (fictional)",
+        value_units="kPa",
+        elevation_units="m",
+        boundary_tolerance_m=100,
+    )
+    dem_path = out / "skerrow_dem.tif"
+    build_dem(dem_path)
+    (out / "README.md").write_text(_README, encoding="utf-8")
+    return [base_path, town_path, dem_path]
+
+
+def _sidecar(path: Path, **keys) -> None:
+    meta = {"name": keys.pop("name"), "jurisdiction": keys.pop("jurisdiction")}
+    meta.update(COMMON)
+    meta.update(keys)
+    lines = ["# Sidecar of an invented demo layer: never for design."]
+    for k, v in meta.items():
+        if isinstance(v, bool):
+            lines.append(f"{k} = {'true' if v else 'false'}")
+        elif isinstance(v, (int, float)):
+            lines.append(f"{k} = {v}")
+        else:
+            lines.append(f'{k} = "{v}"')
+    Path(str(path) + ".toml").write_text("\n".join(lines) + "\n", encoding="utf-8")
+
+
+def dem_heights(x_km: np.ndarray, y_km: np.ndarray) -> np.ndarray:
+    """Synthetic terrain height [m] at local km coordinates (before the coast mask)."""
+    z = np.full(np.shape(x_km), 15.0)
+    for sx, sy, h, s in SUMMITS:
+        z = z + h * np.exp(-((x_km - sx) ** 2 + (y_km - sy) ** 2) / (2.0 * s**2))
+    return z
+
+
+def build_dem(path: Path, cell_m: float = 200.0) -> None:
+    """Write the synthetic DEM (float32 metres, nodata -9999 over the sea)."""
+    import rasterio
+    import shapely
+    from pyproj import Transformer
+    from rasterio.transform import from_origin
+
+    cx, cy = Transformer.from_crs(4326, UTM, always_xy=True).transform(CENTER_LON, CENTER_LAT)
+    x0, y0 = round(cx - 28_000.0, -2), round(cy + 19_000.0, -2)
+    width, height = int(56_000 / cell_m), int(38_000 / cell_m)
+    cols = (np.arange(width) + 0.5) * cell_m + x0
+    rows = y0 - (np.arange(height) + 0.5) * cell_m
+    xx, yy = np.meshgrid(cols, rows)
+    xk, yk = (xx - cx) / KM, (yy - cy) / KM
+    isl = island_outline()
+    land = shapely.contains_xy(isl, xk, yk)
+    dist_coast = shapely.distance(isl.exterior, shapely.points(xk, yk))
+    z = dem_heights(xk, yk) * np.clip(dist_coast / 2.0, 0.0, 1.0) + 2.0
+    z = np.where(land, z, -9999.0).astype("float32")
+    profile = {
+        "driver": "GTiff",
+        "width": width,
+        "height": height,
+        "count": 1,
+        "dtype": "float32",
+        "crs": UTM,
+        "transform": from_origin(x0, y0, cell_m, cell_m),
+        "nodata": -9999.0,
+        "compress": "deflate",
+        "predictor": 3,
+        "tiled": False,
+    }
+    path.unlink(missing_ok=True)
+    with rasterio.open(path, "w", **profile) as ds:
+        ds.write(z, 1)
+        ds.set_band_unit(1, "metre")
+        ds.set_band_description(1, "synthetic elevation of Skerrow Island (invented)")
+        ds.update_tags(demo="true", note="Invented terrain for the neve demo; not a real place")
+
+
+_README = """\
+# neve demo data: Skerrow Island (invented)
+
+Skerrow Island, the town of Port Hallin and every value in these files are
+invented for demonstrating neve.  They are not a real jurisdiction's map and
+must never be used for design.  Every sidecar says `demo = true`, and neve
+flags every result from them with `demo_data`.
+
+Built by `python data_recipes/build_demo.py` (deterministic).
+
+- `skerrow_base.gpkg`: base layer (UTM 7N, psf, ft), zones of every rule kind
+- `port_hallin_amendment.geojson`: local amendment (EPSG:4326, kPa, m)
+- `skerrow_dem.tif`: synthetic DEM (UTM 7N, metres, nodata over the sea)
+"""
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--out", type=Path, default=DEFAULT_OUT, help="output folder")
+    args = ap.parse_args()
+    for p in build(args.out):
+        print(p)
+
+
+if __name__ == "__main__":
+    main()

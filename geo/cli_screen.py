@@ -1,0 +1,174 @@
+"""``neve screen``: screen a portfolio of sites (a thin shell over :mod:`geo.screen`)."""
+
+from __future__ import annotations
+
+import signal
+import sys
+from pathlib import Path
+
+import click
+
+from engine.errors import InputError
+from geo.options import ROOF_OPTION_KEYS, read_toml, roof_options
+
+
+def _roof(kwargs: dict):
+    """One Roof, a dict of profiles, or None, from --roof and the roof options."""
+    from engine.roof_spec import Roof
+    from geo.screen import roofs_from_mapping
+
+    given = {k: kwargs.get(k) for k in ROOF_OPTION_KEYS if kwargs.get(k) is not None}
+    if kwargs.get("roof_file"):
+        return roofs_from_mapping(read_toml(kwargs["roof_file"], "roof"), given)
+    return Roof.from_mapping(given) if given else None
+
+
+def _terminate(signum, frame):  # pragma: no cover - exercised through a subprocess test
+    raise KeyboardInterrupt(f"signal {signum}")
+
+
+@click.command("screen")
+@click.argument("sites", type=click.Path(dir_okay=False))
+@click.option(
+    "-o",
+    "--output",
+    "output",
+    required=True,
+    type=click.Path(dir_okay=False),
+    help="Results file: .csv, .xlsx (with a summary sheet), .gpkg or .parquet.",
+)
+@click.option(
+    "--layer",
+    "layers",
+    multiple=True,
+    type=click.Path(dir_okay=False),
+    help="Zone layer (repeat, most local first). Default: the embedded demo layer.",
+)
+@click.option("--dem", type=click.Path(dir_okay=False), help="Elevation raster (GeoTIFF).")
+@click.option(
+    "--dem-units",
+    type=click.Choice(["m", "ft"], case_sensitive=False),
+    help="Units of the DEM's values when its metadata does not say.",
+)
+@roof_options
+@click.option("--map", "map_path", type=click.Path(dir_okay=False), help="Portfolio map (.html).")
+@click.option(
+    "--engine",
+    type=click.Choice(["local", "dask"], case_sensitive=False),
+    default="local",
+    show_default=True,
+    help="Resolve on this machine, or on a Dask cluster.",
+)
+@click.option(
+    "--scheduler",
+    help="Dask scheduler address (tcp://host:8786); a local cluster is started without it.",
+)
+@click.option(
+    "--staging",
+    type=click.Path(file_okay=False),
+    help="Folder shared with the Dask workers for the staged sites (remote clusters).",
+)
+@click.option(
+    "--partitions", type=click.IntRange(min=1), help="Dask partitions (default: automatic)."
+)
+@click.option(
+    "--gazetteer",
+    type=click.Path(dir_okay=False),
+    help="CSV of address,lat,lon used first for address rows.",
+)
+@click.option(
+    "--geocoder-url",
+    "geocoder_url",
+    help="Nominatim-compatible server for address rows (one request per second at most).",
+)
+@click.option("--quiet", is_flag=True, help="No progress bar.")
+@click.option("--overwrite", is_flag=True, help="Replace existing output files.")
+@click.option(
+    "--summary-json",
+    "summary_json",
+    type=click.Path(dir_okay=False),
+    help="Also write the run summary as JSON to this file.",
+)
+def screen(sites, output, layers, dem, dem_units, map_path, engine, scheduler, staging, partitions,
+           gazetteer, geocoder_url, quiet, overwrite, summary_json, **roof_kw):  # fmt: skip
+    """Screen a portfolio: ground snow load (and roof loads) for every site in SITES.
+
+    SITES is a CSV, XLSX, GeoPackage or Parquet file with lat/lon (or
+    latitude/longitude), an address, or point geometry; an optional
+    elevation carries its unit in the cell (1200ft, 412m) or in the column
+    name (elevation_ft, elevation_m).  Every row comes back in order with
+    status, flags and message.
+
+    Results are an aid to, not a substitute for, a licensed design
+    professional. Confirm ground snow loads with the authority having
+    jurisdiction; flagged sites need a site-specific case study.
+    """
+    import json
+
+    from geo.outputs import check_target, result_format, write_results
+    from geo.screen import format_summary, run_screen
+
+    # check every target before any work, so a refusal costs nothing
+    result_format(output)
+    check_target(output, overwrite)
+    if map_path:
+        if Path(map_path).suffix.lower() not in (".html", ".htm"):
+            raise InputError("map", f"{map_path!r} is not an .html path", "a path ending in .html")
+        check_target(map_path, overwrite, "map")
+    if summary_json:
+        check_target(summary_json, overwrite, "summary-json")
+    if scheduler and engine.lower() != "dask":
+        raise InputError(
+            "scheduler", "given without --engine dask", "--engine dask --scheduler ADDRESS"
+        )
+    if staging and engine.lower() != "dask":
+        raise InputError("staging", "given without --engine dask", "--engine dask --staging DIR")
+    if partitions and engine.lower() != "dask":
+        raise InputError(
+            "partitions", "given without --engine dask", "--engine dask --partitions N"
+        )
+    roof = _roof(roof_kw)
+    progress = not quiet and sys.stderr.isatty()
+    previous = signal.signal(signal.SIGTERM, _terminate)
+    try:
+        run = run_screen(
+            sites,
+            layers=list(layers) or None,
+            dem=dem,
+            dem_units=dem_units,
+            roof=roof,
+            engine=engine.lower(),
+            scheduler=scheduler,
+            partitions=partitions,
+            staging=staging,
+            gazetteer=gazetteer,
+            geocoder_url=geocoder_url,
+            progress=progress,
+        )
+        write_results(
+            run.results, output, overwrite=overwrite, summary=run.summary, geometry=run.geometry
+        )
+        if map_path:
+            _write_map(run, map_path, overwrite)
+        if summary_json:
+            from geo.outputs import atomic_path
+
+            with atomic_path(summary_json, overwrite=overwrite) as tmp:
+                tmp.write_text(json.dumps(run.summary, indent=2), encoding="utf-8")
+    finally:
+        signal.signal(signal.SIGTERM, previous)
+    click.echo(format_summary(run.summary))
+    click.echo(f"results: {output}")
+    if map_path:
+        click.echo(f"map: {map_path}")
+
+
+def _write_map(run, map_path: str, overwrite: bool) -> None:
+    try:
+        from maps.portfolio import write_portfolio_map
+    except ImportError as exc:  # pragma: no cover - until the maps package lands
+        raise InputError("map", f"the portfolio map is not available ({exc})", "no --map") from None
+    from geo.outputs import atomic_path
+
+    with atomic_path(map_path, overwrite=overwrite) as tmp:
+        write_portfolio_map(run.results, tmp, demo=bool(run.summary.get("demo")))

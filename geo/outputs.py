@@ -1,0 +1,216 @@
+"""Writing screening results: CSV, XLSX (with a summary sheet), GeoPackage, Parquet.
+
+Every writer is atomic: the table goes to a temporary file in the target's
+folder, which is renamed over the target only once it is complete, so an
+interrupted or failed run never leaves a partial output behind.  An existing
+output is replaced only when ``overwrite=True``.
+"""
+
+from __future__ import annotations
+
+import os
+import tempfile
+from collections.abc import Callable, Iterator
+from contextlib import contextmanager
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from engine.errors import InputError
+
+#: accepted result suffixes -> format name
+RESULT_FORMATS = {
+    ".csv": "csv",
+    ".xlsx": "xlsx",
+    ".gpkg": "gpkg",
+    ".parquet": "parquet",
+}
+#: the most data rows an XLSX sheet holds (one row is the header)
+XLSX_MAX_ROWS = 1_048_575
+#: columns that hold the coordinates used for each site [deg, WGS 84]
+LAT_COLUMN, LON_COLUMN = "site_lat", "site_lon"
+
+
+def result_format(path: str | Path, field: str = "output") -> str:
+    """The format name of a result file from its suffix (an InputError lists the accepted ones)."""
+    suffix = Path(path).suffix.lower()
+    if suffix not in RESULT_FORMATS:
+        raise InputError(
+            field,
+            f"cannot write {str(path)!r}: unknown suffix {suffix or '(none)'!r}",
+            ", ".join(RESULT_FORMATS),
+        )
+    return RESULT_FORMATS[suffix]
+
+
+def check_target(path: str | Path, overwrite: bool, field: str = "output") -> Path:
+    """Refuse an existing target unless ``overwrite``; check its folder exists."""
+    p = Path(path)
+    if p.exists() and not overwrite:
+        raise InputError(field, f"{str(p)!r} already exists", "a new path, or --overwrite")
+    if p.exists() and p.is_dir():
+        raise InputError(field, f"{str(p)!r} is a folder", "a file path")
+    if not p.parent.exists():
+        raise InputError(
+            field, f"folder {str(p.parent)!r} does not exist", "a path in an existing folder"
+        )
+    return p
+
+
+@contextmanager
+def atomic_path(path: str | Path, *, overwrite: bool = False) -> Iterator[Path]:
+    """Yield a temporary path beside ``path``; rename it over ``path`` on success.
+
+    On any exception (including KeyboardInterrupt) the temporary file and any
+    side files a driver left (``-wal``, ``-shm``, ``-journal``) are removed.
+    """
+    target = check_target(path, overwrite)
+    fd, tmp_name = tempfile.mkstemp(
+        prefix=f".{target.name}.", suffix=f".part{target.suffix}", dir=target.parent
+    )
+    os.close(fd)
+    tmp = Path(tmp_name)
+    tmp.unlink()  # writers create the file themselves (some refuse an existing one)
+    try:
+        yield tmp
+        if not tmp.exists():
+            raise OSError(f"the writer produced no file for {target}")
+        if target.exists() and not overwrite:
+            raise InputError("output", f"{str(target)!r} appeared during the run", "--overwrite")
+        os.replace(tmp, target)
+    finally:
+        for leftover in (tmp, *(Path(f"{tmp}{s}") for s in ("-wal", "-shm", "-journal"))):
+            try:
+                leftover.unlink()
+            except FileNotFoundError:
+                pass
+
+
+def _points(df: pd.DataFrame, geometry=None):
+    import geopandas as gpd
+
+    if geometry is not None:
+        geom = gpd.GeoSeries(geometry, crs="EPSG:4326").reset_index(drop=True)
+    else:
+        lon = df[LON_COLUMN].to_numpy(dtype=float, na_value=np.nan)
+        lat = df[LAT_COLUMN].to_numpy(dtype=float, na_value=np.nan)
+        geom = gpd.GeoSeries(gpd.points_from_xy(lon, lat), crs="EPSG:4326")
+        geom[np.isnan(lon) | np.isnan(lat)] = None
+    return gpd.GeoDataFrame(df.reset_index(drop=True), geometry=geom, crs="EPSG:4326")
+
+
+def _arrow_safe(df: pd.DataFrame) -> pd.DataFrame:
+    """Input columns of mixed types (text and numbers in one column) become text."""
+    import pyarrow as pa
+
+    mixed = []
+    for col in df.columns:
+        if df[col].dtype == object:
+            try:
+                pa.array(df[col], from_pandas=True)
+            except (pa.ArrowInvalid, pa.ArrowTypeError):
+                mixed.append(col)
+    if not mixed:
+        return df
+    out = df.copy()
+    for col in mixed:
+        out[col] = out[col].map(lambda v: None if pd.isna(v) else str(v)).astype("string")
+    return out
+
+
+def summary_rows(summary: dict) -> pd.DataFrame:
+    """A two-column table (item, value) of a screening summary for the XLSX sheet."""
+    rows: list[tuple[str, object]] = [("sites", summary.get("rows"))]
+    for status, count in summary.get("status", {}).items():
+        rows.append((f"status: {status}", count))
+    for flag, count in summary.get("flags", {}).items():
+        rows.append((f"flag: {flag}", count))
+    pg = summary.get("pg_psf") or {}
+    rows.append(("pg min [psf]", pg.get("min")))
+    rows.append(("pg max [psf]", pg.get("max")))
+    for i, layer in enumerate(summary.get("layers", [])):
+        rows.append((f"layer {i + 1}", layer.get("name")))
+        rows.append((f"layer {i + 1} sha256", layer.get("sha256")))
+        rows.append((f"layer {i + 1} demo", layer.get("demo")))
+    if summary.get("demo"):
+        rows.append(("DEMO", "invented demo data: never use these results for design"))
+    for caution in summary.get("cautions", []):
+        rows.append(("caution", caution))
+    return pd.DataFrame(rows, columns=["item", "value"])
+
+
+def _write_xlsx(df: pd.DataFrame, tmp: Path, summary: dict | None) -> None:
+    if len(df) > XLSX_MAX_ROWS:
+        raise InputError(
+            "output",
+            f"{len(df):,} rows do not fit in one XLSX sheet ({XLSX_MAX_ROWS:,} at most)",
+            "a .csv, .gpkg or .parquet output for large portfolios",
+        )
+    with pd.ExcelWriter(tmp, engine="openpyxl") as xw:
+        df.to_excel(xw, sheet_name="results", index=False)
+        summary_rows(summary or {}).to_excel(xw, sheet_name="summary", index=False)
+
+
+def _for_text(df: pd.DataFrame, geometry) -> pd.DataFrame:
+    if geometry is None:
+        return df
+    import shapely
+
+    out = df.copy()
+    out["geometry"] = shapely.to_wkt(np.asarray(geometry, dtype=object))
+    return out
+
+
+def write_results(
+    df: pd.DataFrame,
+    path: str | Path,
+    *,
+    overwrite: bool = False,
+    summary: dict | None = None,
+    geometry=None,
+    _writer_hook: Callable | None = None,
+) -> Path:
+    """Write a results table atomically in the format its suffix names.
+
+    Parameters
+    ----------
+    df : pandas.DataFrame
+        The screening results (one row per input site).
+    path : str or Path
+        Target ``.csv``, ``.xlsx``, ``.gpkg`` or ``.parquet``.
+    overwrite : bool
+        Replace an existing file.
+    summary : dict, optional
+        The screening summary, written as the XLSX ``summary`` sheet.
+    geometry : array of shapely geometries, optional
+        The input's own geometry (GeoPackage / GeoParquet input), written as
+        the output geometry (or as WKT text in CSV/XLSX); otherwise points
+        are made from ``site_lat``/``site_lon``.
+
+    Returns
+    -------
+    Path
+        The written file.
+    """
+    fmt = result_format(path)
+    target = Path(path)
+    with atomic_path(target, overwrite=overwrite) as tmp:
+        if fmt == "csv":
+            _for_text(df, geometry).to_csv(tmp, index=False)
+        elif fmt == "xlsx":
+            _write_xlsx(_for_text(df, geometry), tmp, summary)
+        elif fmt == "parquet":
+            table = _arrow_safe(df)
+            if geometry is not None:
+                _points(table, geometry).to_parquet(tmp, index=False)
+            else:
+                table.to_parquet(tmp, index=False)
+        else:
+            import pyogrio
+
+            gdf = _points(df, geometry)
+            pyogrio.write_dataframe(gdf, tmp, driver="GPKG", layer="results")
+        if _writer_hook is not None:  # tests: simulate an interruption after writing
+            _writer_hook(tmp)
+    return target

@@ -1,0 +1,482 @@
+"""Zone rules: how a zone's row gives a ground snow load at a site elevation.
+
+The rules (DESIGN.md, "Zone layers"):
+
+``fixed``
+    The mapped value in the layer's value column (``pg``).
+``study``
+    No mapped value; a site-specific case study is required.
+``elevation_table``
+    Piecewise-linear interpolation in a JSON list of ``[elevation, value]``
+    pairs with strictly increasing elevation.  Below the first point the
+    first value holds; above the last point a study is required.
+``formula``
+    A safe arithmetic expression (:mod:`geo.expr`) in ``A`` (site elevation)
+    and the row's numeric columns.
+
+Any rule may carry ``elev_max`` (above it a study is required) and
+``pg_min`` (a floor on the result).  Elevations are in the layer's
+``elevation_units`` and values in its ``value_units``.
+
+:class:`ZoneTable` parses the rows once, recording every defect as a
+problem (``neve layer check`` lists them; a site in a defective zone gets
+status ``error``); :func:`evaluate` works on arrays of (zone, elevation)
+pairs so that a portfolio is evaluated in a few numpy passes.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+import pandas as pd
+
+from engine.steps import Step, fmt
+from geo.expr import Expr, ExpressionError, compile_expr
+
+RULES = ("fixed", "study", "elevation_table", "formula")
+RULE_CODE = {name: i for i, name in enumerate(RULES)}
+BAD_RULE = -1
+
+# states of one (site, zone) evaluation
+OK = 0  #: a value was found
+STUDY = 1  #: the zone requires a site-specific study
+ABOVE = 2  #: the site is above elev_max or the end of the table: study required
+NEED_ELEV = 3  #: the rule needs an elevation and none is known
+BAD = 4  #: the zone's row is defective (see ZoneTable.problems)
+UNCHECKED = 5  #: a value exists but elev_max could not be checked (no elevation)
+NUMERIC = 6  #: the formula gave no finite, non-negative number at this site
+
+#: columns with a meaning of their own (never treated as formula variables)
+RESERVED = {"zone_id", "rule", "table", "expr", "source", "note", "geometry"}
+
+
+def _clean_text(value) -> str:
+    if value is None or (isinstance(value, float) and math.isnan(value)):
+        return ""
+    return str(value).strip()
+
+
+def _opt_float(value) -> float:
+    """A float, NaN for missing; raises ValueError for text that is not a number."""
+    if value is None:
+        return math.nan
+    if isinstance(value, str):
+        if not value.strip():
+            return math.nan
+        return float(value)
+    if isinstance(value, bool):
+        raise ValueError("a boolean is not a number")
+    return float(value)
+
+
+def parse_table(value) -> tuple[np.ndarray, np.ndarray]:
+    """Parse an ``elevation_table`` cell into elevation and value arrays.
+
+    Raises
+    ------
+    ValueError
+        When the text is not a JSON list of at least two ``[elevation, value]``
+        number pairs with strictly increasing elevation and values of zero or more.
+    """
+    text = _clean_text(value)
+    if not text:
+        raise ValueError("the table is missing")
+    try:
+        pairs = json.loads(text)
+    except json.JSONDecodeError as exc:
+        raise ValueError(f"the table is not JSON ({exc.msg})") from None
+    if not isinstance(pairs, list) or len(pairs) < 2:
+        raise ValueError("the table must be a list of at least two [elevation, value] pairs")
+    elev, vals = [], []
+    for pair in pairs:
+        if (
+            not isinstance(pair, list)
+            or len(pair) != 2
+            or not all(isinstance(x, (int, float)) and not isinstance(x, bool) for x in pair)
+            or not all(math.isfinite(x) for x in pair)
+        ):
+            raise ValueError(f"entry {pair!r} is not an [elevation, value] pair of numbers")
+        elev.append(float(pair[0]))
+        vals.append(float(pair[1]))
+    e, v = np.array(elev), np.array(vals)
+    if np.any(np.diff(e) <= 0):
+        raise ValueError("elevations in the table are not strictly increasing")
+    if np.any(v < 0):
+        raise ValueError("the table has a negative value")
+    return e, v
+
+
+@dataclass
+class ZoneTable:
+    """The parsed rows of a vector layer (or the cells of a raster layer).
+
+    Attributes are arrays with one entry per zone; ``problems`` lists the
+    defects found as dicts ``{"kind", "zone_id", "message"}``.
+    """
+
+    zone_id: np.ndarray
+    rule: np.ndarray  # int codes into RULES, BAD_RULE when unknown
+    value: np.ndarray  # mapped value for fixed zones [value_units]
+    elev_max: np.ndarray  # [elevation_units], NaN when none
+    pg_min: np.ndarray  # [value_units], NaN when none
+    bad: np.ndarray  # bool: the row is defective
+    tables: dict[int, tuple[np.ndarray, np.ndarray]] = field(default_factory=dict)
+    exprs: dict[int, Expr] = field(default_factory=dict)
+    columns: dict[str, np.ndarray] = field(default_factory=dict)
+    note: np.ndarray | None = None
+    source: np.ndarray | None = None
+    problems: list[dict] = field(default_factory=list)
+
+    def __len__(self) -> int:
+        return len(self.zone_id)
+
+    def rule_names(self) -> np.ndarray:
+        names = np.array(list(RULES) + ["invalid"], dtype=object)
+        return names[np.where(self.rule < 0, len(RULES), self.rule)]
+
+    def needs_elevation(self, j: int) -> bool:
+        if self.rule[j] == RULE_CODE["study"]:
+            return False
+        if self.rule[j] in (RULE_CODE["elevation_table"],) or not math.isnan(self.elev_max[j]):
+            return True
+        expr = self.exprs.get(j)
+        return expr is not None and "A" in expr.names
+
+    @classmethod
+    def from_frame(cls, df: pd.DataFrame, quantity: str = "pg") -> ZoneTable:
+        """Parse the attribute table of a vector layer (geometry column ignored)."""
+        n = len(df)
+        problems: list[dict] = []
+        get = lambda col: df[col].tolist() if col in df.columns else [None] * n  # noqa: E731
+        ids = [_clean_text(v) for v in get("zone_id")]
+        rules, values, elev_max, pg_min = (
+            np.full(n, BAD_RULE, dtype=np.int8),
+            np.full(n, np.nan),
+            np.full(n, np.nan),
+            np.full(n, np.nan),
+        )
+        bad = np.zeros(n, dtype=bool)
+        numeric: dict[str, np.ndarray] = {}
+        for col in df.columns:
+            if col in RESERVED or col == getattr(df, "_geometry_column_name", None):
+                continue
+            conv = pd.to_numeric(df[col], errors="coerce")
+            if conv.notna().any() or pd.api.types.is_numeric_dtype(df[col]):
+                numeric[str(col)] = conv.to_numpy(dtype=float)
+        tables: dict[int, tuple[np.ndarray, np.ndarray]] = {}
+        exprs: dict[int, Expr] = {}
+
+        def problem(j, kind, message):
+            bad[j] = True
+            problems.append({"kind": kind, "zone_id": ids[j] or None, "message": message})
+
+        if "zone_id" not in df.columns:
+            problems.append(
+                {"kind": "missing_column", "zone_id": None, "message": "no zone_id column"}
+            )
+        if "rule" not in df.columns:
+            problems.append(
+                {"kind": "missing_column", "zone_id": None, "message": "no rule column"}
+            )
+        raw_rules, raw_vals = get("rule"), get(quantity)
+        raw_emax, raw_min = get("elev_max"), get("pg_min")
+        raw_tab, raw_expr = get("table"), get("expr")
+        for j in range(n):
+            label = ids[j] or f"row {j}"
+            if not ids[j]:
+                problem(j, "missing_id", f"row {j} has no zone_id")
+            name = _clean_text(raw_rules[j]).lower().replace("-", "_").replace(" ", "_")
+            if name not in RULE_CODE:
+                problem(
+                    j,
+                    "rule",
+                    f"zone {label}: rule {raw_rules[j]!r} is not known; accepted: {', '.join(RULES)}",
+                )
+                continue
+            rules[j] = RULE_CODE[name]
+            for raw, arr, col in ((raw_emax, elev_max, "elev_max"), (raw_min, pg_min, "pg_min")):
+                try:
+                    x = _opt_float(raw[j])
+                except (TypeError, ValueError):
+                    problem(j, "parameter", f"zone {label}: {col} {raw[j]!r} is not a number")
+                    continue
+                if not math.isnan(x) and (not math.isfinite(x) or (col == "pg_min" and x < 0)):
+                    problem(j, "parameter", f"zone {label}: {col} {raw[j]!r} is out of range")
+                    continue
+                arr[j] = x
+            if name == "fixed":
+                try:
+                    x = _opt_float(raw_vals[j])
+                except (TypeError, ValueError):
+                    x = math.nan
+                if not math.isfinite(x) or x < 0:
+                    problem(
+                        j,
+                        "parameter",
+                        f"zone {label}: rule fixed needs a value of zero or more in column "
+                        f"{quantity!r}, found {raw_vals[j]!r}",
+                    )
+                else:
+                    values[j] = x
+            elif name == "elevation_table":
+                try:
+                    tables[j] = parse_table(raw_tab[j])
+                except ValueError as exc:
+                    problem(j, "table", f"zone {label}: {exc}")
+            elif name == "formula":
+                try:
+                    expr = compile_expr(_clean_text(raw_expr[j]))
+                except ExpressionError as exc:
+                    problem(j, "expression", f"zone {label}: {exc}")
+                    continue
+                unknown = sorted(expr.names - {"A"} - set(numeric))
+                if unknown:
+                    problem(
+                        j,
+                        "expression",
+                        f"zone {label}: expression {expr.text!r} uses {', '.join(unknown)}, "
+                        "which is neither A nor a numeric column of the layer",
+                    )
+                    continue
+                empty = [c for c in sorted(expr.names - {"A"}) if math.isnan(numeric[c][j])]
+                if empty:
+                    problem(
+                        j, "expression", f"zone {label}: column(s) {', '.join(empty)} empty here"
+                    )
+                    continue
+                exprs[j] = expr
+        return cls(
+            zone_id=np.array(ids, dtype=object),
+            rule=rules,
+            value=values,
+            elev_max=elev_max,
+            pg_min=pg_min,
+            bad=bad,
+            tables=tables,
+            exprs=exprs,
+            columns=numeric,
+            note=np.array([_clean_text(v) for v in get("note")], dtype=object),
+            source=np.array([_clean_text(v) for v in get("source")], dtype=object),
+            problems=problems,
+        )
+
+
+def evaluate(zt: ZoneTable, zone: np.ndarray, elev: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Evaluate zone rules for arrays of (zone index, site elevation) pairs.
+
+    Parameters
+    ----------
+    zt : ZoneTable
+        The layer's parsed zones.
+    zone : numpy.ndarray of int
+        Zone index of each pair.
+    elev : numpy.ndarray of float
+        Site elevation of each pair [layer elevation_units]; NaN when unknown.
+
+    Returns
+    -------
+    value : numpy.ndarray of float
+        The ground load [layer value_units]; NaN where the state is not
+        ``OK`` or ``UNCHECKED``.
+    state : numpy.ndarray of int8
+        One of ``OK``, ``STUDY``, ``ABOVE``, ``NEED_ELEV``, ``BAD``,
+        ``UNCHECKED``, ``NUMERIC``.
+    """
+    zone = np.asarray(zone, dtype=np.intp)
+    elev = np.asarray(elev, dtype=float)
+    n = zone.size
+    value = np.full(n, np.nan)
+    state = np.full(n, OK, dtype=np.int8)
+    if n == 0:
+        return value, state
+    bad = zt.bad[zone] | (zt.rule[zone] == BAD_RULE)
+    rule = np.where(bad, BAD_RULE, zt.rule[zone])
+    has_a = np.isfinite(elev)
+    # fixed
+    m = rule == RULE_CODE["fixed"]
+    value[m] = zt.value[zone[m]]
+    # study
+    state[rule == RULE_CODE["study"]] = STUDY
+    # elevation tables, one unique zone at a time (tables differ in length)
+    m = rule == RULE_CODE["elevation_table"]
+    for j in np.unique(zone[m]):
+        sel = m & (zone == j)
+        e, v = zt.tables[int(j)]
+        a = elev[sel]
+        out = np.interp(a, e, v)
+        st = np.where(~np.isfinite(a), NEED_ELEV, np.where(a > e[-1], ABOVE, OK))
+        value[sel] = np.where(st == OK, out, np.nan)
+        state[sel] = st
+    # formulas, grouped by expression text
+    m = rule == RULE_CODE["formula"]
+    if m.any():
+        by_text: dict[str, list[int]] = {}
+        for j in np.unique(zone[m]):
+            by_text.setdefault(zt.exprs[int(j)].text, []).append(int(j))
+        for js in by_text.values():
+            expr = zt.exprs[js[0]]
+            sel = m & np.isin(zone, js)
+            env = {c: zt.columns[c][zone[sel]] for c in expr.names - {"A"}}
+            env["A"] = elev[sel]
+            out = np.broadcast_to(expr.evaluate(env), (int(sel.sum()),))
+            st = np.full(out.shape, OK, dtype=np.int8)
+            if "A" in expr.names:
+                st[~has_a[sel]] = NEED_ELEV
+            st[(st == OK) & ~(np.isfinite(out) & (out >= 0))] = NUMERIC
+            value[sel] = np.where(st == OK, out, np.nan)
+            state[sel] = st
+    # elevation limit on any valued rule
+    emax = zt.elev_max[zone]
+    lim = np.isfinite(emax) & (state == OK)
+    state[lim & has_a & (elev > emax)] = ABOVE
+    state[lim & ~has_a] = UNCHECKED
+    # floor
+    floor = zt.pg_min[zone]
+    valued = (state == OK) | (state == UNCHECKED)
+    f = valued & np.isfinite(floor)
+    value[f] = np.maximum(value[f], floor[f])
+    # defective rows last: they override everything
+    state[bad] = BAD
+    value[~((state == OK) | (state == UNCHECKED))] = np.nan
+    return value, state
+
+
+def explain(zt: ZoneTable, j: int, elev: float, meta: dict, ref: str) -> list[Step]:
+    """Step records for zone ``j`` at one site elevation (for the calculation package).
+
+    Parameters
+    ----------
+    zt : ZoneTable
+    j : int
+        Zone index.
+    elev : float
+        Site elevation [layer elevation_units]; NaN when unknown.
+    meta : dict
+        The layer sidecar (for units).
+    ref : str
+        Provenance text for ``ref`` (layer source and zone).
+    """
+    vu, eu = meta["value_units"], meta["elevation_units"]
+    value, state = evaluate(zt, np.array([j]), np.array([elev]))
+    value, state = float(value[0]), int(state[0])
+    zid = zt.zone_id[j]
+    steps: list[Step] = []
+    rule = RULES[zt.rule[j]] if zt.rule[j] >= 0 else "invalid"
+    a_txt = "unknown" if not math.isfinite(elev) else f"{fmt(elev)} {eu}"
+    if rule == "fixed":
+        raw = float(zt.value[j])
+        steps.append(
+            Step(
+                "pg",
+                f"mapped ground snow load of zone {zid}",
+                "pg = mapped value",
+                f"pg = {fmt(raw)} {vu}",
+                raw,
+                vu,
+                ref,
+            )  # fmt: skip
+        )
+    elif rule == "study":
+        steps.append(
+            Step(
+                "pg",
+                f"zone {zid} carries no mapped value",
+                "site-specific case study",
+                "study required",
+                None,
+                vu,
+                ref,
+            )  # fmt: skip
+        )
+    elif rule == "elevation_table" and j in zt.tables:
+        e, v = zt.tables[j]
+        pairs = ", ".join(f"[{fmt(a)}, {fmt(b)}]" for a, b in zip(e, v, strict=True))
+        if math.isfinite(elev) and elev <= e[-1]:
+            k = int(np.clip(np.searchsorted(e, elev), 1, len(e) - 1))
+            raw = float(np.interp(elev, e, v))
+            if elev <= e[0]:
+                sub = f"A = {a_txt} at or below the first point: pg = {fmt(v[0])}"
+            else:
+                sub = (
+                    f"{fmt(v[k - 1])} + ({fmt(elev)} - {fmt(e[k - 1])}) x "
+                    f"({fmt(v[k])} - {fmt(v[k - 1])}) / ({fmt(e[k])} - {fmt(e[k - 1])})"
+                )
+            steps.append(
+                Step(
+                    "pg",
+                    f"linear interpolation in the elevation table of zone {zid} ({pairs})",
+                    "pg = p1 + (A - A1)(p2 - p1)/(A2 - A1)",
+                    sub,
+                    raw,
+                    vu,
+                    ref,
+                )  # fmt: skip
+            )
+        else:
+            steps.append(
+                Step(
+                    "pg",
+                    f"elevation table of zone {zid} ({pairs})",
+                    f"table ends at {fmt(e[-1])} {eu}",
+                    f"A = {a_txt}",
+                    None,
+                    vu,
+                    ref,
+                )  # fmt: skip
+            )
+    elif rule == "formula" and j in zt.exprs:
+        expr = zt.exprs[j]
+        subs = ", ".join(
+            [f"A = {a_txt}"] * ("A" in expr.names)
+            + [f"{c} = {fmt(zt.columns[c][j])}" for c in sorted(expr.names - {"A"})]
+        )
+        raw_val = math.nan
+        if state not in (NEED_ELEV, BAD):
+            env = {c: zt.columns[c][j] for c in expr.names - {"A"}}
+            env["A"] = elev
+            raw_val = float(expr.evaluate(env))
+        steps.append(
+            Step(
+                "pg",
+                f"formula of zone {zid}",
+                f"pg = {expr.text}",
+                subs,
+                raw_val if math.isfinite(raw_val) else None,
+                vu,
+                ref,
+            )  # fmt: skip
+        )
+    if not math.isnan(zt.elev_max[j]) and rule != "study":
+        lim = float(zt.elev_max[j])
+        verdict = {
+            ABOVE: "above the limit: study required",
+            UNCHECKED: "not checked (no elevation)",
+        }
+        steps.append(
+            Step(
+                "elev_max",
+                f"upper elevation limit of zone {zid}",
+                "A <= elev_max",
+                f"{a_txt} vs {fmt(lim)} {eu}: {verdict.get(state, 'within the limit')}",
+                lim,
+                eu,
+                ref,
+            )  # fmt: skip
+        )
+    if not math.isnan(zt.pg_min[j]) and state in (OK, UNCHECKED):
+        floor = float(zt.pg_min[j])
+        steps.append(
+            Step(
+                "pg",
+                f"floor pg_min of zone {zid}",
+                "pg = max(pg, pg_min)",
+                f"max(..., {fmt(floor)})",
+                value,
+                vu,
+                ref,
+            )  # fmt: skip
+        )
+    return steps

@@ -1,0 +1,440 @@
+"""Portfolio screening: many sites to ground snow loads (and roof loads) at once.
+
+>>> from geo.screen import screen                       # doctest: +SKIP
+>>> results = screen("sites.csv", roof="roof.toml")     # doctest: +SKIP
+
+Every input row comes back, in input order, with every input column plus
+``status``, ``pg_psf``, ``pg_kpa``, ``zone_id``, ``flags``, ``message``, the
+coordinates used (``site_lat``, ``site_lon``), the elevation used
+(``site_elevation_ft``, ``site_elevation_m``, ``site_elevation_source``) and, when a
+roof is given, the roof results.  A malformed row is marked ``error`` with the
+reason; it never stops the run.  The work is done on arrays: the sites are
+resolved in large chunks by :func:`geo.resolve.resolve_points` (one spatial
+join per layer and chunk), and the roof engine runs once per roof profile.
+
+Results are an aid to, not a substitute for, a licensed design professional.
+"""
+
+from __future__ import annotations
+
+import time
+from collections.abc import Mapping
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from engine.errors import InputError
+from engine.roof_spec import Roof
+from engine.units import KPA_PER_PSF, M_PER_FT
+from geo.outputs import LAT_COLUMN, LON_COLUMN
+from geo.sitefile import SiteArrays, load_sites
+
+#: the result columns neve adds (before the roof columns), in order
+RESULT_COLUMNS = (
+    "status",
+    "pg_psf",
+    "pg_kpa",
+    "zone_id",
+    "flags",
+    "message",
+    LAT_COLUMN,
+    LON_COLUMN,
+    "site_elevation_ft",
+    "site_elevation_m",
+    "site_elevation_source",
+    "rule",
+    "layer_name",
+)
+#: roof loads added per row (each as ``<name>_psf`` and ``<name>_kpa``)
+ROOF_LOADS = ("pf", "ps", "pm", "rain_on_snow", "design_uniform")
+#: statuses whose ground value feeds the roof engine
+ROOF_STATUSES = ("ok", "provisional")
+STATUSES = ("ok", "provisional", "study_required", "no_data", "error")
+#: sites resolved per call of the resolver (bounds memory, paces the progress bar)
+CHUNK_SIZE = 262_144
+ENGINES = ("local", "dask")
+
+CAUTIONS = (
+    "neve is an aid to, not a substitute for, the judgement of a licensed design professional.",
+    "Confirm every ground snow load with the authority having jurisdiction and its local amendments.",
+    "Sites flagged for a study need a site-specific case study by a qualified professional.",
+)
+
+
+@dataclass
+class ScreenRun:
+    """Everything one screening produced: the table, its summary, the input geometry."""
+
+    results: pd.DataFrame
+    summary: dict
+    geometry: object = None
+    layers: list = field(default_factory=list)
+
+
+def _layers(layers) -> list:
+    from geo.layers import as_layers
+
+    if isinstance(layers, (list, tuple)) and not layers:
+        layers = None
+    return as_layers(layers)
+
+
+def roofs_from_mapping(data: Mapping, overrides: Mapping | None = None) -> Roof | dict[str, Roof]:
+    """One roof, or a dict of named profiles, from a ROOF.toml mapping.
+
+    A file with ``[profile.NAME]`` tables gives one roof per profile; keys at
+    the top of the file are shared defaults that each profile may override.
+    ``overrides`` (command-line roof options) win over both.
+    """
+    data = dict(data)
+    overrides = {k: v for k, v in dict(overrides or {}).items() if v is not None}
+    profiles = data.pop("profile", None)
+    if profiles is None:
+        return Roof.from_mapping({**data, **overrides})
+    if not isinstance(profiles, Mapping) or not profiles:
+        raise InputError("roof", "[profile] must hold named tables", "[profile.NAME] tables")
+    out = {}
+    for name, table in profiles.items():
+        if not isinstance(table, Mapping):
+            raise InputError(f"profile.{name}", "is not a table", "[profile.NAME] with roof keys")
+        try:
+            out[str(name)] = Roof.from_mapping({"name": str(name), **data, **table, **overrides})
+        except InputError as exc:
+            raise InputError(f"profile.{name}.{exc.field}", exc.problem, exc.accepted) from None
+    return out
+
+
+def _roofs(roof) -> Roof | dict[str, Roof] | None:
+    if roof is None or isinstance(roof, Roof):
+        return roof
+    if isinstance(roof, (str, Path)):
+        from geo.options import read_toml
+
+        return roofs_from_mapping(read_toml(roof, "roof"))
+    if isinstance(roof, Mapping):
+        if roof and all(isinstance(v, Roof) for v in roof.values()):
+            return {str(k): v for k, v in roof.items()}
+        return roofs_from_mapping(roof)
+    raise InputError("roof", f"got {type(roof).__name__}", "a Roof, a mapping or a ROOF.toml path")
+
+
+def _profile_errors(sites: SiteArrays, roofs) -> None:
+    if not isinstance(roofs, dict):
+        return
+    if sites.roof is None:
+        raise InputError(
+            "roof",
+            f"the roof file defines profiles ({', '.join(roofs)}) but the site file has no 'roof' column",
+            "a 'roof' column naming a profile on each row, or a ROOF.toml without profiles",
+        )
+    names = pd.Series(sites.roof)
+    unknown = (~names.isin(list(roofs)) & (names != "")).to_numpy()
+    accepted = ", ".join(roofs)
+    todo = unknown & (sites.error == "")
+    sites.error[todo] = [f"roof: unknown profile {v!r}; accepted: {accepted}" for v in names[todo]]
+
+
+def resolve_local(lat, lon, elevation_ft, *, layers, dem=None, dem_units=None, progress=False):
+    """Resolve sites in chunks on this machine; one DataFrame row per site, in order."""
+    from geo.resolve import resolve_points
+
+    n = len(lat)
+    parts = []
+    bar = _bar(n, progress, "resolving")
+    try:
+        for start in range(0, n, CHUNK_SIZE):
+            stop = min(start + CHUNK_SIZE, n)
+            parts.append(
+                resolve_points(
+                    lat[start:stop],
+                    lon[start:stop],
+                    layers=layers,
+                    elevation_ft=None if elevation_ft is None else elevation_ft[start:stop],
+                    dem=dem,
+                    dem_units=dem_units,
+                )
+            )
+            bar.update(stop - start)
+    finally:
+        bar.close()
+    if not parts:
+        return None
+    return parts[0] if len(parts) == 1 else pd.concat(parts, ignore_index=True)
+
+
+def _bar(total: int, enabled: bool, desc: str):
+    from tqdm.auto import tqdm
+
+    return tqdm(total=total, disable=not enabled, desc=desc, unit="site", leave=False)
+
+
+def run_screen(
+    sites,
+    *,
+    layers=None,
+    dem=None,
+    dem_units: str | None = None,
+    roof=None,
+    engine: str = "local",
+    scheduler: str | None = None,
+    partitions: int | None = None,
+    staging=None,
+    geocoder=None,
+    gazetteer=None,
+    geocoder_url: str | None = None,
+    progress: bool = False,
+) -> ScreenRun:
+    """Screen sites; return the results with their summary (see :func:`screen`)."""
+    from engine.choices import choose_key
+
+    t0 = time.perf_counter()
+    engine = choose_key("engine", engine, ENGINES)
+    layer_list = _layers(layers)
+    roofs = _roofs(roof)
+    site = load_sites(sites)
+    _profile_errors(site, roofs)
+    if site.address is not None and (site.address != "").any():
+        from geo.sitefile import geocode_rows, make_geocoder
+
+        if geocoder is None:
+            geocoder = make_geocoder(gazetteer, geocoder_url)
+        geocode_rows(site, geocoder, progress=progress)
+    valid = (site.error == "") & np.isfinite(site.lat) & np.isfinite(site.lon)
+    idx = np.flatnonzero(valid)
+    elev = site.elevation_ft[idx]
+    elev_arg = elev if np.isfinite(elev).any() else None
+    kwargs = dict(layers=layer_list, dem=dem, dem_units=dem_units, progress=progress)
+    if len(idx) == 0:
+        resolved = None
+    elif engine == "dask":
+        from geo.dask_engine import resolve_dask
+
+        resolved = resolve_dask(
+            site.lat[idx],
+            site.lon[idx],
+            elev_arg,
+            scheduler=scheduler,
+            partitions=partitions,
+            **kwargs,
+        )
+    else:
+        resolved = resolve_local(site.lat[idx], site.lon[idx], elev_arg, **kwargs)
+    out = _assemble(site, idx, resolved)
+    if roofs is not None:
+        _add_roof(out, site, roofs)
+    results = _join_input(site.frame, out)
+    summary = summarize(results, layer_list, engine=engine, seconds=time.perf_counter() - t0)
+    geometry = getattr(site, "geometry", None)
+    return ScreenRun(results, summary, geometry, layer_list)
+
+
+def screen(sites, *, layers=None, dem=None, dem_units=None, roof=None, engine="local", **kw):
+    """Screen a portfolio of sites for ground (and roof) snow loads.
+
+    Parameters
+    ----------
+    sites : str, Path or pandas.DataFrame
+        A site file (CSV, XLSX, GeoPackage, Parquet) or a table with ``lat``/
+        ``lon`` (or ``latitude``/``longitude``), ``address`` or point geometry.
+    layers : list of Layer or paths, optional
+        Zone layers, most local first; the embedded demo layer when omitted.
+    dem : str or Path, optional
+        Elevation raster sampled where a row gives no elevation.
+    dem_units : {"m", "ft"}, optional
+        Units of the DEM's values when its metadata does not say.
+    roof : Roof, mapping, or ROOF.toml path, optional
+        One roof for every site, or ``[profile.NAME]`` roofs chosen per row by
+        a ``roof`` column.
+    engine : {"local", "dask"}
+        Where the sites are resolved; ``dask`` accepts ``scheduler=`` (an
+        address; a LocalCluster is started when omitted), ``partitions=`` and
+        ``staging=`` (a folder the workers share, see :mod:`geo.dask_engine`).
+    geocoder : callable, optional
+        ``address -> (lat, lon) | None`` for rows located by address; the
+        project's geocoder (with a cache and its rate limit) when omitted,
+        built from ``gazetteer=`` (CSV of address, lat, lon) and/or
+        ``geocoder_url=`` (a Nominatim-compatible server).
+    progress : bool
+        Show a progress bar on stderr.
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per input row, in input order (loads [psf] and [kPa]).
+    """
+    run = run_screen(
+        sites, layers=layers, dem=dem, dem_units=dem_units, roof=roof, engine=engine, **kw
+    )
+    return run.results
+
+
+def _assemble(site: SiteArrays, idx: np.ndarray, resolved: pd.DataFrame | None) -> dict:
+    """The result columns for every row: the resolver's where it ran, errors elsewhere.
+
+    Text columns stay in the resolver's (Arrow-backed) string dtype and are
+    moved by index, never converted element by element.
+    """
+    n = len(site)
+    rows = pd.RangeIndex(n)
+    cols = ["status", "pg_psf", "zone_id", "flags", "message", "elevation_ft"]
+    cols += ["elevation_source", "rule", "layer_name"]
+    if resolved is None or not len(idx):
+        res = pd.DataFrame({c: pd.Series(np.nan if c in ("pg_psf", "elevation_ft") else None,
+                                         index=rows, dtype=float if c in ("pg_psf", "elevation_ft")
+                                         else "str") for c in cols})  # fmt: skip
+    else:
+        if len(resolved) != len(idx):
+            raise RuntimeError(f"resolver returned {len(resolved)} rows for {len(idx)} sites")
+        res = resolved[cols].set_axis(pd.Index(idx))
+        if len(idx) != n:
+            res = res.reindex(rows)
+        else:
+            res = res.set_axis(rows)
+    invalid = np.ones(n, dtype=bool)
+    invalid[idx] = False
+    status = res["status"].copy()
+    message = res["message"].copy()
+    flags = res["flags"].copy()
+    source = res["elevation_source"].copy()
+    if invalid.any():
+        errors = site.error[invalid]
+        errors = np.where(errors == "", "no coordinates for this row", errors)
+        status[invalid] = "error"
+        message[invalid] = errors
+        flags[invalid] = ""
+        source[invalid] = "none"
+    if site.duplicate.any():
+        d = site.duplicate
+        old = flags[d].fillna("")
+        flags[d] = np.where(old == "", "duplicate_site_id", old + ";duplicate_site_id")
+    text = {}
+    for col in ("zone_id", "rule", "layer_name"):  # no zone: missing, not an empty name
+        v = res[col]
+        text[col] = v.mask(v == "") if (v == "").any() else v
+    pg = res["pg_psf"].to_numpy(dtype=float, na_value=np.nan)
+    elev = res["elevation_ft"].to_numpy(dtype=float, na_value=np.nan)
+    return {
+        "status": status,
+        "pg_psf": pg,
+        "pg_kpa": pg * KPA_PER_PSF,
+        "zone_id": text["zone_id"],
+        "flags": flags.fillna(""),
+        "message": message.fillna(""),
+        LAT_COLUMN: site.lat,
+        LON_COLUMN: site.lon,
+        "site_elevation_ft": elev,
+        "site_elevation_m": elev * M_PER_FT,
+        "site_elevation_source": source,
+        "rule": text["rule"],
+        "layer_name": text["layer_name"],
+    }
+
+
+def _add_roof(out: dict, site: SiteArrays, roofs) -> None:
+    from engine import uniform_loads
+
+    n = len(site)
+    for name in ROOF_LOADS:
+        out[f"{name}_psf"] = np.full(n, np.nan)
+    status = out["status"]
+    pg = out["pg_psf"]
+    usable = pd.Series(status).isin(ROOF_STATUSES).to_numpy() & np.isfinite(pg)
+    groups = (
+        [(roofs, usable)]
+        if isinstance(roofs, Roof)
+        else [(r, usable & (site.roof == name)) for name, r in roofs.items()]
+    )
+    for roof, mask in groups:
+        if not mask.any():
+            continue
+        loads = uniform_loads(pg[mask], roof)
+        for name in ROOF_LOADS:
+            out[f"{name}_psf"][mask] = np.asarray(loads[name], dtype=float)
+    for name in ROOF_LOADS:
+        out[f"{name}_kpa"] = out[f"{name}_psf"] * KPA_PER_PSF
+    order = [c for name in ROOF_LOADS for c in (f"{name}_psf", f"{name}_kpa")]
+    for c in order:  # move the roof columns to the end, psf beside kPa
+        out[c] = out.pop(c)
+
+
+def _join_input(frame: pd.DataFrame, out: dict) -> pd.DataFrame:
+    added = pd.DataFrame(
+        dict(out),
+        index=frame.index,
+    )
+    taken = set(added.columns)
+    renamed = {c: f"input_{c}" for c in frame.columns if c in taken}
+    left = frame.rename(columns=renamed) if renamed else frame
+    return pd.concat([left, added], axis=1)
+
+
+def summarize(results: pd.DataFrame, layers=(), *, engine="local", seconds=None) -> dict:
+    """Counts by status and by flag, the range of pg, the layers used and the cautions."""
+    status_counts = results["status"].value_counts()
+    statuses = {s: int(status_counts.get(s, 0)) for s in STATUSES}
+    for s, c in status_counts.items():
+        statuses.setdefault(str(s), int(c))
+    combos = results["flags"].value_counts()  # few distinct combinations, counted once
+    counter: dict[str, int] = {}
+    for combo, count in combos.items():
+        for flag in str(combo).split(";") if isinstance(combo, str) else ():
+            if flag:
+                counter[flag] = counter.get(flag, 0) + int(count)
+    flags = dict(sorted(counter.items()))
+    valued = results.loc[results["status"].isin(ROOF_STATUSES), "pg_psf"].dropna()
+    pg = None
+    if len(valued):
+        pg = {"min": float(valued.min()), "max": float(valued.max())}
+    layer_info = []
+    for layer in layers:
+        info = layer.info() if hasattr(layer, "info") else {}
+        layer_info.append(
+            {
+                "name": info.get("name") or str(getattr(layer, "path", "")),
+                "sha256": info.get("sha256", getattr(layer, "sha256", None)),
+                "source": info.get("source"),
+                "demo": bool(getattr(layer, "demo", False)),
+            }
+        )
+    return {
+        "rows": int(len(results)),
+        "status": statuses,
+        "flags": {str(k): int(v) for k, v in flags.items() if k},
+        "pg_psf": pg,
+        "layers": layer_info,
+        "demo": any(info["demo"] for info in layer_info),
+        "engine": engine,
+        "seconds": None if seconds is None else round(float(seconds), 3),
+        "cautions": list(CAUTIONS),
+    }
+
+
+def format_summary(summary: dict) -> str:
+    """The printed summary of a screening run."""
+    lines = []
+    if summary.get("demo"):
+        lines.append("DEMO DATA: the zone layer is invented; never use these results for design.")
+    lines.append(f"sites: {summary['rows']:,}")
+    width = max(len(s) for s in summary["status"]) if summary["status"] else 0
+    for s, c in summary["status"].items():
+        lines.append(f"  {s:<{width}}  {c:>10,}")
+    if summary["flags"]:
+        lines.append("flags:")
+        fw = max(len(f) for f in summary["flags"])
+        for f, c in summary["flags"].items():
+            lines.append(f"  {f:<{fw}}  {c:>10,}")
+    pg = summary.get("pg_psf")
+    if pg:
+        lines.append(
+            f"pg range: {pg['min']:.1f} to {pg['max']:.1f} psf "
+            f"({pg['min'] * KPA_PER_PSF:.2f} to {pg['max'] * KPA_PER_PSF:.2f} kPa)"
+        )
+    else:
+        lines.append("pg range: no site has a usable ground snow load")
+    for layer in summary.get("layers", []):
+        sha = (layer.get("sha256") or "")[:12]
+        lines.append(f"layer: {layer['name']}" + (f" (sha256 {sha}...)" if sha else ""))
+    lines.extend(f"caution: {c}" for c in summary.get("cautions", []))
+    return "\n".join(lines)

@@ -1,0 +1,265 @@
+"""One site, end to end: coordinates -> ground snow load -> roof snow loads.
+
+:func:`resolve_site` runs the vectorized resolver (:mod:`geo.resolve`) on a
+single site, adds the detail a calculation package needs (step records for
+the ground value, neighbouring zones, the other stacked layers) and, when a
+roof is given and the ground value is usable, runs the roof engine on it.
+:meth:`SiteResult.to_json` is the ``{site, ground, roof}`` object of
+``neve site --format json`` (DESIGN.md, "CLI contract").
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+
+from engine.roof import CAUTIONS
+from engine.steps import Step, fmt
+from engine.units import FT_PER_M, KPA_PER_PSF, length_json, load_json
+from geo import rules as R
+from geo.coords import check_range
+from geo.elevation import parse_elevation
+from geo.layers import as_layers, demo_dem_path
+from geo.resolve import STATUSES, resolve_detail
+
+#: radius within which neighbouring zones are listed for one site [m]
+SEARCH_M = 1000.0
+DEMO_CAUTION = "DEMO DATA: the layer is invented (demo = true); its values are never for design."
+
+
+def _num(x) -> float | None:
+    return None if x is None or not math.isfinite(float(x)) else float(x)
+
+
+def _dem_path(dem):
+    if dem is not None and str(dem) == "demo" and not Path("demo").exists():
+        return demo_dem_path()
+    return dem
+
+
+@dataclass
+class SiteResult:
+    """The resolved site; :meth:`to_json` gives DESIGN's ``{site, ground, roof}``."""
+
+    site: dict
+    ground: dict
+    roof: dict | None
+    layers: list = field(default_factory=list)
+    row: dict = field(default_factory=dict)
+    roof_result: object = None
+
+    @property
+    def demo(self) -> bool:
+        return "demo_data" in self.ground["flags"]
+
+    def to_json(self) -> dict:
+        return {"site": self.site, "ground": self.ground, "roof": self.roof}
+
+    def views(self, radius_m: float = 5000) -> list[dict]:
+        """``layer.view(center)`` of every layer used, for the maps."""
+        center = (self.site["lat"], self.site["lon"])
+        return [layer.view(center=center, radius_m=radius_m) for layer in self.layers]
+
+    def to_text(self) -> str:
+        """A readable summary for ``--format text``."""
+        from geo.site_text import site_text
+
+        return site_text(self)
+
+
+def _steps(layer, hits, row, elev_ft: float, source: str) -> list[dict]:
+    steps: list[Step] = []
+    if np.isfinite(elev_ft):
+        steps.append(
+            Step("A", f"site elevation ({source})", "A", f"{fmt(elev_ft)} ft = "
+                 f"{fmt(elev_ft / FT_PER_M)} m", elev_ft, "ft", f"site elevation from {source}")
+        )  # fmt: skip
+    zid = hits.zone_id[0]
+    j = int(hits.zone_idx[0])
+    meta = layer.meta
+    zsrc = ""
+    if not layer.is_raster and j >= 0 and layer.zones.source[j]:
+        zsrc = f"; {layer.zones.source[j]}"
+    ref = f"{layer.name}, zone {zid} ({meta['source']}{zsrc})"
+    if layer.is_raster:
+        base = hits.base_psf[0]
+        if np.isfinite(base):
+            raw = base / layer.to_psf
+            steps.append(Step("pg", f"grid cell value of {layer.name}", "pg = cell value",
+                              f"pg = {fmt(raw)} {meta['value_units']}", raw,
+                              meta["value_units"], ref))  # fmt: skip
+    elif j >= 0:
+        scale = 1.0 if meta["elevation_units"] == "ft" else 1.0 / FT_PER_M
+        steps.extend(R.explain(layer.zones, j, elev_ft * scale, meta, ref))
+    base = hits.base_psf[0]
+    if meta["value_units"] == "kPa" and np.isfinite(base):
+        steps.append(Step("pg", "converted to psf", "pg [psf] = pg [kPa] / 0.04788",
+                          f"{fmt(base * KPA_PER_PSF)} / {fmt(KPA_PER_PSF, 5)}", base, "psf",
+                          "NIST SP 811 Appendix B (1 psf = 0.0478803 kPa)"))  # fmt: skip
+    if hits.overlap[0]:
+        steps.append(Step("pg", "overlapping zones: the larger value governs",
+                          "pg = max(pg of each zone)", hits.zone_ids[0], base, "psf",
+                          f"{layer.name} (overlapping zones)"))  # fmt: skip
+    if hits.raised[0]:
+        steps.append(Step("pg", f"zone with a larger value within {layer.tolerance_m:g} m "
+                          "of the site: the larger value governs",
+                          "pg = max(pg, neighbouring values)",
+                          f"max({fmt(base)}; {hits.neigh_vals[0]})", row["pg_psf"], "psf",
+                          f"{layer.name} (boundary tolerance)"))  # fmt: skip
+    return [s.to_dict() for s in steps]
+
+
+def _neighbours(hits, tol_m: float) -> list[dict]:
+    p = hits.pairs
+    if not p:
+        return []
+    sel = np.flatnonzero(p["site"] == 0)
+    best: dict[str, tuple] = {}
+    for k in sel:
+        zid = str(p["zone_id"][k])
+        d = float(p["m"][k])
+        if zid not in best or d < best[zid][0]:
+            best[zid] = (d, float(p["psf"][k]), int(p["state"][k]))
+    out = []
+    for zid, (d, psf, st) in sorted(best.items(), key=lambda kv: kv[1][0]):
+        out.append(
+            {
+                "zone_id": zid,
+                "pg": load_json(psf) if math.isfinite(psf) else None,
+                "state": "value" if st in (R.OK, R.UNCHECKED) else "no value",
+                "distance": length_json(d * FT_PER_M),
+                "within_tolerance": d <= tol_m,
+            }
+        )
+    return out
+
+
+def resolve_site(
+    lat: float,
+    lon: float,
+    *,
+    elevation: str | None = None,
+    dem=None,
+    dem_units: str | None = None,
+    layers=None,
+    roof=None,
+    name: str | None = None,
+    project: str | None = None,
+    address: str | None = None,
+    given: str | None = None,
+) -> SiteResult:
+    """Resolve one site to its ground snow load and, given a roof, its roof loads.
+
+    Parameters
+    ----------
+    lat, lon : float
+        Site coordinates [degrees, EPSG:4326].
+    elevation : str, optional
+        Site elevation with its unit (``"412m"``, ``"1350ft"``).
+    dem : path, optional
+        DEM to sample (``"demo"`` is the embedded synthetic DEM).
+    dem_units : str, optional
+        Vertical unit of the DEM when its metadata does not say.
+    layers : list of paths or Layer, optional
+        Most local first; None gives the embedded demo stack.
+    roof : engine.Roof, optional
+        When given and the ground value is usable (``ok`` or
+        ``provisional``), the roof engine runs on the ground value.
+    name, project, address, given : str, optional
+        Reported in ``site`` (``given`` is the input as the user wrote it).
+    """
+    lat, lon = float(lat), float(lon)
+    check_range(lat, lon)
+    layers = as_layers(layers)
+    elev_in = parse_elevation(elevation)
+    df, ctx = resolve_detail(
+        [lat], [lon], layers=layers, elevation_ft=[elev_in], dem=_dem_path(dem),
+        dem_units=dem_units, search_m=SEARCH_M,
+    )  # fmt: skip
+    row = df.iloc[0].to_dict()
+    g = int(ctx["gov"][0])
+    flags = [f for f in row["flags"].split(";") if f]
+    status = row["status"]
+    message = row["message"]
+    gov_layer = layers[g] if g >= 0 else None
+    steps: list[dict] = []
+    neighbours: list[dict] = []
+    if gov_layer is not None:
+        hits = ctx["hits"][g]
+        steps = _steps(gov_layer, hits, row, row["elevation_ft"], row["elevation_source"])
+        neighbours = _neighbours(hits, gov_layer.tolerance_m)
+        zone = f"Zone {row['zone_id']} ({row['rule']})"
+        if row["zone_ids"] != row["zone_id"]:
+            zone += f", of overlapping zones {row['zone_ids'].replace(';', ', ')}"
+        message = f"{zone}. {message}"
+    else:
+        near = [n for h in ctx["hits"] for n in _neighbours(h, math.inf)]
+        if near:
+            n0 = min(near, key=lambda n: n["distance"]["m"])
+            message += f" The nearest zone is {n0['zone_id']}, {n0['distance']['m']:.0f} m away."
+    if "coordinates_suspect" in flags and g < 0 and abs(lon) <= 90:
+        message += f" Did you mean {lon:g},{lat:g} (latitude and longitude swapped)?"
+    others = []
+    for k, layer in enumerate(layers):
+        if k == g:
+            continue
+        st, _ = ctx["per_layer"][k]
+        h = ctx["hits"][k]
+        psf = h.value_psf[0] if st[0] == 0 else math.nan
+        others.append(
+            {
+                "name": layer.name,
+                "status": STATUSES[int(st[0])] if h.covered[0] else "no_data",
+                "pg": load_json(psf) if math.isfinite(psf) else None,
+                "zone_id": h.zone_id[0] or None,
+                "sha256": layer.sha256,
+            }
+        )
+    usable = status in ("ok", "provisional")
+    roof_json = None
+    roof_result = None
+    if roof is not None:
+        if usable:
+            from engine import analyze_roof
+
+            roof_result = analyze_roof(float(row["pg_psf"]), roof)
+            roof_json = roof_result.to_json()
+        else:
+            message += f" No roof snow loads were computed: the ground status is {status}."
+    cautions = list(CAUTIONS)
+    if any(layer.demo for layer in layers):
+        cautions.insert(0, DEMO_CAUTION)
+    elev_ft = _num(row["elevation_ft"])
+    dist = _num(row["distance_to_other_m"])
+    ground = {
+        "status": status,
+        "pg": load_json(row["pg_psf"]) if usable else None,
+        "zone_id": row["zone_id"] or None,
+        "zone_ids": [z for z in row["zone_ids"].split(";") if z],
+        "rule": row["rule"] or None,
+        "flags": flags,
+        "message": message,
+        "elevation": length_json(elev_ft),
+        "elevation_source": row["elevation_source"],
+        "dem_elevation": length_json(_num(row["dem_elevation_ft"])),
+        "distance_to_other": None if dist is None else length_json(dist * FT_PER_M),
+        "neighbours": neighbours,
+        "layer": gov_layer.info() if gov_layer is not None else None,
+        "layers": [layer.info() for layer in layers],
+        "other_layers": others,
+        "steps": steps,
+        "cautions": cautions,
+    }
+    site = {
+        "lat": lat,
+        "lon": lon,
+        "name": name,
+        "project": project,
+        "input": given if given is not None else f"{lat:g},{lon:g}",
+    }
+    if address is not None:
+        site["address"] = address
+    return SiteResult(site, ground, roof_json, list(layers), row, roof_result)

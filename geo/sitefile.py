@@ -1,0 +1,622 @@
+"""Reading site files for ``neve screen``: columns found by name, rows parsed into arrays.
+
+A site file is CSV, XLSX, GeoPackage or Parquet (GeoParquet too).  Each row is
+one site, located by ``lat``/``lon`` (or ``latitude``/``longitude``), by an
+``address`` to geocode, or by a point geometry.  An elevation may come with its
+unit in the cell (``1200ft``, ``412m``) or in the column name (``elevation_ft``,
+``elevation_m``).
+
+Nothing here stops on a bad row: :func:`parse_sites` returns arrays plus a
+per-row error text (empty where the row is fine), so the caller keeps every
+row in order.  Problems with the file as a whole (not a table, empty, no
+coordinate column) are :class:`engine.errors.InputError`.
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from engine.errors import InputError
+from engine.units import LENGTH_UNITS
+
+#: accepted site-file suffixes -> format name
+SITE_FORMATS = {
+    ".csv": "csv",
+    ".txt": "csv",
+    ".xlsx": "xlsx",
+    ".xlsm": "xlsx",
+    ".gpkg": "gpkg",
+    ".parquet": "parquet",
+    ".geoparquet": "parquet",
+    ".pq": "parquet",
+}
+#: accepted latitude / longitude column names (matched case-blind)
+LAT_NAMES = ("lat", "latitude")
+LON_NAMES = ("lon", "longitude", "lng", "long")
+ADDRESS_NAMES = ("address",)
+SITE_ID_NAMES = ("site_id",)
+ROOF_NAMES = ("roof",)
+#: elevation column names -> unit implied by the name (None: unit in each cell)
+ELEVATION_NAMES = {
+    "elevation": None,
+    "elevation_ft": "ft",
+    "elevation_m": "m",
+}
+#: plausible site elevations [ft]: a little below the lowest dry land to above the highest peak
+ELEVATION_RANGE_FT = (-1500.0, 30000.0)
+
+ACCEPTED_COORDS = (
+    "columns lat and lon (or latitude and longitude, lng), or an address column, "
+    "or a point geometry (GeoPackage, GeoParquet)"
+)
+ACCEPTED_ELEVATION = (
+    "a number with its unit in the cell (1200ft, 412m) in a column named 'elevation', "
+    "or a number in a column named elevation_ft or elevation_m"
+)
+
+_NUM = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?"
+_CELL = re.compile(rf"^\s*(?P<num>{_NUM})\s*(?P<unit>[^\d\s].*?)?\s*$")
+
+
+@dataclass
+class SiteArrays:
+    """A site file parsed into arrays, one entry per input row, in input order.
+
+    Attributes
+    ----------
+    frame : pandas.DataFrame
+        The input columns as read (a geometry column becomes WKT text).
+    lat, lon : numpy.ndarray
+        Coordinates [deg, WGS 84]; NaN where the row has none (yet).
+    elevation_ft : numpy.ndarray
+        Given elevation [ft]; NaN where none was given.
+    error : numpy.ndarray
+        Per-row error text (object array, ``""`` where the row is fine).
+    address : numpy.ndarray or None
+        Address text for rows to geocode (``""`` elsewhere), or None.
+    roof : numpy.ndarray or None
+        Roof profile names from a ``roof`` column, or None.
+    source : str
+        How sites are located: ``latlon``, ``address`` or ``geometry``.
+    site_id : str or None
+        The name of the site-id column, if any.
+    duplicate : numpy.ndarray
+        True where the row's site id also appears on another row.
+    """
+
+    frame: pd.DataFrame
+    lat: np.ndarray
+    lon: np.ndarray
+    elevation_ft: np.ndarray
+    error: np.ndarray
+    source: str
+    address: np.ndarray | None = None
+    roof: np.ndarray | None = None
+    site_id: str | None = None
+    duplicate: np.ndarray = field(default_factory=lambda: np.zeros(0, bool))
+    columns: dict = field(default_factory=dict)
+    geometry: object = None
+
+    def __len__(self) -> int:
+        return len(self.frame)
+
+
+def site_format(path: str | Path, field_name: str = "sites") -> str:
+    """The format name of a site or result file from its suffix."""
+    suffix = Path(path).suffix.lower()
+    if suffix not in SITE_FORMATS:
+        raise InputError(
+            field_name,
+            f"cannot tell the format of {str(path)!r} from its suffix {suffix or '(none)'!r}",
+            ", ".join(sorted(SITE_FORMATS)),
+        )
+    return SITE_FORMATS[suffix]
+
+
+def _find(columns, names) -> str | None:
+    lower = {str(c).strip().lower(): c for c in columns}
+    for name in names:
+        if name in lower:
+            return lower[name]
+    return None
+
+
+def read_sites(path: str | Path) -> tuple[pd.DataFrame, object]:
+    """Read a site file into a DataFrame plus its point geometry (or None).
+
+    Parameters
+    ----------
+    path : str or Path
+        CSV, XLSX, GeoPackage or Parquet file.
+
+    Returns
+    -------
+    frame : pandas.DataFrame
+        Every input column; a geometry column is returned separately.
+    geometry : geopandas.GeoSeries or None
+        The rows' geometry in WGS 84 when the file carries one.
+    """
+    p = Path(path)
+    if not p.is_file():
+        raise InputError("sites", f"file {str(p)!r} not found", "a CSV, XLSX, GPKG or Parquet file")
+    fmt = site_format(p)
+    geometry = None
+    try:
+        if fmt == "csv":
+            frame = _read_csv(p)
+        elif fmt == "xlsx":
+            frame = pd.read_excel(p, sheet_name=0, engine="openpyxl")
+        elif fmt == "gpkg":
+            import pyogrio
+
+            gdf = pyogrio.read_dataframe(p)
+            frame, geometry = _split_geometry(gdf)
+        else:
+            frame, geometry = _read_parquet(p)
+    except InputError:
+        raise
+    except Exception as exc:  # a corrupt file, or not a table at all
+        raise InputError(
+            "sites",
+            f"{str(p)!r} is not a readable {fmt} table ({type(exc).__name__}: {exc})",
+            "a CSV, XLSX, GPKG or Parquet table with one row per site",
+        ) from None
+    frame.columns = [str(c) for c in frame.columns]
+    if len(frame.columns) == 0:
+        raise InputError("sites", f"{str(p)!r} has no columns", ACCEPTED_COORDS)
+    if len(frame) == 0:
+        raise InputError("sites", f"{str(p)!r} has no rows", "a table with at least one site")
+    return frame.reset_index(drop=True), geometry
+
+
+def _read_csv(p: Path) -> pd.DataFrame:
+    head = pd.read_csv(p, nrows=0, encoding="utf-8-sig")
+    text_cols = {
+        c: str
+        for c in head.columns
+        if str(c).strip().lower() in SITE_ID_NAMES + ADDRESS_NAMES + ROOF_NAMES + ("elevation",)
+    }
+    return pd.read_csv(p, dtype=text_cols, encoding="utf-8-sig", skipinitialspace=True)
+
+
+def _split_geometry(gdf) -> tuple[pd.DataFrame, object]:
+    import geopandas as gpd
+
+    if not isinstance(gdf, gpd.GeoDataFrame) or gdf.geometry.name not in gdf.columns:
+        return pd.DataFrame(gdf), None
+    geom = gdf.geometry
+    if geom.crs is not None and not geom.crs.equals("EPSG:4326"):
+        geom = geom.to_crs("EPSG:4326")
+    frame = pd.DataFrame(gdf.drop(columns=[gdf.geometry.name]))
+    return frame, geom.reset_index(drop=True)
+
+
+def _read_parquet(p: Path) -> tuple[pd.DataFrame, object]:
+    import pyarrow.parquet as pq
+
+    meta = pq.read_schema(p).metadata or {}
+    if b"geo" in meta:
+        import geopandas as gpd
+
+        return _split_geometry(gpd.read_parquet(p))
+    return pd.read_parquet(p), None
+
+
+def _numbers(series: pd.Series, name: str) -> tuple[np.ndarray, np.ndarray]:
+    """Numeric values of a column and the per-row error text for unparseable cells."""
+    err = np.full(len(series), "", dtype=object)
+    if pd.api.types.is_numeric_dtype(series.dtype) and not pd.api.types.is_bool_dtype(series.dtype):
+        values = series.to_numpy(dtype=float, na_value=np.nan)
+        err[~np.isfinite(values)] = f"{name}: missing"
+        return values, err
+    values = pd.to_numeric(series, errors="coerce").to_numpy(dtype=float, na_value=np.nan)
+    blank = series.isna().to_numpy() | (series.astype(str).str.strip() == "").to_numpy()
+    bad = np.isnan(values) & ~blank
+    if bad.any():
+        err[bad] = [f"{name}: {v!r} is not a number" for v in series[bad]]
+    err[blank] = f"{name}: missing"
+    return values, err
+
+
+def _merge(err: np.ndarray, new: np.ndarray) -> None:
+    """Keep the first error of each row."""
+    take = (err == "") & (new != "")
+    err[take] = new[take]
+
+
+def parse_elevation_cells(series: pd.Series, unit: str | None, name: str):
+    """Elevations [ft] and per-row errors from a column.
+
+    Parameters
+    ----------
+    series : pandas.Series
+        The cells.
+    unit : {"ft", "m"} or None
+        Unit implied by the column name, or None when each cell must carry it.
+    name : str
+        Column name for the messages.
+    """
+    n = len(series)
+    err = np.full(n, "", dtype=object)
+    out = np.full(n, np.nan)
+    if n == 0:
+        return out, err
+    if unit is not None and pd.api.types.is_numeric_dtype(series.dtype):
+        out = series.to_numpy(dtype=float, na_value=np.nan) * LENGTH_UNITS[unit]
+    else:
+        text = series.astype(object).where(series.notna(), "").astype(str).str.strip()
+        parts = text.str.extract(_CELL)
+        number = pd.to_numeric(parts["num"], errors="coerce").to_numpy(dtype=float)
+        cell_unit = parts["unit"].fillna("").str.lower().str.replace(" ", "", regex=False)
+        blank = (text == "").to_numpy()
+        unparsed = np.isnan(number) & ~blank
+        factor = cell_unit.map(LENGTH_UNITS).to_numpy(dtype=float, na_value=np.nan)
+        has_unit = (cell_unit != "").to_numpy()
+        if unit is not None:  # a bare number takes the column's unit
+            factor = np.where(has_unit, factor, LENGTH_UNITS[unit])
+        out = number * factor
+        bare = ~has_unit & ~np.isnan(number) & (unit is None)
+        unknown = has_unit & np.isnan(factor) & ~np.isnan(number)
+        for mask, why in (
+            (unparsed, "is not an elevation"),
+            (bare, "is a bare number with no unit"),
+            (unknown, "has a unit that is not a length"),
+        ):
+            if mask.any():
+                err[mask] = [
+                    f"{name}: {v!r} {why}; accepted: {ACCEPTED_ELEVATION}" for v in text[mask]
+                ]
+        out[err != ""] = np.nan
+    lo, hi = ELEVATION_RANGE_FT
+    with np.errstate(invalid="ignore"):
+        out_of_range = ~np.isnan(out) & ((out < lo) | (out > hi) | ~np.isfinite(out))
+    if out_of_range.any():
+        err[out_of_range] = [
+            f"{name}: {v!r} is out of range; accepted: {lo:g} ft to {hi:g} ft"
+            for v in series[out_of_range]
+        ]
+        out[out_of_range] = np.nan
+    return out, err
+
+
+def find_columns(frame: pd.DataFrame, has_geometry: bool) -> dict:
+    """Which columns hold coordinates, address, elevation, site id and roof."""
+    cols = frame.columns
+    found = {
+        "lat": _find(cols, LAT_NAMES),
+        "lon": _find(cols, LON_NAMES),
+        "address": _find(cols, ADDRESS_NAMES),
+        "site_id": _find(cols, SITE_ID_NAMES),
+        "roof": _find(cols, ROOF_NAMES),
+    }
+    elev = [c for c in cols if str(c).strip().lower() in ELEVATION_NAMES]
+    if len(elev) > 1:
+        raise InputError(
+            "elevation", f"more than one elevation column ({', '.join(elev)})", ACCEPTED_ELEVATION
+        )
+    found["elevation"] = elev[0] if elev else None
+    if (found["lat"] is None) != (found["lon"] is None):
+        have, miss = ("lat", "lon") if found["lat"] is not None else ("lon", "lat")
+        names = LON_NAMES if miss == "lon" else LAT_NAMES
+        raise InputError(
+            "sites",
+            f"a {have} column without a {miss} column",
+            f"a {miss} column named one of {', '.join(names)}",
+        )
+    if found["lat"] is None and not has_geometry and found["address"] is None:
+        raise InputError(
+            "sites",
+            f"no coordinate column among {', '.join(map(str, cols[:12]))}"
+            + (" ..." if len(cols) > 12 else ""),
+            ACCEPTED_COORDS,
+        )
+    return found
+
+
+def parse_sites(frame: pd.DataFrame, geometry=None) -> SiteArrays:
+    """Parse a site table into coordinate and elevation arrays with per-row errors.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        The site table (see :func:`read_sites`).
+    geometry : geopandas.GeoSeries, optional
+        Point geometry in WGS 84, used when there are no lat/lon columns.
+
+    Returns
+    -------
+    SiteArrays
+    """
+    frame = frame.reset_index(drop=True)
+    n = len(frame)
+    if n == 0:
+        raise InputError("sites", "the table has no rows", "a table with at least one site")
+    cols = find_columns(frame, geometry is not None)
+    err = np.full(n, "", dtype=object)
+    address = None
+    if cols["address"] is not None:
+        address = frame[cols["address"]].astype(object).where(frame[cols["address"]].notna(), "")
+        address = address.astype(str).str.strip().to_numpy(dtype=object)
+    if cols["lat"] is not None:
+        source = "latlon"
+        lat, lat_err = _numbers(frame[cols["lat"]], str(cols["lat"]))
+        lon, lon_err = _numbers(frame[cols["lon"]], str(cols["lon"]))
+        both_blank = (lat_err == f"{cols['lat']}: missing") & (lon_err == f"{cols['lon']}: missing")
+        if address is not None:  # rows without coordinates fall back on their address
+            geocode = both_blank & (address != "")
+            lat_err[geocode] = ""
+            lon_err[geocode] = ""
+            address = np.where(geocode, address, "")
+        _merge(err, lat_err)
+        _merge(err, lon_err)
+    elif geometry is not None:
+        source = "geometry"
+        lat, lon, geom_err = _points(geometry)
+        _merge(err, geom_err)
+    else:
+        source = "address"
+        lat = np.full(n, np.nan)
+        lon = np.full(n, np.nan)
+        _merge(err, np.where(address == "", f"{cols['address']}: missing", ""))
+    with np.errstate(invalid="ignore"):
+        bad_lat = ~np.isnan(lat) & (np.abs(lat) > 90.0)
+        bad_lon = ~np.isnan(lon) & (np.abs(lon) > 180.0)
+    lat_name = cols["lat"] or "latitude"
+    lon_name = cols["lon"] or "longitude"
+    _merge(err, np.where(bad_lat, f"{lat_name}: out of range; accepted: -90 to 90 degrees", ""))
+    _merge(err, np.where(bad_lon, f"{lon_name}: out of range; accepted: -180 to 180 degrees", ""))
+    elevation = np.full(n, np.nan)
+    if cols["elevation"] is not None:
+        name = str(cols["elevation"])
+        elevation, elev_err = parse_elevation_cells(
+            frame[name], ELEVATION_NAMES[name.strip().lower()], name
+        )
+        _merge(err, elev_err)
+    roof = None
+    if cols["roof"] is not None:
+        r = frame[cols["roof"]]
+        roof = r.astype(object).where(r.notna(), "").astype(str).str.strip().to_numpy(dtype=object)
+    duplicate = np.zeros(n, dtype=bool)
+    if cols["site_id"] is not None:
+        ids = frame[cols["site_id"]]
+        named = ids.notna() & (ids.astype(str).str.strip() != "")
+        duplicate = (ids.duplicated(keep=False) & named).to_numpy()
+    lat = np.where(err == "", lat, np.nan)
+    lon = np.where(err == "", lon, np.nan)
+    return SiteArrays(
+        frame=frame,
+        lat=lat,
+        lon=lon,
+        elevation_ft=elevation,
+        error=err,
+        source=source,
+        address=address,
+        roof=roof,
+        site_id=cols["site_id"],
+        duplicate=duplicate,
+        columns=cols,
+        geometry=None if geometry is None else np.asarray(geometry, dtype=object),
+    )
+
+
+def _points(geometry) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    import shapely
+
+    geoms = np.asarray(geometry.values if hasattr(geometry, "values") else geometry, dtype=object)
+    n = len(geoms)
+    err = np.full(n, "", dtype=object)
+    kind = shapely.get_type_id(geoms)
+    missing = (kind < 0) | shapely.is_empty(geoms)
+    not_point = ~missing & (kind != 0)
+    err[missing] = "geometry: missing or empty"
+    err[not_point] = "geometry: not a point; accepted: point geometry"
+    lon = np.full(n, np.nan)
+    lat = np.full(n, np.nan)
+    ok = ~missing & ~not_point
+    lon[ok] = shapely.get_x(geoms[ok])
+    lat[ok] = shapely.get_y(geoms[ok])
+    return lat, lon, err
+
+
+def load_sites(path_or_frame) -> SiteArrays:
+    """Read (if a path) and parse a site file or table."""
+    if isinstance(path_or_frame, (str, Path)):
+        frame, geometry = read_sites(path_or_frame)
+        return parse_sites(frame, geometry)
+    try:
+        import geopandas as gpd
+
+        if isinstance(path_or_frame, gpd.GeoDataFrame):
+            frame, geometry = _split_geometry(path_or_frame.reset_index(drop=True))
+            return parse_sites(frame, geometry)
+    except ImportError:  # pragma: no cover
+        pass
+    if not isinstance(path_or_frame, pd.DataFrame):
+        raise InputError(
+            "sites", f"got {type(path_or_frame).__name__}", "a path or a pandas DataFrame"
+        )
+    return parse_sites(path_or_frame)
+
+
+def _latlon(hit) -> tuple[float, float] | None:
+    """(lat, lon) from a geocoder's answer: a pair, a geopy Location, or None."""
+    if hit is None:
+        return None
+    if hasattr(hit, "latitude") and hasattr(hit, "longitude"):
+        return float(hit.latitude), float(hit.longitude)
+    if isinstance(hit, dict) and "lat" in hit and "lon" in hit:
+        return float(hit["lat"]), float(hit["lon"])
+    lat, lon = hit[:2] if not hasattr(hit, "lat") else (hit.lat, hit.lon)
+    return float(lat), float(lon)
+
+
+class CachedGeocoder:
+    """Wrap a geocoding callable with a cache and a minimum interval between calls.
+
+    Parameters
+    ----------
+    lookup : callable
+        ``lookup(address) -> (lat, lon) | geopy Location | None``.
+    min_interval_s : float
+        Seconds to wait between two uncached look-ups [s] (a public server's
+        usage policy typically asks for one request per second).
+    cache : dict, optional
+        Address -> (lat, lon) or None; shared between runs if the caller keeps it.
+    """
+
+    def __init__(self, lookup, *, min_interval_s: float = 0.0, cache: dict | None = None):
+        self.lookup = lookup
+        self.min_interval_s = float(min_interval_s)
+        self.cache = {} if cache is None else cache
+        self._last = None
+
+    def __call__(self, address: str):
+        key = " ".join(str(address).split()).lower()
+        if key in self.cache:
+            return self.cache[key]
+        import time
+
+        if self._last is not None and self.min_interval_s > 0:
+            wait = self.min_interval_s - (time.monotonic() - self._last)
+            if wait > 0:
+                time.sleep(wait)
+        try:
+            hit = _latlon(self.lookup(address))
+        finally:
+            self._last = time.monotonic()
+        self.cache[key] = hit
+        return hit
+
+
+class GeocodeMiss(LookupError):
+    """One address could not be placed (not found, or ambiguous); that row only is an error."""
+
+
+def _gazetteer_lookup(path: str | Path):
+    """A look-up in a gazetteer CSV (address, lat, lon), read once."""
+    from geo.geocode import AMBIGUOUS_M, from_gazetteer, normalise
+
+    p = Path(path)
+    from_gazetteer("", p)  # validates the file (existence, columns) with its own messages
+    table = pd.read_csv(p, dtype={"address": str})
+    groups: dict[str, list[tuple[float, float]]] = {}
+    for addr, la, lo in zip(table["address"], table["lat"], table["lon"], strict=True):
+        if isinstance(addr, str):
+            groups.setdefault(normalise(addr), []).append((float(la), float(lo)))
+
+    def lookup(address: str):
+        cands = groups.get(normalise(address))
+        if not cands:
+            return None
+        la = np.array([c[0] for c in cands])
+        lo = np.array([c[1] for c in cands])
+        spread_m = max(np.ptp(la), np.ptp(lo) * np.cos(np.radians(la.mean()))) * 111_195.0
+        if spread_m > AMBIGUOUS_M:
+            raise GeocodeMiss(f"{address!r} matches {len(cands)} places in the gazetteer")
+        return cands[0]
+
+    return lookup
+
+
+def make_geocoder(
+    gazetteer: str | Path | None = None,
+    url: str | None = None,
+    *,
+    min_interval_s: float = 1.0,
+    cache: dict | None = None,
+) -> CachedGeocoder:
+    """The geocoder for address rows: a gazetteer CSV first, then a server.
+
+    Parameters
+    ----------
+    gazetteer : str or Path, optional
+        CSV with ``address``, ``lat``, ``lon`` (see :mod:`geo.geocode`).
+    url : str, optional
+        A Nominatim-compatible server (default: the ``NEVE_GEOCODER_URL``
+        environment variable).
+    min_interval_s : float
+        Seconds between two server requests [s]; public servers' usage
+        policies commonly ask for no more than one request per second.
+    cache : dict, optional
+        Results kept between runs by the caller.
+    """
+    import os
+
+    from geo import geocode as gc
+
+    url = url or os.environ.get(gc.ENV_URL) or None
+    if gazetteer is None and url is None:
+        raise InputError(
+            "address",
+            "the site file locates sites by address but no geocoder is configured",
+            f"--gazetteer FILE.csv (address,lat,lon), --geocoder-url URL of a Nominatim-"
+            f"compatible server (or {gc.ENV_URL}), or lat/lon columns",
+        )
+    local = _gazetteer_lookup(gazetteer) if gazetteer is not None else None
+
+    def server(address: str):
+        try:
+            hit = gc.from_server(address, url)
+        except InputError as exc:  # no match or ambiguous: this row only
+            raise GeocodeMiss(exc.problem) from None
+        return hit.lat, hit.lon
+
+    if local is not None and url is None:
+        return CachedGeocoder(local, cache=cache)
+    if local is None:
+        return CachedGeocoder(server, min_interval_s=min_interval_s, cache=cache)
+
+    throttled = CachedGeocoder(server, min_interval_s=min_interval_s)
+
+    def both(address: str):  # only server requests are spaced out
+        hit = local(address)
+        return hit if hit is not None else throttled(address)
+
+    return CachedGeocoder(both, cache=cache)
+
+
+def geocode_rows(site: SiteArrays, geocoder=None, *, progress: bool = False) -> None:
+    """Fill ``site.lat``/``site.lon`` for rows located by address (each distinct address once).
+
+    A failed look-up makes that row an error naming the address; the run goes on.
+    """
+    if site.address is None:
+        return
+    todo = (site.address != "") & (site.error == "") & np.isnan(site.lat)
+    if not todo.any():
+        return
+    if geocoder is None:
+        geocoder = make_geocoder()
+    elif not isinstance(geocoder, CachedGeocoder):
+        geocoder = CachedGeocoder(geocoder)
+    from tqdm.auto import tqdm
+
+    unique = pd.unique(site.address[todo])
+    found: dict[str, tuple[float, float] | None] = {}
+    for addr in tqdm(unique, disable=not progress, desc="geocoding", unit="address", leave=False):
+        try:
+            found[addr] = geocoder(addr)
+        except GeocodeMiss as exc:
+            found[addr] = exc
+        except InputError:
+            raise
+        except Exception as exc:  # a network or server failure: this address only
+            found[addr] = exc
+    rows = np.flatnonzero(todo)
+    for i in rows:
+        hit = found[site.address[i]]
+        if isinstance(hit, GeocodeMiss):
+            site.error[i] = f"address: {hit}"
+        elif isinstance(hit, Exception):
+            site.error[i] = f"address: look-up of {site.address[i]!r} failed ({hit})"
+        elif hit is None:
+            site.error[i] = f"address: {site.address[i]!r} was not found by the geocoder"
+        elif not (abs(hit[0]) <= 90 and abs(hit[1]) <= 180):
+            site.error[i] = f"address: the geocoder gave an impossible location {hit!r}"
+        else:
+            site.lat[i], site.lon[i] = hit

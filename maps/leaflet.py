@@ -1,0 +1,293 @@
+"""Shared folium building blocks for neve's HTML maps.
+
+Text from inputs never reaches the page as markup: tooltips and popups are
+bound by our own small script that sets ``textContent`` from JSON-encoded
+strings (folium's own ``Tooltip``/``Popup``/``GeoJsonTooltip`` insert text as
+HTML inside JavaScript template literals, which would let a hostile zone note
+run), and every text that Leaflet treats as HTML (layer switcher names,
+``DivIcon`` labels) is HTML-escaped first.
+"""
+
+from __future__ import annotations
+
+import math
+from pathlib import Path
+
+from engine.choices import choose_key
+from engine.errors import InputError
+from maps import assets, style
+from maps.templating import render
+
+#: accepted values of ``tiles``
+TILES = {"none": None, "osm": "OpenStreetMap"}
+
+_SAFE_FEATURE_JS = """function (feature, layer) {
+    var text = feature.properties.neve_tip;
+    if (text === undefined || text === null) { return; }
+    var make = function () {
+        var d = document.createElement('div');
+        d.className = 'neve-tip';
+        d.textContent = String(text);
+        return d;
+    };
+    layer.bindTooltip(make, {sticky: true});
+    layer.bindPopup(make);
+}"""
+
+
+def tiles_choice(tiles: str) -> str:
+    """Validate ``tiles`` (``none`` or ``osm``)."""
+    return choose_key("tiles", tiles, TILES)
+
+
+def new_map(lat: float, lon: float, tiles: str = "none", zoom: int = 12):
+    """A folium map centred on ``(lat, lon)`` with a metric/imperial scale bar."""
+    import folium
+
+    key = tiles_choice(tiles)
+    m = folium.Map(
+        location=[lat, lon],
+        zoom_start=zoom,
+        tiles=TILES[key],
+        control_scale=True,
+        prefer_canvas=False,
+        max_zoom=19,
+    )
+    # without a tile layer Leaflet has no zoom limit, which marker clustering needs
+    m.options["maxZoom"] = 19
+    m.options["minZoom"] = 1
+    return m
+
+
+class SafeText:
+    """Factory of a folium element binding a plain-text tooltip/popup to its parent."""
+
+    @staticmethod
+    def make(text: str, *, tooltip: bool = True, popup: bool = True):
+        from branca.element import MacroElement
+        from folium.template import Template
+
+        class _SafeText(MacroElement):
+            _template = Template(
+                """{% macro script(this, kwargs) %}
+                (function () {
+                    var text = {{ this.text|tojson }};
+                    var make = function () {
+                        var d = document.createElement('div');
+                        d.className = 'neve-tip';
+                        d.textContent = text;
+                        return d;
+                    };
+                    {% if this.tooltip %}{{ this._parent.get_name() }}.bindTooltip(make);{% endif %}
+                    {% if this.popup %}{{ this._parent.get_name() }}.bindPopup(make);{% endif %}
+                })();
+                {% endmacro %}"""
+            )
+
+            def __init__(self):
+                super().__init__()
+                self._name = "SafeText"
+                self.text = str(text)
+                self.tooltip = tooltip
+                self.popup = popup
+
+        return _SafeText()
+
+
+def zone_style(row, classes: list[dict], *, governing: bool = False, problem: bool = False) -> dict:
+    """Leaflet path style of one zone row (value colour, hatch, elevation or none)."""
+    rule = str(row.get("rule", ""))
+    study = bool(row.get("study", False)) or rule == "study"
+    colour = style.colour_for(row.get("pg"), classes)
+    if study:
+        s = {
+            "fillColor": "url(#neve-hatch)",
+            "fillOpacity": 1.0,
+            "color": style.STUDY_COLOUR,
+            "weight": 1.5,
+            "dashArray": "6 4",
+        }
+    elif colour is not None:
+        s = {"fillColor": colour, "fillOpacity": 0.72, "color": "#4a5068", "weight": 1.0}
+    elif rule in ("elevation_table", "formula"):
+        s = {
+            "fillColor": style.ELEVATION_COLOUR,
+            "fillOpacity": 0.7,
+            "color": "#5f3dc4",
+            "weight": 1.0,
+            "dashArray": "2 4",
+        }
+    else:
+        s = {"fillColor": style.NO_VALUE_COLOUR, "fillOpacity": 0.6, "color": "#666", "weight": 1}
+    if problem:
+        s.update({"color": style.PROBLEM_COLOUR, "weight": 3.0, "dashArray": None})
+    if governing:
+        s.update({"color": style.GOVERNING_COLOUR, "weight": 4.0, "dashArray": None})
+    return s
+
+
+def zone_value_text(row, units: str) -> str:
+    """Short label of a zone's value: ``35 psf``, ``study``, ``by elevation``."""
+    rule = str(row.get("rule", ""))
+    if bool(row.get("study", False)) or rule == "study":
+        return "study"
+    pg = row.get("pg")
+    try:
+        if pg is not None and math.isfinite(float(pg)):
+            return f"{style.num(pg, 2)} {units}"
+    except (TypeError, ValueError):
+        pass
+    if rule in ("elevation_table", "formula"):
+        return "by elevation"
+    return "no value"
+
+
+def zone_tip(row, units: str, extra: str = "") -> str:
+    """Plain-text description of a zone for its tooltip and popup."""
+    lines = [
+        f"Zone {row.get('zone_id')}",
+        f"Value: {zone_value_text(row, units)}",
+        f"Rule: {style.RULE_LABELS.get(str(row.get('rule')), str(row.get('rule')))}",
+    ]
+    elev = row.get("elev_max")
+    try:
+        if elev is not None and math.isfinite(float(elev)):
+            lines.append(f"Elevation limit: {style.num(elev, 0)}")
+    except (TypeError, ValueError):
+        pass
+    for key, label in (("note", "Note"), ("source", "Source")):
+        val = row.get(key)
+        if val is not None and str(val).strip() and str(val) != "nan":
+            lines.append(f"{label}: {val}")
+    if extra:
+        lines.append(extra)
+    return "\n".join(lines)
+
+
+def add_zones(
+    parent,
+    zones,
+    classes,
+    units: str,
+    *,
+    governing_ids=(),
+    problem_ids=(),
+    label: bool = True,
+    extra_tips: dict | None = None,
+    label_window=None,
+) -> None:
+    """Add zone polygons (and value labels) to a folium map or feature group.
+
+    ``label_window`` (a shapely polygon in EPSG:4326) keeps the labels inside
+    the part of the map that opens on screen.
+    """
+    import folium
+
+    gov = {str(z) for z in governing_ids}
+    bad = {str(z) for z in problem_ids}
+    features = []
+    for _, row in zones.iterrows():
+        zid = str(row["zone_id"])
+        rowd = row.to_dict()
+        props = {
+            "neve_style": zone_style(rowd, classes, governing=zid in gov, problem=zid in bad),
+            "neve_tip": zone_tip(rowd, units, (extra_tips or {}).get(zid, "")),
+            "zone_id": zid,
+        }
+        features.append(
+            {"type": "Feature", "geometry": row.geometry.__geo_interface__, "properties": props}
+        )
+    if not features:
+        return
+    # governing zones last so their outline is drawn on top
+    features.sort(key=lambda f: f["properties"]["zone_id"] in gov)
+    from folium.utilities import JsCode
+
+    folium.GeoJson(
+        {"type": "FeatureCollection", "features": features},
+        style_function=lambda f: f["properties"]["neve_style"],
+        on_each_feature=JsCode(_SAFE_FEATURE_JS),
+        control=False,
+    ).add_to(parent)
+    if label:
+        for _, row in zones.iterrows():
+            geom = row.geometry
+            if label_window is not None:
+                part = geom.intersection(label_window)
+                geom = part if not part.is_empty else geom
+            pt = geom.representative_point()
+            text = zone_value_text(row.to_dict(), units)
+            folium.Marker(
+                [pt.y, pt.x],
+                icon=folium.DivIcon(
+                    html=f'<div class="neve-zone-label"><span>{style.esc(text)}</span></div>',
+                    class_name="neve-label-icon",
+                    icon_size=(0, 0),
+                ),
+                interactive=False,
+            ).add_to(parent)
+
+
+def add_site_marker(parent, lat: float, lon: float, text: str) -> None:
+    """Our own site pin (Font Awesome building glyph) with a plain-text tooltip."""
+    import folium
+
+    marker = folium.Marker(
+        [lat, lon],
+        icon=folium.DivIcon(
+            html='<div class="neve-site-pin" id="neve-site-marker">'
+            '<i class="fa-solid fa-building"></i></div>',
+            class_name="neve-site-icon",
+            icon_size=(26, 26),
+            icon_anchor=(13, 30),
+        ),
+        z_index_offset=1000,
+    )
+    marker.add_child(SafeText.make(text))
+    marker.add_to(parent)
+
+
+def add_html(m, html: str, name: str) -> None:
+    """Add already-escaped panel HTML to the page body."""
+    from branca.element import Element
+
+    m.get_root().html.add_child(Element(html), name=name)
+
+
+def add_defs(m, *, demo: bool) -> None:
+    """Our CSS, the SVG hatch pattern and (for demo data) the banner."""
+    from branca.element import Element
+
+    # an empty icon, so the browser does not ask the server for /favicon.ico
+    m.get_root().header.add_child(Element('<link rel="icon" href="data:,">'), name="neve_icon")
+    add_html(
+        m,
+        render(
+            "map_defs.html.j2",
+            css=assets.package_text("map.css"),
+            study_colour=style.STUDY_COLOUR,
+            demo=demo,
+        ),
+        "neve_defs",
+    )
+
+
+def finish(m, path, *, self_contained: bool, elements=(), cluster: bool = False) -> Path:
+    """Set assets, render, check self-containment and write the page atomically."""
+    assets.prepare_assets(m, elements, self_contained=self_contained, cluster=cluster)
+    html = m.get_root().render()
+    if self_contained:
+        remote = assets.remote_references(html)
+        if remote:
+            raise RuntimeError(f"self-contained map still references remote assets: {remote[:3]}")
+    return assets.atomic_write_text(path, html)
+
+
+def check_path(path, field: str, suffixes=(".html", ".htm")) -> Path:
+    """An output path with an HTML suffix."""
+    p = Path(path)
+    if p.suffix.lower() not in suffixes:
+        raise InputError(
+            field, f"{str(p)!r} does not end in {' or '.join(suffixes)}", "an .html path"
+        )
+    return p

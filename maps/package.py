@@ -1,0 +1,268 @@
+"""The calculation package: report (HTML and PDF), site JSON, site map, static map, diagrams.
+
+The package is one folder that must still open in ten years: the HTML report
+embeds its CSS, its images (data URIs) and the interactive site map with all
+of the map's scripts; the PDF is made from the same HTML with WeasyPrint
+(letter pages, page numbers, a running header with project and site on every
+page).  The folder is built next to its destination and renamed into place,
+so it is written whole or not at all.
+"""
+
+from __future__ import annotations
+
+import base64
+import copy
+import datetime as _dt
+import json
+import os
+import shutil
+import tempfile
+from pathlib import Path
+
+from engine.errors import InputError
+from maps import assets, style
+from maps.diagrams import write_case_diagrams
+from maps.site_map import cautions_of, is_demo, summary_context, write_site_map
+from maps.static import write_static_map
+from maps.templating import render
+
+#: keys of a case that are not values to tabulate
+_CASE_META = ("case", "name", "steps")
+
+
+def _version() -> str:
+    try:
+        from importlib.metadata import version
+
+        return version("neve")
+    except Exception:  # pragma: no cover - source tree without metadata
+        return "0+unknown"
+
+
+def _data_uri(path: Path) -> str:
+    mime = "image/png" if path.suffix == ".png" else "image/svg+xml"
+    return f"data:{mime};base64," + base64.b64encode(path.read_bytes()).decode("ascii")
+
+
+def _value_text(value) -> str:
+    """Render a case value generically: loads, lengths, line loads, numbers, text."""
+    if isinstance(value, dict):
+        if "psf" in value:
+            return style.load_text(value)
+        if "ft" in value:
+            return style.length_text(value)
+        if "plf" in value:
+            return f"{style.num(value.get('plf'), 1)} plf ({style.num(value.get('kN/m'), 2)} kN/m)"
+        return ", ".join(f"{k}: {_value_text(v)}" for k, v in value.items())
+    if isinstance(value, (list, tuple)):
+        return "; ".join(_value_text(v) for v in value)
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, (int, float)):
+        return style.num(value, 3)
+    return "" if value is None else str(value)
+
+
+def _cases(roof: dict | None, diagrams: dict[str, Path]) -> list[dict]:
+    out = []
+    for i, case in enumerate((roof or {}).get("cases") or []):
+        name = str(case.get("name") or case.get("case") or f"case {i + 1}")
+        values = [
+            (k.replace("_", " "), _value_text(v)) for k, v in case.items() if k not in _CASE_META
+        ]
+        diag = diagrams.get(name) or diagrams.get(f"{name} ({i})")
+        out.append(
+            {
+                "kind": str(case.get("case") or "case"),
+                "name": name,
+                "values": values,
+                "steps": list(case.get("steps") or []),
+                "diagram": _data_uri(diag) if diag else None,
+            }
+        )
+    return out
+
+
+def _factors(roof: dict | None) -> list[dict]:
+    if not roof:
+        return []
+    steps = {}
+    for case in roof.get("cases") or []:
+        for st in case.get("steps") or []:
+            steps.setdefault(st.get("symbol"), st)
+    out = []
+    for sym in ("Ce", "Ct", "Is", "Cs"):
+        st = steps.get(sym) or {}
+        out.append(
+            {
+                "symbol": sym,
+                "value": _value_text((roof.get("factors") or {}).get(sym)),
+                "description": st.get("description", ""),
+                "ref": st.get("ref", ""),
+            }
+        )
+    return out
+
+
+def _summary(roof: dict | None) -> list[dict]:
+    if not roof:
+        return []
+    std = roof.get("standard") or ""
+    loads = roof.get("loads") or {}
+    rows = []
+    labels = {
+        "pf": ("Flat roof snow load pf", "Eq. 7.3-1"),
+        "ps": ("Sloped roof snow load ps", "Eq. 7.4-1"),
+        "pm": ("Minimum roof snow load pm", "Sec. 7.3.4"),
+        "rain_on_snow": ("Rain-on-snow surcharge", "Sec. 7.10"),
+    }
+    for key, load in loads.items():
+        label, ref = labels.get(key, (key, ""))
+        rows.append({"label": label, "value": style.load_text(load) if load else "not applicable",
+                     "ref": f"{std} {ref}".strip(), "governing": False})  # fmt: skip
+    for case in roof.get("cases") or []:
+        vals = [
+            f"{k.replace('_', ' ')} {_value_text(v)}"
+            for k, v in case.items()
+            if k not in _CASE_META and isinstance(v, dict) and ("psf" in v)
+        ]
+        rows.append({"label": f"Case: {case.get('name') or case.get('case')}",
+                     "value": "; ".join(vals) or "\u2014", "ref": str(case.get("case") or ""),
+                     "governing": False})  # fmt: skip
+    rows.append({"label": "Design uniform roof snow load", "value": style.load_text(roof.get("design_uniform")),
+                 "ref": "governing uniform load", "governing": True})  # fmt: skip
+    return rows
+
+
+def _provenance(ground: dict) -> list[tuple[str, str]]:
+    layer = ground.get("layer") or {}
+    rows = [
+        ("Layer", layer.get("name")),
+        ("Jurisdiction", layer.get("jurisdiction")),
+        ("Standard", layer.get("standard")),
+        ("Source", layer.get("source")),
+        ("Licence", layer.get("license")),
+        ("Date", layer.get("date")),
+        ("File", layer.get("path")),
+        ("SHA-256", layer.get("sha256")),
+        ("Demo data", "yes \u2014 invented values" if layer.get("demo") else "no"),
+    ]
+    return [(k, "" if v is None else str(v)) for k, v in rows]
+
+
+def _offline_fetcher():
+    """A WeasyPrint URL fetcher that serves ``data:`` URIs only: the PDF never uses the network."""
+    try:
+        from weasyprint.urls import URLFetcher
+    except ImportError:  # WeasyPrint before the URLFetcher class: a plain function
+        from weasyprint.urls import default_url_fetcher
+
+        def fetch(url, *args, **kwargs):
+            if str(url).startswith("data:"):
+                return default_url_fetcher(url, *args, **kwargs)
+            raise ValueError(f"neve report: refusing to fetch {url!r}")
+
+        return fetch
+    return URLFetcher(allowed_protocols={"data"})
+
+
+def write_package(
+    site_json: dict,
+    views: list[dict],
+    outdir: str | os.PathLike,
+    *,
+    project: str | None = None,
+    site_name: str | None = None,
+    overwrite: bool = False,
+) -> dict[str, Path]:
+    """Write the calculation package folder.
+
+    Parameters
+    ----------
+    site_json : dict
+        The ``neve site`` JSON object (``site``, ``ground``, ``roof``).
+    views : list of dict
+        Zone layers, most local first (see :func:`maps.site_map.write_site_map`).
+    outdir : path-like
+        The package folder; it must not exist (or be empty) unless
+        ``overwrite`` is true.
+    project, site_name : str, optional
+        Override the project and site names of ``site_json``.
+    overwrite : bool
+        Replace an existing package folder.
+
+    Returns
+    -------
+    dict
+        ``report_html``, ``report_pdf``, ``site_json``, ``site_map``,
+        ``static_png``, ``static_svg`` and ``diagram:<case name>`` -> path
+        (paths inside the final folder).
+    """
+    from weasyprint import HTML
+
+    dest = Path(outdir)
+    if dest.exists() and not dest.is_dir():
+        raise InputError("package", f"{str(dest)!r} is a file", "a folder path")
+    if dest.is_dir() and any(dest.iterdir()) and not overwrite:
+        raise InputError("package", f"folder {str(dest)!r} exists and is not empty",
+                         "a new or empty folder (or overwrite)")  # fmt: skip
+    data = copy.deepcopy(site_json)
+    data.setdefault("site", {})
+    if project is not None:
+        data["site"]["project"] = project
+    if site_name is not None:
+        data["site"]["name"] = site_name
+    dest.parent.mkdir(parents=True, exist_ok=True)
+    tmp = Path(tempfile.mkdtemp(prefix=f".{dest.name}.building-", dir=dest.parent))
+    os.chmod(tmp, 0o755)
+    try:
+        files: dict[str, Path] = {}
+        files["site_json"] = assets.atomic_write_text(
+            tmp / "site.json", json.dumps(data, indent=2, ensure_ascii=False) + "\n"
+        )
+        files["site_map"] = write_site_map(data, views, tmp / "site_map.html", self_contained=True)
+        png, svg = write_static_map(data, views, tmp / "static_map.png", tmp / "static_map.svg")
+        files["static_png"], files["static_svg"] = png, svg
+        diagrams = write_case_diagrams(data.get("roof"), tmp / "diagrams")
+        for name, p in diagrams.items():
+            files[f"diagram:{name}"] = p
+        ground = data.get("ground") or {}
+        ctx = {
+            "css": assets.package_text("report.css"),
+            "project": data["site"].get("project") or "",
+            "site_name": data["site"].get("name") or "Site",
+            "s": data["site"],
+            "date": _dt.date.today().isoformat(),
+            "version": _version(),
+            "demo": is_demo(data, views),
+            "cautions": cautions_of(data),
+            "g": summary_context(data),
+            "roof": data.get("roof"),
+            "factors": _factors(data.get("roof")),
+            "summary": _summary(data.get("roof")),
+            "provenance": _provenance(ground),
+            "ground_steps": list(ground.get("steps") or []),
+            "static_map": _data_uri(png),
+            "map_html": files["site_map"].read_text(encoding="utf-8"),
+            "cases": _cases(data.get("roof"), diagrams),
+        }
+        html = render("report.html.j2", **ctx)
+        files["report_html"] = assets.atomic_write_text(tmp / "report.html", html)
+        pdf = HTML(string=html, url_fetcher=_offline_fetcher(), base_url=str(tmp)).write_pdf()
+        files["report_pdf"] = assets.atomic_write_bytes(tmp / "report.pdf", pdf)
+        old = None
+        if dest.exists():
+            old = Path(tempfile.mkdtemp(prefix=f".{dest.name}.old-", dir=dest.parent))
+            os.replace(dest, old / "package")
+        try:
+            os.replace(tmp, dest)
+        except OSError:
+            if old is not None:  # put the previous package back
+                os.replace(old / "package", dest)
+            raise
+        if old is not None:
+            shutil.rmtree(old, ignore_errors=True)
+    except BaseException:
+        shutil.rmtree(tmp, ignore_errors=True)
+        raise
+    return {k: dest / p.relative_to(tmp) for k, p in files.items()}

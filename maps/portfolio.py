@@ -1,0 +1,326 @@
+"""The portfolio map of ``neve screen``: every screened site, by ground-load band.
+
+Sites are coloured by bands of ground snow load of our own (see
+:data:`maps.style.PORTFOLIO_BANDS_PSF`); provisional sites carry an orange
+ring, study-required sites a hatched diamond, sites without data a dotted
+circle and failed rows a crossed square, so none of them can be read as a
+plain value.  Markers are clustered (Leaflet.markercluster, loaded in chunks)
+and the site data travel as compact column arrays; a popup is built on click
+from plain text.  Beyond :data:`DETAIL_LIMIT` sites the messages of ``ok``
+sites are left out, and beyond :data:`MAX_POINTS` sites ``ok`` sites are
+sampled (every flagged, study, no-data and error site is always drawn); the
+map says so.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import os
+from collections import Counter
+from pathlib import Path
+
+from engine.errors import InputError
+from maps import leaflet, style
+from maps.site_map import DEFAULT_CAUTIONS
+
+#: columns ``results`` must have
+REQUIRED = ("lat", "lon", "site_id", "status", "pg_psf", "flags", "message", "zone_id")
+#: above this many sites, messages of ok sites are dropped from the page
+DETAIL_LIMIT = 20_000
+#: above this many sites, ok sites are sampled down to this total
+MAX_POINTS = 250_000
+#: status -> CSS class suffix and legend text
+STATUS_SYMBOLS = {
+    "ok": ("ok", "value (colour = band)"),
+    "provisional": ("provisional", "provisional: value limited by a flag (orange ring)"),
+    "study_required": ("study_required", "site-specific case study required (hatched diamond)"),
+    "no_data": ("no_data", "no data (dotted circle)"),
+    "error": ("error", "error in the row (crossed square)"),
+}
+
+_TEMPLATE = """{% macro script(this, kwargs) %}
+(function () {
+    var d = {{ this.payload_js }};
+    var map = {{ this._parent.get_name() }};
+    var icons = {};
+    function icon(code) {
+        if (!icons[code]) {
+            var c = d.codes[code];
+            icons[code] = L.divIcon({
+                className: 'neve-pt-icon',
+                html: '<div class="neve-pt neve-pt-' + c.cls + '" style="background:' + c.fill + '"></div>',
+                iconSize: [12, 12], iconAnchor: [6, 6]
+            });
+        }
+        return icons[code];
+    }
+    var cluster = L.markerClusterGroup({
+        chunkedLoading: true, maxClusterRadius: 45, disableClusteringAtZoom: 15,
+        showCoverageOnHover: false,
+        iconCreateFunction: function (cl) {
+            var n = cl.getChildCount(), flagged = 0;
+            var kids = cl.getAllChildMarkers();
+            for (var k = 0; k < kids.length; k++) { if (kids[k].options.neveFlagged) { flagged++; } }
+            var size = n < 100 ? 30 : (n < 1000 ? 36 : 44);
+            var div = document.createElement('div');
+            div.className = 'neve-cluster' + (flagged ? ' neve-cluster-flagged' : '');
+            div.style.width = div.style.height = size + 'px';
+            div.style.lineHeight = size + 'px';
+            div.textContent = n >= 10000 ? Math.round(n / 1000) + 'k' : String(n);
+            return L.divIcon({html: div.outerHTML, className: 'neve-cluster-icon', iconSize: [size, size]});
+        }
+    });
+    var markers = new Array(d.lat.length);
+    for (var i = 0; i < d.lat.length; i++) {
+        var code = d.code[i];
+        var m = L.marker([d.lat[i], d.lon[i]], {icon: icon(code), keyboard: false,
+                         neveFlagged: d.codes[code].flagged});
+        m.neveIndex = i;
+        markers[i] = m;
+    }
+    function line(box, label, value) {
+        if (value === undefined || value === null || value === '') { return; }
+        var p = document.createElement('div');
+        var b = document.createElement('b');
+        b.textContent = label + ': ';
+        p.appendChild(b);
+        p.appendChild(document.createTextNode(String(value)));
+        box.appendChild(p);
+    }
+    cluster.on('click', function (e) {
+        var i = e.layer.neveIndex;
+        var box = document.createElement('div');
+        box.className = 'neve-tip';
+        line(box, 'Site', d.site_id[i]);
+        line(box, 'Status', d.status_names[d.status[i]]);
+        line(box, 'pg', d.pg[i] === null ? 'no value' : d.pg[i] + ' psf');
+        line(box, 'Zone', d.zone[i]);
+        line(box, 'Flags', d.flags[i]);
+        line(box, 'Message', d.message[i]);
+        for (var k = 0; k < d.extra_names.length; k++) { line(box, d.extra_names[k], d.extra[k][i]); }
+        L.popup().setLatLng(e.layer.getLatLng()).setContent(box).openOn(map);
+    });
+    cluster.addLayers(markers);
+    cluster.addTo(map);
+})();
+{% endmacro %}"""
+
+_CLUSTER_CSS = """
+.neve-cluster-icon { background: transparent; border: none; }
+.neve-cluster { border-radius: 50%; background: rgba(44, 52, 112, .82); color: #fff;
+  font: 700 11px "DejaVu Sans", Arial, sans-serif; text-align: center;
+  box-shadow: 0 0 0 3px rgba(163, 214, 211, .8); }
+.neve-cluster-flagged { box-shadow: 0 0 0 3px #e8590c; }
+.neve-pt-icon { background: transparent; border: none; }
+"""
+
+
+def _safe_json(obj) -> str:
+    text = json.dumps(obj, separators=(",", ":"), ensure_ascii=False, allow_nan=False)
+    return (
+        text.replace("<", "\\u003c")
+        .replace(">", "\\u003e")
+        .replace("&", "\\u0026")
+        .replace("\u2028", "\\u2028")
+        .replace("\u2029", "\\u2029")
+    )
+
+
+def _clean(v, limit: int = 240) -> str:
+    if v is None or (isinstance(v, float) and math.isnan(v)):
+        return ""
+    text = str(v)
+    return text if len(text) <= limit else text[: limit - 1] + "\u2026"
+
+
+def _layer_class():
+    from folium.elements import JSCSSMixin
+    from folium.plugins import MarkerCluster
+    from folium.template import Template
+
+    class PortfolioLayer(JSCSSMixin):
+        _template = Template(_TEMPLATE)
+        default_js = list(MarkerCluster.default_js)
+        default_css = list(MarkerCluster.default_css)
+
+        def __init__(self, payload: dict):
+            super().__init__()
+            self._name = "PortfolioLayer"
+            self.payload_js = _safe_json(payload)
+
+    return PortfolioLayer
+
+
+def write_portfolio_map(
+    results,
+    path: str | os.PathLike,
+    *,
+    demo: bool = False,
+    tiles: str = "none",
+    self_contained: bool = False,
+) -> Path:
+    """Write the clustered portfolio map of screening results.
+
+    Parameters
+    ----------
+    results : pandas.DataFrame
+        One row per site with at least ``lat``, ``lon`` [degrees],
+        ``site_id``, ``status``, ``pg_psf`` [psf], ``flags``
+        (semicolon-separated), ``message`` and ``zone_id``; columns named
+        ``roof_*`` or ending in ``_psf`` are shown in the popups as well.
+    path : path-like
+        Output ``.html``; written atomically.
+    demo : bool
+        Show the demo-data banner.
+    tiles : {"none", "osm"}
+        Base tiles.
+    self_contained : bool
+        Inline every script and stylesheet so the page works offline.
+
+    Returns
+    -------
+    pathlib.Path
+    """
+    import numpy as np
+    import pandas as pd
+
+    out = leaflet.check_path(path, "map")
+    if not isinstance(results, pd.DataFrame):
+        raise InputError("results", f"got {type(results).__name__}", "a pandas DataFrame")
+    missing = [c for c in REQUIRED if c not in results.columns]
+    if missing:
+        raise InputError("results", f"missing column(s) {', '.join(missing)}", ", ".join(REQUIRED))
+    n_total = len(results)
+    lat = pd.to_numeric(results["lat"], errors="coerce").to_numpy(dtype=float)
+    lon = pd.to_numeric(results["lon"], errors="coerce").to_numpy(dtype=float)
+    placeable = np.isfinite(lat) & np.isfinite(lon) & (np.abs(lat) <= 90) & (np.abs(lon) <= 180)
+    status = results["status"].astype(str).str.strip().to_numpy()
+    pg = pd.to_numeric(results["pg_psf"], errors="coerce").to_numpy(dtype=float)
+    flags = results["flags"].fillna("").astype(str).to_numpy()
+    counts = Counter(status.tolist())
+
+    # symbol code: 0..6 bands for ok, then one code per band for provisional, then statuses
+    nb = len(style.PORTFOLIO_BANDS_PSF)
+    codes = []
+    for i, (_, label) in enumerate(style.PORTFOLIO_BANDS_PSF):
+        codes.append(
+            {"cls": "ok", "fill": style.PORTFOLIO_BAND_COLOURS[i], "flagged": False, "label": label}
+        )
+    for i, (_, label) in enumerate(style.PORTFOLIO_BANDS_PSF):
+        codes.append(
+            {
+                "cls": "provisional",
+                "fill": style.PORTFOLIO_BAND_COLOURS[i],
+                "flagged": True,
+                "label": label,
+            }
+        )
+    special = {"study_required": 2 * nb, "no_data": 2 * nb + 1, "error": 2 * nb + 2}
+    codes += [
+        {"cls": "study_required", "fill": "#fff", "flagged": True, "label": "study"},
+        {"cls": "no_data", "fill": "#fff", "flagged": True, "label": "no data"},
+        {"cls": "error", "fill": "#fff", "flagged": True, "label": "error"},
+    ]
+    band = np.array([style.portfolio_band(v) for v in pg], dtype=int)
+    code = np.full(n_total, special["error"], dtype=int)
+    is_ok = status == "ok"
+    is_prov = status == "provisional"
+    code[is_ok & (band >= 0)] = band[is_ok & (band >= 0)]
+    code[is_prov & (band >= 0)] = nb + band[is_prov & (band >= 0)]
+    code[(is_ok | is_prov) & (band < 0)] = special["no_data"]
+    code[status == "study_required"] = special["study_required"]
+    code[status == "no_data"] = special["no_data"]
+
+    notes = []
+    keep = placeable.copy()
+    if (~placeable).sum():
+        notes.append(f"{int((~placeable).sum())} site(s) without usable coordinates are not drawn.")
+    plain = keep & (code < nb) & (flags == "")
+    n_keep = int(keep.sum())
+    if n_keep > MAX_POINTS:
+        rng = np.random.default_rng(0)
+        idx_plain = np.flatnonzero(plain)
+        n_drop = min(len(idx_plain), n_keep - MAX_POINTS)
+        keep[rng.choice(idx_plain, size=n_drop, replace=False)] = False
+        notes.append(
+            f"{n_drop:,} of {int(plain.sum()):,} unflagged sites were left out at random to keep "
+            "the page usable; every flagged, study, no-data and error site is drawn."
+        )
+    rows = np.flatnonzero(keep)
+    trim = n_total > DETAIL_LIMIT
+    if trim:
+        notes.append(
+            f"Large portfolio ({n_total:,} sites): messages of ok sites are left out of the "
+            "popups; the results file has every row in full."
+        )
+    extra_cols = [
+        c
+        for c in results.columns
+        if (c.startswith("roof_") or (c.endswith("_psf") and c != "pg_psf"))
+    ][:4]
+    statuses = sorted(set(status.tolist()))
+    s_index = {s: i for i, s in enumerate(statuses)}
+    sub = results.iloc[rows]
+    message = [
+        "" if (trim and st == "ok") else _clean(v)
+        for v, st in zip(sub["message"].tolist(), status[rows].tolist(), strict=True)
+    ]
+    payload = {
+        "lat": np.round(lat[rows], 5).tolist(),
+        "lon": np.round(lon[rows], 5).tolist(),
+        "code": code[rows].tolist(),
+        "codes": codes,
+        "status": [s_index[s] for s in status[rows].tolist()],
+        "status_names": statuses,
+        "site_id": [_clean(v, 80) for v in sub["site_id"].tolist()],
+        "pg": [None if not math.isfinite(v) else round(float(v), 2) for v in pg[rows]],
+        "zone": [_clean(v, 60) for v in sub["zone_id"].tolist()],
+        "flags": [_clean(v, 160) for v in flags[rows].tolist()],
+        "message": message,
+        "extra_names": [c.replace("_", " ") for c in extra_cols],
+        "extra": [[_clean(v, 40) for v in sub[c].tolist()] for c in extra_cols],
+    }
+
+    if len(rows):
+        la, lo = lat[rows], lon[rows]
+        centre = (float(np.median(la)), float(np.median(lo)))
+    else:
+        centre = (0.0, 0.0)
+    m = leaflet.new_map(centre[0], centre[1], tiles, zoom=5)
+    if len(rows):
+        m.fit_bounds([[float(la.min()), float(lo.min())], [float(la.max()), float(lo.max())]])
+    leaflet.add_defs(m, demo=demo)
+    from branca.element import Element
+
+    m.get_root().header.add_child(
+        Element(f"<style>{_CLUSTER_CSS}</style>"), name="neve_cluster_css"
+    )
+    layer = _layer_class()(payload)
+    layer.add_to(m)
+    leaflet.add_html(m, _legend_html(counts, n_total, len(rows), notes), "neve_legend")
+    return leaflet.finish(m, out, self_contained=self_contained, elements=[layer], cluster=True)
+
+
+def _legend_html(counts: Counter, n_total: int, n_drawn: int, notes: list[str]) -> str:
+    from maps.templating import render
+
+    bands = [
+        {"label": label, "colour": style.PORTFOLIO_BAND_COLOURS[i]}
+        for i, (_, label) in enumerate(style.PORTFOLIO_BANDS_PSF)
+    ]
+    symbols = [
+        {"cls": cls, "label": text, "count": counts.get(key, 0)}
+        for key, (cls, text) in STATUS_SYMBOLS.items()
+    ]
+    other = sum(v for k, v in counts.items() if k not in STATUS_SYMBOLS)
+    return render(
+        "portfolio_legend.html.j2",
+        bands=bands,
+        symbols=symbols,
+        other=other,
+        n_total=n_total,
+        n_drawn=n_drawn,
+        notes=notes,
+        cautions=list(DEFAULT_CAUTIONS),
+    )

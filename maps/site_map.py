@@ -1,0 +1,249 @@
+"""The interactive site map: the site, its zone, the neighbouring zones and a summary.
+
+One folium page per site: the governing zone outlined, the zones within a few
+kilometres coloured by value with their values labelled, study-required areas
+hatched (never a colour of the value scale), a legend in the layer's units, a
+summary panel (status, pg, flags, elevation and its source, layer, source
+citation, short SHA-256), the cautions, a scale bar, a layer switcher when
+layers are stacked and a banner when the layer is invented demo data.
+"""
+
+from __future__ import annotations
+
+import math
+import os
+from pathlib import Path
+
+from maps import leaflet, style
+from maps.geom import check_zones, site_lat_lon, zones_near
+from maps.templating import render
+
+#: zones within this distance of the site are drawn [m]
+NEIGHBOUR_RADIUS_M = 5000.0
+#: the map opens on this half-width around the site [m]
+VIEW_HALF_WIDTH_M = 3000.0
+
+DEFAULT_CAUTIONS = (
+    "neve is an aid to, not a substitute for, the judgement of a licensed design professional.",
+    "Confirm the ground snow load with the authority having jurisdiction and its local amendments.",
+    "Sites flagged for a study need a site-specific case study by a qualified professional.",
+)
+
+
+def cautions_of(site_json: dict) -> list[str]:
+    """The cautions of a site result (ground, roof), always including neve's own three."""
+    out: list[str] = []
+    ground = site_json.get("ground") or {}
+    roof = site_json.get("roof") or {}
+    for c in list(ground.get("cautions") or []) + list(roof.get("cautions") or []):
+        if c and str(c) not in out:
+            out.append(str(c))
+    for c in DEFAULT_CAUTIONS:
+        if c not in out:
+            out.append(c)
+    return out
+
+
+def is_demo(site_json: dict, views=()) -> bool:
+    """True when the site's layer or any view is invented demo data."""
+    ground = site_json.get("ground") or {}
+    layer = ground.get("layer") or {}
+    return bool(
+        layer.get("demo")
+        or "demo_data" in (ground.get("flags") or [])
+        or any(bool(v.get("demo") or (v.get("meta") or {}).get("demo")) for v in views)
+    )
+
+
+def governing_index(site_json: dict, views) -> int:
+    """Index of the view that governs the site: the layer named in ``ground.layer``.
+
+    Layers are listed most local first, but the first layer that covers the
+    site governs, so a local amendment that misses the site does not.  Falls
+    back to the first view.
+    """
+    layer = (site_json.get("ground") or {}).get("layer") or {}
+    for key in ("sha256", "name"):
+        want = layer.get(key)
+        if not want:
+            continue
+        for i, v in enumerate(views or []):
+            if v.get(key) == want or (key == "name" and (v.get("meta") or {}).get("name") == want):
+                return i
+    return 0
+
+
+def governing_ids(site_json: dict, view: dict, first: bool) -> list[str]:
+    """Zone ids of ``view`` that the site falls in (for outlining).
+
+    ``first`` is true for the governing view (see :func:`governing_index`).
+    """
+    ground = site_json.get("ground") or {}
+    if first:
+        ids = list(ground.get("zone_ids") or [])
+        if ground.get("zone_id") and ground["zone_id"] not in ids:
+            ids.append(ground["zone_id"])
+        return [str(i) for i in ids]
+    for other in ground.get("other_layers") or []:
+        if other.get("name") == view.get("name") and other.get("zone_id"):
+            return [str(other["zone_id"])]
+    return []
+
+
+def summary_context(site_json: dict) -> dict:
+    """Plain values for the summary panel and the report (escaped by the templates)."""
+    site = site_json.get("site") or {}
+    ground = site_json.get("ground") or {}
+    layer = ground.get("layer") or {}
+    roof = site_json.get("roof") or None
+    status = str(ground.get("status") or "unknown")
+    zone_ids = ground.get("zone_ids") or ([ground["zone_id"]] if ground.get("zone_id") else [])
+    neighbours = []
+    for n in ground.get("neighbours") or []:
+        pg = n.get("pg")
+        pg_text = style.load_text(pg) if isinstance(pg, dict) else style.num(pg, 2)
+        dist = n.get("distance")
+        dist_text = style.length_text(dist) if isinstance(dist, dict) else style.num(dist, 0)
+        neighbours.append(f"zone {n.get('zone_id')}: {pg_text} at {dist_text}")
+    others = []
+    for o in ground.get("other_layers") or []:
+        pg = o.get("pg")
+        pg_text = style.load_text(pg) if isinstance(pg, dict) else style.num(pg, 2)
+        zone = f"zone {o['zone_id']}" if o.get("zone_id") else "no zone"
+        pg_text = pg_text if o.get("pg") else "no value"
+        others.append(
+            f"{o.get('name')}: {str(o.get('status') or '').replace('_', ' ')}, {zone}, {pg_text}"
+        )
+    return {
+        "title": site.get("name") or "Site",
+        "project": site.get("project") or "",
+        "address": site.get("address") or "",
+        "lat": site.get("lat"),
+        "lon": site.get("lon"),
+        "status": status.replace("_", " "),
+        "status_class": status if status.replace("_", "").isalnum() else "error",
+        "pg": style.load_text(ground.get("pg")) if ground.get("pg") else "no value",
+        "zone": ", ".join(str(z) for z in zone_ids) or "none",
+        "rule": ground.get("rule") or "",
+        "flags": [str(f) for f in ground.get("flags") or []],
+        "elevation": style.length_text(ground.get("elevation")),
+        "elevation_source": ground.get("elevation_source") or "none",
+        "distance": style.length_text(ground.get("distance_to_other"))
+        if ground.get("distance_to_other")
+        else "",
+        "neighbours": neighbours,
+        "other_layers": others,
+        "layer_name": layer.get("name") or "",
+        "jurisdiction": layer.get("jurisdiction") or "",
+        "layer_source": layer.get("source") or "",
+        "sha": style.short_sha(layer.get("sha256")),
+        "message": ground.get("message") or "",
+        "roof": style.load_text(roof.get("design_uniform")) if roof else "",
+        "cautions": cautions_of(site_json),
+    }
+
+
+def _site_tip(ctx: dict) -> str:
+    return (
+        f"{ctx['title']}\nStatus: {ctx['status']}\npg: {ctx['pg']}\n"
+        f"Zone: {ctx['zone']}\nFlags: {', '.join(ctx['flags']) or 'none'}"
+    )
+
+
+def write_site_map(
+    site_json: dict,
+    views: list[dict],
+    path: str | os.PathLike,
+    *,
+    tiles: str = "none",
+    self_contained: bool = False,
+) -> Path:
+    """Write the interactive site map as one HTML file.
+
+    Parameters
+    ----------
+    site_json : dict
+        The ``neve site`` JSON object (``site``, ``ground``, ``roof``).
+    views : list of dict
+        Zone layers, most local first (the first governs); each with
+        ``name``, ``meta``, ``sha256``, ``demo``, ``value_units`` and
+        ``zones`` (GeoDataFrame, EPSG:4326).
+    path : path-like
+        Output ``.html`` file; written atomically.
+    tiles : {"none", "osm"}
+        Base tiles; ``none`` gives a plain background.
+    self_contained : bool
+        Inline every script and stylesheet so the page works offline.
+
+    Returns
+    -------
+    pathlib.Path
+        The written file.
+    """
+    import folium
+
+    out = leaflet.check_path(path, "map")
+    lat, lon = site_lat_lon(site_json)
+    ctx = summary_context(site_json)
+    m = leaflet.new_map(lat, lon, tiles, zoom=13)
+    # open on the neighbourhood: about 3 km either side of the site
+    dlat = VIEW_HALF_WIDTH_M / 111_320.0
+    dlon = dlat / max(math.cos(math.radians(lat)), 0.05)
+    m.fit_bounds([[lat - dlat, lon - dlon], [lat + dlat, lon + dlon]])
+    from shapely.geometry import box
+
+    label_window = box(lon - 0.7 * dlon, lat - 0.7 * dlat, lon + 0.7 * dlon, lat + 0.7 * dlat)
+    demo = is_demo(site_json, views)
+    leaflet.add_defs(m, demo=demo)
+
+    all_classes: list[dict] = []
+    has_elev = has_none = False
+    units = "psf"
+    layer_groups = []
+    g_index = governing_index(site_json, views)
+    order = [g_index] + [i for i in range(len(views or [])) if i != g_index]
+    for i in order:
+        view = views[i]
+        zones = check_zones(view)
+        v_units = str(
+            view.get("value_units") or (view.get("meta") or {}).get("value_units") or "psf"
+        )
+        gov = governing_ids(site_json, view, first=(i == g_index))
+        near = zones_near(zones, lat, lon, NEIGHBOUR_RADIUS_M, keep_ids=gov)
+        classes = style.value_classes(near["pg"]) if len(near) else []
+        if i == g_index:
+            all_classes, units = classes, v_units
+            rules = set(near["rule"].astype(str)) if len(near) else set()
+            has_elev = bool(rules & {"elevation_table", "formula"})
+            has_none = any(
+                leaflet.zone_value_text(r, v_units) == "no value" for r in near.to_dict("records")
+            )
+        label = f"{view.get('name') or 'layer'}" + (" (governs)" if i == g_index else "")
+        group = folium.FeatureGroup(name=style.esc(label), show=(i == g_index), control=True)
+        leaflet.add_zones(
+            group, near, classes, v_units, governing_ids=gov, label_window=label_window
+        )
+        group.add_to(m)
+        layer_groups.append(group)
+
+    leaflet.add_site_marker(m, lat, lon, _site_tip(ctx))
+    leaflet.add_html(m, render("site_panel.html.j2", **ctx), "neve_summary")
+    leaflet.add_html(
+        m,
+        render(
+            "legend.html.j2",
+            title=f"Ground snow load pg [{units}]",
+            classes=all_classes,
+            units=units,
+            has_elev=has_elev,
+            has_none=has_none,
+            governing=True,
+            site=True,
+            problems=False,
+            note=f"Zones within {NEIGHBOUR_RADIUS_M / 1000:.0f} km of the site are shown.",
+        ),
+        "neve_legend",
+    )
+    if len(layer_groups) > 1:
+        folium.LayerControl(collapsed=False, position="topleft").add_to(m)
+    return leaflet.finish(m, out, self_contained=self_contained)

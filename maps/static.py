@@ -1,0 +1,242 @@
+"""The static map of the site and its zones (PNG and SVG) for the calculation package.
+
+Drawn with matplotlib's Agg backend from the layer itself: no display, no
+network, no tiles.  The zones around the site are projected to the site's
+UTM zone (chosen through pyproj), so the scale bar is true in metres and
+feet; a north arrow, the site symbol and a legend complete the figure.
+"""
+
+from __future__ import annotations
+
+import math
+import os
+from pathlib import Path
+
+from maps import style
+from maps.assets import atomic_write_bytes
+from maps.geom import check_zones, local_crs, site_lat_lon, zones_near
+from maps.site_map import governing_ids, governing_index, is_demo
+
+#: half-width of the mapped window around the site [m]
+WINDOW_M = 5000.0
+
+
+def _nice_length(target: float) -> float:
+    """A round length not above ``target`` (1, 2, 5 x 10^n)."""
+    if target <= 0:
+        return 1.0
+    mag = 10 ** math.floor(math.log10(target))
+    for f in (5, 2, 1):
+        if f * mag <= target:
+            return f * mag
+    return mag
+
+
+def _scale_bar(ax, x0: float, y0: float, width_m: float) -> None:
+    """Two-unit scale bar: metres above, feet below, drawn at data coords (metres)."""
+    from matplotlib.patches import Rectangle
+
+    length = _nice_length(width_m * 0.25)
+    h = width_m * 0.012
+    ax.add_patch(
+        Rectangle((x0 - 0.03 * width_m, y0 - 4.2 * h), length * 1.2 + 0.06 * width_m, 8.4 * h,
+                  facecolor="white", edgecolor="#8a8f9c", lw=0.6, alpha=0.9, zorder=5.5)
+    )  # fmt: skip
+    for i in range(4):
+        ax.add_patch(
+            Rectangle(
+                (x0 + i * length / 4, y0), length / 4, h,
+                facecolor="#1b1f3b" if i % 2 == 0 else "white", edgecolor="#1b1f3b", lw=0.8,
+                zorder=6,
+            )
+        )  # fmt: skip
+    label = f"{length / 1000:g} km" if length >= 1000 else f"{length:g} m"
+    ax.text(x0 + length / 2, y0 + 1.6 * h, label, ha="center", va="bottom", fontsize=8, zorder=6)
+    ft_len = _nice_length(length / 0.3048)
+    ft_m = ft_len * 0.3048
+    ax.plot([x0, x0 + ft_m], [y0 - 0.6 * h] * 2, color="#1b1f3b", lw=1.2, zorder=6)
+    for x in (x0, x0 + ft_m):
+        ax.plot([x, x], [y0 - 1.1 * h, y0 - 0.6 * h], color="#1b1f3b", lw=1.2, zorder=6)
+    ft_label = f"{ft_len:,.0f} ft"
+    ax.text(x0 + ft_m / 2, y0 - 1.4 * h, ft_label, ha="center", va="top", fontsize=8, zorder=6)
+
+
+def _north_arrow(ax, x: float, y: float, size: float, angle_deg: float = 0.0) -> None:
+    """A north arrow at (x, y) pointing to grid north rotated by ``angle_deg``."""
+    from matplotlib.patches import Polygon
+
+    a = math.radians(angle_deg)
+
+    def rot(px, py):
+        return (x + px * math.cos(a) - py * math.sin(a), y + px * math.sin(a) + py * math.cos(a))
+
+    left = [rot(0, size), rot(-size * 0.35, -size * 0.4), rot(0, -size * 0.15)]
+    right = [rot(0, size), rot(size * 0.35, -size * 0.4), rot(0, -size * 0.15)]
+    ax.add_patch(Polygon(left, closed=True, facecolor="#1b1f3b", edgecolor="#1b1f3b", zorder=7))
+    ax.add_patch(Polygon(right, closed=True, facecolor="white", edgecolor="#1b1f3b", zorder=7))
+    tx, ty = rot(0, size * 1.45)
+    ax.text(tx, ty, "N", ha="center", va="center", fontsize=11, fontweight="bold", zorder=7)
+
+
+def write_static_map(
+    site_json: dict,
+    views: list[dict],
+    png_path: str | os.PathLike,
+    svg_path: str | os.PathLike | None = None,
+) -> list[Path]:
+    """Draw the zones around the site to PNG (and SVG).
+
+    Parameters
+    ----------
+    site_json : dict
+        The ``neve site`` JSON object.
+    views : list of dict
+        Zone layers, most local first; the one governing the site is drawn.
+    png_path : path-like
+        Output PNG [150 dpi].
+    svg_path : path-like, optional
+        Output SVG as well.
+
+    Returns
+    -------
+    list of pathlib.Path
+        The files written.
+    """
+    import io
+
+    import matplotlib
+
+    matplotlib.use("Agg", force=True)
+    import geopandas as gpd
+    import matplotlib.pyplot as plt
+    from matplotlib.lines import Line2D
+    from matplotlib.patches import Patch
+    from pyproj import Transformer
+    from shapely.geometry import Point
+
+    lat, lon = site_lat_lon(site_json)
+    crs = local_crs(lat, lon)
+    site_xy = gpd.GeoSeries([Point(lon, lat)], crs=4326).to_crs(crs).iloc[0]
+    units = "psf"
+    fig, ax = plt.subplots(figsize=(8.6, 6.0), dpi=150)
+    handles = []
+    if views:
+        view = views[governing_index(site_json, views)]
+        zones = check_zones(view)
+        units = str(view.get("value_units") or (view.get("meta") or {}).get("value_units") or "psf")
+        gov = set(governing_ids(site_json, view, first=True))
+        near = zones_near(zones, lat, lon, WINDOW_M * 1.5, keep_ids=gov)
+        if len(near):
+            # the legend lists only what the drawn window shows
+            shown = near.to_crs(crs).intersects(site_xy.buffer(WINDOW_M).envelope).to_numpy()
+            near = near[shown]
+        classes = style.value_classes(near["pg"]) if len(near) else []
+        if len(near):
+            proj = near.to_crs(crs)
+            for _, row in proj.iterrows():
+                rule = str(row["rule"])
+                study = bool(row.get("study")) or rule == "study"
+                colour = style.colour_for(row["pg"], classes)
+                kw = {"edgecolor": "#4a5068", "linewidth": 0.6}
+                if study:
+                    kw = {"facecolor": "white", "edgecolor": style.STUDY_COLOUR, "hatch": "////",
+                          "linewidth": 0.8, "linestyle": "--"}  # fmt: skip
+                elif colour is not None:
+                    kw["facecolor"] = colour
+                elif rule in ("elevation_table", "formula"):
+                    kw.update(facecolor=style.ELEVATION_COLOUR, linestyle=":")
+                else:
+                    kw["facecolor"] = style.NO_VALUE_COLOUR
+                gpd.GeoSeries([row.geometry], crs=crs).plot(ax=ax, zorder=2, **kw)
+                inside = row.geometry.intersection(site_xy.buffer(WINDOW_M))
+                c = inside.representative_point()
+                if not c.is_empty and c.distance(site_xy) < 0.2 * WINDOW_M:
+                    # keep the label clear of the site symbol
+                    moved = Point(site_xy.x, site_xy.y - 0.3 * WINDOW_M)
+                    c = moved if inside.contains(moved) else c
+                if not c.is_empty:
+                    text = _label(row, units)
+                    ax.text(c.x, c.y, text, ha="center", va="center", fontsize=7.5, zorder=4,
+                            color="#1b1f3b",
+                            bbox={"boxstyle": "round,pad=0.15", "fc": "white", "ec": "none",
+                                  "alpha": 0.75})  # fmt: skip
+            g = proj[proj["zone_id"].astype(str).isin(gov)]
+            if len(g):
+                g.boundary.plot(ax=ax, color=style.GOVERNING_COLOUR, linewidth=2.4, zorder=5)
+        for c in classes:
+            handles.append(
+                Patch(facecolor=c["colour"], edgecolor="#4a5068", label=f"{c['label']} {units}")
+            )
+        rules = set(near["rule"].astype(str)) if len(near) else set()
+        if rules & {"elevation_table", "formula"}:
+            handles.append(Patch(facecolor=style.ELEVATION_COLOUR, edgecolor="#4a5068",
+                                 linestyle=":", label="value from elevation"))  # fmt: skip
+        handles.append(Patch(facecolor="white", edgecolor=style.STUDY_COLOUR, hatch="////",
+                             label="case study required (no value)"))  # fmt: skip
+        handles.append(Patch(facecolor="none", edgecolor=style.GOVERNING_COLOUR, linewidth=2.4,
+                             label="governing zone"))  # fmt: skip
+    ax.plot(site_xy.x, site_xy.y, marker="o", markersize=10, color=style.SITE_COLOUR,
+            markeredgecolor="white", markeredgewidth=2, zorder=8)  # fmt: skip
+    ax.plot(site_xy.x, site_xy.y, marker="+", markersize=18, color=style.SITE_COLOUR, zorder=8)
+    pg = (site_json.get("ground") or {}).get("pg")
+    ax.annotate(f"site: pg = {style.load_text(pg) if pg else 'no value'}", (site_xy.x, site_xy.y),
+                xytext=(12, 10), textcoords="offset points", fontsize=8, fontweight="bold",
+                color=style.SITE_COLOUR, zorder=9,
+                bbox={"boxstyle": "round,pad=0.25", "fc": "white", "ec": style.SITE_COLOUR,
+                      "lw": 0.6, "alpha": 0.9})  # fmt: skip
+    handles.append(Line2D([], [], marker="o", color="none", markerfacecolor=style.SITE_COLOUR,
+                          markeredgecolor="white", markersize=9, label="site"))  # fmt: skip
+
+    x0, y0 = site_xy.x - WINDOW_M, site_xy.y - WINDOW_M
+    ax.set_xlim(x0, site_xy.x + WINDOW_M)
+    ax.set_ylim(y0, site_xy.y + WINDOW_M)
+    ax.set_aspect("equal")
+    ax.set_xticks([])
+    ax.set_yticks([])
+    ax.set_facecolor("#f4f2ec")
+    _scale_bar(ax, x0 + 0.04 * 2 * WINDOW_M, y0 + 0.045 * 2 * WINDOW_M, 2 * WINDOW_M)
+    # grid north differs from true north by the meridian convergence: point to true north
+    t = Transformer.from_crs(4326, crs, always_xy=True)
+    nx, ny = t.transform(lon, lat + 0.01)
+    angle = math.degrees(math.atan2(-(nx - site_xy.x), ny - site_xy.y))
+    _north_arrow(
+        ax, site_xy.x + 0.86 * WINDOW_M, site_xy.y + 0.72 * WINDOW_M, 0.11 * WINDOW_M, angle
+    )
+    ax.legend(handles=handles, loc="upper left", bbox_to_anchor=(1.02, 1.0), fontsize=7.5,
+              frameon=False, title=f"Ground snow load pg [{units}]",
+              title_fontsize=8, alignment="left")  # fmt: skip
+    ax.set_xlabel("")
+    ax.set_ylabel("")
+    site = site_json.get("site") or {}
+    title = str(site.get("name") or "Site")
+    ax.set_title(title, fontsize=10, loc="left")
+    foot = f"{crs.name} \u00b7 {lat:.5f}, {lon:.5f}"
+    if is_demo(site_json, views):
+        foot = "DEMO DATA \u2014 INVENTED VALUES, NEVER FOR DESIGN \u00b7 " + foot
+    fig.text(0.01, 0.01, foot, fontsize=7, color="#7a3e00" if "DEMO" in foot else "#444")
+    fig.tight_layout(rect=(0, 0.03, 1, 1))
+    written = []
+    for path, fmt in ((png_path, "png"), (svg_path, "svg")):
+        if path is None:
+            continue
+        buf = io.BytesIO()
+        fig.savefig(buf, format=fmt, metadata={"Date": None} if fmt == "svg" else None)
+        written.append(atomic_write_bytes(path, buf.getvalue()))
+    plt.close(fig)
+    return written
+
+
+def _label(row, units: str) -> str:
+    rule = str(row["rule"])
+    if bool(row.get("study")) or rule == "study":
+        return f"{row['zone_id']}\nstudy"
+    try:
+        if math.isfinite(float(row["pg"])):
+            return f"{row['zone_id']}\n{style.num(row['pg'], 2)} {units}"
+    except (TypeError, ValueError):
+        pass
+    return (
+        f"{row['zone_id']}\nby elevation"
+        if rule in ("elevation_table", "formula")
+        else f"{row['zone_id']}"
+    )

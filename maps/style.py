@@ -1,0 +1,191 @@
+"""neve's own colours, symbols, value classes and text helpers for maps and reports.
+
+Colours are our own: a cool sequence from pale frost to deep slate for mapped
+values, an orange hatch for study-required areas (no value, so it is drawn
+as a pattern and never as a colour of the value scale), lavender for zones
+whose value depends on elevation, and a crimson outline for the zone that
+governs the site.
+"""
+
+from __future__ import annotations
+
+import math
+from html import escape
+
+#: value scale, low to high (our own)
+VALUE_COLOURS = (
+    "#eef7f6",
+    "#cde9e4",
+    "#a3d6d3",
+    "#76bdc9",
+    "#4f9cbd",
+    "#3b78a8",
+    "#34548f",
+    "#2c3470",
+)
+#: study-required areas: hatch colour
+STUDY_COLOUR = "#d9480f"
+#: zones whose value follows from elevation (table or formula)
+ELEVATION_COLOUR = "#cfc5ea"
+#: zones with no usable value for another reason
+NO_VALUE_COLOUR = "#d0d0d0"
+#: outline of the governing zone
+GOVERNING_COLOUR = "#c2185b"
+#: problems found by a layer check
+PROBLEM_COLOUR = "#e03131"
+#: site marker
+SITE_COLOUR = "#1b1f3b"
+
+#: short, plain descriptions of the rule kinds
+RULE_LABELS = {
+    "fixed": "fixed mapped value",
+    "elevation_table": "value from an elevation table",
+    "formula": "value from a formula in elevation",
+    "study": "site-specific case study required",
+}
+
+#: ground-load bands of our own for portfolio screening [psf]: (upper bound, label)
+PORTFOLIO_BANDS_PSF = (
+    (10.0, "under 10 psf"),
+    (20.0, "10 to under 20 psf"),
+    (30.0, "20 to under 30 psf"),
+    (50.0, "30 to under 50 psf"),
+    (70.0, "50 to under 70 psf"),
+    (100.0, "70 to under 100 psf"),
+    (math.inf, "100 psf and over"),
+)
+PORTFOLIO_BAND_COLOURS = (
+    "#eef7f6",
+    "#a3d6d3",
+    "#76bdc9",
+    "#4f9cbd",
+    "#3b78a8",
+    "#34548f",
+    "#2c3470",
+)
+
+
+def esc(value: object) -> str:
+    """HTML-escape any value (None -> empty), quotes included."""
+    return "" if value is None else escape(str(value), quote=True)
+
+
+def num(x: object, digits: int = 1) -> str:
+    """A number for people: trailing zeros dropped; None/NaN -> an em dash."""
+    try:
+        v = float(x)  # type: ignore[arg-type]
+    except (TypeError, ValueError):
+        return "\u2014"
+    if not math.isfinite(v):
+        return "\u2014"
+    text = f"{v:.{digits}f}"
+    return text.rstrip("0").rstrip(".") if "." in text else text
+
+
+def load_text(load: dict | None, first: str = "psf") -> str:
+    """``{"psf": x, "kPa": y}`` -> ``"x psf (y kPa)"``; None -> ``"none"``."""
+    if not load:
+        return "none"
+    other = "kPa" if first == "psf" else "psf"
+    return f"{num(load.get(first), 1 if first == 'psf' else 2)} {first} ({num(load.get(other), 2 if other == 'kPa' else 1)} {other})"
+
+
+def length_text(length: dict | None) -> str:
+    """``{"ft": x, "m": y}`` -> ``"x ft (y m)"``; None -> ``"none"``."""
+    if not length:
+        return "none"
+    return f"{num(length.get('ft'), 1)} ft ({num(length.get('m'), 2)} m)"
+
+
+def _nice_step(span: float, n: int) -> float:
+    raw = span / max(n, 1)
+    if raw <= 0:
+        return 1.0
+    mag = 10 ** math.floor(math.log10(raw))
+    for f in (1, 2, 2.5, 5, 10):
+        if f * mag >= raw:
+            return f * mag
+    return 10 * mag
+
+
+def value_classes(values, max_exact: int = 8) -> list[dict]:
+    """Classes of mapped values for a legend.
+
+    Parameters
+    ----------
+    values : iterable of float
+        Mapped values (NaN and None are ignored) [layer units].
+    max_exact : int
+        Up to this many distinct values get one class each.
+
+    Returns
+    -------
+    list of dict
+        ``{"lo", "hi", "colour", "label"}`` in increasing order; ``lo == hi``
+        for exact classes.
+    """
+    vals = sorted({float(v) for v in values if v is not None and math.isfinite(float(v))})
+    if not vals:
+        return []
+    n_col = len(VALUE_COLOURS)
+    if len(vals) <= max_exact:
+        out = []
+        for i, v in enumerate(vals):
+            k = 0 if len(vals) == 1 else round(i * (n_col - 1) / (len(vals) - 1))
+            out.append({"lo": v, "hi": v, "colour": VALUE_COLOURS[k], "label": num(v, 2)})
+        return out
+    step = _nice_step(vals[-1] - vals[0], 6)
+    start = math.floor(vals[0] / step) * step
+    edges = [start]
+    while edges[-1] <= vals[-1]:
+        edges.append(edges[-1] + step)
+    n = len(edges) - 1
+    out = []
+    for i in range(n):
+        k = 0 if n == 1 else round(i * (n_col - 1) / (n - 1))
+        lo, hi = edges[i], edges[i + 1]
+        out.append(
+            {
+                "lo": lo,
+                "hi": hi,
+                "colour": VALUE_COLOURS[k],
+                "label": f"{num(lo, 2)} to under {num(hi, 2)}",
+            }
+        )
+    return out
+
+
+def colour_for(value, classes: list[dict]) -> str | None:
+    """The legend colour of ``value``; None when it has no finite value."""
+    try:
+        v = float(value)
+    except (TypeError, ValueError):
+        return None
+    if not math.isfinite(v) or not classes:
+        return None
+    for c in classes:
+        if c["lo"] == c["hi"]:
+            if abs(v - c["lo"]) <= 1e-9 * max(1.0, abs(v)):
+                return c["colour"]
+        elif c["lo"] <= v < c["hi"]:
+            return c["colour"]
+    return classes[-1]["colour"] if v >= classes[-1]["lo"] else classes[0]["colour"]
+
+
+def portfolio_band(pg_psf) -> int:
+    """Index into :data:`PORTFOLIO_BANDS_PSF` for a ground load [psf]; -1 for none."""
+    try:
+        v = float(pg_psf)
+    except (TypeError, ValueError):
+        return -1
+    if not math.isfinite(v):
+        return -1
+    for i, (upper, _) in enumerate(PORTFOLIO_BANDS_PSF):
+        if v < upper:
+            return i
+    return len(PORTFOLIO_BANDS_PSF) - 1
+
+
+def short_sha(sha: object, n: int = 12) -> str:
+    """The first ``n`` hex digits of a SHA-256 (empty when unknown)."""
+    return "" if not sha else str(sha)[:n]

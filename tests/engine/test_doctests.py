@@ -1,0 +1,22 @@
+"""Run the doctest examples of the engine's public helpers.
+
+``pytest --doctest-modules`` is not configured for the suite, so the examples
+in the docstrings of engine/units.py and engine/choices.py are run here; a
+broken example fails this test. (regression guard)
+"""
+
+from __future__ import annotations
+
+import doctest
+
+import pytest
+
+import engine.choices
+import engine.units
+
+
+@pytest.mark.parametrize("module", [engine.units, engine.choices], ids=lambda m: m.__name__)
+def test_module_doctests(module):
+    result = doctest.testmod(module, optionflags=doctest.ELLIPSIS, verbose=False)
+    assert result.attempted > 0, f"{module.__name__} has no doctest examples"
+    assert result.failed == 0

@@ -1,0 +1,72 @@
+"""Layer loading and views (geo.layers), formats and the demo stack."""
+
+from __future__ import annotations
+
+import hashlib
+
+import pytest
+
+from engine.errors import LayerError
+from geo.layers import demo_dem_path, demo_layers, load_layer
+
+from .conftest import FIXTURE_META, centre, fixture_rows, toml_text, write_layer
+
+VIEW_COLUMNS = ["zone_id", "rule", "pg", "pg_psf", "elev_max", "note", "source", "study",
+                "geometry"]  # fmt: skip
+
+
+@pytest.mark.parametrize("suffix", [".gpkg", ".geojson", ".shp", ".fgb"])
+def test_every_vector_format_reads(tmp_path, suffix):
+    path = write_layer(tmp_path / f"z{suffix}", fixture_rows())
+    layer = load_layer(path)
+    assert len(layer.zones) == 6 and not layer.is_raster and layer.zones.problems == []
+    from geo.resolve import resolve_points
+
+    r = resolve_points([centre(0, 0)[0]], [centre(0, 0)[1]], layers=[layer]).iloc[0]
+    assert r["pg_psf"] == 20.0
+
+
+def test_sha256_is_of_the_file(grid_layer):
+    layer = load_layer(grid_layer)
+    assert layer.sha256 == hashlib.sha256(grid_layer.read_bytes()).hexdigest()
+
+
+def test_view_contract(grid_layer):
+    v = load_layer(grid_layer).view()
+    assert set(v) == {"name", "meta", "sha256", "demo", "value_units", "zones"}
+    z = v["zones"]
+    assert list(z.columns) == VIEW_COLUMNS and z.crs.to_epsg() == 4326 and len(z) == 6
+    assert z.set_index("zone_id").loc["Z3", "study"]
+    assert z.set_index("zone_id")["pg"].isna().sum() == 3  # study, table, formula
+    near = load_layer(grid_layer).view(center=centre(0, 0), radius_m=300)["zones"]
+    assert set(near["zone_id"]) == {"Z1"}
+
+
+def test_missing_layer_and_sidecar(tmp_path):
+    with pytest.raises(LayerError, match="not found"):
+        load_layer(tmp_path / "none.gpkg")
+    p = write_layer(tmp_path / "a.gpkg", fixture_rows())
+    (tmp_path / "a.gpkg.toml").unlink()
+    with pytest.raises(LayerError, match="no sidecar"):
+        load_layer(p)
+
+
+def test_unreadable_layer(tmp_path):
+    p = tmp_path / "junk.gpkg"
+    p.write_text("not a geopackage")
+    (tmp_path / "junk.gpkg.toml").write_text(toml_text(FIXTURE_META))
+    with pytest.raises(LayerError, match="cannot be read"):
+        load_layer(p)
+
+
+def test_demo_stack_is_marked_and_complete():
+    layers = demo_layers()
+    assert len(layers) == 2 and all(layer.demo and layer.meta["demo"] for layer in layers)
+    base = layers[1]
+    assert set(base.zones.rule_names()) == {"fixed", "study", "elevation_table", "formula"}
+    assert (base.zones.rule_names() == "study").sum() >= 2
+    assert (~__import__("numpy").isnan(base.zones.elev_max)).any()
+    assert (~__import__("numpy").isnan(base.zones.pg_min)).any()
+    assert "Z" in base.zones.columns
+    assert base.crs.to_epsg() == 32607  # stored projected on purpose
+    assert demo_dem_path().is_file()
