@@ -41,10 +41,10 @@ CAUTIONS = [
 _NOT_WITH = {
     "balanced": "",
     "minimum": "drift, sliding, unbalanced, partial, rain-on-snow",
-    "unbalanced": "minimum, rain-on-snow",
-    "drift": "minimum, rain-on-snow",
+    "unbalanced": "minimum, rain-on-snow, sliding",
+    "drift": "minimum, rain-on-snow, sliding",
     "sliding": "minimum, rain-on-snow, drift, unbalanced, partial",
-    "partial": "minimum, rain-on-snow",
+    "partial": "minimum, rain-on-snow, sliding",
     "ice_dam": "all other snow cases (dead load only)",
 }
 
@@ -131,7 +131,8 @@ def uniform_loads(pg, roof: Roof) -> dict[str, np.ndarray]:
     Parameters
     ----------
     pg : array_like
-        Ground snow loads [psf]; NaN stays NaN.
+        Ground snow loads [psf]; NaN stays NaN, and a negative value gives
+        NaN (no result) rather than stopping a batch.
     roof : Roof
         One roof for all of them.
 
@@ -143,6 +144,7 @@ def uniform_loads(pg, roof: Roof) -> dict[str, np.ndarray]:
         (the larger of balanced plus rain-on-snow and pm) [psf].
     """
     pg = np.asarray(pg, dtype=float)
+    pg = np.where(pg >= 0, pg, np.nan)  # a negative ground load has no result
     factors, _, pf, cs, ps, pm, ros, _ = _uniform(pg, roof, None)
     ros = np.where(np.isnan(pg), np.nan, ros)
     pm_arr = np.full_like(pg, np.nan) if pm is None else np.where(np.isnan(pg), np.nan, pm)

@@ -44,7 +44,11 @@ def _terminate(signum, frame):  # pragma: no cover - exercised through a subproc
     type=click.Path(dir_okay=False),
     help="Zone layer (repeat, most local first). Default: the embedded demo layer.",
 )
-@click.option("--dem", type=click.Path(dir_okay=False), help="Elevation raster (GeoTIFF).")
+@click.option(
+    "--dem",
+    type=click.Path(dir_okay=False),
+    help="Elevation raster (GeoTIFF); 'demo' = the embedded demo DEM.",
+)
 @click.option(
     "--dem-units",
     type=click.Choice(["m", "ft"], case_sensitive=False),
@@ -163,6 +167,21 @@ def screen(sites, output, layers, dem, dem_units, map_path, engine, scheduler, s
         click.echo(f"map: {map_path}")
 
 
+def map_frame(results):
+    """The results as the portfolio map reads them: ``lat``/``lon`` are the coordinates used."""
+    view = results.copy(deep=False)
+    for col in ("lat", "lon", "site_id"):
+        if col in view.columns:
+            view = view.rename(columns={col: f"input_{col}"})
+    view["lat"] = results["site_lat"]
+    view["lon"] = results["site_lon"]
+    if "site_id" in results.columns:
+        view["site_id"] = results["site_id"].astype(str)
+    else:  # row numbers as in the site file (1 = first data row)
+        view["site_id"] = [f"row {i + 1}" for i in range(len(results))]
+    return view
+
+
 def _write_map(run, map_path: str, overwrite: bool) -> None:
     try:
         from maps.portfolio import write_portfolio_map
@@ -171,4 +190,4 @@ def _write_map(run, map_path: str, overwrite: bool) -> None:
     from geo.outputs import atomic_path
 
     with atomic_path(map_path, overwrite=overwrite) as tmp:
-        write_portfolio_map(run.results, tmp, demo=bool(run.summary.get("demo")))
+        write_portfolio_map(map_frame(run.results), tmp, demo=bool(run.summary.get("demo")))

@@ -1,4 +1,4 @@
-"""Writing screening results: CSV, XLSX (with a summary sheet), GeoPackage, Parquet.
+"""Writing screening results (CSV, XLSX with a summary sheet, GeoPackage, Parquet) and the summary.
 
 Every writer is atomic: the table goes to a temporary file in the target's
 folder, which is renamed over the target only once it is complete, so an
@@ -10,7 +10,11 @@ from __future__ import annotations
 
 import os
 import tempfile
-from collections.abc import Callable, Iterator
+from collections.abc import (
+    Callable,
+    Iterator,
+    Mapping,  # noqa: F401
+)
 from contextlib import contextmanager
 from pathlib import Path
 
@@ -18,6 +22,7 @@ import numpy as np
 import pandas as pd
 
 from engine.errors import InputError
+from engine.units import KPA_PER_PSF
 
 #: accepted result suffixes -> format name
 RESULT_FORMATS = {
@@ -28,6 +33,15 @@ RESULT_FORMATS = {
 }
 #: the most data rows an XLSX sheet holds (one row is the header)
 XLSX_MAX_ROWS = 1_048_575
+#: every status a screened row can have
+STATUSES = ("ok", "provisional", "study_required", "no_data", "error")
+#: statuses whose ground value feeds the roof engine
+ROOF_STATUSES = ("ok", "provisional")
+CAUTIONS = (
+    "neve is an aid to, not a substitute for, the judgement of a licensed design professional.",
+    "Confirm every ground snow load with the authority having jurisdiction and its local amendments.",
+    "Sites flagged for a study need a site-specific case study by a qualified professional.",
+)
 #: columns that hold the coordinates used for each site [deg, WGS 84]
 LAT_COLUMN, LON_COLUMN = "site_lat", "site_lon"
 
@@ -214,3 +228,73 @@ def write_results(
         if _writer_hook is not None:  # tests: simulate an interruption after writing
             _writer_hook(tmp)
     return target
+
+
+def summarize(results: pd.DataFrame, layers=(), *, engine="local", seconds=None) -> dict:
+    """Counts by status and by flag, the range of pg, the layers used and the cautions."""
+    status_counts = results["status"].value_counts()
+    statuses = {s: int(status_counts.get(s, 0)) for s in STATUSES}
+    for s, c in status_counts.items():
+        statuses.setdefault(str(s), int(c))
+    combos = results["flags"].value_counts()  # few distinct combinations, counted once
+    counter: dict[str, int] = {}
+    for combo, count in combos.items():
+        for flag in str(combo).split(";") if isinstance(combo, str) else ():
+            if flag:
+                counter[flag] = counter.get(flag, 0) + int(count)
+    flags = dict(sorted(counter.items()))
+    valued = results.loc[results["status"].isin(ROOF_STATUSES), "pg_psf"].dropna()
+    pg = None
+    if len(valued):
+        pg = {"min": float(valued.min()), "max": float(valued.max())}
+    layer_info = []
+    for layer in layers:
+        info = layer.info() if hasattr(layer, "info") else {}
+        layer_info.append(
+            {
+                "name": info.get("name") or str(getattr(layer, "path", "")),
+                "sha256": info.get("sha256", getattr(layer, "sha256", None)),
+                "source": info.get("source"),
+                "demo": bool(getattr(layer, "demo", False)),
+            }
+        )
+    return {
+        "rows": int(len(results)),
+        "status": statuses,
+        "flags": {str(k): int(v) for k, v in flags.items() if k},
+        "pg_psf": pg,
+        "layers": layer_info,
+        "demo": any(info["demo"] for info in layer_info),
+        "engine": engine,
+        "seconds": None if seconds is None else round(float(seconds), 3),
+        "cautions": list(CAUTIONS),
+    }
+
+
+def format_summary(summary: dict) -> str:
+    """The printed summary of a screening run."""
+    lines = []
+    if summary.get("demo"):
+        lines.append("DEMO DATA: the zone layer is invented; never use these results for design.")
+    lines.append(f"sites: {summary['rows']:,}")
+    width = max(len(s) for s in summary["status"]) if summary["status"] else 0
+    for s, c in summary["status"].items():
+        lines.append(f"  {s:<{width}}  {c:>10,}")
+    if summary["flags"]:
+        lines.append("flags:")
+        fw = max(len(f) for f in summary["flags"])
+        for f, c in summary["flags"].items():
+            lines.append(f"  {f:<{fw}}  {c:>10,}")
+    pg = summary.get("pg_psf")
+    if pg:
+        lines.append(
+            f"pg range: {pg['min']:.1f} to {pg['max']:.1f} psf "
+            f"({pg['min'] * KPA_PER_PSF:.2f} to {pg['max'] * KPA_PER_PSF:.2f} kPa)"
+        )
+    else:
+        lines.append("pg range: no site has a usable ground snow load")
+    for layer in summary.get("layers", []):
+        sha = (layer.get("sha256") or "")[:12]
+        lines.append(f"layer: {layer['name']}" + (f" (sha256 {sha}...)" if sha else ""))
+    lines.extend(f"caution: {c}" for c in summary.get("cautions", []))
+    return "\n".join(lines)

@@ -28,7 +28,15 @@ import pandas as pd
 from engine.errors import InputError
 from engine.roof_spec import Roof
 from engine.units import KPA_PER_PSF, M_PER_FT
-from geo.outputs import LAT_COLUMN, LON_COLUMN
+from geo.outputs import (  # noqa: F401  (summary names re-exported)
+    CAUTIONS,
+    LAT_COLUMN,
+    LON_COLUMN,
+    ROOF_STATUSES,
+    STATUSES,
+    format_summary,
+    summarize,
+)
 from geo.sitefile import SiteArrays, load_sites
 
 #: the result columns neve adds (before the roof columns), in order
@@ -49,18 +57,9 @@ RESULT_COLUMNS = (
 )
 #: roof loads added per row (each as ``<name>_psf`` and ``<name>_kpa``)
 ROOF_LOADS = ("pf", "ps", "pm", "rain_on_snow", "design_uniform")
-#: statuses whose ground value feeds the roof engine
-ROOF_STATUSES = ("ok", "provisional")
-STATUSES = ("ok", "provisional", "study_required", "no_data", "error")
 #: sites resolved per call of the resolver (bounds memory, paces the progress bar)
 CHUNK_SIZE = 262_144
 ENGINES = ("local", "dask")
-
-CAUTIONS = (
-    "neve is an aid to, not a substitute for, the judgement of a licensed design professional.",
-    "Confirm every ground snow load with the authority having jurisdiction and its local amendments.",
-    "Sites flagged for a study need a site-specific case study by a qualified professional.",
-)
 
 
 @dataclass
@@ -190,17 +189,31 @@ def run_screen(
     from engine.choices import choose_key
 
     t0 = time.perf_counter()
+    timings: dict[str, float] = {}
+
+    def lap(name: str) -> None:
+        timings[name] = round(time.perf_counter() - t0 - sum(timings.values()), 3)
+
     engine = choose_key("engine", engine, ENGINES)
+    if dem is not None and str(dem) == "demo" and not Path("demo").exists():
+        from geo.layers import demo_dem_path
+
+        dem = demo_dem_path()  # the embedded synthetic DEM, as for `neve site --dem demo`
+    if dem is not None and not Path(dem).is_file():
+        raise InputError("dem", f"file {str(dem)!r} not found", "a GeoTIFF path, or 'demo'")
     layer_list = _layers(layers)
     roofs = _roofs(roof)
+    lap("layers")
     site = load_sites(sites)
     _profile_errors(site, roofs)
+    lap("read")
     if site.address is not None and (site.address != "").any():
         from geo.sitefile import geocode_rows, make_geocoder
 
         if geocoder is None:
             geocoder = make_geocoder(gazetteer, geocoder_url)
         geocode_rows(site, geocoder, progress=progress)
+        lap("geocode")
     valid = (site.error == "") & np.isfinite(site.lat) & np.isfinite(site.lon)
     idx = np.flatnonzero(valid)
     elev = site.elevation_ft[idx]
@@ -217,15 +230,19 @@ def run_screen(
             elev_arg,
             scheduler=scheduler,
             partitions=partitions,
+            staging=staging,
             **kwargs,
         )
     else:
         resolved = resolve_local(site.lat[idx], site.lon[idx], elev_arg, **kwargs)
+    lap("resolve")
     out = _assemble(site, idx, resolved)
     if roofs is not None:
         _add_roof(out, site, roofs)
     results = _join_input(site.frame, out)
+    lap("roof_and_assemble")
     summary = summarize(results, layer_list, engine=engine, seconds=time.perf_counter() - t0)
+    summary["timings_s"] = timings
     geometry = getattr(site, "geometry", None)
     return ScreenRun(results, summary, geometry, layer_list)
 
@@ -241,7 +258,8 @@ def screen(sites, *, layers=None, dem=None, dem_units=None, roof=None, engine="l
     layers : list of Layer or paths, optional
         Zone layers, most local first; the embedded demo layer when omitted.
     dem : str or Path, optional
-        Elevation raster sampled where a row gives no elevation.
+        Elevation raster sampled where a row gives no elevation (``"demo"``:
+        the embedded synthetic demo DEM).
     dem_units : {"m", "ft"}, optional
         Units of the DEM's values when its metadata does not say.
     roof : Roof, mapping, or ROOF.toml path, optional
@@ -368,73 +386,3 @@ def _join_input(frame: pd.DataFrame, out: dict) -> pd.DataFrame:
     renamed = {c: f"input_{c}" for c in frame.columns if c in taken}
     left = frame.rename(columns=renamed) if renamed else frame
     return pd.concat([left, added], axis=1)
-
-
-def summarize(results: pd.DataFrame, layers=(), *, engine="local", seconds=None) -> dict:
-    """Counts by status and by flag, the range of pg, the layers used and the cautions."""
-    status_counts = results["status"].value_counts()
-    statuses = {s: int(status_counts.get(s, 0)) for s in STATUSES}
-    for s, c in status_counts.items():
-        statuses.setdefault(str(s), int(c))
-    combos = results["flags"].value_counts()  # few distinct combinations, counted once
-    counter: dict[str, int] = {}
-    for combo, count in combos.items():
-        for flag in str(combo).split(";") if isinstance(combo, str) else ():
-            if flag:
-                counter[flag] = counter.get(flag, 0) + int(count)
-    flags = dict(sorted(counter.items()))
-    valued = results.loc[results["status"].isin(ROOF_STATUSES), "pg_psf"].dropna()
-    pg = None
-    if len(valued):
-        pg = {"min": float(valued.min()), "max": float(valued.max())}
-    layer_info = []
-    for layer in layers:
-        info = layer.info() if hasattr(layer, "info") else {}
-        layer_info.append(
-            {
-                "name": info.get("name") or str(getattr(layer, "path", "")),
-                "sha256": info.get("sha256", getattr(layer, "sha256", None)),
-                "source": info.get("source"),
-                "demo": bool(getattr(layer, "demo", False)),
-            }
-        )
-    return {
-        "rows": int(len(results)),
-        "status": statuses,
-        "flags": {str(k): int(v) for k, v in flags.items() if k},
-        "pg_psf": pg,
-        "layers": layer_info,
-        "demo": any(info["demo"] for info in layer_info),
-        "engine": engine,
-        "seconds": None if seconds is None else round(float(seconds), 3),
-        "cautions": list(CAUTIONS),
-    }
-
-
-def format_summary(summary: dict) -> str:
-    """The printed summary of a screening run."""
-    lines = []
-    if summary.get("demo"):
-        lines.append("DEMO DATA: the zone layer is invented; never use these results for design.")
-    lines.append(f"sites: {summary['rows']:,}")
-    width = max(len(s) for s in summary["status"]) if summary["status"] else 0
-    for s, c in summary["status"].items():
-        lines.append(f"  {s:<{width}}  {c:>10,}")
-    if summary["flags"]:
-        lines.append("flags:")
-        fw = max(len(f) for f in summary["flags"])
-        for f, c in summary["flags"].items():
-            lines.append(f"  {f:<{fw}}  {c:>10,}")
-    pg = summary.get("pg_psf")
-    if pg:
-        lines.append(
-            f"pg range: {pg['min']:.1f} to {pg['max']:.1f} psf "
-            f"({pg['min'] * KPA_PER_PSF:.2f} to {pg['max'] * KPA_PER_PSF:.2f} kPa)"
-        )
-    else:
-        lines.append("pg range: no site has a usable ground snow load")
-    for layer in summary.get("layers", []):
-        sha = (layer.get("sha256") or "")[:12]
-        lines.append(f"layer: {layer['name']}" + (f" (sha256 {sha}...)" if sha else ""))
-    lines.extend(f"caution: {c}" for c in summary.get("cautions", []))
-    return "\n".join(lines)

@@ -224,9 +224,17 @@ def _numbers(series: pd.Series, name: str) -> tuple[np.ndarray, np.ndarray]:
 
 
 def _merge(err: np.ndarray, new: np.ndarray) -> None:
-    """Keep the first error of each row."""
-    take = (err == "") & (new != "")
-    err[take] = new[take]
+    """Keep the first error of each row (``new`` is an object array, "" where fine)."""
+    take = new != ""
+    if take.any():
+        take &= err == ""
+        err[take] = new[take]
+
+
+def _merge_mask(err: np.ndarray, mask: np.ndarray, text: str) -> None:
+    """Set ``text`` as the error of the rows in ``mask`` that have none yet."""
+    if mask.any():
+        err[mask & (err == "")] = text
 
 
 def parse_elevation_cells(series: pd.Series, unit: str | None, name: str):
@@ -362,14 +370,14 @@ def parse_sites(frame: pd.DataFrame, geometry=None) -> SiteArrays:
         source = "address"
         lat = np.full(n, np.nan)
         lon = np.full(n, np.nan)
-        _merge(err, np.where(address == "", f"{cols['address']}: missing", ""))
+        _merge_mask(err, address == "", f"{cols['address']}: missing")
     with np.errstate(invalid="ignore"):
         bad_lat = ~np.isnan(lat) & (np.abs(lat) > 90.0)
         bad_lon = ~np.isnan(lon) & (np.abs(lon) > 180.0)
     lat_name = cols["lat"] or "latitude"
     lon_name = cols["lon"] or "longitude"
-    _merge(err, np.where(bad_lat, f"{lat_name}: out of range; accepted: -90 to 90 degrees", ""))
-    _merge(err, np.where(bad_lon, f"{lon_name}: out of range; accepted: -180 to 180 degrees", ""))
+    _merge_mask(err, bad_lat, f"{lat_name}: out of range; accepted: -90 to 90 degrees")
+    _merge_mask(err, bad_lon, f"{lon_name}: out of range; accepted: -180 to 180 degrees")
     elevation = np.full(n, np.nan)
     if cols["elevation"] is not None:
         name = str(cols["elevation"])
@@ -386,8 +394,9 @@ def parse_sites(frame: pd.DataFrame, geometry=None) -> SiteArrays:
         ids = frame[cols["site_id"]]
         named = ids.notna() & (ids.astype(str).str.strip() != "")
         duplicate = (ids.duplicated(keep=False) & named).to_numpy()
-    lat = np.where(err == "", lat, np.nan)
-    lon = np.where(err == "", lon, np.nan)
+    fine = err == ""
+    lat = np.where(fine, lat, np.nan)
+    lon = np.where(fine, lon, np.nan)
     return SiteArrays(
         frame=frame,
         lat=lat,

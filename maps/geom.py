@@ -142,6 +142,9 @@ def zones_near(zones, lat: float, lon: float, radius_m: float, keep_ids=()):
     near = near[(near["distance_m"] <= radius_m) | near["zone_id"].astype(str).isin(keep)]
     minx, miny, maxx, maxy = window.iloc[0].bounds
     clip = gpd.GeoSeries([box(minx, miny, maxx, maxy)], crs=crs).to_crs(4326).iloc[0]
-    near["geometry"] = near.geometry.intersection(clip)
+    clipped = near.geometry.intersection(clip)
+    kept = near["zone_id"].astype(str).isin(keep).to_numpy()
+    # a zone asked for by id stays whole when it lies outside the window
+    near["geometry"] = clipped.where(~(clipped.is_empty.to_numpy() & kept), near.geometry)
     near = near[~near.geometry.is_empty]
     return near

@@ -201,7 +201,7 @@ def write_site_map(
     units = "psf"
     layer_groups = []
     g_index = governing_index(site_json, views)
-    order = [g_index] + [i for i in range(len(views or [])) if i != g_index]
+    order = [g_index] + [i for i in range(len(views)) if i != g_index] if views else []
     for i in order:
         view = views[i]
         zones = check_zones(view)

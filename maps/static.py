@@ -78,6 +78,20 @@ def _north_arrow(ax, x: float, y: float, size: float, angle_deg: float = 0.0) ->
     ax.text(tx, ty, "N", ha="center", va="center", fontsize=11, fontweight="bold", zorder=7)
 
 
+def true_north_angle(lat: float, lon: float, crs) -> float:
+    """Angle of true north from grid north at the site, counter-clockwise [degrees].
+
+    Found numerically with pyproj by projecting a point a little north of the
+    site; for a transverse Mercator grid it is the meridian convergence.
+    """
+    from pyproj import Transformer
+
+    t = Transformer.from_crs(4326, crs, always_xy=True)
+    x0, y0 = t.transform(lon, lat)
+    x1, y1 = t.transform(lon, min(lat + 0.01, 89.999))
+    return math.degrees(math.atan2(-(x1 - x0), y1 - y0))
+
+
 def write_static_map(
     site_json: dict,
     views: list[dict],
@@ -111,7 +125,6 @@ def write_static_map(
     import matplotlib.pyplot as plt
     from matplotlib.lines import Line2D
     from matplotlib.patches import Patch
-    from pyproj import Transformer
     from shapely.geometry import Point
 
     lat, lon = site_lat_lon(site_json)
@@ -195,10 +208,7 @@ def write_static_map(
     ax.set_yticks([])
     ax.set_facecolor("#f4f2ec")
     _scale_bar(ax, x0 + 0.04 * 2 * WINDOW_M, y0 + 0.045 * 2 * WINDOW_M, 2 * WINDOW_M)
-    # grid north differs from true north by the meridian convergence: point to true north
-    t = Transformer.from_crs(4326, crs, always_xy=True)
-    nx, ny = t.transform(lon, lat + 0.01)
-    angle = math.degrees(math.atan2(-(nx - site_xy.x), ny - site_xy.y))
+    angle = true_north_angle(lat, lon, crs)
     _north_arrow(
         ax, site_xy.x + 0.86 * WINDOW_M, site_xy.y + 0.72 * WINDOW_M, 0.11 * WINDOW_M, angle
     )
@@ -220,7 +230,9 @@ def write_static_map(
         if path is None:
             continue
         buf = io.BytesIO()
-        fig.savefig(buf, format=fmt, metadata={"Date": None} if fmt == "svg" else None)
+        # SVG keeps its text as text, so it can be searched and edited
+        with matplotlib.rc_context({"svg.fonttype": "none"}):
+            fig.savefig(buf, format=fmt, metadata={"Date": None} if fmt == "svg" else None)
         written.append(atomic_write_bytes(path, buf.getvalue()))
     plt.close(fig)
     return written

@@ -64,7 +64,8 @@ def drift_height(pg, lu, log: StepLog | None = None, symbol: str = "hd", what: s
     """Drift height hd from the upwind fetch lu [ft].
 
     ``hd = 0.43 lu^(1/3) (pg + 10)^(1/4) - 1.5`` with lu not taken below
-    20 ft, and hd not below zero.
+    20 ft, and hd not below zero; hd is zero where pg is zero (no snow to
+    drift; a reading, the figure starts at pg > 0).
 
     References
     ----------
@@ -73,6 +74,9 @@ def drift_height(pg, lu, log: StepLog | None = None, symbol: str = "hd", what: s
     lu_used = np.maximum(np.asarray(lu, dtype=float), MIN_FETCH)
     pg = np.asarray(pg, dtype=float)
     hd = np.maximum(0.43 * np.cbrt(lu_used) * (pg + 10.0) ** 0.25 - 1.5, 0.0)
+    # Reading: with no ground snow there is no snow to drift; the fitted
+    # relation would otherwise still give about 2 ft at pg = 0.
+    hd = np.where(pg > 0, hd, 0.0)
     if log is not None:
         log.add(
             symbol,
@@ -208,7 +212,9 @@ def step_drift(pg, ps_lower, step, log: StepLog | None = None) -> dict:
     edge, not reduced to zero there.  For a separate adjacent structure
     (separation s > 0), drifts are required only where s < 20 ft and
     s < 6 h; the leeward drift height is then the lesser of hd and
-    (6h - s)/6 and its width the lesser of 6 hd and 6h - s (Sec. 7.7.2).
+    (6h - s)/6 and its width the lesser of 6 hd and 6h - s (Sec. 7.7.2);
+    neve also keeps that height at or below hc (the Sec. 7.7.1 limit), and
+    compares it with the windward drift, the larger governing.
     For the windward drift beside an adjacent structure Sec. 7.7.2 sends
     the designer to Sec. 7.7.1 and permits truncation; neve does not
     truncate it (conservative) and says so.
@@ -254,31 +260,34 @@ def step_drift(pg, ps_lower, step, log: StepLog | None = None) -> dict:
             "ft",
             f"{STANDARD} Sec. 7.7.1, Fig. 7.6-1",
         )
-    governs = "leeward" if hd_lee >= hd_wind else "windward"
-    if s > 0 and governs == "leeward":
+    if s > 0:
         ref2 = f"{STANDARD} Sec. 7.7.2"
-        hd_adj = min(hd_lee, (6.0 * h - s) / 6.0)
-        w = min(6.0 * hd_adj, 6.0 * h - s)
+        hd_adj = min(hd_lee, (6.0 * h - s) / 6.0, hc)
+        w_lee = min(6.0 * hd_adj, 6.0 * h - s)
         if log is not None:
             log.add(
-                "hd",
-                "leeward drift height beside an adjacent structure",
-                "hd = min(hd, (6h - s)/6)",
-                f"hd = min({fmt(hd_lee)}, (6 x {fmt(h)} - {fmt(s)})/6)",
+                "hd_leeward_adj",
+                "leeward drift height beside an adjacent structure (not above hc)",
+                "hd = min(hd, (6h - s)/6, hc)",
+                f"hd = min({fmt(hd_lee)}, (6 x {fmt(h)} - {fmt(s)})/6, {fmt(hc)})",
                 hd_adj,
                 "ft",
                 ref2,
             )
+        hd_lee = hd_adj
+    governs = "leeward" if hd_lee >= hd_wind else "windward"
+    if s > 0 and governs == "leeward":
+        hd_used, w = hd_lee, w_lee
+        if log is not None:
             log.add(
                 "w",
                 "leeward drift width beside an adjacent structure",
                 "w = min(6 hd, 6h - s)",
-                f"w = min(6 x {fmt(hd_adj)}, 6 x {fmt(h)} - {fmt(s)})",
+                f"w = min(6 x {fmt(hd_used)}, 6 x {fmt(h)} - {fmt(s)})",
                 w,
                 "ft",
                 ref2,
             )
-        hd_used = hd_adj
     else:
         hd_gov = max(hd_lee, hd_wind)
         hd_used, w = (float(x) for x in drift_shape(hd_gov, hc))

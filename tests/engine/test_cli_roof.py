@@ -325,3 +325,14 @@ def test_readme_example_roof_file_by_hand():
     (ice,) = [c for c in out["cases"] if c["case"] == "ice_dam"]
     # Sec. 7.4.5: unventilated R = 25 < 30 -> 2 x 24.5613 = 49.1225 psf
     assert ice["load"]["psf"] == pytest.approx(49.1225, abs=2e-3)
+
+
+def test_help_lists_the_design_card_options():
+    # DESIGN.md "CLI contract": the roof option names, exactly
+    r = invoke("--help")
+    assert r.exit_code == 0
+    for name in ("--pg", "--roof", "--shape", "--slope", "--surface", "--ct", "--thermal",
+                 "--ce", "--terrain", "--exposure", "--risk", "--eave-to-ridge", "--r-value",
+                 "--ventilated", "--unventilated", "--unobstructed", "--obstructed",
+                 "--format"):  # fmt: skip
+        assert name in r.output, name

@@ -106,10 +106,6 @@ def test_sliding_not_combined_with_other_cases():
         assert other in sl["not_combined_with"]
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="engine disagrees: drift case does not list sliding among cases it is not combined with",
-)
 def test_drift_not_combined_with_sliding():
     # ASCE 7-16 Sec. 7.9 (from memory): sliding need not be combined with drift, so the
     # relation holds both ways; the drift case should say so as the sliding case does
@@ -169,10 +165,6 @@ def test_analyze_roof_refuses_bad_pg(pg):
     assert info.value.field == "pg"
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="engine disagrees: uniform_loads turns a negative pg into a negative design load",
-)
 def test_uniform_loads_gives_no_negative_load_for_negative_pg():
     # common practice: a negative ground load is bad input; for a batch it should come back
     # as NaN (or an InputError naming pg), never as a negative design load (-3.5 psf here)

@@ -23,6 +23,7 @@ from tests.engine.helpers import cases, run, skipped
         (False, 20.0, True),  # unventilated, R < 30
         (False, 30.0, False),  # unventilated, R = 30 is not below 30
         (True, 19.0, True),  # ventilated, R < 20
+        (True, 20.0, False),  # ventilated, R = 20 is not below 20
         (True, 25.0, False),  # ventilated, R >= 20
     ],
 )

@@ -112,10 +112,6 @@ def test_wide_roof_never_uses_the_narrow_case():
     assert [c["method"] for c in cases(out, "unbalanced")] == ["general"]
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="engine disagrees: at pg = 0 the general case still has a surcharge from (pg + 10)^(1/4)",
-)
 def test_no_unbalanced_surcharge_where_ground_snow_load_is_zero():
     # common practice: no ground snow, no unbalanced snow. Fig. 7.6-1 alone would give
     # hd = 0.43 x 40^(1/3) x 10^(1/4) - 1.5 = 0.9151 ft and a surcharge of

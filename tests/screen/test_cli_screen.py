@@ -238,3 +238,101 @@ def test_sigint_is_exit_not_traceback(tmp_path, grid_layer):
     if p.returncode != 0:
         assert p.returncode in (1, 130, -2), err
     assert not [f for f in tmp_path.iterdir() if ".part" in f.name]
+
+
+def test_portfolio_map_written_beside_results(tmp_path, sites_csv, grid_layer):
+    pytest.importorskip("maps.portfolio")
+    out, html = tmp_path / "r.csv", tmp_path / "portfolio.html"
+    r = _run(sites_csv, "-o", out, "--layer", grid_layer, "--map", html)
+    assert r.exit_code == 0, r.output
+    text = html.read_text(encoding="utf-8")
+    assert "S000" in text and "S039" in text  # every site id reaches the map's data
+    assert f"map: {html}" in r.output
+    assert not [f for f in tmp_path.iterdir() if ".part" in f.name]
+
+
+def test_map_frame_uses_coordinates_of_address_rows():
+    from geo.cli_screen import map_frame
+
+    res = pd.DataFrame(
+        {"address": ["x"], "site_lat": [45.5], "site_lon": [-109.5], "status": ["ok"]}
+    )
+    view = map_frame(res)
+    assert view["lat"][0] == 45.5 and view["lon"][0] == -109.5 and view["site_id"][0] == "row 1"
+
+
+def test_address_rows_with_a_gazetteer(tmp_path, grid_layer):
+    gaz = tmp_path / "gaz.csv"
+    gaz.write_text(
+        "address,lat,lon\n1 Harbour Rd,45.5,-109.5\n2 Mill Ln,44.5,-108.5\n"
+        "3 Twin St,44.5,-109.5\n3 Twin St,45.5,-108.5\n",
+        encoding="utf-8",
+    )
+    sites = tmp_path / "s.csv"
+    sites.write_text(
+        "site_id,address\nA,1 Harbour Rd\nB,2 mill ln.\nC,9 Nowhere\nD,3 Twin St\nE,\n",
+        encoding="utf-8",
+    )
+    out = tmp_path / "r.csv"
+    r = _run(sites, "-o", out, "--layer", grid_layer, "--gazetteer", gaz)
+    assert r.exit_code == 0, r.output
+    res = pd.read_csv(out)
+    assert list(res["site_id"]) == ["A", "B", "C", "D", "E"]
+    assert res["zone_id"][0] == "NW" and res["site_lat"][0] == 45.5
+    assert res["zone_id"][1] == "SE" and res["pg_psf"][1] == 40.0  # normalised spelling matched
+    assert res["status"][2] == "error" and "not found" in res["message"][2]
+    assert res["status"][3] == "error" and "matches 2 places" in res["message"][3]
+    assert res["status"][4] == "error" and "address: missing" in res["message"][4]
+
+
+def test_address_rows_without_a_geocoder_exit_2(tmp_path, grid_layer, monkeypatch):
+    monkeypatch.delenv("NEVE_GEOCODER_URL", raising=False)
+    sites = tmp_path / "s.csv"
+    sites.write_text("address\n1 Harbour Rd\n", encoding="utf-8")
+    r = _run(sites, "-o", tmp_path / "r.csv", "--layer", grid_layer)
+    assert r.exit_code == 2
+    assert "--gazetteer" in r.output and "--geocoder-url" in r.output
+
+
+def test_demo_portfolio_on_the_embedded_demo_data(tmp_path):
+    """Invented Skerrow Island portfolio on the embedded demo stack (demo = true)."""
+    from pathlib import Path
+
+    from pyproj import Transformer
+
+    from geo.layers import demo_layers
+
+    base = demo_layers()[-1]
+    x0, y0, x1, y1 = base.frame.total_bounds
+    to_ll = Transformer.from_crs(base.crs, 4326, always_xy=True)
+    rng = np.random.default_rng(3)
+    lon, lat = to_ll.transform(rng.uniform(x0, x1, 60), rng.uniform(y0, y1, 60))
+    profiles = Path(__file__).resolve().parents[2] / "examples" / "profiles.toml"
+    if not profiles.is_file():
+        pytest.skip("examples/profiles.toml is not there")
+    roofs = ["warehouse", "townhouse", "school"]
+    df = pd.DataFrame(
+        {
+            "site_id": [f"SK{i:02d}" for i in range(60)],
+            "lat": lat,
+            "lon": lon,
+            "roof": [roofs[i % 3] for i in range(60)],
+        }
+    )
+    df["lat"] = df["lat"].astype(object)
+    df.loc[7, "lat"] = "n/a"
+    df.loc[8, "roof"] = "greenhouse-shed"
+    sites = tmp_path / "skerrow_sites.csv"
+    df.to_csv(sites, index=False)
+    out = tmp_path / "r.xlsx"
+    r = _run(sites, "-o", out, "--dem", "demo", "--roof", profiles)
+    assert r.exit_code == 0, r.output
+    assert r.output.startswith("DEMO DATA")
+    res = pd.read_excel(out, sheet_name="results")
+    assert list(res["site_id"]) == list(df["site_id"])
+    placed = res["status"] != "error"
+    assert res.loc[placed, "flags"].str.contains("demo_data").all()
+    assert res["status"][7] == "error" and res["status"][8] == "error"
+    assert "unknown profile 'greenhouse-shed'" in res["message"][8]
+    summary = pd.read_excel(out, sheet_name="summary")
+    assert "DEMO" in set(summary["item"])

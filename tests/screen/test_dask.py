@@ -50,16 +50,25 @@ def _same(a: pd.DataFrame, b: pd.DataFrame) -> None:
 
 
 @pytest.mark.parametrize("staged", [False, True])
-def test_dask_matches_local_row_for_row(cluster, portfolio, grid_layer, tmp_path, staged):
+def test_dask_matches_local_row_for_row(
+    cluster, portfolio, grid_layer, tmp_path, staged, monkeypatch
+):
     df, roof = portfolio
     local = screen(df, layers=[grid_layer], roof=roof)
+    import geo.dask_engine as de
+
+    staged_calls = []
+    original_stage = de._stage
+    monkeypatch.setattr(de, "_stage", lambda *a: staged_calls.append(a[1]) or original_stage(*a))
     remote = screen(
         df, layers=[grid_layer], roof=roof, engine="dask", scheduler=cluster.scheduler_address,
         partitions=5, staging=tmp_path if staged else None,
     )  # fmt: skip
     _same(local, remote)
     assert (remote["status"] == "error").sum() == 20
-    if staged:  # the staging folder is cleaned up
+    assert len(staged_calls) == (1 if staged else 0)
+    if staged:  # the workers read the staged partitions, which are then removed
+        assert staged_calls[0].parent == tmp_path
         assert not [p for p in tmp_path.iterdir() if p.name.startswith("neve-dask-")]
 
 

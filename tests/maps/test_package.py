@@ -1,0 +1,137 @@
+"""The calculation package: whole-or-nothing folder, self-contained HTML, PDF pages."""
+
+from __future__ import annotations
+
+import json
+import shutil
+import subprocess
+
+import pytest
+
+from engine.errors import InputError
+from maps import assets, package, style
+from maps.package import write_package
+from tests.maps.conftest import HOSTILE, make_site_json, make_view
+
+RAW_HOSTILE = ("<script>alert", "<img src=x", "onerror=alert(2)>")
+
+
+@pytest.fixture(scope="module")
+def built(tmp_path_factory):
+    root = tmp_path_factory.mktemp("pkg")
+    site = make_site_json(name="Varda depot", project="Fixture project 7")
+    files = write_package(site, [make_view()], root / "package", site_name="Varda depot (east)")
+    return root, files
+
+
+@pytest.fixture(scope="module")
+def hostile(tmp_path_factory):
+    root = tmp_path_factory.mktemp("hostile")
+    site = make_site_json(name=HOSTILE, project=HOSTILE)
+    site["ground"]["layer"]["source"] = HOSTILE
+    files = write_package(site, [make_view(note=HOSTILE, source=HOSTILE)], root / "package")
+    return root, files
+
+
+def test_package_files(built):
+    root, files = built
+    names = {p.name for p in (root / "package").iterdir()}
+    assert {"report.html", "report.pdf", "site.json", "site_map.html", "static_map.png",
+            "static_map.svg", "diagrams"} <= names  # fmt: skip
+    assert all(p.exists() for p in files.values())
+    assert {k for k in files if k.startswith("diagram:")} == {
+        "diagram:unbalanced (wind across ridge)", "diagram:drift at high bay"}  # fmt: skip
+    # nothing but the package next to it: the build folder was renamed into place
+    assert [p.name for p in root.iterdir()] == ["package"]
+
+
+def test_site_json_carries_the_overrides(built):
+    _, files = built
+    data = json.loads(files["site_json"].read_text(encoding="utf-8"))
+    assert data["site"]["name"] == "Varda depot (east)"
+    assert data["site"]["project"] == "Fixture project 7"
+    assert data["ground"]["pg"] == {"psf": 35.0, "kPa": 1.6758}
+
+
+def test_report_html_is_self_contained(built):
+    _, files = built
+    html = files["report_html"].read_text(encoding="utf-8")
+    assert assets.remote_references(html) == []
+    assert "<link rel=\"stylesheet\"" not in html
+    assert html.count("data:image/png;base64,") >= 3  # static map + two diagrams
+    assert 'class="site-map"' in html and "srcdoc=" in html
+    for heading in ("Design criteria", "Ground snow load", "Roof snow load cases", "Summary",
+                    "Cautions", "Provenance of the zone layer"):  # fmt: skip
+        assert heading in html
+    assert "ASCE 7-16 Eq. 7.3-1" in html and "0.7 x 1 x 1.1 x 1 x 35" in html
+    assert "future case" in html  # an unknown case is still reported, generically
+
+
+def _pdf_pages(path):
+    from pypdf import PdfReader
+
+    return [page.extract_text() for page in PdfReader(str(path)).pages]
+
+
+def test_pdf_has_pages_headers_and_the_governing_values(built):
+    _, files = built
+    pages = _pdf_pages(files["report_pdf"])
+    assert len(pages) >= 3
+    for i, text in enumerate(pages, start=1):
+        flat = " ".join(text.split())
+        assert f"Page {i} of {len(pages)}" in flat
+        assert "Fixture project 7" in flat and "Varda depot (east)" in flat  # running header
+    everything = " ".join(" ".join(pages).split())
+    # the governing values as the report prints them (fixture: pg 35 psf, design 26.95 psf)
+    assert style.load_text({"psf": 35.0, "kPa": 1.6758}) in everything
+    assert style.load_text({"psf": 26.95, "kPa": 1.2904}) in everything
+    assert "DEMO DATA" in everything.upper()
+    assert "licensed design professional" in everything
+    assert "authority having jurisdiction" in everything
+
+
+@pytest.mark.skipif(shutil.which("pdftotext") is None, reason="poppler-utils not installed")
+def test_pdf_text_with_poppler(built):
+    _, files = built
+    text = subprocess.run(["pdftotext", "-layout", str(files["report_pdf"]), "-"],
+                          capture_output=True, text=True, check=True).stdout  # fmt: skip
+    assert "35 psf (1.68 kPa)" in text
+    assert "site-specific case study" in text
+
+
+def test_hostile_text_in_the_report(hostile):
+    _, files = hostile
+    html = files["report_html"].read_text(encoding="utf-8")
+    for raw in RAW_HOSTILE:
+        assert raw not in html
+    assert "&lt;script&gt;alert(1)&lt;/script&gt;" in html
+    text = " ".join(" ".join(_pdf_pages(files["report_pdf"])).split())
+    assert "<script>alert(1)</script>" in text  # printed literally in the PDF
+
+
+def test_existing_package_is_not_overwritten_unless_asked(tmp_path):
+    dest = tmp_path / "pkg"
+    dest.mkdir()
+    (dest / "keep.txt").write_text("old")
+    with pytest.raises(InputError, match="package"):
+        write_package(make_site_json(roof=False), [make_view()], dest)
+    assert (dest / "keep.txt").exists()
+    write_package(make_site_json(roof=False), [make_view()], dest, overwrite=True)
+    assert not (dest / "keep.txt").exists() and (dest / "report.pdf").exists()
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["pkg"]
+
+
+def test_failed_build_leaves_nothing(tmp_path, monkeypatch):
+    def broken(*args, **kwargs):
+        raise RuntimeError("disk full (simulated)")
+
+    monkeypatch.setattr(package, "write_static_map", broken)
+    with pytest.raises(RuntimeError, match="simulated"):
+        write_package(make_site_json(), [make_view()], tmp_path / "pkg")
+    assert list(tmp_path.iterdir()) == []
+
+
+def test_a_file_in_the_way_is_an_input_error(tmp_path):
+    (tmp_path / "pkg").write_text("x")
+    with pytest.raises(InputError, match="package"):
+        write_package(make_site_json(), [make_view()], tmp_path / "pkg")
