@@ -44,7 +44,9 @@ def build_layer(args: argparse.Namespace) -> Path:
 
     bounds = gpd.read_file(args.boundaries, engine="pyogrio")
     if args.boundary_key not in bounds.columns:
-        sys.exit(f"boundary file has no column {args.boundary_key!r}; columns: {list(bounds.columns)}")
+        sys.exit(
+            f"boundary file has no column {args.boundary_key!r}; columns: {list(bounds.columns)}"
+        )
     table = pd.read_csv(args.table, dtype={args.csv_key: str})
     if args.csv_key not in table.columns:
         sys.exit(f"table has no column {args.csv_key!r}; columns: {list(table.columns)}")

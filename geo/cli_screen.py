@@ -109,11 +109,11 @@ def screen(sites, output, layers, dem, dem_units, map_path, engine, scheduler, s
     """
     import json
 
-    from geo.outputs import check_target, result_format, write_results
+    from geo.outputs import XLSX_MAX_ROWS, check_target, result_format, write_results
     from geo.screen import format_summary, run_screen
 
     # check every target before any work, so a refusal costs nothing
-    result_format(output)
+    fmt = result_format(output)
     check_target(output, overwrite)
     if map_path:
         if Path(map_path).suffix.lower() not in (".html", ".htm"):
@@ -147,6 +147,7 @@ def screen(sites, output, layers, dem, dem_units, map_path, engine, scheduler, s
             staging=staging,
             gazetteer=gazetteer,
             geocoder_url=geocoder_url,
+            max_rows=XLSX_MAX_ROWS if fmt == "xlsx" else None,
             progress=progress,
         )
         write_results(

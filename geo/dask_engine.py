@@ -60,7 +60,23 @@ def _client(scheduler: str | None):
     return Client(cluster), cluster
 
 
-def _resolve_partition(part, layers, dem, dem_units):
+def _portable(layer):
+    """A shallow copy of a layer without its look-up caches.
+
+    Prepared geometries and trees do not survive pickling in a usable state,
+    so each worker rebuilds them once, on its first partition, for the copy
+    it holds.
+    """
+    import copy
+
+    if not hasattr(layer, "_cache"):
+        return layer
+    clone = copy.copy(layer)
+    clone._cache = {}
+    return clone
+
+
+def _resolve_partition(part, layers, dem, dem_units, columns=None):
     """Resolve one partition of staged sites (runs on a worker)."""
     from geo.resolve import resolve_points
 
@@ -76,6 +92,8 @@ def _resolve_partition(part, layers, dem, dem_units):
         dem_units=dem_units,
     )
     res = pd.DataFrame(res).reset_index(drop=True)
+    if columns is not None:
+        res = res[list(columns)]
     res.insert(0, "row", part["row"].to_numpy())
     res.index = part.index
     return res
@@ -110,6 +128,7 @@ def resolve_dask(
     scheduler: str | None = None,
     partitions: int | None = None,
     staging: str | Path | None = None,
+    columns: list[str] | None = None,
     progress: bool = False,
 ) -> pd.DataFrame:
     """Resolve sites on a Dask cluster; one row per site, in input order.
@@ -135,6 +154,9 @@ def resolve_dask(
         Folder shared with the workers for the staged sites (default: the
         ``NEVE_DASK_STAGING`` environment variable, else a temporary folder
         for a LocalCluster, else the partitions are sent from this process).
+    columns : list of str, optional
+        Resolver columns to bring back (all when omitted); fewer columns
+        means less data sent from the workers.
 
     Returns
     -------
@@ -160,6 +182,8 @@ def resolve_dask(
         dem=dem, dem_units=dem_units,
     )  # fmt: skip
     meta = pd.DataFrame(meta).iloc[:0].copy()
+    if columns is not None:
+        meta = meta[list(columns)]
     meta.insert(0, "row", np.zeros(0, dtype=np.int64))
     client, cluster = _client(scheduler)
     staging = staging or os.environ.get(STAGING_ENV)
@@ -181,9 +205,16 @@ def resolve_dask(
         else:
             gdf = gpd.GeoDataFrame(frame, geometry=gpd.points_from_xy(lon, lat), crs="EPSG:4326")
             ddf = dask_geopandas.from_geopandas(gdf, npartitions=nparts)
-        [layers_future] = client.scatter([list(layers)], broadcast=True)
+        portable = [_portable(layer) for layer in layers]
+        [layers_future] = client.scatter([portable], broadcast=True)
         resolved = ddf.map_partitions(
-            _resolve_partition, layers_future, dem, dem_units, meta=meta, align_dataframes=False
+            _resolve_partition,
+            layers_future,
+            dem,
+            dem_units,
+            None if columns is None else list(columns),
+            meta=meta,
+            align_dataframes=False,
         )
         result = _compute(client, resolved, n, progress)
     finally:

@@ -142,6 +142,54 @@ class Layer:
             self._cache["tree_m"] = (np.asarray(geoms), shapely.STRtree(geoms))
         return self._cache["tree_m"]
 
+    def prepared(self) -> np.ndarray:
+        """The zone geometries (layer CRS), prepared for repeated point tests."""
+        if "prepared" not in self._cache:
+            import shapely
+
+            geoms = np.array(self.frame.geometry.values, dtype=object)
+            shapely.prepare(geoms)
+            self._cache["prepared"] = geoms
+        return self._cache["prepared"]
+
+    def shrunk_m(self, distance_m: float) -> np.ndarray:
+        """Zones in EPSG:3395 shrunk by ``distance_m`` on the ground (conservatively), prepared.
+
+        A site inside a shrunk zone is farther than ``distance_m`` from the
+        zone's boundary.  The shrink uses the largest Mercator scale factor
+        over the zone's latitudes, so it never shrinks too little.
+        """
+        key = ("shrunk", float(distance_m))
+        if key not in self._cache:
+            import shapely
+
+            from geo.lookup import mercator_scale
+
+            geoms, _ = self.tree_m()
+            b = self.frame.geometry.to_crs(4326).bounds
+            lat_max = np.maximum(np.abs(b["miny"].to_numpy()), np.abs(b["maxy"].to_numpy()))
+            k = mercator_scale(np.nan_to_num(lat_max, nan=0.0))
+            shrunk = shapely.buffer(geoms, -distance_m * k * 1.001)
+            shapely.prepare(shrunk)
+            self._cache[key] = shrunk
+        return self._cache[key]
+
+    def coverage_m(self, distance_m: float):
+        """Union of the zones in EPSG:3395 grown by ``distance_m`` on the ground, prepared."""
+        key = ("coverage", float(distance_m))
+        if key not in self._cache:
+            import shapely
+
+            from geo.lookup import mercator_scale
+
+            geoms, _ = self.tree_m()
+            b = self.frame.geometry.to_crs(4326).total_bounds
+            k = float(mercator_scale(max(abs(b[1]), abs(b[3]))))
+            cover = shapely.buffer(shapely.union_all(geoms), distance_m * k * 1.001 + 1.0)
+            shapely.prepare(cover)
+            self._cache[key] = cover
+        return self._cache[key]
+
     # --- what maps need -------------------------------------------------------
     def view(self, center: tuple[float, float] | None = None, radius_m: float = 5000) -> dict:
         """The layer as maps draw it.

@@ -103,6 +103,18 @@ def _fmt_psf(v: float) -> str:
     return f"{v:.4g}"
 
 
+def _join_groups(site: np.ndarray, text: np.ndarray, order_by=None):
+    """';'-join the distinct texts of each site (sorted by ``order_by`` or the text)."""
+    key = text if order_by is None else order_by
+    order = np.lexsort((key, site))
+    s, t, k = site[order], np.asarray(text, dtype=object)[order], np.asarray(key)[order]
+    keep = np.r_[True, (s[1:] != s[:-1]) | (k[1:] != k[:-1])]
+    s, t = s[keep], t[keep]
+    starts = np.r_[0, np.flatnonzero(s[1:] != s[:-1]) + 1]
+    joined = np.array([";".join(part) for part in np.split(t, starts[1:])], dtype=object)
+    return s[starts], joined
+
+
 def reduce_hits(
     h: Hits,
     ci: np.ndarray,
@@ -144,39 +156,75 @@ def reduce_hits(
     if multi.any():
         interior = np.bincount(ci[multi & c_interior], minlength=n)
         h.overlap = interior > 1
-        for i in np.unique(ci[multi]):
-            sel = ci == i
-            h.zone_ids[i] = ";".join(sorted(set(c_id[sel].tolist())))
-            keys = value_key(c_val[sel], c_state[sel])
-            if np.unique(keys).size > 1 and not h.overlap[i]:
-                h.near[i] = True  # on a shared edge of zones with different values
-                h.dist_other_m[i] = 0.0
+        sites, ids = _join_groups(ci[multi], c_id[multi].astype(str))
+        h.zone_ids[sites] = ids
+        keys = value_key(c_val[multi], c_state[multi])
+        kmin = np.full(n, np.inf)
+        kmax = np.full(n, -np.inf)
+        np.minimum.at(kmin, ci[multi], keys)
+        np.maximum.at(kmax, ci[multi], keys)
+        edge = (kmax > kmin) & ~h.overlap  # on a shared edge of zones with different values
+        h.near[edge] = True
+        h.dist_other_m[edge] = 0.0
     # neighbours
     site_key = value_key(h.base_psf, np.where(h.state == NONE, R.OK, h.state))
     site_key = np.where(h.covered, site_key, np.nan)
     if ni.size:
         nkey = value_key(n_val, n_state)
-        other = ~np.isclose(nkey, site_key[ni], rtol=0, atol=1e-9)
+        # an unknown value (elevation needed, defective zone) is never "the same value"
+        other = ~np.isclose(nkey, site_key[ni], rtol=0, atol=1e-9) | (nkey <= -2.0)
         np.fmin.at(h.nearest_m, ni, n_dist)
         np.fmin.at(h.dist_other_m, ni[other], n_dist[other])
         within = other & (n_dist <= tol_m) & h.covered[ni]
-        h.near[np.unique(ni[within])] = True
+        h.near[ni[within]] = True
         valued = within & np.isin(n_state, (R.OK, R.UNCHECKED))
         best = np.full(n, np.nan)
         np.fmax.at(best, ni[valued], n_val[valued])
-        h.near_unknown[np.unique(ni[within & ~valued])] = True
+        h.near_unknown[ni[within & ~valued]] = True
         up = np.isfinite(h.base_psf) & (best > h.base_psf + 1e-9)
         h.raised = up
-        for i in np.unique(ni[within]):
-            sel = within & (ni == i)
-            vals = sorted(set(nkey[sel].tolist()))
-            h.neigh_vals[i] = ";".join(_fmt_psf(v) for v in vals)
+        if within.any():
+            kv = nkey[within]
+            uk, kinv = np.unique(kv, return_inverse=True)
+            txt = np.array([_fmt_psf(v) for v in uk], dtype=object)[kinv]
+            sites, joined = _join_groups(ni[within], txt, order_by=kv)
+            h.neigh_vals[sites] = joined
         h.pairs = {"site": ni, "zone_id": n_id, "psf": n_val, "state": n_state, "m": n_dist}
         h.value_psf = np.where(up, best, h.base_psf)
     else:
         h.value_psf = h.base_psf.copy()
     h.nearest_m = np.where(h.covered, 0.0, h.nearest_m)
     return h
+
+
+#: from this many sites on, the grown-union and shrunk-zone prefilters are used (they cost a
+#: buffer of every zone once per layer, which a single site does not repay)
+PREFILTER_MIN_SITES = 2000
+#: up to this many zones, bounding boxes are tested with numpy instead of an STRtree
+FEW_ZONES = 64
+
+
+def bbox_candidates(layer, x: np.ndarray, y: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """(site, zone) pairs whose zone bounding box holds the site (layer CRS coordinates).
+
+    For a few zones the boxes are compared with numpy directly (no point
+    geometries to build); otherwise the layer's STRtree is queried.
+    """
+    import shapely
+
+    if len(layer.zones) > FEW_ZONES:
+        return layer.tree().query(shapely.points(x, y))
+    b = shapely.bounds(layer.prepared())
+    si, zi = [], []
+    for j, (x0, y0, x1, y1) in enumerate(b):
+        if not np.isfinite(x0):
+            continue
+        hit = np.flatnonzero((x >= x0) & (x <= x1) & (y >= y0) & (y <= y1))
+        si.append(hit)
+        zi.append(np.full(hit.size, j, dtype=np.intp))
+    if not si:
+        return np.empty(0, dtype=np.intp), np.empty(0, dtype=np.intp)
+    return np.concatenate(si), np.concatenate(zi)
 
 
 def layer_hits(layer, lon, lat, elev_ft, search_m: float | None = None) -> Hits:
@@ -209,30 +257,51 @@ def layer_hits(layer, lon, lat, elev_ft, search_m: float | None = None) -> Hits:
         return h
     ok = np.isfinite(lon) & np.isfinite(lat)
     idx = np.flatnonzero(ok)
-    to_layer = Transformer.from_crs(4326, layer.crs, always_xy=True)
-    x, y = to_layer.transform(lon[idx], lat[idx])
-    pts = shapely.points(x, y)
-    qi, cz = layer.tree().query(pts, predicate="intersects")
+    geoms = layer.prepared()
+    # 1. point-in-zone in the layer's CRS: bounding boxes from the STRtree, then an exact,
+    #    prepared intersects_xy test on the candidate pairs (a site on an edge is in the zone)
+    x, y = Transformer.from_crs(4326, layer.crs, always_xy=True).transform(lon[idx], lat[idx])
+    x, y = np.asarray(x, dtype=float), np.asarray(y, dtype=float)
+    qi, cz = bbox_candidates(layer, x, y)
+    inside = shapely.intersects_xy(geoms[cz], x[qi], y[qi])
+    qi, cz = qi[inside], cz[inside]
     ci = idx[qi]
+    # 2. neighbours within the search radius, in World Mercator metres / k; sites deep inside
+    #    their zone (inside the zone shrunk by the radius) cannot have one and are skipped
     tol = layer.tolerance_m
     search = max(tol, float(search_m or 0.0))
-    to_m = Transformer.from_crs(4326, 3395, always_xy=True)
-    xm, ym = to_m.transform(lon[idx], np.clip(lat[idx], -85.0, 85.0))
-    ptsm = shapely.points(xm, ym)
+    xm, ym = Transformer.from_crs(4326, 3395, always_xy=True).transform(
+        lon[idx], np.clip(lat[idx], -85.0, 85.0)
+    )
+    xm, ym = np.asarray(xm, dtype=float), np.asarray(ym, dtype=float)
     geoms_m, tree_m = layer.tree_m()
-    k = mercator_scale(lat[idx])
-    if search > 0:
-        qn, nz = tree_m.query(ptsm, predicate="dwithin", distance=search * k)
+    band = np.ones(idx.size, dtype=bool)
+    prefilter = search > 0 and idx.size >= PREFILTER_MIN_SITES
+    if prefilter:  # sites farther than the radius from every zone have no neighbour
+        band = shapely.contains_xy(layer.coverage_m(search), xm, ym)
+    if prefilter and qi.size:
+        deep = shapely.contains_xy(layer.shrunk_m(search)[cz], xm[qi], ym[qi])
+        band[qi[deep]] = False
+        band[qi[~deep]] = True  # a site in two zones, one deep, stays in the band
+    bi = np.flatnonzero(band)
+    if search > 0 and bi.size:
+        k = mercator_scale(lat[idx][bi])
+        qn, nz = tree_m.query(shapely.points(xm[bi], ym[bi]), predicate="dwithin",
+                              distance=search * k)  # fmt: skip
+        qn_site = bi[qn]
     else:
-        qn, nz = np.empty(0, dtype=np.intp), np.empty(0, dtype=np.intp)
-    if qn.size and qi.size:
+        qn_site, nz, k = np.empty(0, dtype=np.intp), np.empty(0, dtype=np.intp), np.empty(0)
+    if qn_site.size and qi.size:
         nzones = len(zt)
-        inside = np.isin(qn * nzones + nz, qi * nzones + cz)
-        qn, nz = qn[~inside], nz[~inside]
-    dist = shapely.distance(ptsm[qn], geoms_m[nz]) / k[qn] if qn.size else np.empty(0)
+        same = np.isin(qn_site * nzones + nz, qi * nzones + cz)
+        qn, qn_site, nz = qn[~same], qn_site[~same], nz[~same]
+    if qn_site.size:
+        dist = shapely.distance(shapely.points(xm[qn_site], ym[qn_site]), geoms_m[nz]) / k[qn]
+    else:
+        dist = np.empty(0)
     keep = dist <= search
-    qn, nz, dist = qn[keep], nz[keep], dist[keep]
-    ni = idx[qn]
+    qn_site, nz, dist = qn_site[keep], nz[keep], dist[keep]
+    ni = idx[qn_site]
     scale = 1.0 if layer.meta["elevation_units"] == "ft" else 0.3048
     elev = np.asarray(elev_ft, dtype=float) * scale
     c_val, c_state = R.evaluate(zt, cz, elev[ci])
@@ -240,7 +309,7 @@ def layer_hits(layer, lon, lat, elev_ft, search_m: float | None = None) -> Hits:
     multi = np.bincount(qi, minlength=idx.size)[qi] > 1
     interior = np.ones(qi.size, dtype=bool)
     if multi.any():
-        interior[multi] = shapely.within(pts[qi[multi]], layer.frame.geometry.values[cz[multi]])
+        interior[multi] = shapely.contains_xy(geoms[cz[multi]], x[qi[multi]], y[qi[multi]])
     rules = zt.rule_names()
     return reduce_hits(
         h,

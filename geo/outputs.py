@@ -10,11 +10,7 @@ from __future__ import annotations
 
 import os
 import tempfile
-from collections.abc import (
-    Callable,
-    Iterator,
-    Mapping,  # noqa: F401
-)
+from collections.abc import Callable, Iterator
 from contextlib import contextmanager
 from pathlib import Path
 

@@ -47,7 +47,9 @@ LIMITING = (
     | BIT["coordinates_suspect"]
     | BIT["elevation_mismatch"]
 )
-_BAD_COORDS = 1 << 20
+_BAD_COORDS = 1 << 20  # message-only bits, never shown as flags
+_NEAR_UNKNOWN = 1 << 21
+_INTERNAL = _BAD_COORDS | _NEAR_UNKNOWN
 COLUMNS = [
     "status", "pg_psf", "pg_kpa", "zone_id", "zone_ids", "rule", "flags", "message",
     "elevation_ft", "elevation_m", "elevation_source", "dem_elevation_ft",
@@ -76,10 +78,44 @@ def layer_status(h: Hits) -> tuple[np.ndarray, np.ndarray]:
     return status, flags
 
 
-def _flag_text(mask: np.ndarray) -> np.ndarray:
-    uniq, inv = np.unique(mask, return_inverse=True)
-    texts = [";".join(sorted(f for f in FLAGS if int(u) & BIT[f])) for u in uniq]
-    return np.array(texts, dtype=object)[inv]
+def _other_layers(layers, hits, per_layer, gov, valid) -> np.ndarray:
+    """';'-joined ``name=value`` (or ``name=status``) of the non-governing layers per site.
+
+    Each layer's text is coded as a small integer per site; the strings are
+    built once per distinct combination of codes.
+    """
+    n = gov.size
+    if len(layers) < 2:
+        return np.full(n, "", dtype=object)
+    codes, tables = [], []
+    for k, (h, (st, _)) in enumerate(zip(hits, per_layer, strict=True)):
+        val = np.where(np.isfinite(h.value_psf), h.value_psf, 0.0)
+        uv, uinv = np.unique(np.round(val, 6), return_inverse=True)
+        name = layers[k].name
+        table = [""] + [f"{name}={s}" for s in STATUSES] + [f"{name}={v:.4g}psf" for v in uv]
+        code = np.where(st == OK, uinv + 1 + len(STATUSES), st.astype(np.int64) + 1)
+        code[(gov == k) | ~valid] = 0
+        codes.append(code.astype(np.int64))
+        tables.append(table)
+    sizes = [len(t) for t in tables]
+    if float(np.prod(np.array(sizes, dtype=float))) < 2.0**62:
+        key = np.zeros(n, dtype=np.int64)
+        for code, size in zip(codes, sizes, strict=True):
+            key = key * size + code
+        uniq, inv = np.unique(key, return_inverse=True)
+        texts = []
+        for u in uniq:
+            parts, u = [], int(u)
+            for table, size in zip(reversed(tables), reversed(sizes), strict=True):
+                parts.append(table[u % size])
+                u //= size
+            texts.append(";".join(p for p in reversed(parts) if p))
+        return np.array(texts, dtype=object)[inv]
+    out = np.full(n, "", dtype=object)  # very many distinct values: plain string joins
+    for code, table in zip(codes, tables, strict=True):
+        piece = np.array(table, dtype=object)[code]
+        out = np.where(out == "", piece, np.where(piece == "", out, out + ";" + piece))
+    return out
 
 
 def _message(status: int, bits: int, layer, gov_state: int) -> str:
@@ -112,6 +148,11 @@ def _message(status: int, bits: int, layer, gov_state: int) -> str:
             reasons.append(
                 f"a zone with another value lies within {layer.tolerance_m:g} m "
                 "(the larger value governs)"
+            )
+        if bits & _NEAR_UNKNOWN:
+            reasons.append(
+                f"a zone within {layer.tolerance_m:g} m has no usable value here "
+                "(a study or an elevation is needed there)"
             )
         if bits & BIT["overlapping_zones"]:
             reasons.append("the site lies in overlapping zones (the larger value governs)")
@@ -234,6 +275,7 @@ def resolve_detail(
         status[sel], bits[sel], value[sel] = st[sel], fl[sel], h.value_psf[sel]
         zone_id[sel], zone_ids[sel], rule[sel] = h.zone_id[sel], h.zone_ids[sel], h.rule[sel]
         neigh[sel], dist[sel], gstate[sel] = h.neigh_vals[sel], h.dist_other_m[sel], h.state[sel]
+        bits[sel & h.near_unknown] |= _NEAR_UNKNOWN
     ungov = gov < 0
     if hits:
         dist[ungov] = np.fmin.reduce(np.array([h.dist_other_m for h in hits]), axis=0)[ungov]
@@ -243,46 +285,40 @@ def resolve_detail(
     status[~valid] = ERROR
     bits[~valid] = (bits[~valid] & BIT["demo_data"]) | _BAD_COORDS
     value[~np.isin(status, (OK, PROVISIONAL))] = np.nan
-    # messages once per distinct combination
+    # flags and messages once per distinct combination
     key = (status.astype(np.int64) << 32) | (bits << 4) | (gov + 1).astype(np.int64)
     uniq, inv = np.unique(key, return_inverse=True)
-    msgs = []
+    msgs, ftxt = [], []
     for u in uniq:
         s, b, g = int(u >> 32), int((u >> 4) & ((1 << 28) - 1)), int(u & 15) - 1
         msgs.append(_message(s, b, layers[g] if 0 <= g < len(layers) else None, 0))
+        ftxt.append(";".join(sorted(f for f in FLAGS if b & BIT[f])))
     message = np.array(msgs, dtype=object)[inv]
+    flag_text = np.array(ftxt, dtype=object)[inv]
     names = np.array([layer.name for layer in layers] + [""], dtype=object)
     shas = np.array([layer.sha256 for layer in layers] + [""], dtype=object)
-    others = np.full(n, "", dtype=object)
-    if len(layers) > 1:
-        for k, (h, (st, _)) in enumerate(zip(hits, per_layer, strict=True)):
-            val = np.where(np.isfinite(h.value_psf), h.value_psf, 0.0)
-            txt = np.char.mod("%.4gpsf", val).astype(object)
-            txt = np.where(st == OK, txt, np.array(STATUSES, dtype=object)[st])
-            piece = np.where(gov == k, "", layers[k].name + "=" + txt.astype(object))
-            piece = np.where(valid, piece, "")
-            others = np.where(
-                others == "", piece, np.where(piece == "", others, others + ";" + piece)
-            )
+    others = _other_layers(layers, hits, per_layer, gov, valid)
+    cols = {
+        "status": np.array(STATUSES, dtype=object)[status],
+        "pg_psf": value,
+        "pg_kpa": value * KPA_PER_PSF,
+        "zone_id": zone_id,
+        "zone_ids": zone_ids,
+        "rule": rule,
+        "flags": flag_text,
+        "message": message,
+        "elevation_ft": elev,
+        "elevation_m": elev * M_PER_FT,
+        "elevation_source": source,
+        "dem_elevation_ft": dem_ft,
+        "distance_to_other_m": dist,
+        "neighbour_values_psf": neigh,
+        "layer_name": names[gov],
+        "layer_sha256": shas[gov],
+        "other_layers": others,
+    }
+    # object columns stay object (no per-row conversion to Arrow strings for big portfolios)
     df = pd.DataFrame(
-        {
-            "status": np.array(STATUSES, dtype=object)[status],
-            "pg_psf": value,
-            "pg_kpa": value * KPA_PER_PSF,
-            "zone_id": zone_id,
-            "zone_ids": zone_ids,
-            "rule": rule,
-            "flags": _flag_text(bits & ~_BAD_COORDS),
-            "message": message,
-            "elevation_ft": elev,
-            "elevation_m": elev * M_PER_FT,
-            "elevation_source": source,
-            "dem_elevation_ft": dem_ft,
-            "distance_to_other_m": dist,
-            "neighbour_values_psf": neigh,
-            "layer_name": names[gov],
-            "layer_sha256": shas[gov],
-            "other_layers": others,
-        }
+        {k: pd.Series(v, dtype=object if v.dtype == object else v.dtype) for k, v in cols.items()}
     )
     return df, {"layers": layers, "hits": hits, "gov": gov, "per_layer": per_layer, "bits": bits}

@@ -60,6 +60,11 @@ ROOF_LOADS = ("pf", "ps", "pm", "rain_on_snow", "design_uniform")
 #: sites resolved per call of the resolver (bounds memory, paces the progress bar)
 CHUNK_SIZE = 262_144
 ENGINES = ("local", "dask")
+#: the resolver's columns that screening uses
+RESOLVED_COLUMNS = (
+    "status", "pg_psf", "zone_id", "flags", "message", "elevation_ft", "elevation_source",
+    "rule", "layer_name",
+)  # fmt: skip
 
 
 @dataclass
@@ -128,8 +133,11 @@ def _profile_errors(sites: SiteArrays, roofs) -> None:
             f"the roof file defines profiles ({', '.join(roofs)}) but the site file has no 'roof' column",
             "a 'roof' column naming a profile on each row, or a ROOF.toml without profiles",
         )
+    canonical = {name.strip().lower(): name for name in roofs}  # case-blind, as every choice
     names = pd.Series(sites.roof)
-    unknown = (~names.isin(list(roofs)) & (names != "")).to_numpy()
+    mapped = names.str.lower().map(canonical)
+    sites.roof = mapped.where(mapped.notna(), names).to_numpy(dtype=object)
+    unknown = (mapped.isna() & (names != "")).to_numpy()
     accepted = ", ".join(roofs)
     todo = unknown & (sites.error == "")
     sites.error[todo] = [f"roof: unknown profile {v!r}; accepted: {accepted}" for v in names[todo]]
@@ -183,6 +191,7 @@ def run_screen(
     geocoder=None,
     gazetteer=None,
     geocoder_url: str | None = None,
+    max_rows: int | None = None,
     progress: bool = False,
 ) -> ScreenRun:
     """Screen sites; return the results with their summary (see :func:`screen`)."""
@@ -205,14 +214,28 @@ def run_screen(
     roofs = _roofs(roof)
     lap("layers")
     site = load_sites(sites)
+    if max_rows is not None and len(site) > max_rows:
+        raise InputError(
+            "output",
+            f"{len(site):,} sites do not fit in the chosen output ({max_rows:,} rows at most)",
+            "a .csv, .gpkg or .parquet output for large portfolios",
+        )
     _profile_errors(site, roofs)
     lap("read")
     if site.address is not None and (site.address != "").any():
         from geo.sitefile import geocode_rows, make_geocoder
 
-        if geocoder is None:
-            geocoder = make_geocoder(gazetteer, geocoder_url)
-        geocode_rows(site, geocoder, progress=progress)
+        try:
+            if geocoder is None:
+                geocoder = make_geocoder(gazetteer, geocoder_url)
+        except InputError as exc:
+            if site.source != "latlon":
+                raise
+            # a lat/lon file whose blank rows have addresses: those rows only fail
+            todo = (site.address != "") & (site.error == "")
+            site.error[todo] = f"lat/lon missing and the address cannot be geocoded: {exc.accepted}"
+        else:
+            geocode_rows(site, geocoder, progress=progress)
         lap("geocode")
     valid = (site.error == "") & np.isfinite(site.lat) & np.isfinite(site.lon)
     idx = np.flatnonzero(valid)
@@ -231,6 +254,7 @@ def run_screen(
             scheduler=scheduler,
             partitions=partitions,
             staging=staging,
+            columns=list(RESOLVED_COLUMNS),
             **kwargs,
         )
     else:
@@ -296,8 +320,7 @@ def _assemble(site: SiteArrays, idx: np.ndarray, resolved: pd.DataFrame | None) 
     """
     n = len(site)
     rows = pd.RangeIndex(n)
-    cols = ["status", "pg_psf", "zone_id", "flags", "message", "elevation_ft"]
-    cols += ["elevation_source", "rule", "layer_name"]
+    cols = list(RESOLVED_COLUMNS)
     if resolved is None or not len(idx):
         res = pd.DataFrame({c: pd.Series(np.nan if c in ("pg_psf", "elevation_ft") else None,
                                          index=rows, dtype=float if c in ("pg_psf", "elevation_ft")

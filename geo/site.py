@@ -22,6 +22,7 @@ from engine.units import FT_PER_M, KPA_PER_PSF, length_json, load_json
 from geo import rules as R
 from geo.coords import check_range
 from geo.elevation import parse_elevation
+from geo.explain import explain
 from geo.layers import as_layers, demo_dem_path
 from geo.resolve import STATUSES, resolve_detail
 
@@ -93,7 +94,7 @@ def _steps(layer, hits, row, elev_ft: float, source: str) -> list[dict]:
                               meta["value_units"], ref))  # fmt: skip
     elif j >= 0:
         scale = 1.0 if meta["elevation_units"] == "ft" else 1.0 / FT_PER_M
-        steps.extend(R.explain(layer.zones, j, elev_ft * scale, meta, ref))
+        steps.extend(explain(layer.zones, j, elev_ft * scale, meta, ref))
     base = hits.base_psf[0]
     if meta["value_units"] == "kPa" and np.isfinite(base):
         steps.append(Step("pg", "converted to psf", "pg [psf] = pg [kPa] / 0.04788",

@@ -124,6 +124,7 @@ def write_layer_map(
         units,
         problem_ids=bad_ids,
         label=len(zones) <= MAX_LABELS,
+        max_labels=MAX_LABELS,
         extra_tips=tips,
     )
     group.add_to(m)

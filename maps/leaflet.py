@@ -175,11 +175,14 @@ def add_zones(
     label: bool = True,
     extra_tips: dict | None = None,
     label_window=None,
+    max_labels: int = 120,
+    avoid: tuple[float, float, float] | None = None,
 ) -> None:
     """Add zone polygons (and value labels) to a folium map or feature group.
 
     ``label_window`` (a shapely polygon in EPSG:4326) keeps the labels inside
-    the part of the map that opens on screen.
+    the part of the map that opens on screen; ``avoid`` = (lat, lon, gap)
+    [degrees] moves a label that would sit under the site marker.
     """
     import folium
 
@@ -210,12 +213,23 @@ def add_zones(
         control=False,
     ).add_to(parent)
     if label:
-        for _, row in zones.iterrows():
+        labelled = zones
+        if len(zones) > max_labels:  # label the nearest zones only (hover shows every value)
+            key = "distance_m" if "distance_m" in zones.columns else "zone_id"
+            labelled = zones.sort_values(key).head(max_labels)
+        for _, row in labelled.iterrows():
             geom = row.geometry
             if label_window is not None:
                 part = geom.intersection(label_window)
                 geom = part if not part.is_empty else geom
             pt = geom.representative_point()
+            if avoid is not None:  # keep the label clear of the site marker
+                a_lat, a_lon, gap = avoid
+                if abs(pt.y - a_lat) < gap and abs(pt.x - a_lon) < gap:
+                    from shapely.geometry import Point
+
+                    moved = Point(a_lon, a_lat - 2.0 * gap)
+                    pt = moved if geom.contains(moved) else pt
             text = zone_value_text(row.to_dict(), units)
             folium.Marker(
                 [pt.y, pt.x],

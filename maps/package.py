@@ -70,6 +70,7 @@ def _cases(roof: dict | None, diagrams: dict[str, Path]) -> list[dict]:
         values = [
             (k.replace("_", " "), _value_text(v)) for k, v in case.items() if k not in _CASE_META
         ]
+        values = [(k, v) for k, v in values if v != ""]
         diag = diagrams.get(name) or diagrams.get(f"{name} ({i})")
         out.append(
             {
@@ -102,6 +103,30 @@ def _factors(roof: dict | None) -> list[dict]:
             }
         )
     return out
+
+
+#: labels of the roof description keys the engine reports
+_ROOF_LABELS = {
+    "risk": "Risk category",
+    "shape": "Roof shape",
+    "slope_deg": "Roof slope [deg]",
+    "surface": "Roof surface",
+    "eave_to_ridge": "Eave to ridge W",
+    "thermal": "Thermal condition",
+    "terrain": "Surface roughness",
+    "exposure": "Exposure",
+}
+
+
+def _roof_rows(roof: dict | None) -> list[tuple[str, str]]:
+    """The roof description (``roof_json["roof"]``) as label/value rows, generically."""
+    desc = (roof or {}).get("roof") or {}
+    rows = []
+    for key, value in desc.items():
+        if value is None or value == "" or key == "name":
+            continue
+        rows.append((_ROOF_LABELS.get(key, key.replace("_", " ")), _value_text(value)))
+    return rows
 
 
 def _summary(roof: dict | None) -> list[dict]:
@@ -239,6 +264,8 @@ def write_package(
             "g": summary_context(data),
             "roof": data.get("roof"),
             "factors": _factors(data.get("roof")),
+            "roof_rows": _roof_rows(data.get("roof")),
+            "not_required": list((data.get("roof") or {}).get("not_required") or []),
             "summary": _summary(data.get("roof")),
             "provenance": _provenance(ground),
             "ground_steps": list(ground.get("steps") or []),

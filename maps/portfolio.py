@@ -8,7 +8,7 @@ plain value.  Markers are clustered (Leaflet.markercluster, loaded in chunks)
 and the site data travel as compact column arrays; a popup is built on click
 from plain text.  Beyond :data:`DETAIL_LIMIT` sites the messages of ``ok``
 sites are left out, and beyond :data:`MAX_POINTS` sites ``ok`` sites are
-sampled (every flagged, study, no-data and error site is always drawn); the
+sampled (every provisional, study, no-data and error site is always drawn); the
 map says so.
 """
 
@@ -188,6 +188,8 @@ def write_portfolio_map(
     out = leaflet.check_path(path, "map")
     if not isinstance(results, pd.DataFrame):
         raise InputError("results", f"got {type(results).__name__}", "a pandas DataFrame")
+    if "site_id" not in results.columns:  # optional in site files: number the rows
+        results = results.assign(site_id=[f"row {i + 1}" for i in range(len(results))])
     missing = [c for c in REQUIRED if c not in results.columns]
     if missing:
         raise InputError("results", f"missing column(s) {', '.join(missing)}", ", ".join(REQUIRED))
@@ -236,7 +238,7 @@ def write_portfolio_map(
     keep = placeable.copy()
     if (~placeable).sum():
         notes.append(f"{int((~placeable).sum())} site(s) without usable coordinates are not drawn.")
-    plain = keep & (code < nb) & (flags == "")
+    plain = keep & (code < nb)  # status ok with a value: the only rows ever sampled
     n_keep = int(keep.sum())
     if n_keep > MAX_POINTS:
         rng = np.random.default_rng(0)
@@ -244,8 +246,8 @@ def write_portfolio_map(
         n_drop = min(len(idx_plain), n_keep - MAX_POINTS)
         keep[rng.choice(idx_plain, size=n_drop, replace=False)] = False
         notes.append(
-            f"{n_drop:,} of {int(plain.sum()):,} unflagged sites were left out at random to keep "
-            "the page usable; every flagged, study, no-data and error site is drawn."
+            f"{n_drop:,} of {int(plain.sum()):,} ok sites were left out at random to keep the "
+            "page usable; every provisional, study, no-data and error site is drawn."
         )
     rows = np.flatnonzero(keep)
     trim = n_total > DETAIL_LIMIT

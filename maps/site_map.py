@@ -192,7 +192,7 @@ def write_site_map(
     m.fit_bounds([[lat - dlat, lon - dlon], [lat + dlat, lon + dlon]])
     from shapely.geometry import box
 
-    label_window = box(lon - 0.7 * dlon, lat - 0.7 * dlat, lon + 0.7 * dlon, lat + 0.7 * dlat)
+    label_window = box(lon - 0.9 * dlon, lat - 0.9 * dlat, lon + 0.9 * dlon, lat + 0.9 * dlat)
     demo = is_demo(site_json, views)
     leaflet.add_defs(m, demo=demo)
 
@@ -221,7 +221,13 @@ def write_site_map(
         label = f"{view.get('name') or 'layer'}" + (" (governs)" if i == g_index else "")
         group = folium.FeatureGroup(name=style.esc(label), show=(i == g_index), control=True)
         leaflet.add_zones(
-            group, near, classes, v_units, governing_ids=gov, label_window=label_window
+            group,
+            near,
+            classes,
+            v_units,
+            governing_ids=gov,
+            label_window=label_window,
+            avoid=(lat, lon, 0.06 * dlat),
         )
         group.add_to(m)
         layer_groups.append(group)

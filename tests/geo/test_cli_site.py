@@ -13,7 +13,7 @@ from engine.units import KPA_PER_PSF
 from geo.cli import main
 from geo.site import resolve_site
 
-from .conftest import D, LAT0, LON0, centre
+from .conftest import LAT0, LON0, D, centre
 
 #: the README's demo site: central highlands zone, elevation from the demo DEM
 DEMO_AT = "47.4822,-140.0269"

@@ -150,6 +150,7 @@ def test_cli_ambiguous_and_down(server, closed_port_url):
     r = CliRunner().invoke(main, ["site", "--address", "Mill Lane", "--geocoder-url", server])
     assert r.exit_code == 2 and "ambiguous" in r.output
     r = CliRunner().invoke(
-        main, ["site", "--address", "x", "--geocoder-url", closed_port_url, "--geocoder-timeout", "2"]
+        main,
+        ["site", "--address", "x", "--geocoder-url", closed_port_url, "--geocoder-timeout", "2"],
     )
     assert r.exit_code == 1 and "could not answer" in r.output

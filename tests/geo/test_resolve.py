@@ -11,7 +11,7 @@ from engine.units import KPA_PER_PSF, M_PER_FT
 from geo.layers import load_layer
 from geo.resolve import COLUMNS, resolve_points
 
-from .conftest import D, LAT0, LON0, centre, fixture_rows, write_layer
+from .conftest import LAT0, LON0, D, centre, fixture_rows, write_layer
 
 NAN = math.nan
 
@@ -241,3 +241,68 @@ def test_empty_layer_covers_nothing(fixture_dir):
     (fixture_dir / "empty.gpkg.toml").write_text(toml_text(FIXTURE_META), encoding="utf-8")
     assert len(load_layer(path).zones) == 0
     assert one([path], *centre(0, 0))["flag_list"] == ["outside_layer"]
+
+
+def test_vectorized_neighbours_match_brute_force_on_the_demo_layer():
+    """Every site against every zone, one geometry at a time (shapely.distance), vs the resolver."""
+    import shapely
+    from pyproj import Transformer
+
+    from geo.layers import demo_dem_path, demo_layers
+    from geo.lookup import mercator_scale
+
+    base = demo_layers()[1]
+    rng = np.random.default_rng(0)
+    n = 3000
+    lat = 47.5 + rng.uniform(-0.15, 0.15, n)
+    lon = -140 + rng.uniform(-0.35, 0.35, n)
+    df = resolve_points(lat, lon, layers=[base], dem=demo_dem_path())
+    flags = df["flags"].to_numpy()
+    dist = df["distance_to_other_m"].to_numpy()
+    xm, ym = Transformer.from_crs(4326, 3395, always_xy=True).transform(lon, lat)
+    pts = shapely.points(xm, ym)
+    k = mercator_scale(lat)
+    gm = base.frame.geometry.to_crs(3395).values
+    dd = np.array([shapely.distance(pts, g) / k for g in gm]).T
+    x, y = Transformer.from_crs(4326, base.crs, always_xy=True).transform(lon, lat)
+    inside = np.array([shapely.intersects_xy(g, x, y) for g in base.frame.geometry.values]).T
+    tol = base.tolerance_m
+    for i in range(n):
+        if not inside[i].any():
+            assert "outside_layer" in flags[i]
+            continue
+        # every demo zone has its own value at a given elevation, save equal-valued pairs
+        others = [dd[i, j] for j in range(len(gm)) if not inside[i, j]]
+        expect_near = min(others) <= tol
+        if "near_boundary" in flags[i]:
+            assert expect_near
+            assert dist[i] == pytest.approx(min(others), abs=1e-6)
+        elif expect_near:  # only an equal value may be within the tolerance
+            assert np.isnan(dist[i]) or dist[i] > tol
+
+
+def test_near_a_study_zone_is_flagged_and_explained(grid_layer):
+    r = one([grid_layer], LAT0 + 0.005, LON0 + 2 * D - 0.0005, 100.0)  # Z2, 48 m from study Z3
+    assert r["status"] == "provisional" and r["flag_list"] == ["near_boundary"]
+    assert r["pg_psf"] == 30.0 and r["neighbour_values_psf"] == "study"
+    assert "no usable value" in r["message"]
+
+
+def test_prefiltered_and_plain_paths_agree():
+    """Many sites (prefilters on) and the same sites in small chunks (off) give one answer."""
+    import pandas as pd
+
+    from geo.layers import demo_dem_path
+    from geo.lookup import PREFILTER_MIN_SITES
+
+    rng = np.random.default_rng(21)
+    n = PREFILTER_MIN_SITES + 500
+    lat = 47.5 + rng.uniform(-0.15, 0.15, n)
+    lon = -140 + rng.uniform(-0.35, 0.35, n)
+    full = resolve_points(lat, lon, dem=demo_dem_path())
+    parts = [
+        resolve_points(lat[i : i + 400], lon[i : i + 400], dem=demo_dem_path())
+        for i in range(0, n, 400)
+    ]
+    chunked = pd.concat(parts, ignore_index=True)
+    pd.testing.assert_frame_equal(full, chunked)

@@ -66,7 +66,9 @@ def offline_page(base_url, *, width=1280, height=860):
             page.on("pageerror", lambda exc: record["page_errors"].append(str(exc)))
             page.on(
                 "console",
-                lambda msg: record["console_errors"].append(msg.text) if msg.type == "error" else None,
+                lambda msg: (
+                    record["console_errors"].append(msg.text) if msg.type == "error" else None
+                ),
             )
 
             def on_dialog(dialog):

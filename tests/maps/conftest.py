@@ -105,6 +105,13 @@ def make_roof_json():
     return {
         "standard": "ASCE 7-16",
         "pg": load(35.0),
+        "roof": {
+            "name": "roof",
+            "shape": "gable",
+            "slope_deg": 26.565,
+            "risk": "II",
+            "eave_to_ridge": length(40.0),
+        },  # fmt: skip
         "factors": {"Ce": 1.0, "Ct": 1.1, "Is": 1.0, "Cs": 1.0},
         "loads": {"pf": load(26.95), "ps": load(26.95), "pm": load(20.0), "rain_on_snow": None},
         "cases": [
@@ -134,6 +141,7 @@ def make_roof_json():
             {"case": "mystery", "name": "future case", "load": load(11.0), "extent": length(5.0)},
         ],
         "design_uniform": load(26.95),
+        "not_required": [{"case": "minimum", "reason": "invented reason for the fixture"}],
         "flags": ["exposure_assumed"],
         "cautions": [
             "neve is an aid to, not a substitute for, the judgement of a licensed design professional."

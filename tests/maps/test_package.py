@@ -57,7 +57,7 @@ def test_report_html_is_self_contained(built):
     _, files = built
     html = files["report_html"].read_text(encoding="utf-8")
     assert assets.remote_references(html) == []
-    assert "<link rel=\"stylesheet\"" not in html
+    assert '<link rel="stylesheet"' not in html
     assert html.count("data:image/png;base64,") >= 3  # static map + two diagrams
     assert 'class="site-map"' in html and "srcdoc=" in html
     for heading in ("Design criteria", "Ground snow load", "Roof snow load cases", "Summary",
@@ -65,6 +65,8 @@ def test_report_html_is_self_contained(built):
         assert heading in html
     assert "ASCE 7-16 Eq. 7.3-1" in html and "0.7 x 1 x 1.1 x 1 x 35" in html
     assert "future case" in html  # an unknown case is still reported, generically
+    assert "Risk category</th><td>II" in html and "40 ft (12.19 m)" in html
+    assert "invented reason for the fixture" in html
 
 
 def _pdf_pages(path):

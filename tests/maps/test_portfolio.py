@@ -76,15 +76,20 @@ def test_portfolio_input_errors(tmp_path):
         write_portfolio_map(_results(3).drop(columns=["pg_psf"]), tmp_path / "p.html")
     with pytest.raises(InputError, match="results"):
         write_portfolio_map([{"lat": 1}], tmp_path / "p.html")
+    # site_id is optional in site files: rows are numbered instead
+    html = write_portfolio_map(
+        _results(3).drop(columns=["site_id"]), tmp_path / "p.html"
+    ).read_text()
+    assert _payload(html)["site_id"] == ["row 1", "row 2", "row 3"]
 
 
 def test_large_portfolios_are_sampled_and_say_so(tmp_path, monkeypatch):
-    monkeypatch.setattr(portfolio, "MAX_POINTS", 1000)
+    monkeypatch.setattr(portfolio, "MAX_POINTS", 2000)
     monkeypatch.setattr(portfolio, "DETAIL_LIMIT", 500)
     df = _results(3000)
     html = write_portfolio_map(df, tmp_path / "p.html").read_text()
     d = _payload(html)
-    assert len(d["lat"]) == 1000
+    assert len(d["lat"]) == 2000
     flagged = int((df["status"] != "ok").sum())
     drawn_flagged = sum(1 for s in d["status"] if d["status_names"][s] != "ok")
     assert drawn_flagged == flagged  # every non-ok site is kept

@@ -66,7 +66,9 @@ def test_governing_view_is_the_layer_named_in_the_result():
 def test_hostile_text_is_never_markup(tmp_path):
     site = make_site_json(name=HOSTILE, project=HOSTILE)
     site["ground"]["message"] = HOSTILE
-    html = _write(tmp_path, site, [make_view(note=HOSTILE, source=HOSTILE), make_view(name=HOSTILE)])
+    html = _write(
+        tmp_path, site, [make_view(note=HOSTILE, source=HOSTILE), make_view(name=HOSTILE)]
+    )
     for raw in RAW_HOSTILE:
         assert raw not in html
     assert "&lt;script&gt;alert(1)&lt;/script&gt;" in html  # shown as text in the panel
@@ -96,3 +98,25 @@ def test_site_outside_every_layer_still_gives_a_map(tmp_path):
     site["ground"].update(pg=None, zone_id=None, zone_ids=[], flags=["outside_layer"])
     html = _write(tmp_path, site, [])
     assert "neve-site-marker" in html and "no value" in html
+
+
+def test_dense_layers_label_only_the_nearest_zones(tmp_path):
+    """A polygonized raster gives hundreds of cells near a site: labels are capped."""
+    import geopandas as gpd
+    from shapely.geometry import box
+
+    from tests.maps.conftest import SITE_LAT, SITE_LON
+
+    d = 0.002
+    cells = [box(SITE_LON + i * d, SITE_LAT + j * d, SITE_LON + (i + 1) * d, SITE_LAT + (j + 1) * d)
+             for i in range(-10, 10) for j in range(-10, 10)]  # fmt: skip
+    zones = gpd.GeoDataFrame(
+        {"zone_id": [f"c{k}" for k in range(len(cells))], "rule": "fixed",
+         "pg": [20.0 + (k % 7) for k in range(len(cells))]},
+        geometry=cells, crs=4326,
+    )  # fmt: skip
+    view = make_view()
+    view["zones"] = zones
+    html = _write(tmp_path, views=[view])
+    assert html.count("neve-label-icon") == 120  # one DivIcon class per label
+    assert html.count('"zone_id": "c') == 400  # every cell is still drawn

@@ -53,7 +53,9 @@ def test_static_map_and_diagrams_without_display_or_network(tmp_path):
 
 
 def test_static_map_content(tmp_path):
-    png, svg = write_static_map(make_site_json(), [make_view()], tmp_path / "m.png", tmp_path / "m.svg")
+    png, svg = write_static_map(
+        make_site_json(), [make_view()], tmp_path / "m.png", tmp_path / "m.svg"
+    )
     text = svg.read_text(encoding="utf-8")  # text is kept as text (svg.fonttype none)
     assert png.stat().st_size > 20_000
     for part in ("site: pg = 35 psf (1.68 kPa)", "Ground snow load pg [psf]", "governing zone",
@@ -88,7 +90,9 @@ def test_north_arrow_follows_meridian_convergence(lat, lon):
     crs = local_crs(lat, lon)
     zone = crs.to_epsg() - 32600
     lon0 = -183.0 + 6.0 * zone
-    expected = math.degrees(math.atan(math.tan(math.radians(lon - lon0)) * math.sin(math.radians(lat))))
+    expected = math.degrees(
+        math.atan(math.tan(math.radians(lon - lon0)) * math.sin(math.radians(lat)))
+    )
     assert true_north_angle(lat, lon, crs) == pytest.approx(expected, abs=0.05)
 
 

@@ -336,3 +336,36 @@ def test_demo_portfolio_on_the_embedded_demo_data(tmp_path):
     assert "unknown profile 'greenhouse-shed'" in res["message"][8]
     summary = pd.read_excel(out, sheet_name="summary")
     assert "DEMO" in set(summary["item"])
+
+
+def test_roof_profiles_from_the_command_line(tmp_path, grid_layer, sites_frame):
+    roofs = tmp_path / "roofs.toml"
+    roofs.write_text(
+        "ct = 1.0\n[profile.low]\nce = 0.9\n[profile.high]\nce = 1.2\n", encoding="utf-8"
+    )
+    sites = tmp_path / "s.csv"
+    sites_frame.assign(roof=["low", "high"] * 20).to_csv(sites, index=False)
+    out, summary = tmp_path / "r.parquet", tmp_path / "summary.json"
+    r = _run(sites, "-o", out, "--layer", grid_layer, "--roof", roofs, "--risk", "II",
+             "--summary-json", summary)  # fmt: skip
+    assert r.exit_code == 0, r.output
+    res = pd.read_parquet(out)
+    ok = res["status"] == "ok"
+    # ASCE 7-16 Eq. 7.3-1 with Is = 1.0 (risk II, Table 1.5-2) and the profile's Ce
+    ce = np.where(res["roof"] == "low", 0.9, 1.2)
+    np.testing.assert_allclose(res["pf_psf"][ok], 0.7 * ce[ok] * 1.0 * 1.0 * res["pg_psf"][ok])
+    import json
+
+    data = json.loads(summary.read_text())
+    assert data["rows"] == 40 and sum(data["status"].values()) == 40
+    assert data["cautions"]
+
+
+def test_too_many_rows_for_xlsx_refused_before_work(tmp_path, sites_csv, grid_layer, monkeypatch):
+    import geo.outputs
+
+    monkeypatch.setattr(geo.outputs, "XLSX_MAX_ROWS", 10)
+    r = _run(sites_csv, "-o", tmp_path / "r.xlsx", "--layer", grid_layer)
+    assert r.exit_code == 2
+    assert "40 sites do not fit" in r.output and ".parquet" in r.output
+    assert not (tmp_path / "r.xlsx").exists()

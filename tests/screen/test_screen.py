@@ -134,7 +134,7 @@ def test_roof_loads_follow_eq_7_3_1(grid_layer, sites_frame):
 
 
 def test_profiles_chosen_per_row(grid_layer, sites_frame):
-    df = sites_frame.assign(roof=["a" if i % 2 else "b" for i in range(len(sites_frame))])
+    df = sites_frame.assign(roof=["a" if i % 2 else " B" for i in range(len(sites_frame))])
     profiles = {
         "profile": {
             "a": {"ce": 1.0, "ct": 1.0, "risk": "I"},
@@ -144,7 +144,7 @@ def test_profiles_chosen_per_row(grid_layer, sites_frame):
     res = screen(df, layers=[grid_layer], roof=profiles)
     ok = res["status"] == "ok"
     is_a = (df["roof"] == "a") & ok
-    is_b = (df["roof"] == "b") & ok
+    is_b = (df["roof"] == " B") & ok  # matched case- and space-blind
     # ASCE 7-16 Table 1.5-2 (from memory): Is = 0.80 (I), 1.20 (IV)
     np.testing.assert_allclose(res["pf_psf"][is_a], 0.7 * 0.8 * res["pg_psf"][is_a], rtol=1e-9)
     np.testing.assert_allclose(res["pf_psf"][is_b], 0.7 * 1.2 * res["pg_psf"][is_b], rtol=1e-9)
@@ -226,3 +226,23 @@ def test_demo_layers_by_default_say_so():
         pytest.skip("the embedded demo data is not built yet")
     run = run_screen(pd.DataFrame({"lat": [0.0], "lon": [0.0]}))
     assert run.summary["demo"] is True
+
+
+def test_progress_bar_only_when_asked(grid_layer, sites_frame, capsys):
+    run_screen(sites_frame, layers=[grid_layer], progress=False)
+    assert capsys.readouterr().err == ""
+    run_screen(sites_frame, layers=[grid_layer], progress=True)
+    assert "resolving" in capsys.readouterr().err
+
+
+def test_dask_engine_name_is_validated(grid_layer, sites_frame):
+    with pytest.raises(InputError, match="engine.*accepted: local, dask"):
+        screen(sites_frame, layers=[grid_layer], engine="spark")
+
+
+def test_blank_coordinates_with_address_but_no_geocoder(grid_layer, monkeypatch):
+    monkeypatch.delenv("NEVE_GEOCODER_URL", raising=False)
+    df = pd.DataFrame({"lat": [45.5, None], "lon": [-109.5, None], "address": ["", "2 Mill Ln"]})
+    res = screen(df, layers=[grid_layer])
+    assert res["status"][0] == "study_required"  # NW zone of the fixture
+    assert res["status"][1] == "error" and "--gazetteer" in res["message"][1]

@@ -236,3 +236,27 @@ def test_lat_lon_rows_fall_back_on_address():
     geocode_rows(s, lambda a: (44.5, -108.5))
     assert (s.lat[1], s.lon[1]) == (44.5, -108.5)
     assert s.lat[0] == 45.0
+
+
+from hypothesis import given, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+_cells = st.one_of(
+    st.none(),
+    st.floats(allow_nan=True, allow_infinity=True),
+    st.text(max_size=12),
+    st.sampled_from(["45.5", "-109.5", "1e3", "91", " 12 ", "NaN", "inf", "1,5"]),
+)
+
+
+@settings(max_examples=60, deadline=None)
+@given(st.lists(st.tuples(_cells, _cells, _cells), min_size=1, max_size=30))
+def test_any_cells_give_one_result_per_row(rows):
+    """Property: whatever is in the cells, every row comes back, either located or with a reason."""
+    df = pd.DataFrame(rows, columns=["lat", "lon", "elevation"], dtype=object)
+    s = parse_sites(df)
+    assert len(s.lat) == len(s.lon) == len(s.error) == len(s.elevation_ft) == len(df)
+    located = np.isfinite(s.lat) & np.isfinite(s.lon)
+    assert ((s.error == "") == located).all()
+    assert (np.abs(s.lat[located]) <= 90).all() and (np.abs(s.lon[located]) <= 180).all()
+    assert (s.error[~located] != "").all()
