@@ -70,8 +70,6 @@ def site(**kw) -> None:
         raise InputError(
             "at", "give exactly one of --at LAT,LON or --address TEXT", "--at 47.5,-140"
         )
-    if kw["elevation"] and kw["dem"]:
-        pass  # both are allowed: the DEM is compared with the given elevation
     roof = roof_from_options(kw)
     _check_output(kw["map_path"], "map", kw["overwrite"])
     _check_output(kw["package_dir"], "package", kw["overwrite"], is_dir=True)

@@ -111,6 +111,7 @@ def explain(zt: ZoneTable, j: int, elev: float, meta: dict, ref: str) -> list[St
             env = {c: zt.columns[c][j] for c in expr.names - {"A"}}
             env["A"] = elev
             raw_val = float(expr.evaluate(env))
+            subs = f"{subs}: {expr.substitute(env)}"
         steps.append(
             Step(
                 "pg",
@@ -141,12 +142,14 @@ def explain(zt: ZoneTable, j: int, elev: float, meta: dict, ref: str) -> list[St
         )
     if not math.isnan(zt.pg_min[j]) and state in (OK, UNCHECKED):
         floor = float(zt.pg_min[j])
+        before = [st.value for st in steps if st.symbol == "pg" and st.value is not None]
+        pre = fmt(before[-1]) if before else "pg"
         steps.append(
             Step(
                 "pg",
                 f"floor pg_min of zone {zid}",
                 "pg = max(pg, pg_min)",
-                f"max(..., {fmt(floor)})",
+                f"max({pre}, {fmt(floor)})",
                 value,
                 vu,
                 ref,

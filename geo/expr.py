@@ -90,6 +90,22 @@ class Expr:
         with np.errstate(all="ignore"):
             return np.asarray(_eval(self.tree.body, env), dtype=float)
 
+    def substitute(self, env: dict) -> str:
+        """The expression with each name replaced by its value (for step records).
+
+        >>> compile_expr("Z + 0.02 * max(A - 1000, 0)").substitute({"A": 1500.0, "Z": 30.0})
+        '30 + 0.02 * max(1500 - 1000, 0)'
+        """
+
+        class _Put(ast.NodeTransformer):
+            def visit_Name(self, node):  # noqa: N802 - ast API
+                if node.id not in env:  # a function name such as max
+                    return node
+                v = float(env[node.id])
+                return ast.Constant(int(v) if v == int(v) else round(v, 4))
+
+        return ast.unparse(_Put().visit(ast.parse(self.text, mode="eval")))
+
 
 def _fail(text: str, problem: str) -> ExpressionError:
     return ExpressionError(f"expression {text!r}: {problem}; allowed: {_ALLOWED_TEXT}")

@@ -130,7 +130,7 @@ class Layer:
         if "tree" not in self._cache:
             import shapely
 
-            self._cache["tree"] = shapely.STRtree(self.frame.geometry.values)
+            self._cache["tree"] = shapely.STRtree(self.prepared())
         return self._cache["tree"]
 
     def tree_m(self):
@@ -138,8 +138,10 @@ class Layer:
         if "tree_m" not in self._cache:
             import shapely
 
-            geoms = self.frame.geometry.to_crs(3395).values
-            self._cache["tree_m"] = (np.asarray(geoms), shapely.STRtree(geoms))
+            geoms = np.asarray(
+                shapely.make_valid(np.asarray(self.frame.geometry.to_crs(3395).values))
+            )
+            self._cache["tree_m"] = (geoms, shapely.STRtree(geoms))
         return self._cache["tree_m"]
 
     def prepared(self) -> np.ndarray:
@@ -147,7 +149,8 @@ class Layer:
         if "prepared" not in self._cache:
             import shapely
 
-            geoms = np.array(self.frame.geometry.values, dtype=object)
+            # invalid zones (reported by `neve layer check`) are repaired for the look-up
+            geoms = np.asarray(shapely.make_valid(np.asarray(self.frame.geometry.values)))
             shapely.prepare(geoms)
             self._cache["prepared"] = geoms
         return self._cache["prepared"]

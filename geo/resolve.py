@@ -17,6 +17,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
+from engine.errors import InputError
 from engine.units import KPA_PER_PSF, M_PER_FT
 from geo import rules as R
 from geo.coords import suspect_mask, valid_mask
@@ -49,7 +50,6 @@ LIMITING = (
 )
 _BAD_COORDS = 1 << 20  # message-only bits, never shown as flags
 _NEAR_UNKNOWN = 1 << 21
-_INTERNAL = _BAD_COORDS | _NEAR_UNKNOWN
 COLUMNS = [
     "status", "pg_psf", "pg_kpa", "zone_id", "zone_ids", "rule", "flags", "message",
     "elevation_ft", "elevation_m", "elevation_source", "dem_elevation_ft",
@@ -228,8 +228,6 @@ def resolve_detail(
     lon = _as_array(lon)
     n = lat.size
     if lon.size != n:
-        from engine.errors import InputError
-
         raise InputError("lon", f"{lon.size} longitudes for {n} latitudes", "arrays of one length")
     layers = as_layers(layers)
     valid = valid_mask(lat, lon)
@@ -286,11 +284,13 @@ def resolve_detail(
     bits[~valid] = (bits[~valid] & BIT["demo_data"]) | _BAD_COORDS
     value[~np.isin(status, (OK, PROVISIONAL))] = np.nan
     # flags and messages once per distinct combination
-    key = (status.astype(np.int64) << 32) | (bits << 4) | (gov + 1).astype(np.int64)
+    if len(layers) > 1000:
+        raise InputError("layer", f"{len(layers)} layers given", "at most 1000 stacked layers")
+    key = (status.astype(np.int64) << 48) | (bits << 10) | (gov + 1).astype(np.int64)
     uniq, inv = np.unique(key, return_inverse=True)
     msgs, ftxt = [], []
     for u in uniq:
-        s, b, g = int(u >> 32), int((u >> 4) & ((1 << 28) - 1)), int(u & 15) - 1
+        s, b, g = int(u >> 48), int((u >> 10) & ((1 << 38) - 1)), int(u & 1023) - 1
         msgs.append(_message(s, b, layers[g] if 0 <= g < len(layers) else None, 0))
         ftxt.append(";".join(sorted(f for f in FLAGS if b & BIT[f])))
     message = np.array(msgs, dtype=object)[inv]

@@ -134,10 +134,12 @@ def _profile_errors(sites: SiteArrays, roofs) -> None:
             "a 'roof' column naming a profile on each row, or a ROOF.toml without profiles",
         )
     canonical = {name.strip().lower(): name for name in roofs}  # case-blind, as every choice
+    codes, uniques = pd.factorize(sites.roof)  # each distinct name looked at once
+    mapped = np.array([canonical.get(str(u).lower()) for u in uniques] + [None], dtype=object)
+    found = mapped[codes]
     names = pd.Series(sites.roof)
-    mapped = names.str.lower().map(canonical)
-    sites.roof = mapped.where(mapped.notna(), names).to_numpy(dtype=object)
-    unknown = (mapped.isna() & (names != "")).to_numpy()
+    sites.roof = np.where(found != None, found, sites.roof)  # noqa: E711
+    unknown = (found == None) & (sites.roof != "")  # noqa: E711
     accepted = ", ".join(roofs)
     todo = unknown & (sites.error == "")
     sites.error[todo] = [f"roof: unknown profile {v!r}; accepted: {accepted}" for v in names[todo]]

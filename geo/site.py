@@ -75,8 +75,8 @@ def _steps(layer, hits, row, elev_ft: float, source: str) -> list[dict]:
     steps: list[Step] = []
     if np.isfinite(elev_ft):
         steps.append(
-            Step("A", f"site elevation ({source})", "A", f"{fmt(elev_ft)} ft = "
-                 f"{fmt(elev_ft / FT_PER_M)} m", elev_ft, "ft", f"site elevation from {source}")
+            Step("A", f"site elevation ({source})", "A", f"{fmt(elev_ft / FT_PER_M)} m",
+                 elev_ft, "ft", f"site elevation from {source}")
         )  # fmt: skip
     zid = hits.zone_id[0]
     j = int(hits.zone_idx[0])

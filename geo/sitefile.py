@@ -36,8 +36,10 @@ SITE_FORMATS = {
     ".pq": "parquet",
 }
 #: accepted latitude / longitude column names (matched case-blind)
-LAT_NAMES = ("lat", "latitude")
-LON_NAMES = ("lon", "longitude", "lng", "long")
+LAT_NAMES = ("lat", "latitude", "site_lat")  # site_lat/site_lon: neve's own results
+LON_NAMES = ("lon", "longitude", "lng", "long", "site_lon")
+#: text columns of WKT points (EPSG:4326) accepted in CSV and XLSX files
+WKT_NAMES = ("geometry", "wkt")
 ADDRESS_NAMES = ("address",)
 SITE_ID_NAMES = ("site_id",)
 ROOF_NAMES = ("roof",)
@@ -52,7 +54,7 @@ ELEVATION_RANGE_FT = (-1500.0, 30000.0)
 
 ACCEPTED_COORDS = (
     "columns lat and lon (or latitude and longitude, lng), or an address column, "
-    "or a point geometry (GeoPackage, GeoParquet)"
+    "or a point geometry (GeoPackage, GeoParquet, or WKT text in a geometry column)"
 )
 ACCEPTED_ELEVATION = (
     "a number with its unit in the cell (1200ft, 412m) in a column named 'elevation', "
@@ -163,15 +165,33 @@ def read_sites(path: str | Path) -> tuple[pd.DataFrame, object]:
     except Exception as exc:  # a corrupt file, or not a table at all
         raise InputError(
             "sites",
-            f"{str(p)!r} is not a readable {fmt} table ({type(exc).__name__}: {exc})",
+            f"{str(p)!r} is not a readable {fmt} table ({type(exc).__name__}: {str(exc).strip()})",
             "a CSV, XLSX, GPKG or Parquet table with one row per site",
         ) from None
     frame.columns = [str(c) for c in frame.columns]
+    if geometry is None and fmt in ("csv", "xlsx"):
+        geometry = _wkt_geometry(frame)
     if len(frame.columns) == 0:
         raise InputError("sites", f"{str(p)!r} has no columns", ACCEPTED_COORDS)
     if len(frame) == 0:
         raise InputError("sites", f"{str(p)!r} has no rows", "a table with at least one site")
     return frame.reset_index(drop=True), geometry
+
+
+def _wkt_geometry(frame: pd.DataFrame):
+    """Points from a WKT text column (WGS 84) when the table has no lat/lon columns."""
+    if _find(frame.columns, LAT_NAMES) is not None:
+        return None
+    col = _find(frame.columns, WKT_NAMES)
+    if col is None or len(frame) == 0:
+        return None
+    import geopandas as gpd
+    import shapely
+
+    text = frame[col].astype(object).where(frame[col].notna(), None).to_numpy()
+    text = np.array([t if isinstance(t, str) and t.strip() else None for t in text], dtype=object)
+    geoms = shapely.from_wkt(text, on_invalid="ignore")
+    return gpd.GeoSeries(geoms, crs="EPSG:4326")
 
 
 def _read_csv(p: Path) -> pd.DataFrame:
@@ -181,7 +201,10 @@ def _read_csv(p: Path) -> pd.DataFrame:
         for c in head.columns
         if str(c).strip().lower() in SITE_ID_NAMES + ADDRESS_NAMES + ROOF_NAMES + ("elevation",)
     }
-    return pd.read_csv(p, dtype=text_cols, encoding="utf-8-sig", skipinitialspace=True)
+    try:  # the multi-threaded Arrow reader first; the C reader for what it refuses
+        return pd.read_csv(p, dtype=text_cols, encoding="utf-8-sig", engine="pyarrow")
+    except Exception:
+        return pd.read_csv(p, dtype=text_cols, encoding="utf-8-sig", skipinitialspace=True)
 
 
 def _split_geometry(gdf) -> tuple[pd.DataFrame, object]:
@@ -392,8 +415,13 @@ def parse_sites(frame: pd.DataFrame, geometry=None) -> SiteArrays:
     duplicate = np.zeros(n, dtype=bool)
     if cols["site_id"] is not None:
         ids = frame[cols["site_id"]]
-        named = ids.notna() & (ids.astype(str).str.strip() != "")
-        duplicate = (ids.duplicated(keep=False) & named).to_numpy()
+        codes, _ = pd.factorize(ids)  # missing ids get code -1
+        counts = np.bincount(codes[codes >= 0], minlength=1)
+        duplicate = np.zeros(n, dtype=bool)
+        has = codes >= 0
+        duplicate[has] = counts[codes[has]] > 1
+        if duplicate.any():  # blank ids are not ids
+            duplicate &= (ids.astype(str).str.strip() != "").to_numpy()
     fine = err == ""
     lat = np.where(fine, lat, np.nan)
     lon = np.where(fine, lon, np.nan)

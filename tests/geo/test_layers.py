@@ -70,3 +70,13 @@ def test_demo_stack_is_marked_and_complete():
     assert "Z" in base.zones.columns
     assert base.crs.to_epsg() == 32607  # stored projected on purpose
     assert demo_dem_path().is_file()
+
+
+def test_view_of_a_kpa_layer_converts_to_psf():
+    from engine.units import KPA_PER_PSF
+
+    town = demo_layers()[0]
+    z = town.view()["zones"].set_index("zone_id")
+    assert town.meta["value_units"] == "kPa"
+    assert z.loc["PH-1", "pg"] == 1.45  # invented demo value, kPa
+    assert z.loc["PH-1", "pg_psf"] == pytest.approx(1.45 / KPA_PER_PSF)

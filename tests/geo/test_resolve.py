@@ -306,3 +306,24 @@ def test_prefiltered_and_plain_paths_agree():
     ]
     chunked = pd.concat(parts, ignore_index=True)
     pd.testing.assert_frame_equal(full, chunked)
+
+
+def test_defective_geometries_do_not_break_the_lookup(fixture_dir):
+    """A null geometry and a bow-tie (both reported by `neve layer check`) still resolve."""
+    from shapely.geometry import Polygon
+
+    rows = fixture_rows()
+    rows[0]["geometry"] = None
+    rows[5]["geometry"] = Polygon(
+        [(LON0 + 2 * D, LAT0 + D), (LON0 + 3 * D, LAT0 + 2 * D), (LON0 + 3 * D, LAT0 + D),
+         (LON0 + 2 * D, LAT0 + 2 * D)]
+    )  # fmt: skip
+    path = write_layer(fixture_dir / "defective_geoms.gpkg", rows)
+    rng = np.random.default_rng(4)
+    for n in (50, 3000):  # without and with the prefilters
+        lat = LAT0 + rng.uniform(0, 2 * D, n)
+        lon = LON0 + rng.uniform(0, 3 * D, n)
+        df = resolve_points(lat, lon, layers=[path], elevation_ft=np.full(n, 100.0))
+        in_z1 = (lat < LAT0 + D) & (lon < LON0 + D)
+        assert (df.loc[in_z1, "zone_id"] != "Z1").all()  # the null zone covers nothing
+        assert set(df["status"]) <= {"ok", "provisional", "study_required", "no_data"}

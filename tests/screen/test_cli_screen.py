@@ -219,6 +219,8 @@ def test_interrupted_run_leaves_no_partial_output(tmp_path, grid_layer):
         p.communicate(timeout=120)
         if out.exists():
             assert len(pd.read_csv(out, usecols=["status"])) == len(lat)
+        if k == 0:  # stopped during start-up: nothing written
+            assert not out.exists() and p.returncode != 0
         leftovers = [f.name for f in tmp_path.iterdir() if ".part" in f.name]
         assert leftovers == [], leftovers
 

@@ -246,3 +246,36 @@ def test_blank_coordinates_with_address_but_no_geocoder(grid_layer, monkeypatch)
     res = screen(df, layers=[grid_layer])
     assert res["status"][0] == "study_required"  # NW zone of the fixture
     assert res["status"][1] == "error" and "--gazetteer" in res["message"][1]
+
+
+def test_given_elevation_wins_and_is_checked_against_the_dem(grid_layer, tmp_path):
+    import rasterio
+    from rasterio.transform import from_bounds
+
+    dem_path = tmp_path / "flat.tif"
+    with rasterio.open(
+        dem_path, "w", driver="GTiff", width=20, height=20, count=1, dtype="float32",
+        crs="EPSG:4326", transform=from_bounds(-110, 44, -108, 46, 20, 20), nodata=-9999,
+    ) as dst:  # fmt: skip
+        dst.write(np.full((20, 20), 1000.0, dtype=np.float32), 1)  # 1000 m everywhere
+    df = pd.DataFrame({"lat": [45.5, 45.5], "lon": [-108.5, -108.5], "elevation_m": [1005, 1400]})
+    res = screen(df, layers=[grid_layer], dem=dem_path, dem_units="m")
+    assert (res["site_elevation_source"] == "input").all()
+    np.testing.assert_allclose(res["site_elevation_m"], [1005, 1400], rtol=1e-12)
+    # DESIGN.md: given and DEM elevations more than 15 m apart are flagged
+    assert "elevation_mismatch" not in res["flags"][0]
+    assert "elevation_mismatch" in res["flags"][1]
+
+
+def test_geodataframe_in_a_projected_crs(grid_layer, sites_frame):
+    import geopandas as gpd
+
+    gdf = gpd.GeoDataFrame(
+        sites_frame.drop(columns=["lat", "lon"]),
+        geometry=gpd.points_from_xy(sites_frame["lon"], sites_frame["lat"]),
+        crs="EPSG:4326",
+    ).to_crs("EPSG:32612")
+    res = screen(gdf, layers=[grid_layer])
+    ref = screen(sites_frame, layers=[grid_layer])
+    assert list(res["zone_id"]) == list(ref["zone_id"])
+    np.testing.assert_allclose(res["site_lat"], sites_frame["lat"], atol=1e-9)  # pyproj round trip

@@ -260,3 +260,17 @@ def test_any_cells_give_one_result_per_row(rows):
     assert ((s.error == "") == located).all()
     assert (np.abs(s.lat[located]) <= 90).all() and (np.abs(s.lon[located]) <= 180).all()
     assert (s.error[~located] != "").all()
+
+
+def test_wkt_points_in_a_csv(tmp_path):
+    p = tmp_path / "s.csv"
+    p.write_text("id,geometry\na,POINT (-109.5 45.5)\nb,not wkt\nc,\n", encoding="utf-8")
+    s = load_sites(p)
+    assert s.source == "geometry"
+    assert (s.lat[0], s.lon[0]) == (45.5, -109.5)  # WKT order is x (lon) then y (lat)
+    assert "missing" in s.error[1] and "missing" in s.error[2]
+
+
+def test_result_columns_locate_sites_again():
+    s = parse_sites(pd.DataFrame({"address": ["x"], "site_lat": [45.5], "site_lon": [-109.5]}))
+    assert s.source == "latlon" and s.lat[0] == 45.5
