@@ -42,7 +42,7 @@ def _case_values(case: dict) -> list[str]:
     return out
 
 
-def roof_text(result: dict, *, show_steps: bool = True) -> str:
+def roof_text(result: dict, *, show_steps: bool = True, show_cautions: bool = True) -> str:
     """A readable summary of a ``neve roof`` JSON object, with its steps."""
     f = result["factors"]
     loads = result["loads"]
@@ -69,9 +69,11 @@ def roof_text(result: dict, *, show_steps: bool = True) -> str:
         if show_steps:
             for s in case["steps"]:
                 value = s["value"]
-                value = f"{value:.4g}" if isinstance(value, float) else value
+                value = f"{value:.4g}" if isinstance(value, float) else str(value)
+                unit = "" if s["unit"] == "-" else s["unit"]
+                detail = s["substituted"] if s["substituted"] != value else s["description"]
                 lines.append(
-                    f"        {s['symbol']:>11} = {value} {s['unit']:<4}  {s['substituted']}   [{s['ref']}]"
+                    f"        {s['symbol']:>11} = {value:<8} {unit:<4} {detail}   [{s['ref']}]"
                 )
     if result.get("not_required"):
         lines.append("")
@@ -81,9 +83,10 @@ def roof_text(result: dict, *, show_steps: bool = True) -> str:
             lines.append(f"  [{item['case']}]{name}: {item['reason']}")
     lines.append("")
     lines.append("Flags: " + (", ".join(result["flags"]) if result["flags"] else "none"))
-    lines.append("")
-    lines.append("Cautions")
-    lines.extend(f"  ! {c}" for c in result["cautions"])
+    if show_cautions:
+        lines.append("")
+        lines.append("Cautions")
+        lines.extend(f"  ! {c}" for c in result["cautions"])
     return "\n".join(lines)
 
 

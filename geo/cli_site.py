@@ -114,7 +114,12 @@ def site(**kw) -> None:
             from maps.package import write_package
 
             write_package(
-                data, views, kw["package_dir"], project=kw["project"], site_name=kw["site_name"]
+                data,
+                views,
+                kw["package_dir"],
+                project=kw["project"],
+                site_name=kw["site_name"],
+                overwrite=kw["overwrite"],
             )
     if kw["fmt"] == "json":
         click.echo(json.dumps(data, indent=2, ensure_ascii=False, allow_nan=False))

@@ -90,11 +90,7 @@ def atomic_path(path: str | Path, *, overwrite: bool = False) -> Iterator[Path]:
             raise InputError("output", f"{str(target)!r} appeared during the run", "--overwrite")
         os.replace(tmp, target)
     finally:
-        for leftover in (tmp, *(Path(f"{tmp}{s}") for s in ("-wal", "-shm", "-journal"))):
-            try:
-                leftover.unlink()
-            except FileNotFoundError:
-                pass
+        _remove(tmp)
 
 
 def _points(df: pd.DataFrame, geometry=None):
@@ -108,6 +104,27 @@ def _points(df: pd.DataFrame, geometry=None):
         geom = gpd.GeoSeries(gpd.points_from_xy(lon, lat), crs="EPSG:4326")
         geom[np.isnan(lon) | np.isnan(lat)] = None
     return gpd.GeoDataFrame(df.reset_index(drop=True), geometry=geom, crs="EPSG:4326")
+
+
+def _remove(path: Path) -> None:
+    for leftover in (path, *(Path(f"{path}{s}") for s in ("-wal", "-shm", "-journal"))):
+        try:
+            leftover.unlink()
+        except FileNotFoundError:
+            pass
+
+
+def _write_csv(df: pd.DataFrame, tmp: Path) -> None:
+    """CSV through Arrow's writer (several times faster than pandas); pandas as fallback."""
+    import pyarrow as pa
+    import pyarrow.csv as pcsv
+
+    try:
+        table = pa.Table.from_pandas(_dictionary_encoded(df), preserve_index=False)
+        pcsv.write_csv(table, tmp, write_options=pcsv.WriteOptions(quoting_style="needed"))
+    except (pa.ArrowInvalid, pa.ArrowTypeError, pa.ArrowNotImplementedError):
+        _remove(tmp)
+        df.to_csv(tmp, index=False)
 
 
 def _dictionary_encoded(df: pd.DataFrame) -> pd.DataFrame:
@@ -242,7 +259,7 @@ def write_results(
     target = Path(path)
     with atomic_path(target, overwrite=overwrite) as tmp:
         if fmt == "csv":
-            _for_text(df, geometry).to_csv(tmp, index=False)
+            _write_csv(_for_text(df, geometry), tmp)
         elif fmt == "xlsx":
             _write_xlsx(_for_text(df, geometry), tmp, summary)
         elif fmt == "parquet":
@@ -254,7 +271,11 @@ def write_results(
             import pyogrio
 
             gdf = _points(df, geometry)
-            pyogrio.write_dataframe(gdf, tmp, driver="GPKG", layer="results")
+            try:  # Arrow I/O is much faster for large tables
+                pyogrio.write_dataframe(gdf, tmp, driver="GPKG", layer="results", use_arrow=True)
+            except Exception:
+                _remove(tmp)
+                pyogrio.write_dataframe(gdf, tmp, driver="GPKG", layer="results")
         if _writer_hook is not None:  # tests: simulate an interruption after writing
             _writer_hook(tmp)
     return target

@@ -201,7 +201,7 @@ def resolve_site(
         if near:
             n0 = min(near, key=lambda n: n["distance"]["m"])
             message += f" The nearest zone is {n0['zone_id']}, {n0['distance']['m']:.0f} m away."
-    if "coordinates_suspect" in flags and g < 0 and abs(lon) <= 90:
+    if "coordinates_suspect" in flags and g < 0 and abs(lon) <= 90 and lat != lon:
         message += f" Did you mean {lon:g},{lat:g} (latitude and longitude swapped)?"
     others = []
     for k, layer in enumerate(layers):

@@ -13,7 +13,7 @@ def _length(x: dict | None) -> str:
     return "—" if x is None else f"{x['ft']:.0f} ft ({x['m']:.1f} m)"
 
 
-def site_text(result) -> str:
+def site_text(result, show_steps: bool = True) -> str:
     """Summary lines: site, ground status and value, zone, flags, elevation, layer, roof."""
     s, g, roof = result.site, result.ground, result.roof
     lines: list[str] = []
@@ -59,17 +59,11 @@ def site_text(result) -> str:
             lines.append(f"  {st['symbol']}: {st['description']}: {st['substituted']}{value}")
     if roof is not None:
         lines.append("")
+        from geo.cli_roof import roof_text
+
         lines.append(f"Roof ({roof['standard']}):")
-        f = roof["factors"]
-        lines.append(f"  Ce {f['Ce']:g}  Ct {f['Ct']:g}  Is {f['Is']:g}  Cs {f['Cs']:g}")
-        for key, val in roof["loads"].items():
-            if val is not None:
-                lines.append(f"  {key}: {_load(val)}")
-        for case in roof["cases"]:
-            lines.append(f"  case {case['case']}: {case.get('name', '')}")
-        lines.append(f"  design uniform load: {_load(roof['design_uniform'])}")
-        if roof.get("flags"):
-            lines.append(f"  roof flags: {', '.join(roof['flags'])}")
+        body = roof_text(roof, show_steps=show_steps, show_cautions=False)
+        lines += ["  " + line if line else "" for line in body.splitlines()]
     lines.append("")
     lines.append("Cautions:")
     lines += [f"  - {c}" for c in g["cautions"]]
