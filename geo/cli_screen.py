@@ -133,7 +133,10 @@ def screen(sites, output, layers, dem, dem_units, map_path, engine, scheduler, s
         )
     roof = _roof(roof_kw)
     progress = not quiet and sys.stderr.isatty()
-    previous = signal.signal(signal.SIGTERM, _terminate)
+    try:  # a terminated run cleans up its temporary files like an interrupted one
+        previous = signal.signal(signal.SIGTERM, _terminate)
+    except ValueError:  # not the main thread: leave signals alone
+        previous = None
     try:
         run = run_screen(
             sites,
@@ -161,7 +164,8 @@ def screen(sites, output, layers, dem, dem_units, map_path, engine, scheduler, s
             with atomic_path(summary_json, overwrite=overwrite) as tmp:
                 tmp.write_text(json.dumps(run.summary, indent=2), encoding="utf-8")
     finally:
-        signal.signal(signal.SIGTERM, previous)
+        if previous is not None:
+            signal.signal(signal.SIGTERM, previous)
     click.echo(format_summary(run.summary))
     click.echo(f"results: {output}")
     if map_path:

@@ -61,19 +61,9 @@ def _client(scheduler: str | None):
 
 
 def _portable(layer):
-    """A shallow copy of a layer without its look-up caches.
+    from geo.screen import portable_layer
 
-    Prepared geometries and trees do not survive pickling in a usable state,
-    so each worker rebuilds them once, on its first partition, for the copy
-    it holds.
-    """
-    import copy
-
-    if not hasattr(layer, "_cache"):
-        return layer
-    clone = copy.copy(layer)
-    clone._cache = {}
-    return clone
+    return portable_layer(layer)
 
 
 def _resolve_partition(part, layers, dem, dem_units, columns=None):

@@ -60,6 +60,10 @@ ROOF_LOADS = ("pf", "ps", "pm", "rain_on_snow", "design_uniform")
 #: sites resolved per call of the resolver (bounds memory, paces the progress bar)
 CHUNK_SIZE = 262_144
 ENGINES = ("local", "dask")
+#: environment variable setting the local engine's thread count (1: no threads)
+THREADS_ENV = "NEVE_THREADS"
+#: portfolios from this size on are resolved by two threads
+THREADED_FROM = 200_000
 #: the resolver's columns that screening uses
 RESOLVED_COLUMNS = (
     "status", "pg_psf", "zone_id", "flags", "message", "elevation_ft", "elevation_source",
@@ -145,27 +149,89 @@ def _profile_errors(sites: SiteArrays, roofs) -> None:
     sites.error[todo] = [f"roof: unknown profile {v!r}; accepted: {accepted}" for v in names[todo]]
 
 
+def portable_layer(layer):
+    """A shallow copy of a layer with empty look-up caches.
+
+    The copy builds its own prepared geometries and trees on first use.  GEOS
+    prepared geometries and trees are built lazily and are not safe to share
+    between threads, and they do not survive pickling in a usable state, so
+    every thread (or Dask worker) works on its own copy.
+    """
+    import copy
+
+    if not hasattr(layer, "_cache"):
+        return layer
+    clone = copy.copy(layer)
+    clone._cache = {}
+    return clone
+
+
+def worker_threads(n_sites: int) -> int:
+    """Threads for the local engine: up to two on large portfolios (``NEVE_THREADS`` overrides).
+
+    Shapely and numpy release the GIL for the heavy work, so two threads use
+    two cores without copying the sites to other processes.
+    """
+    import os
+
+    env = os.environ.get(THREADS_ENV, "").strip()
+    if env:
+        if not env.isdigit() or int(env) < 1:
+            raise InputError(THREADS_ENV, f"{env!r} is not a positive whole number", "1, 2, ...")
+        return int(env)
+    if n_sites < THREADED_FROM:
+        return 1
+    return max(1, min(2, os.cpu_count() or 1))
+
+
 def resolve_local(lat, lon, elevation_ft, *, layers, dem=None, dem_units=None, progress=False):
-    """Resolve sites in chunks on this machine; one DataFrame row per site, in order."""
+    """Resolve sites in chunks on this machine; one DataFrame row per site, in order.
+
+    Large portfolios are resolved by :func:`worker_threads` threads, each with
+    its own copy of the layers (:func:`portable_layer`); the chunks are put
+    back in input order.
+    """
+    import queue
+    from concurrent.futures import ThreadPoolExecutor
+
     from geo.resolve import resolve_points
 
     n = len(lat)
+    threads = worker_threads(n)
+    size = CHUNK_SIZE if threads == 1 else max(1, min(CHUNK_SIZE, -(-n // (4 * threads))))
+    chunks = [(start, min(start + size, n)) for start in range(0, n, size)]
+    pool: queue.Queue = queue.Queue()
+    pool.put(list(layers))
+    for _ in range(threads - 1):
+        pool.put([portable_layer(layer) for layer in layers])
+
+    def run(chunk):
+        start, stop = chunk
+        own = pool.get()  # a layer set no other thread is using
+        try:
+            return resolve_points(
+                lat[start:stop],
+                lon[start:stop],
+                layers=own,
+                elevation_ft=None if elevation_ft is None else elevation_ft[start:stop],
+                dem=dem,
+                dem_units=dem_units,
+            )
+        finally:
+            pool.put(own)
+
     parts = []
     bar = _bar(n, progress, "resolving")
     try:
-        for start in range(0, n, CHUNK_SIZE):
-            stop = min(start + CHUNK_SIZE, n)
-            parts.append(
-                resolve_points(
-                    lat[start:stop],
-                    lon[start:stop],
-                    layers=layers,
-                    elevation_ft=None if elevation_ft is None else elevation_ft[start:stop],
-                    dem=dem,
-                    dem_units=dem_units,
-                )
-            )
-            bar.update(stop - start)
+        if threads == 1:
+            for chunk in chunks:
+                parts.append(run(chunk))
+                bar.update(chunk[1] - chunk[0])
+        else:
+            with ThreadPoolExecutor(threads, thread_name_prefix="neve-resolve") as ex:
+                for chunk, part in zip(chunks, ex.map(run, chunks), strict=True):
+                    parts.append(part)  # map keeps the input order
+                    bar.update(chunk[1] - chunk[0])
     finally:
         bar.close()
     if not parts:
@@ -403,11 +469,16 @@ def _add_roof(out: dict, site: SiteArrays, roofs) -> None:
 
 
 def _join_input(frame: pd.DataFrame, out: dict) -> pd.DataFrame:
-    added = pd.DataFrame(
-        dict(out),
-        index=frame.index,
-    )
-    taken = set(added.columns)
-    renamed = {c: f"input_{c}" for c in frame.columns if c in taken}
-    left = frame.rename(columns=renamed) if renamed else frame
-    return pd.concat([left, added], axis=1)
+    """Input columns first (a clash with a result name becomes ``input_<name>``), then results.
+
+    Columns are put side by side without copying or re-inferring their types.
+    """
+    renamed = {c: f"input_{c}" for c in frame.columns if c in out}
+    cols = {renamed.get(c, c): frame[c] for c in frame.columns}
+    for key, value in out.items():
+        if isinstance(value, pd.Series):
+            cols[key] = value.set_axis(frame.index)
+        else:
+            value = np.asarray(value)
+            cols[key] = pd.Series(value, index=frame.index, dtype=value.dtype, copy=False)
+    return pd.DataFrame(cols, copy=False)

@@ -279,3 +279,22 @@ def test_geodataframe_in_a_projected_crs(grid_layer, sites_frame):
     ref = screen(sites_frame, layers=[grid_layer])
     assert list(res["zone_id"]) == list(ref["zone_id"])
     np.testing.assert_allclose(res["site_lat"], sites_frame["lat"], atol=1e-9)  # pyproj round trip
+
+
+def test_threaded_local_engine_gives_the_same_rows(grid_layer, monkeypatch):
+    import geo.screen as gs
+
+    df, _ = _malformed_portfolio()
+    monkeypatch.setenv("NEVE_THREADS", "1")
+    serial = screen(df, layers=[grid_layer])
+    monkeypatch.setenv("NEVE_THREADS", "2")
+    monkeypatch.setattr(gs, "CHUNK_SIZE", 17)  # many small chunks, finished out of order
+    threaded = screen(df, layers=[grid_layer])
+    pd.testing.assert_frame_equal(serial, threaded)
+
+
+@pytest.mark.parametrize("value", ["0", "two", "-1"])
+def test_thread_count_must_be_positive(grid_layer, sites_frame, monkeypatch, value):
+    monkeypatch.setenv("NEVE_THREADS", value)
+    with pytest.raises(InputError, match="NEVE_THREADS"):
+        screen(sites_frame, layers=[grid_layer])
