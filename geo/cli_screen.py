@@ -57,6 +57,19 @@ def _terminate(signum, frame):  # pragma: no cover - exercised through a subproc
 @roof_options
 @click.option("--map", "map_path", type=click.Path(dir_okay=False), help="Portfolio map (.html).")
 @click.option(
+    "--tiles",
+    type=click.Choice(["none", "osm"], case_sensitive=False),
+    default="none",
+    show_default=True,
+    help="Base tiles under the portfolio map (none works offline).",
+)
+@click.option(
+    "--self-contained",
+    "self_contained",
+    is_flag=True,
+    help="Embed the map's scripts and styles so it opens with no internet.",
+)
+@click.option(
     "--engine",
     type=click.Choice(["local", "dask"], case_sensitive=False),
     default="local",
@@ -85,6 +98,12 @@ def _terminate(signum, frame):  # pragma: no cover - exercised through a subproc
     "geocoder_url",
     help="Nominatim-compatible server for address rows (one request per second at most).",
 )
+@click.option(
+    "--geocode-cache",
+    "geocode_cache",
+    type=click.Path(dir_okay=False),
+    help="JSON file keeping found addresses between runs (read, then updated).",
+)
 @click.option("--quiet", is_flag=True, help="No progress bar.")
 @click.option("--overwrite", is_flag=True, help="Replace existing output files.")
 @click.option(
@@ -93,8 +112,8 @@ def _terminate(signum, frame):  # pragma: no cover - exercised through a subproc
     type=click.Path(dir_okay=False),
     help="Also write the run summary as JSON to this file.",
 )
-def screen(sites, output, layers, dem, dem_units, map_path, engine, scheduler, staging, partitions,
-           gazetteer, geocoder_url, quiet, overwrite, summary_json, **roof_kw):  # fmt: skip
+def screen(sites, output, layers, dem, dem_units, map_path, tiles, self_contained, engine, scheduler, staging, partitions,
+           gazetteer, geocoder_url, geocode_cache, quiet, overwrite, summary_json, **roof_kw):  # fmt: skip
     """Screen a portfolio: ground snow load (and roof loads) for every site in SITES.
 
     SITES is a CSV, XLSX, GeoPackage or Parquet file with lat/lon (or
@@ -150,6 +169,7 @@ def screen(sites, output, layers, dem, dem_units, map_path, engine, scheduler, s
             staging=staging,
             gazetteer=gazetteer,
             geocoder_url=geocoder_url,
+            geocode_cache=geocode_cache,
             max_rows=XLSX_MAX_ROWS if fmt == "xlsx" else None,
             progress=progress,
         )
@@ -157,7 +177,7 @@ def screen(sites, output, layers, dem, dem_units, map_path, engine, scheduler, s
             run.results, output, overwrite=overwrite, summary=run.summary, geometry=run.geometry
         )
         if map_path:
-            _write_map(run, map_path, overwrite)
+            _write_map(run, map_path, overwrite, tiles=tiles, self_contained=self_contained)
         if summary_json:
             from geo.outputs import atomic_path
 
@@ -187,7 +207,9 @@ def map_frame(results):
     return view
 
 
-def _write_map(run, map_path: str, overwrite: bool) -> None:
+def _write_map(
+    run, map_path: str, overwrite: bool, *, tiles: str = "none", self_contained: bool = False
+) -> None:
     try:
         from maps.portfolio import write_portfolio_map
     except ImportError as exc:  # pragma: no cover - until the maps package lands
@@ -195,4 +217,10 @@ def _write_map(run, map_path: str, overwrite: bool) -> None:
     from geo.outputs import atomic_path
 
     with atomic_path(map_path, overwrite=overwrite) as tmp:
-        write_portfolio_map(map_frame(run.results), tmp, demo=bool(run.summary.get("demo")))
+        write_portfolio_map(
+            map_frame(run.results),
+            tmp,
+            demo=bool(run.summary.get("demo")),
+            tiles=tiles,
+            self_contained=self_contained,
+        )

@@ -259,6 +259,7 @@ def run_screen(
     geocoder=None,
     gazetteer=None,
     geocoder_url: str | None = None,
+    geocode_cache=None,
     max_rows: int | None = None,
     progress: bool = False,
 ) -> ScreenRun:
@@ -291,11 +292,12 @@ def run_screen(
     _profile_errors(site, roofs)
     lap("read")
     if site.address is not None and (site.address != "").any():
-        from geo.sitefile import geocode_rows, make_geocoder
+        from geo.sitefile import geocode_rows, load_geocode_cache, make_geocoder, save_geocode_cache
 
+        cache = load_geocode_cache(geocode_cache) if geocode_cache else None
         try:
             if geocoder is None:
-                geocoder = make_geocoder(gazetteer, geocoder_url)
+                geocoder = make_geocoder(gazetteer, geocoder_url, cache=cache)
         except InputError as exc:
             if site.source != "latlon":
                 raise
@@ -303,7 +305,11 @@ def run_screen(
             todo = (site.address != "") & (site.error == "")
             site.error[todo] = f"lat/lon missing and the address cannot be geocoded: {exc.accepted}"
         else:
-            geocode_rows(site, geocoder, progress=progress)
+            try:
+                geocode_rows(site, geocoder, progress=progress)
+            finally:  # keep what was found, even on an interrupted run
+                if geocode_cache and cache is not None:
+                    save_geocode_cache(geocode_cache, cache)
         lap("geocode")
     valid = (site.error == "") & np.isfinite(site.lat) & np.isfinite(site.lon)
     idx = np.flatnonzero(valid)
@@ -365,7 +371,8 @@ def screen(sites, *, layers=None, dem=None, dem_units=None, roof=None, engine="l
         ``address -> (lat, lon) | None`` for rows located by address; the
         project's geocoder (with a cache and its rate limit) when omitted,
         built from ``gazetteer=`` (CSV of address, lat, lon) and/or
-        ``geocoder_url=`` (a Nominatim-compatible server).
+        ``geocoder_url=`` (a Nominatim-compatible server); ``geocode_cache=``
+        names a JSON file that keeps found addresses between runs.
     progress : bool
         Show a progress bar on stderr.
 

@@ -560,6 +560,33 @@ def _gazetteer_lookup(path: str | Path):
     return lookup
 
 
+def load_geocode_cache(path: str | Path) -> dict:
+    """Addresses found on earlier runs: a JSON object of address -> [lat, lon] (missing: empty)."""
+    import json
+
+    p = Path(path)
+    if not p.exists():
+        return {}
+    try:
+        data = json.loads(p.read_text(encoding="utf-8"))
+        return {str(k): (float(v[0]), float(v[1])) for k, v in data.items() if v is not None}
+    except (ValueError, TypeError, KeyError, IndexError, AttributeError, UnicodeDecodeError):
+        raise InputError(
+            "geocode-cache", f"{str(p)!r} is not a geocode cache", "a JSON file neve wrote"
+        ) from None
+
+
+def save_geocode_cache(path: str | Path, cache: dict) -> None:
+    """Write the found addresses (not the misses) atomically as JSON."""
+    import json
+
+    from geo.outputs import atomic_path
+
+    found = {k: [v[0], v[1]] for k, v in sorted(cache.items()) if v is not None}
+    with atomic_path(path, overwrite=True) as tmp:
+        tmp.write_text(json.dumps(found, indent=1), encoding="utf-8")
+
+
 def make_geocoder(
     gazetteer: str | Path | None = None,
     url: str | None = None,

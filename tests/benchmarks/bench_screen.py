@@ -100,7 +100,7 @@ def make_portfolio(folder: Path, n_sites: int, n_zones: int, seed: int = 7) -> d
     import pandas as pd
     import rasterio
     import shapely
-    from rasterio.transform import from_bounds
+    from affine import Affine
 
     rng = np.random.default_rng(seed)
     extent = shapely.box(WEST, SOUTH, EAST, NORTH)
@@ -140,7 +140,7 @@ def make_portfolio(folder: Path, n_sites: int, n_zones: int, seed: int = 7) -> d
         "count": 1,
         "dtype": "float32",
         "crs": "EPSG:4326",
-        "transform": from_bounds(WEST, SOUTH, EAST, NORTH, width, height),
+        "transform": Affine((EAST - WEST) / width, 0, WEST, 0, -(NORTH - SOUTH) / height, NORTH),
         "nodata": -9999.0,
         "tiled": True,
         "compress": "deflate",

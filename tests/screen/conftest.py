@@ -103,3 +103,34 @@ def sites_frame() -> pd.DataFrame:
             "elevation": [f"{e:g}ft" for e in elev],
         }
     )
+
+
+def malformed_portfolio(n_good: int = 180) -> tuple[pd.DataFrame, dict]:
+    """A portfolio with 10 % malformed rows of every kind, mixed in at random places."""
+    lat, lon = interior_points(n_good, seed=5)
+    rows = [
+        {"site_id": f"G{i:03d}", "lat": f"{a:.6f}", "lon": f"{o:.6f}", "elevation": "1500ft",
+         "roof": "shed" if i % 2 else "hall"}
+        for i, (a, o) in enumerate(zip(lat, lon, strict=True))
+    ]  # fmt: skip
+    bad = {
+        "lat: 'north' is not a number": {"lat": "north"},
+        "lon: '-109,5' is not a number": {"lon": "-109,5"},
+        "lat: missing": {"lat": ""},
+        "lat: out of range": {"lat": "95.0"},
+        "lon: out of range": {"lon": "-190.0"},
+        "bare number": {"elevation": "1500"},
+        "not a length": {"elevation": "1500psf"},
+        "elevation: '40000ft' is out of range": {"elevation": "40000ft"},
+        "is not an elevation": {"elevation": "tall"},
+        "roof: unknown profile 'barn'": {"roof": "barn"},
+    }
+    expected = {}
+    rng = np.random.default_rng(9)
+    kinds = list(bad.items()) * 2  # 20 malformed rows: 10 % of 200
+    for k, (fragment, change) in enumerate(kinds):
+        pos = int(rng.integers(0, len(rows) + 1))
+        row = {**rows[0], "site_id": f"X{k:02d}", **change}
+        rows.insert(pos, row)
+        expected[f"X{k:02d}"] = fragment
+    return pd.DataFrame(rows), expected

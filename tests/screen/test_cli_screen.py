@@ -185,7 +185,7 @@ def test_installed_command_runs(tmp_path, sites_csv, grid_layer):
     )  # fmt: skip
     assert p.returncode == 0, p.stderr
     assert "sites: 40" in p.stdout
-    assert p.stderr.strip() == ""  # not a terminal: no progress bar
+    assert "resolving" not in p.stderr and "site/s" not in p.stderr  # not a terminal: no bar
     import pyogrio
 
     assert len(pyogrio.read_dataframe(out)) == 40
@@ -371,3 +371,35 @@ def test_too_many_rows_for_xlsx_refused_before_work(tmp_path, sites_csv, grid_la
     assert r.exit_code == 2
     assert "40 sites do not fit" in r.output and ".parquet" in r.output
     assert not (tmp_path / "r.xlsx").exists()
+
+
+def test_geocode_cache_kept_between_runs(tmp_path, grid_layer):
+    import json
+
+    gaz = tmp_path / "gaz.csv"
+    gaz.write_text("address,lat,lon\n1 Harbour Rd,45.5,-109.5\n", encoding="utf-8")
+    sites = tmp_path / "s.csv"
+    sites.write_text("site_id,address\nA,1 Harbour Rd\nB,9 Nowhere\n", encoding="utf-8")
+    cache = tmp_path / "cache.json"
+    r = _run(sites, "-o", tmp_path / "a.csv", "--layer", grid_layer, "--gazetteer", gaz,
+             "--geocode-cache", cache)  # fmt: skip
+    assert r.exit_code == 0, r.output
+    assert json.loads(cache.read_text()) == {"1 harbour rd": [45.5, -109.5]}  # misses not kept
+    gaz.write_text("address,lat,lon\n", encoding="utf-8")  # the second run needs the cache
+    r = _run(sites, "-o", tmp_path / "b.csv", "--layer", grid_layer, "--gazetteer", gaz,
+             "--geocode-cache", cache)  # fmt: skip
+    assert r.exit_code == 0, r.output
+    res = pd.read_csv(tmp_path / "b.csv")
+    assert res["site_lat"][0] == 45.5 and res["status"][1] == "error"
+
+
+def test_bad_geocode_cache_exit_2(tmp_path, grid_layer):
+    gaz = tmp_path / "gaz.csv"
+    gaz.write_text("address,lat,lon\n", encoding="utf-8")
+    sites = tmp_path / "s.csv"
+    sites.write_text("address\n1 Harbour Rd\n", encoding="utf-8")
+    cache = tmp_path / "cache.json"
+    cache.write_text("[1, 2", encoding="utf-8")
+    r = _run(sites, "-o", tmp_path / "a.csv", "--layer", grid_layer, "--gazetteer", gaz,
+             "--geocode-cache", cache)  # fmt: skip
+    assert r.exit_code == 2 and "geocode-cache" in r.output

@@ -11,7 +11,7 @@ distributed = pytest.importorskip("distributed")
 pytest.importorskip("geo.resolve")
 
 from geo.screen import screen  # noqa: E402
-from tests.screen.test_screen import _malformed_portfolio  # noqa: E402
+from tests.screen.conftest import malformed_portfolio  # noqa: E402
 
 pytestmark = pytest.mark.slow
 
@@ -26,7 +26,7 @@ def cluster():
 
 @pytest.fixture
 def portfolio(tmp_path):
-    df, _ = _malformed_portfolio()
+    df, _ = malformed_portfolio()
     roof = tmp_path / "roofs.toml"
     roof.write_text(
         'ce = 1.0\nct = 1.0\n[profile.hall]\nrisk = "II"\n[profile.shed]\nrisk = "IV"\n',
@@ -105,3 +105,26 @@ def test_unreachable_scheduler_is_exit_2(tmp_path, grid_layer, sites_frame, monk
     assert r.exit_code == 2, r.output
     assert "cannot reach the Dask scheduler" in r.output
     assert not (tmp_path / "a.csv").exists()
+
+
+def test_dask_reads_the_dem_on_the_workers(cluster, grid_layer, tmp_path):
+    import rasterio
+    from affine import Affine
+
+    dem_path = tmp_path / "dem.tif"
+    data = np.linspace(0, 1500, 100 * 100, dtype=np.float32).reshape(100, 100)  # metres
+    with rasterio.open(
+        dem_path, "w", driver="GTiff", width=100, height=100, count=1, dtype="float32",
+        crs="EPSG:4326", transform=Affine(0.02, 0, -110, 0, -0.02, 46), nodata=-9999,
+    ) as dst:  # fmt: skip
+        dst.write(data, 1)
+    rng = np.random.default_rng(4)
+    df = pd.DataFrame(
+        {"lat": rng.uniform(44.01, 45.99, 300), "lon": rng.uniform(-109.99, -108.01, 300)}
+    )
+    df.loc[::7, "elevation_ft"] = 2500.0
+    local = screen(df, layers=[grid_layer], dem=dem_path, dem_units="m")
+    remote = screen(df, layers=[grid_layer], dem=dem_path, dem_units="m", engine="dask",
+                    scheduler=cluster.scheduler_address, partitions=3)  # fmt: skip
+    _same(local, remote)
+    assert set(remote["site_elevation_source"]) == {"dem", "input"}

@@ -7,7 +7,7 @@ import pandas as pd
 import pytest
 
 from engine.errors import InputError
-from tests.screen.conftest import GRID, interior_points, zone_of
+from tests.screen.conftest import GRID, malformed_portfolio, zone_of
 
 pytest.importorskip("geo.resolve")
 
@@ -62,39 +62,8 @@ def test_above_elevation_limit_is_flagged(grid_layer):
     assert res["status"][1] != "ok"
 
 
-def _malformed_portfolio(n_good: int = 180) -> tuple[pd.DataFrame, dict]:
-    """A portfolio with 10 % malformed rows of every kind, mixed in at random places."""
-    lat, lon = interior_points(n_good, seed=5)
-    rows = [
-        {"site_id": f"G{i:03d}", "lat": f"{a:.6f}", "lon": f"{o:.6f}", "elevation": "1500ft",
-         "roof": "shed" if i % 2 else "hall"}
-        for i, (a, o) in enumerate(zip(lat, lon, strict=True))
-    ]  # fmt: skip
-    bad = {
-        "lat: 'north' is not a number": {"lat": "north"},
-        "lon: '-109,5' is not a number": {"lon": "-109,5"},
-        "lat: missing": {"lat": ""},
-        "lat: out of range": {"lat": "95.0"},
-        "lon: out of range": {"lon": "-190.0"},
-        "bare number": {"elevation": "1500"},
-        "not a length": {"elevation": "1500psf"},
-        "elevation: '40000ft' is out of range": {"elevation": "40000ft"},
-        "is not an elevation": {"elevation": "tall"},
-        "roof: unknown profile 'barn'": {"roof": "barn"},
-    }
-    expected = {}
-    rng = np.random.default_rng(9)
-    kinds = list(bad.items()) * 2  # 20 malformed rows: 10 % of 200
-    for k, (fragment, change) in enumerate(kinds):
-        pos = int(rng.integers(0, len(rows) + 1))
-        row = {**rows[0], "site_id": f"X{k:02d}", **change}
-        rows.insert(pos, row)
-        expected[f"X{k:02d}"] = fragment
-    return pd.DataFrame(rows), expected
-
-
 def test_no_row_lost_and_order_kept_with_malformed_rows(grid_layer, tmp_path):
-    df, expected = _malformed_portfolio()
+    df, expected = malformed_portfolio()
     roof = tmp_path / "roofs.toml"
     roof.write_text(
         'ce = 1.0\nct = 1.0\n[profile.hall]\nrisk = "II"\n[profile.shed]\nrisk = "I"\n',
@@ -181,13 +150,13 @@ def test_input_column_named_like_a_result_is_kept(grid_layer, sites_frame):
 
 def test_dem_fills_missing_elevations(grid_layer, tmp_path):
     import rasterio
-    from rasterio.transform import from_bounds
+    from affine import Affine
 
     dem_path = tmp_path / "dem.tif"
     data = np.linspace(0, 1500, 200 * 200, dtype=np.float32).reshape(200, 200)  # metres
     with rasterio.open(
         dem_path, "w", driver="GTiff", width=200, height=200, count=1, dtype="float32",
-        crs="EPSG:4326", transform=from_bounds(-110, 44, -108, 46, 200, 200), nodata=-9999,
+        crs="EPSG:4326", transform=Affine(2 / 200, 0, -110, 0, -2 / 200, 46), nodata=-9999,
     ) as dst:  # fmt: skip
         dst.write(data, 1)
     lat, lon = np.array([45.3, 45.7, 45.55]), np.array([-108.7, -108.2, -108.4])  # NE zone
@@ -250,12 +219,12 @@ def test_blank_coordinates_with_address_but_no_geocoder(grid_layer, monkeypatch)
 
 def test_given_elevation_wins_and_is_checked_against_the_dem(grid_layer, tmp_path):
     import rasterio
-    from rasterio.transform import from_bounds
+    from affine import Affine
 
     dem_path = tmp_path / "flat.tif"
     with rasterio.open(
         dem_path, "w", driver="GTiff", width=20, height=20, count=1, dtype="float32",
-        crs="EPSG:4326", transform=from_bounds(-110, 44, -108, 46, 20, 20), nodata=-9999,
+        crs="EPSG:4326", transform=Affine(2 / 20, 0, -110, 0, -2 / 20, 46), nodata=-9999,
     ) as dst:  # fmt: skip
         dst.write(np.full((20, 20), 1000.0, dtype=np.float32), 1)  # 1000 m everywhere
     df = pd.DataFrame({"lat": [45.5, 45.5], "lon": [-108.5, -108.5], "elevation_m": [1005, 1400]})
@@ -284,7 +253,7 @@ def test_geodataframe_in_a_projected_crs(grid_layer, sites_frame):
 def test_threaded_local_engine_gives_the_same_rows(grid_layer, monkeypatch):
     import geo.screen as gs
 
-    df, _ = _malformed_portfolio()
+    df, _ = malformed_portfolio()
     monkeypatch.setenv("NEVE_THREADS", "1")
     serial = screen(df, layers=[grid_layer])
     monkeypatch.setenv("NEVE_THREADS", "2")
