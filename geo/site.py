@@ -138,6 +138,18 @@ def _neighbours(hits, tol_m: float) -> list[dict]:
     return out
 
 
+#: layer standards whose ground snow loads the ASCE 7-16 roof engine may take
+#: (ASCE 7-05 and 7-10 map the same 50-year ground snow load as ASCE 7-16;
+#: ASCE 7-22 maps strength-level loads and EN 1991-1-3 a different quantity).
+ROOF_ENGINE_STANDARDS = ("ASCE 7-16", "ASCE 7-10", "ASCE 7-05")
+
+
+def roof_engine_accepts(standard: str) -> bool:
+    """Whether a layer's ground loads may feed the ASCE 7-16 roof engine."""
+    norm = standard.upper().replace(" ", "").replace("/SEI", "")
+    return any(norm == s.replace(" ", "") for s in ROOF_ENGINE_STANDARDS)
+
+
 def resolve_site(
     lat: float,
     lon: float,
@@ -222,7 +234,14 @@ def resolve_site(
     usable = status in ("ok", "provisional")
     roof_json = None
     roof_result = None
-    if roof is not None:
+    std = str(gov_layer.meta.get("standard", "")) if gov_layer is not None else ""
+    if roof is not None and usable and not roof_engine_accepts(std):
+        flags = sorted(set(flags) | {"roof_standard_unsupported"})
+        message += (
+            f" No roof snow loads were computed: the layer maps ground loads for {std},"
+            f" and neve's roof engine covers {', '.join(ROOF_ENGINE_STANDARDS)} ground loads only."
+        )
+    elif roof is not None:
         if usable:
             from engine import analyze_roof
 
