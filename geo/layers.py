@@ -109,6 +109,18 @@ class Layer:
         kind = "raster" if self.is_raster else f"{len(self.frame)} zones"
         return f"Layer({self.name!r}, {kind}, demo={self.demo})"
 
+    def __getstate__(self) -> dict:
+        """The layer's attributes for pickling and copying, with the look-up caches emptied.
+
+        GEOS prepared geometries and trees do not survive pickling in a usable
+        state (and are not safe to share between threads), so a pickled or
+        copied layer builds its own on first use.  This also keeps what is
+        sent to a Dask worker small.
+        """
+        state = self.__dict__.copy()
+        state["_cache"] = {}
+        return state
+
     def info(self) -> dict:
         """The ``layer`` object of the JSON contract."""
         m = self.meta

@@ -10,6 +10,10 @@ Nothing here stops on a bad row: :func:`parse_sites` returns arrays plus a
 per-row error text (empty where the row is fine), so the caller keeps every
 row in order.  Problems with the file as a whole (not a table, empty, no
 coordinate column) are :class:`engine.errors.InputError`.
+
+Reading the file itself is :mod:`geo.site_read`; geocoding the rows located
+by address is :mod:`geo.site_geocode`.  Their public names are importable
+from here as well.
 """
 
 from __future__ import annotations
@@ -23,26 +27,21 @@ import pandas as pd
 
 from engine.errors import InputError
 from engine.units import LENGTH_UNITS
+from geo.site_read import (  # noqa: F401  (file-level names re-exported)
+    ACCEPTED_COORDS,
+    ADDRESS_NAMES,
+    LAT_NAMES,
+    LON_NAMES,
+    ROOF_NAMES,
+    SITE_FORMATS,
+    SITE_ID_NAMES,
+    WKT_NAMES,
+    find_column,
+    read_sites,
+    site_format,
+    split_geometry,
+)
 
-#: accepted site-file suffixes -> format name
-SITE_FORMATS = {
-    ".csv": "csv",
-    ".txt": "csv",
-    ".xlsx": "xlsx",
-    ".xlsm": "xlsx",
-    ".gpkg": "gpkg",
-    ".parquet": "parquet",
-    ".geoparquet": "parquet",
-    ".pq": "parquet",
-}
-#: accepted latitude / longitude column names (matched case-blind)
-LAT_NAMES = ("lat", "latitude", "site_lat")  # site_lat/site_lon: neve's own results
-LON_NAMES = ("lon", "longitude", "lng", "long", "site_lon")
-#: text columns of WKT points (EPSG:4326) accepted in CSV and XLSX files
-WKT_NAMES = ("geometry", "wkt")
-ADDRESS_NAMES = ("address",)
-SITE_ID_NAMES = ("site_id",)
-ROOF_NAMES = ("roof",)
 #: elevation column names -> unit implied by the name (None: unit in each cell)
 ELEVATION_NAMES = {
     "elevation": None,
@@ -52,10 +51,6 @@ ELEVATION_NAMES = {
 #: plausible site elevations [ft]: a little below the lowest dry land to above the highest peak
 ELEVATION_RANGE_FT = (-1500.0, 30000.0)
 
-ACCEPTED_COORDS = (
-    "columns lat and lon (or latitude and longitude, lng), or an address column, "
-    "or a point geometry (GeoPackage, GeoParquet, or WKT text in a geometry column)"
-)
 ACCEPTED_ELEVATION = (
     "a number with its unit in the cell (1200ft, 412m) in a column named 'elevation', "
     "or a number in a column named elevation_ft or elevation_m"
@@ -106,128 +101,6 @@ class SiteArrays:
 
     def __len__(self) -> int:
         return len(self.frame)
-
-
-def site_format(path: str | Path, field_name: str = "sites") -> str:
-    """The format name of a site or result file from its suffix."""
-    suffix = Path(path).suffix.lower()
-    if suffix not in SITE_FORMATS:
-        raise InputError(
-            field_name,
-            f"cannot tell the format of {str(path)!r} from its suffix {suffix or '(none)'!r}",
-            ", ".join(sorted(SITE_FORMATS)),
-        )
-    return SITE_FORMATS[suffix]
-
-
-def _find(columns, names) -> str | None:
-    lower = {str(c).strip().lower(): c for c in columns}
-    for name in names:
-        if name in lower:
-            return lower[name]
-    return None
-
-
-def read_sites(path: str | Path) -> tuple[pd.DataFrame, object]:
-    """Read a site file into a DataFrame plus its point geometry (or None).
-
-    Parameters
-    ----------
-    path : str or Path
-        CSV, XLSX, GeoPackage or Parquet file.
-
-    Returns
-    -------
-    frame : pandas.DataFrame
-        Every input column; a geometry column is returned separately.
-    geometry : geopandas.GeoSeries or None
-        The rows' geometry in WGS 84 when the file carries one.
-    """
-    p = Path(path)
-    if not p.is_file():
-        raise InputError("sites", f"file {str(p)!r} not found", "a CSV, XLSX, GPKG or Parquet file")
-    fmt = site_format(p)
-    geometry = None
-    try:
-        if fmt == "csv":
-            frame = _read_csv(p)
-        elif fmt == "xlsx":
-            frame = pd.read_excel(p, sheet_name=0, engine="openpyxl")
-        elif fmt == "gpkg":
-            import pyogrio
-
-            gdf = pyogrio.read_dataframe(p)
-            frame, geometry = _split_geometry(gdf)
-        else:
-            frame, geometry = _read_parquet(p)
-    except InputError:
-        raise
-    except Exception as exc:  # a corrupt file, or not a table at all
-        raise InputError(
-            "sites",
-            f"{str(p)!r} is not a readable {fmt} table ({type(exc).__name__}: {str(exc).strip()})",
-            "a CSV, XLSX, GPKG or Parquet table with one row per site",
-        ) from None
-    frame.columns = [str(c) for c in frame.columns]
-    if geometry is None and fmt in ("csv", "xlsx"):
-        geometry = _wkt_geometry(frame)
-    if len(frame.columns) == 0:
-        raise InputError("sites", f"{str(p)!r} has no columns", ACCEPTED_COORDS)
-    if len(frame) == 0:
-        raise InputError("sites", f"{str(p)!r} has no rows", "a table with at least one site")
-    return frame.reset_index(drop=True), geometry
-
-
-def _wkt_geometry(frame: pd.DataFrame):
-    """Points from a WKT text column (WGS 84) when the table has no lat/lon columns."""
-    if _find(frame.columns, LAT_NAMES) is not None:
-        return None
-    col = _find(frame.columns, WKT_NAMES)
-    if col is None or len(frame) == 0:
-        return None
-    import geopandas as gpd
-    import shapely
-
-    text = frame[col].astype(object).where(frame[col].notna(), None).to_numpy()
-    text = np.array([t if isinstance(t, str) and t.strip() else None for t in text], dtype=object)
-    geoms = shapely.from_wkt(text, on_invalid="ignore")
-    return gpd.GeoSeries(geoms, crs="EPSG:4326")
-
-
-def _read_csv(p: Path) -> pd.DataFrame:
-    head = pd.read_csv(p, nrows=0, encoding="utf-8-sig")
-    text_cols = {
-        c: str
-        for c in head.columns
-        if str(c).strip().lower() in SITE_ID_NAMES + ADDRESS_NAMES + ROOF_NAMES + ("elevation",)
-    }
-    try:  # the multi-threaded Arrow reader first; the C reader for what it refuses
-        return pd.read_csv(p, dtype=text_cols, encoding="utf-8-sig", engine="pyarrow")
-    except Exception:
-        return pd.read_csv(p, dtype=text_cols, encoding="utf-8-sig", skipinitialspace=True)
-
-
-def _split_geometry(gdf) -> tuple[pd.DataFrame, object]:
-    import geopandas as gpd
-
-    if not isinstance(gdf, gpd.GeoDataFrame) or gdf.geometry.name not in gdf.columns:
-        return pd.DataFrame(gdf), None
-    geom = gdf.geometry
-    if geom.crs is not None and not geom.crs.equals("EPSG:4326"):
-        geom = geom.to_crs("EPSG:4326")
-    frame = pd.DataFrame(gdf.drop(columns=[gdf.geometry.name]))
-    return frame, geom.reset_index(drop=True)
-
-
-def _read_parquet(p: Path) -> tuple[pd.DataFrame, object]:
-    import pyarrow.parquet as pq
-
-    meta = pq.read_schema(p).metadata or {}
-    if b"geo" in meta:
-        import geopandas as gpd
-
-        return _split_geometry(gpd.read_parquet(p))
-    return pd.read_parquet(p), None
 
 
 def _numbers(series: pd.Series, name: str) -> tuple[np.ndarray, np.ndarray]:
@@ -319,11 +192,11 @@ def find_columns(frame: pd.DataFrame, has_geometry: bool) -> dict:
     """Which columns hold coordinates, address, elevation, site id and roof."""
     cols = frame.columns
     found = {
-        "lat": _find(cols, LAT_NAMES),
-        "lon": _find(cols, LON_NAMES),
-        "address": _find(cols, ADDRESS_NAMES),
-        "site_id": _find(cols, SITE_ID_NAMES),
-        "roof": _find(cols, ROOF_NAMES),
+        "lat": find_column(cols, LAT_NAMES),
+        "lon": find_column(cols, LON_NAMES),
+        "address": find_column(cols, ADDRESS_NAMES),
+        "site_id": find_column(cols, SITE_ID_NAMES),
+        "roof": find_column(cols, ROOF_NAMES),
     }
     elev = [c for c in cols if str(c).strip().lower() in ELEVATION_NAMES]
     if len(elev) > 1:
@@ -469,7 +342,7 @@ def load_sites(path_or_frame) -> SiteArrays:
         import geopandas as gpd
 
         if isinstance(path_or_frame, gpd.GeoDataFrame):
-            frame, geometry = _split_geometry(path_or_frame.reset_index(drop=True))
+            frame, geometry = split_geometry(path_or_frame.reset_index(drop=True))
             return parse_sites(frame, geometry)
     except ImportError:  # pragma: no cover
         pass
