@@ -10,7 +10,8 @@ coordinates used (``site_lat``, ``site_lon``), the elevation used
 roof is given, the roof results.  A malformed row is marked ``error`` with the
 reason; it never stops the run.  The work is done on arrays: the sites are
 resolved in large chunks by :func:`geo.resolve.resolve_points` (one spatial
-join per layer and chunk), and the roof engine runs once per roof profile.
+join per layer and chunk, :mod:`geo.local_engine`, or on a Dask cluster,
+:mod:`geo.dask_engine`), and the roof engine runs once per roof profile.
 
 Results are an aid to, not a substitute for, a licensed design professional.
 """
@@ -28,6 +29,14 @@ import pandas as pd
 from engine.errors import InputError
 from engine.roof_spec import Roof
 from engine.units import KPA_PER_PSF, M_PER_FT
+from geo.local_engine import (  # noqa: F401  (the local engine's names re-exported)
+    CHUNK_SIZE,
+    THREADED_FROM,
+    THREADS_ENV,
+    portable_layer,
+    resolve_local,
+    worker_threads,
+)
 from geo.outputs import (  # noqa: F401  (summary names re-exported)
     CAUTIONS,
     LAT_COLUMN,
@@ -57,13 +66,7 @@ RESULT_COLUMNS = (
 )
 #: roof loads added per row (each as ``<name>_psf`` and ``<name>_kpa``)
 ROOF_LOADS = ("pf", "ps", "pm", "rain_on_snow", "design_uniform")
-#: sites resolved per call of the resolver (bounds memory, paces the progress bar)
-CHUNK_SIZE = 262_144
 ENGINES = ("local", "dask")
-#: environment variable setting the local engine's thread count (1: no threads)
-THREADS_ENV = "NEVE_THREADS"
-#: portfolios from this size on are resolved by two threads
-THREADED_FROM = 200_000
 #: the resolver's columns that screening uses
 RESOLVED_COLUMNS = (
     "status", "pg_psf", "zone_id", "flags", "message", "elevation_ft", "elevation_source",
@@ -149,102 +152,6 @@ def _profile_errors(sites: SiteArrays, roofs) -> None:
     sites.error[todo] = [f"roof: unknown profile {v!r}; accepted: {accepted}" for v in names[todo]]
 
 
-def portable_layer(layer):
-    """A shallow copy of a layer with empty look-up caches.
-
-    The copy builds its own prepared geometries and trees on first use.  GEOS
-    prepared geometries and trees are built lazily and are not safe to share
-    between threads, and they do not survive pickling in a usable state, so
-    every thread (or Dask worker) works on its own copy.
-    """
-    import copy
-
-    if not hasattr(layer, "_cache"):
-        return layer
-    clone = copy.copy(layer)
-    clone._cache = {}
-    return clone
-
-
-def worker_threads(n_sites: int) -> int:
-    """Threads for the local engine: up to two on large portfolios (``NEVE_THREADS`` overrides).
-
-    Shapely and numpy release the GIL for the heavy work, so two threads use
-    two cores without copying the sites to other processes.
-    """
-    import os
-
-    env = os.environ.get(THREADS_ENV, "").strip()
-    if env:
-        if not env.isdigit() or int(env) < 1:
-            raise InputError(THREADS_ENV, f"{env!r} is not a positive whole number", "1, 2, ...")
-        return int(env)
-    if n_sites < THREADED_FROM:
-        return 1
-    return max(1, min(2, os.cpu_count() or 1))
-
-
-def resolve_local(lat, lon, elevation_ft, *, layers, dem=None, dem_units=None, progress=False):
-    """Resolve sites in chunks on this machine; one DataFrame row per site, in order.
-
-    Large portfolios are resolved by :func:`worker_threads` threads, each with
-    its own copy of the layers (:func:`portable_layer`); the chunks are put
-    back in input order.
-    """
-    import queue
-    from concurrent.futures import ThreadPoolExecutor
-
-    from geo.resolve import resolve_points
-
-    n = len(lat)
-    threads = worker_threads(n)
-    size = CHUNK_SIZE if threads == 1 else max(1, min(CHUNK_SIZE, -(-n // (4 * threads))))
-    chunks = [(start, min(start + size, n)) for start in range(0, n, size)]
-    pool: queue.Queue = queue.Queue()
-    pool.put(list(layers))
-    for _ in range(threads - 1):
-        pool.put([portable_layer(layer) for layer in layers])
-
-    def run(chunk):
-        start, stop = chunk
-        own = pool.get()  # a layer set no other thread is using
-        try:
-            return resolve_points(
-                lat[start:stop],
-                lon[start:stop],
-                layers=own,
-                elevation_ft=None if elevation_ft is None else elevation_ft[start:stop],
-                dem=dem,
-                dem_units=dem_units,
-            )
-        finally:
-            pool.put(own)
-
-    parts = []
-    bar = _bar(n, progress, "resolving")
-    try:
-        if threads == 1:
-            for chunk in chunks:
-                parts.append(run(chunk))
-                bar.update(chunk[1] - chunk[0])
-        else:
-            with ThreadPoolExecutor(threads, thread_name_prefix="neve-resolve") as ex:
-                for chunk, part in zip(chunks, ex.map(run, chunks), strict=True):
-                    parts.append(part)  # map keeps the input order
-                    bar.update(chunk[1] - chunk[0])
-    finally:
-        bar.close()
-    if not parts:
-        return None
-    return parts[0] if len(parts) == 1 else pd.concat(parts, ignore_index=True)
-
-
-def _bar(total: int, enabled: bool, desc: str):
-    from tqdm.auto import tqdm
-
-    return tqdm(total=total, disable=not enabled, desc=desc, unit="site", leave=False)
-
-
 def run_screen(
     sites,
     *,
@@ -292,7 +199,12 @@ def run_screen(
     _profile_errors(site, roofs)
     lap("read")
     if site.address is not None and (site.address != "").any():
-        from geo.sitefile import geocode_rows, load_geocode_cache, make_geocoder, save_geocode_cache
+        from geo.site_geocode import (
+            geocode_rows,
+            load_geocode_cache,
+            make_geocoder,
+            save_geocode_cache,
+        )
 
         cache = load_geocode_cache(geocode_cache) if geocode_cache else None
         try:
