@@ -2,7 +2,8 @@
 
 The sites are staged as a partitioned GeoParquet dataset that the workers
 read themselves (only paths travel in the task graph), the zone layers are
-scattered once to every worker, and each partition is resolved on its worker
+scattered once to every worker (without their look-up caches, which each
+worker builds for itself), and each partition is resolved on its worker
 by the same :func:`geo.resolve.resolve_points` the local engine uses, so both
 engines give the same rows.  Memory per worker is bounded by the partition
 size.
@@ -58,12 +59,6 @@ def _client(scheduler: str | None):
         silence_logs=40,
     )
     return Client(cluster), cluster
-
-
-def _portable(layer):
-    from geo.screen import portable_layer
-
-    return portable_layer(layer)
 
 
 def _resolve_partition(part, layers, dem, dem_units, columns=None):
@@ -195,8 +190,9 @@ def resolve_dask(
         else:
             gdf = gpd.GeoDataFrame(frame, geometry=gpd.points_from_xy(lon, lat), crs="EPSG:4326")
             ddf = dask_geopandas.from_geopandas(gdf, npartitions=nparts)
-        portable = [_portable(layer) for layer in layers]
-        [layers_future] = client.scatter([portable], broadcast=True)
+        # pickling empties the layers' look-up caches (Layer.__getstate__): each worker
+        # builds its own prepared geometries and trees on first use
+        [layers_future] = client.scatter([list(layers)], broadcast=True)
         resolved = ddf.map_partitions(
             _resolve_partition,
             layers_future,
@@ -222,11 +218,11 @@ def resolve_dask(
 def _compute(client, resolved, n: int, progress: bool) -> pd.DataFrame:
     from distributed import as_completed
 
-    from geo.screen import _bar
+    from geo.local_engine import progress_bar
 
     parts = resolved.to_delayed()
     futures = client.compute(parts)
-    bar = _bar(n, progress, "resolving (dask)")
+    bar = progress_bar(n, progress, "resolving (dask)")
     done = {}
     try:
         for fut in as_completed(futures):

@@ -284,19 +284,19 @@ def layer_hits(layer, lon, lat, elev_ft, search_m: float | None = None) -> Hits:
         band[qi[deep]] = False
         band[qi[~deep]] = True  # a site in two zones, one deep, stays in the band
     bi = np.flatnonzero(band)
+    qn = qn_site = nz = np.empty(0, dtype=np.intp)
     if search > 0 and bi.size:
+        # the band's points are built once: for the tree query and for the distances
         k = mercator_scale(lat[idx][bi])
-        qn, nz = tree_m.query(shapely.points(xm[bi], ym[bi]), predicate="dwithin",
-                              distance=search * k)  # fmt: skip
+        pts_m = shapely.points(xm[bi], ym[bi])
+        qn, nz = tree_m.query(pts_m, predicate="dwithin", distance=search * k)
         qn_site = bi[qn]
-    else:
-        qn_site, nz, k = np.empty(0, dtype=np.intp), np.empty(0, dtype=np.intp), np.empty(0)
     if qn_site.size and qi.size:
         nzones = len(zt)
         same = np.isin(qn_site * nzones + nz, qi * nzones + cz)
         qn, qn_site, nz = qn[~same], qn_site[~same], nz[~same]
     if qn_site.size:
-        dist = shapely.distance(shapely.points(xm[qn_site], ym[qn_site]), geoms_m[nz]) / k[qn]
+        dist = shapely.distance(pts_m[qn], geoms_m[nz]) / k[qn]
     else:
         dist = np.empty(0)
     keep = dist <= search

@@ -199,29 +199,16 @@ def run_screen(
     _profile_errors(site, roofs)
     lap("read")
     if site.address is not None and (site.address != "").any():
-        from geo.site_geocode import (
-            geocode_rows,
-            load_geocode_cache,
-            make_geocoder,
-            save_geocode_cache,
-        )
+        from geo.site_geocode import geocode_sites
 
-        cache = load_geocode_cache(geocode_cache) if geocode_cache else None
-        try:
-            if geocoder is None:
-                geocoder = make_geocoder(gazetteer, geocoder_url, cache=cache)
-        except InputError as exc:
-            if site.source != "latlon":
-                raise
-            # a lat/lon file whose blank rows have addresses: those rows only fail
-            todo = (site.address != "") & (site.error == "")
-            site.error[todo] = f"lat/lon missing and the address cannot be geocoded: {exc.accepted}"
-        else:
-            try:
-                geocode_rows(site, geocoder, progress=progress)
-            finally:  # keep what was found, even on an interrupted run
-                if geocode_cache and cache is not None:
-                    save_geocode_cache(geocode_cache, cache)
+        geocode_sites(
+            site,
+            geocoder,
+            gazetteer=gazetteer,
+            url=geocoder_url,
+            cache_path=geocode_cache,
+            progress=progress,
+        )
         lap("geocode")
     valid = (site.error == "") & np.isfinite(site.lat) & np.isfinite(site.lon)
     idx = np.flatnonzero(valid)

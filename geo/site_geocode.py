@@ -227,3 +227,54 @@ def geocode_rows(site: SiteArrays, geocoder=None, *, progress: bool = False) -> 
             site.error[i] = f"address: the geocoder gave an impossible location {hit!r}"
         else:
             site.lat[i], site.lon[i] = hit
+
+
+def geocode_sites(
+    site: SiteArrays,
+    geocoder=None,
+    *,
+    gazetteer: str | Path | None = None,
+    url: str | None = None,
+    cache_path: str | Path | None = None,
+    progress: bool = False,
+) -> None:
+    """Locate a site file's address rows, with an optional cache file kept between runs.
+
+    Parameters
+    ----------
+    site : geo.sitefile.SiteArrays
+        Parsed site file; its ``lat``, ``lon`` and ``error`` are filled in place.
+    geocoder : callable, optional
+        ``address -> (lat, lon) | None``; built by :func:`make_geocoder` from
+        ``gazetteer`` and ``url`` when omitted.
+    gazetteer, url
+        As for :func:`make_geocoder`.
+    cache_path : str or Path, optional
+        JSON file of addresses found on earlier runs (:func:`load_geocode_cache`);
+        rewritten with what this run found, even when the run is interrupted.
+    progress : bool
+        Show a progress bar on stderr.
+
+    Raises
+    ------
+    InputError
+        When no geocoder is configured and the file locates its sites by
+        address.  In a lat/lon file whose blank rows carry an address, only
+        those rows become errors.
+    """
+    cache = load_geocode_cache(cache_path) if cache_path else None
+    try:
+        if geocoder is None:
+            geocoder = make_geocoder(gazetteer, url, cache=cache)
+    except InputError as exc:
+        if site.source != "latlon":
+            raise
+        # a lat/lon file whose blank rows have addresses: those rows only fail
+        todo = (site.address != "") & (site.error == "")
+        site.error[todo] = f"lat/lon missing and the address cannot be geocoded: {exc.accepted}"
+        return
+    try:
+        geocode_rows(site, geocoder, progress=progress)
+    finally:  # keep what was found, even on an interrupted run
+        if cache_path and cache is not None:
+            save_geocode_cache(cache_path, cache)

@@ -251,13 +251,13 @@ def test_geodataframe_in_a_projected_crs(grid_layer, sites_frame):
 
 
 def test_threaded_local_engine_gives_the_same_rows(grid_layer, monkeypatch):
-    import geo.screen as gs
+    import geo.local_engine as le
 
     df, _ = malformed_portfolio()
     monkeypatch.setenv("NEVE_THREADS", "1")
     serial = screen(df, layers=[grid_layer])
     monkeypatch.setenv("NEVE_THREADS", "2")
-    monkeypatch.setattr(gs, "CHUNK_SIZE", 17)  # many small chunks, finished out of order
+    monkeypatch.setattr(le, "CHUNK_SIZE", 17)  # many small chunks, finished out of order
     threaded = screen(df, layers=[grid_layer])
     pd.testing.assert_frame_equal(serial, threaded)
 
