@@ -187,3 +187,22 @@ def test_dem_without_vertical_unit_is_refused(tmp_path, grid):
     g = run_json("site", "--layer", grid, "--at", "30.015,-39.995", "--dem", str(d),
                  "--dem-units", "ft")["ground"]  # fmt: skip
     assert g["elevation_source"] == "dem" and g["elevation"]["ft"] > 0
+
+
+def test_boundary_distance_is_geodesic(grid):
+    # reference: pyproj.Geod(ellps="WGS84").inv along the parallel to the Z1/Z2 edge
+    from pyproj import Geod
+
+    _, _, ref = Geod(ellps="WGS84").inv(-39.9901, 30.005, -39.99, 30.005)
+    g = run_json("site", "--layer", grid, "--at", "30.005,-39.9901", "--elevation", "100ft")
+    assert g["ground"]["distance_to_other"]["m"] == pytest.approx(ref, abs=0.5)
+
+
+def test_input_columns_that_clash_are_kept(tmp_path, grid):
+    s = tmp_path / "s.csv"
+    s.write_text("site_id,lat,lon,status,flags\n1,30.005,-39.995,mine,f\n", encoding="utf-8")
+    out = tmp_path / "o.csv"
+    assert run("screen", str(s), "-o", str(out), "--layer", grid, "--quiet").exit_code == 0
+    df = pd.read_csv(out, dtype=str, keep_default_na=False)
+    assert df.loc[0, "status"] == "ok"
+    assert "mine" in df.iloc[0].tolist() and "f" in df.iloc[0].tolist()  # nothing lost
