@@ -34,7 +34,7 @@ from engine.asce7_16.cases import (
 )
 from engine.asce7_16.factors import STANDARD, resolve_factors
 from engine.errors import InputError
-from engine.roof_spec import Roof
+from engine.roof_spec import PG_MAX_PSF, Roof, as_roof
 from engine.steps import StepLog
 from engine.units import length_json, load_json
 
@@ -95,9 +95,11 @@ def _check_pg(pg) -> float:
         raise InputError(
             "pg", f"{pg!r} is not a number", "a ground snow load of zero or more [psf]"
         ) from None
-    if not math.isfinite(value) or value < 0:
+    if not math.isfinite(value) or value < 0 or value > PG_MAX_PSF:
         raise InputError(
-            "pg", f"{pg!r} is negative or not finite", "a ground snow load of zero or more [psf]"
+            "pg",
+            f"{pg!r} is negative, not finite or implausibly large",
+            f"a ground snow load of 0 to {PG_MAX_PSF:g} psf",
         )
     return value
 
@@ -140,8 +142,9 @@ def uniform_loads(pg, roof: Roof) -> dict[str, np.ndarray]:
         ``rain_on_snow`` (0 where it does not apply) and ``design_uniform``
         (the larger of balanced plus rain-on-snow and pm) [psf].
     """
+    roof = as_roof(roof)
     pg = np.asarray(pg, dtype=float)
-    pg = np.where(pg >= 0, pg, np.nan)  # a negative ground load has no result
+    pg = np.where((pg >= 0) & (pg <= PG_MAX_PSF), pg, np.nan)  # no result for these
     factors, _, pf, cs, ps, pm, ros, _ = _uniform(pg, roof, None)
     ros = np.where(np.isnan(pg), np.nan, ros)
     pm_arr = np.full_like(pg, np.nan) if pm is None else np.where(np.isnan(pg), np.nan, pm)
@@ -168,6 +171,7 @@ def analyze_roof(pg: float, roof: Roof) -> RoofResult:
         and cautions.
     """
     pg = _check_pg(pg)
+    roof = as_roof(roof)
     log = StepLog()
     factors, flags, pf, cs, ps, pm, ros, slippery = _uniform(pg, roof, log)
     pf, ps, ros = float(pf), float(ps), float(ros)

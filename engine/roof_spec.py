@@ -121,6 +121,12 @@ class Roof:
         and ``r_value`` are plain numbers.  ``None`` means "not given".
         Unknown keys are an :class:`InputError` naming them.
         """
+        if not isinstance(data, Mapping):
+            raise InputError(
+                "roof",
+                f"{type(data).__name__} is not a table of roof options",
+                "a mapping such as ROOF.toml gives",
+            )
         data = {str(k).replace("-", "_"): v for k, v in dict(data).items() if v is not None}
         unknown = sorted(set(data) - _ROOF_KEYS)
         if unknown:
@@ -283,6 +289,31 @@ def _projections(value) -> list[Projection]:
     return out
 
 
+#: largest ground snow load neve accepts [psf]; far above any mapped value
+#: (common practice: the heaviest mapped mountain values are a few hundred psf)
+PG_MAX_PSF = 2000.0
+
+
 def parse_pg(text, field: str = "pg") -> float:
-    """Parse a ground snow load with its unit into psf (zero or more)."""
-    return parse_load(text, field)
+    """Parse a ground snow load with its unit into psf (0 to 2000 psf)."""
+    value = parse_load(text, field)
+    if value > PG_MAX_PSF:
+        raise InputError(
+            field,
+            f"{text!r} is implausibly large",
+            f"a ground snow load of 0 to {PG_MAX_PSF:g} psf (95.8 kPa)",
+        )
+    return value
+
+
+def as_roof(roof) -> Roof:
+    """A :class:`Roof`, or a mapping of roof options turned into one."""
+    if isinstance(roof, Roof):
+        return roof
+    if isinstance(roof, Mapping):
+        return Roof.from_mapping(roof)
+    raise InputError(
+        "roof",
+        f"{type(roof).__name__} is not a roof",
+        "an engine.Roof or a mapping of roof options",
+    )

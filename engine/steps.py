@@ -11,6 +11,7 @@ once); :meth:`Step.to_dict` is for a single site and needs a scalar.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -51,6 +52,8 @@ def fmt(x, digits: int = 3) -> str:
     if arr.size != 1:
         return f"[{arr.size} values]"
     v = float(arr.reshape(-1)[0])
+    if not math.isfinite(v):
+        return str(v)
     if v == int(v) and abs(v) < 1e9:
         return str(int(v))
     return f"{v:.{digits}g}" if abs(v) < 1e-3 else f"{v:.{digits}f}".rstrip("0").rstrip(".")

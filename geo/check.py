@@ -20,7 +20,7 @@ import numpy as np
 
 from engine.errors import LayerError
 from geo.layers import RASTER_SUFFIXES, file_sha256
-from geo.rules import ZoneTable
+from geo.rules import ZoneTable, plausible_limit
 from geo.sidecar import OPTIONAL, read_sidecar, sidecar_path
 
 #: overlaps smaller than this are ignored (shared edges, rounding) [m2]
@@ -72,7 +72,7 @@ def _check_vector(path: Path, meta: dict, problems: list[dict]) -> int:
         return 0
     if gdf.crs is None:
         problems.append(_problem("crs", "the layer declares no coordinate reference system"))
-    zt = ZoneTable.from_frame(gdf, meta.get("quantity", "pg"))
+    zt = ZoneTable.from_frame(gdf, meta.get("quantity", "pg"), meta.get("value_units", "psf"))
     problems.extend(zt.problems)
     ids = zt.zone_id
     geoms = gdf.geometry.values
@@ -152,6 +152,15 @@ def _check_raster(path: Path, meta: dict, problems: list[dict]) -> int:
     neg = int(np.sum(finite & (vals < 0)))
     if neg:
         problems.append(_problem("raster_value", f"{neg} cell(s) hold negative values"))
+    limit = plausible_limit(meta.get("value_units", "psf"))
+    big = int(np.sum(finite & (vals > limit)))
+    if big:
+        problems.append(
+            _problem(
+                "implausible_value",
+                f"{big} cell(s) hold values above {limit:.4g} {meta.get('value_units', 'psf')}",
+            )
+        )
     mask = meta.get("study_mask")
     if mask:
         mp = path.with_name(mask)

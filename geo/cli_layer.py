@@ -8,6 +8,7 @@ from pathlib import Path
 import click
 
 from engine.errors import InputError
+from geo.printable import printable
 
 
 @click.group("layer")
@@ -27,7 +28,7 @@ def check(layer_path: str, fmt: str) -> None:
     if fmt == "json":
         click.echo(json.dumps(report, indent=2, ensure_ascii=False))
     else:
-        click.echo(check_text(report))
+        click.echo(printable(check_text(report)))
     if not report["ok"]:
         raise click.exceptions.Exit(1)
 

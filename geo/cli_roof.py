@@ -9,6 +9,14 @@ import click
 from engine.errors import InputError
 from engine.roof_spec import Roof, parse_pg
 from geo.options import roof_mapping, roof_options
+from geo.printable import printable
+
+
+def _once(field: str, values: tuple):
+    """The single value of an option that must be given once."""
+    if len(values) > 1:
+        raise InputError(field, f"given {len(values)} times ({', '.join(values)})", "one value")
+    return values[0]
 
 
 def _load(v: dict | None) -> str:
@@ -91,7 +99,13 @@ def roof_text(result: dict, *, show_steps: bool = True, show_cautions: bool = Tr
 
 
 @click.command("roof")
-@click.option("--pg", required=True, help="Ground snow load with its unit, e.g. 35psf or 1.68kPa.")
+@click.option(
+    "--pg",
+    required=True,
+    multiple=True,
+    callback=lambda ctx, param, value: _once("pg", value),
+    help="Ground snow load with its unit, e.g. 35psf or 1.68kPa.",
+)
 @roof_options
 @click.option(
     "--format", "fmt", type=click.Choice(["text", "json"]), default="text", show_default=True
@@ -111,4 +125,4 @@ def roof(pg, fmt, no_steps, **kwargs):
     if fmt == "json":
         click.echo(json.dumps(result, indent=2))
     else:
-        click.echo(roof_text(result, show_steps=not no_steps))
+        click.echo(printable(roof_text(result, show_steps=not no_steps)))

@@ -12,6 +12,11 @@ from geo.options import roof_from_options, roof_options
 
 
 def _check_output(path: str | None, field: str, overwrite: bool, is_dir: bool = False) -> None:
+    if path is not None and is_dir:
+        from maps.target import check_package_target
+
+        check_package_target(path, overwrite)
+        return
     if path is None or overwrite:
         return
     p = Path(path)

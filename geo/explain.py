@@ -39,7 +39,19 @@ def explain(zt: ZoneTable, j: int, elev: float, meta: dict, ref: str) -> list[St
     steps: list[Step] = []
     rule = RULES[zt.rule[j]] if zt.rule[j] >= 0 else "invalid"
     a_txt = "unknown" if not math.isfinite(elev) else f"{fmt(elev)} {eu}"
-    if rule == "fixed":
+    if rule == "fixed" and not (math.isfinite(float(zt.value[j])) and zt.value[j] >= 0):
+        steps.append(
+            Step(
+                "pg",
+                f"zone {zid} has no valid mapped value (found {zt.value[j]!r})",
+                "pg = mapped value",
+                "no value: see neve layer check",
+                None,
+                vu,
+                ref,
+            )  # fmt: skip
+        )
+    elif rule == "fixed":
         raw = float(zt.value[j])
         steps.append(
             Step(

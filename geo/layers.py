@@ -15,6 +15,7 @@ from __future__ import annotations
 import functools
 import hashlib
 import math
+import warnings
 from pathlib import Path
 
 import numpy as np
@@ -52,7 +53,11 @@ def read_vector(path: str | Path):
     import geopandas as gpd
 
     try:
-        gdf = gpd.read_file(path, engine="pyogrio")
+        with warnings.catch_warnings():
+            # geopandas warns when a column of JSON text does not parse; the
+            # table column is parsed, and its defects reported, by geo.rules
+            warnings.simplefilter("ignore", UserWarning)
+            gdf = gpd.read_file(path, engine="pyogrio")
     except Exception as exc:  # pyogrio raises several types for unreadable data
         raise LayerError(f"layer {str(path)!r} cannot be read as a vector file ({exc})") from None
     if gdf.crs is None:
@@ -84,7 +89,11 @@ class Layer:
         self.demo = bool(meta["demo"])
         self.frame = frame  # GeoDataFrame in the layer's CRS (vector layers)
         self.raster = raster  # dict of raster properties (raster layers)
-        self.zones = ZoneTable.from_frame(frame, meta["quantity"]) if frame is not None else None
+        self.zones = (
+            ZoneTable.from_frame(frame, meta["quantity"], meta["value_units"])
+            if frame is not None
+            else None
+        )
         self._cache: dict = {}
 
     # --- naming -------------------------------------------------------------

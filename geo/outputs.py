@@ -19,6 +19,7 @@ import pandas as pd
 
 from engine.errors import InputError
 from engine.units import KPA_PER_PSF
+from geo.printable import printable
 
 #: accepted result suffixes -> format name
 RESULT_FORMATS = {
@@ -212,6 +213,20 @@ def _write_xlsx(df: pd.DataFrame, tmp: Path, summary: dict | None) -> None:
     with pd.ExcelWriter(tmp, engine="openpyxl") as xw:
         df.to_excel(xw, sheet_name="results", index=False)
         summary_rows(summary or {}).to_excel(xw, sheet_name="summary", index=False)
+        for sheet in xw.sheets.values():
+            _defuse_formulas(sheet)
+
+
+def _defuse_formulas(sheet) -> None:
+    """Store text that looks like a formula (``=HYPERLINK(...)``) as text.
+
+    openpyxl writes any string starting with ``=`` as a live formula; a site
+    file must never be able to put one into a results workbook.
+    """
+    for row in sheet.iter_rows():
+        for cell in row:
+            if cell.data_type == "f":
+                cell.data_type = "s"
 
 
 def _for_text(df: pd.DataFrame, geometry) -> pd.DataFrame:
@@ -348,4 +363,4 @@ def format_summary(summary: dict) -> str:
         sha = (layer.get("sha256") or "")[:12]
         lines.append(f"layer: {layer['name']}" + (f" (sha256 {sha}...)" if sha else ""))
     lines.extend(f"caution: {c}" for c in summary.get("cautions", []))
-    return "\n".join(lines)
+    return printable("\n".join(lines))

@@ -33,6 +33,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
+from engine.roof_spec import PG_MAX_PSF
 from geo.expr import Expr, ExpressionError, compile_expr
 
 RULES = ("fixed", "study", "elevation_table", "formula")
@@ -128,6 +129,7 @@ class ZoneTable:
     note: np.ndarray | None = None
     source: np.ndarray | None = None
     problems: list[dict] = field(default_factory=list)
+    limit: float = math.inf  # largest plausible value [value_units]
 
     def __len__(self) -> int:
         return len(self.zone_id)
@@ -145,8 +147,16 @@ class ZoneTable:
         return expr is not None and "A" in expr.names
 
     @classmethod
-    def from_frame(cls, df: pd.DataFrame, quantity: str = "pg") -> ZoneTable:
-        """Parse the attribute table of a vector layer (geometry column ignored)."""
+    def from_frame(
+        cls, df: pd.DataFrame, quantity: str = "pg", value_units: str = "psf"
+    ) -> ZoneTable:
+        """Parse the attribute table of a vector layer (geometry column ignored).
+
+        Values above :func:`plausible_limit` (2000 psf, 95.8 kPa) are defects:
+        no mapped ground snow load comes near them, so such a value is a unit
+        or data-entry error.
+        """
+        limit = plausible_limit(value_units)
         n = len(df)
         problems: list[dict] = []
         get = lambda col: df[col].tolist() if col in df.columns else [None] * n  # noqa: E731
@@ -218,6 +228,13 @@ class ZoneTable:
                         f"zone {label}: rule fixed needs a value of zero or more in column "
                         f"{quantity!r}, found {raw_vals[j]!r}",
                     )
+                elif x > limit:
+                    problem(
+                        j,
+                        "implausible_value",
+                        f"zone {label}: {quantity} {raw_vals[j]!r} {value_units} is implausibly "
+                        f"large (above {limit:.4g} {value_units}); check the value and its units",
+                    )
                 else:
                     values[j] = x
             elif name == "elevation_table":
@@ -225,6 +242,14 @@ class ZoneTable:
                     tables[j] = parse_table(raw_tab[j])
                 except ValueError as exc:
                     problem(j, "table", f"zone {label}: {exc}")
+                    continue
+                if np.any(tables[j][1] > limit):
+                    problem(
+                        j,
+                        "implausible_value",
+                        f"zone {label}: the table has values above {limit:.4g} {value_units}; "
+                        "check the values and their units",
+                    )
             elif name == "formula":
                 try:
                     expr = compile_expr(_clean_text(raw_expr[j]))
@@ -260,7 +285,19 @@ class ZoneTable:
             note=np.array([_clean_text(v) for v in get("note")], dtype=object),
             source=np.array([_clean_text(v) for v in get("source")], dtype=object),
             problems=problems,
+            limit=limit,
         )
+
+
+#: largest plausible ground snow load [psf]
+PLAUSIBLE_PSF = PG_MAX_PSF
+
+
+def plausible_limit(value_units: str) -> float:
+    """The largest plausible mapped value in a layer's value units."""
+    from engine.units import KPA_PER_PSF
+
+    return PLAUSIBLE_PSF * KPA_PER_PSF if value_units == "kPa" else PLAUSIBLE_PSF
 
 
 def evaluate(zt: ZoneTable, zone: np.ndarray, elev: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -324,7 +361,7 @@ def evaluate(zt: ZoneTable, zone: np.ndarray, elev: np.ndarray) -> tuple[np.ndar
             st = np.full(out.shape, OK, dtype=np.int8)
             if "A" in expr.names:
                 st[~has_a[sel]] = NEED_ELEV
-            st[(st == OK) & ~(np.isfinite(out) & (out >= 0))] = NUMERIC
+            st[(st == OK) & ~(np.isfinite(out) & (out >= 0) & (out <= zt.limit))] = NUMERIC
             value[sel] = np.where(st == OK, out, np.nan)
             state[sel] = st
     # elevation limit on any valued rule

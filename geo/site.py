@@ -186,6 +186,10 @@ def resolve_site(
     """
     lat, lon = float(lat), float(lon)
     check_range(lat, lon)
+    if roof is not None:
+        from engine.roof_spec import as_roof
+
+        roof = as_roof(roof)
     layers = as_layers(layers)
     elev_in = parse_elevation(elevation)
     df, ctx = resolve_detail(

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from geo.printable import printable
+
 DEMO_BANNER = "*** DEMO DATA — invented values, never for design ***"
 
 
@@ -69,4 +71,4 @@ def site_text(result, show_steps: bool = True) -> str:
     lines += [f"  - {c}" for c in g["cautions"]]
     if result.demo:
         lines += ["", DEMO_BANNER]
-    return "\n".join(lines)
+    return printable("\n".join(lines))

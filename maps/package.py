@@ -19,11 +19,11 @@ import shutil
 import tempfile
 from pathlib import Path
 
-from engine.errors import InputError
 from maps import assets, style
 from maps.diagrams import write_case_diagrams
 from maps.site_map import cautions_of, is_demo, summary_context, write_site_map
 from maps.static import write_static_map
+from maps.target import MARKER, check_package_target
 from maps.templating import render
 
 #: keys of a case that are not values to tabulate
@@ -226,11 +226,7 @@ def write_package(
     from weasyprint import HTML
 
     dest = Path(outdir)
-    if dest.exists() and not dest.is_dir():
-        raise InputError("package", f"{str(dest)!r} is a file", "a folder path")
-    if dest.is_dir() and any(dest.iterdir()) and not overwrite:
-        raise InputError("package", f"folder {str(dest)!r} exists and is not empty",
-                         "a new or empty folder (or overwrite)")  # fmt: skip
+    check_package_target(dest, overwrite)
     data = copy.deepcopy(site_json)
     data.setdefault("site", {})
     if project is not None:
@@ -242,6 +238,9 @@ def write_package(
     os.chmod(tmp, 0o755)
     try:
         files: dict[str, Path] = {}
+        (tmp / MARKER).write_text(
+            "written by neve; this folder may be replaced by neve --overwrite\n"
+        )
         files["site_json"] = assets.atomic_write_text(
             tmp / "site.json", json.dumps(data, indent=2, ensure_ascii=False) + "\n"
         )

@@ -31,10 +31,15 @@ def run(*args: str):
     return CliRunner().invoke(main, list(args))
 
 
+def _no_constant(name: str):
+    raise AssertionError(f"JSON output holds {name}, which strict JSON (RFC 8259) does not allow")
+
+
 def run_json(*args: str) -> dict:
+    """Run a command with ``--format json``; its stdout must be one strict JSON object."""
     res = run(*args, "--format", "json")
     assert res.exit_code == 0, res.output
-    return json.loads(res.stdout)
+    return json.loads(res.stdout, parse_constant=_no_constant)
 
 
 @pytest.fixture(scope="session")

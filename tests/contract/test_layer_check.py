@@ -113,11 +113,6 @@ def test_empty_layer_is_a_problem(cdir):
     assert code in (1, 2)
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="an implausible mapped value (1e12 psf) passes layer "
-    "check and site resolution with no problem or flag",
-)
 def test_implausible_value_reported(implausible):
     code, rep = check(implausible)
     assert code == 1

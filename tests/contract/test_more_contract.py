@@ -102,11 +102,6 @@ def test_screen_addresses_from_gazetteer(tmp_path, grid):
     assert df.loc[1, "status"] == "error" and df.loc[2, "status"] == "error"
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="text from the site file that starts with '=' is written "
-    "to the XLSX output as a live formula (spreadsheet formula injection)",
-)
 def test_xlsx_output_never_holds_formulas(tmp_path, grid):
     import openpyxl
 
@@ -206,3 +201,57 @@ def test_input_columns_that_clash_are_kept(tmp_path, grid):
     df = pd.read_csv(out, dtype=str, keep_default_na=False)
     assert df.loc[0, "status"] == "ok"
     assert "mine" in df.iloc[0].tolist() and "f" in df.iloc[0].tolist()  # nothing lost
+
+
+def test_package_overwrite_never_deletes_unrelated_files(tmp_path, grid):
+    d = tmp_path / "work"
+    d.mkdir()
+    (d / "thesis.docx").write_text("precious", encoding="utf-8")
+    res = run("site", "--layer", grid, "--at", "30.005,-39.995", "--package", str(d), "--overwrite")
+    # either refused (exit 2) or written beside the user's file; never the file deleted
+    assert (d / "thesis.docx").exists(), res.output
+
+
+def test_text_output_has_no_terminal_escapes(tmp_path, grid):
+    import re
+    import shutil
+
+    p = tmp_path / "esc.geojson"
+    shutil.copy(grid, p)
+    side = open(grid + ".toml", encoding="utf-8").read()
+    side = re.sub(r"(?m)^name = .*$", r'name = "evil\\u001b]0;t\\u0007\\u001b[2J layer"', side)
+    (tmp_path / "esc.geojson.toml").write_text(side, encoding="utf-8")
+    res = run("site", "--layer", str(p), "--at", "30.005,-39.995")
+    assert res.exit_code == 0, res.output
+    assert not re.search(r"[\x00-\x08\x0b-\x1f\x7f-\x9f]", res.stdout)
+
+
+@pytest.mark.parametrize(
+    "at, elev, status, kpa",
+    [
+        ("30.005,-39.995", "490ft", "ok", 1.0),  # 490 ft = 149.35 m, under elev_max 150 m
+        ("30.005,-39.995", "500ft", "study_required", None),  # 152.4 m, above it
+        ("30.005,-39.985", "490ft", "ok", 1.0 + 149.352 / 100),  # Z + A/100, A in metres
+        ("30.005,-39.975", "10m", "ok", 1.5),  # table gives 1.1, pg_min floor 1.5
+        ("30.005,-39.975", "90m", "ok", 1.9),  # piecewise-linear between (0, 1) and (100, 2)
+    ],
+)
+def test_metric_layer_rules(tmp_path_factory, at, elev, status, kpa):
+    # 1 ft = 0.3048 m exactly (international foot, common practice); rules per DESIGN.md
+    d = tmp_path_factory.getbasetemp() / "metric_layer"
+    d.mkdir(exist_ok=True)
+    p = d / "metric.geojson"
+    if not p.exists():
+        rows = [
+            zone("M1", "fixed", cell(0, 0), pg=1.0, elev_max=150.0),
+            zone("M2", "formula", cell(1, 0), expr="Z + A/100", Z=1.0, elev_max=150.0),
+            zone("M3", "elevation_table", cell(2, 0), table="[[0, 1.0], [100, 2.0]]", pg_min=1.5),
+        ]
+        write_layer(p, rows, meta={"value_units": "kPa", "elevation_units": "m"})
+    g = run_json("site", "--layer", str(p), "--at", at, "--elevation", elev)["ground"]
+    assert g["status"] == status
+    if kpa is None:
+        assert g["pg"] is None
+    else:
+        assert g["pg"]["kPa"] == pytest.approx(kpa, abs=1e-3)
+        assert g["pg"]["psf"] == pytest.approx(kpa / KPA_PER_PSF, rel=1e-4)

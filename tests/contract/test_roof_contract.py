@@ -212,7 +212,6 @@ def test_missing_roof_toml_is_exit_2(tmp_path):
     assert res.exit_code == 2 and "roof" in res.stderr
 
 
-@pytest.mark.xfail(strict=True, reason="a repeated --pg silently keeps the last value")
 def test_repeated_pg_is_refused():
     res = run("roof", "--pg", "35psf", "--pg", "40psf")
     assert res.exit_code == 2
@@ -268,3 +267,20 @@ def test_every_load_and_length_has_both_units(tmp_path):
     assert shapes
     for path, keys in shapes:
         assert keys in (LOAD, LENGTH), (path, keys)
+
+
+def test_roof_does_not_import_heavy_libraries():
+    # team rule / STYLE.md point 9: heavy libraries are imported where used
+    code = (
+        "import sys\n"
+        "from click.testing import CliRunner\n"
+        "from geo.cli import main\n"
+        "r = CliRunner().invoke(main, ['roof', '--pg', '35psf', '--format', 'json'])\n"
+        "assert r.exit_code == 0, r.output\n"
+        "heavy = [m for m in ('geopandas', 'folium', 'matplotlib', 'weasyprint', 'dask',"
+        " 'rasterio', 'pyogrio') if m in sys.modules]\n"
+        "print(','.join(heavy))\n"
+    )
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=60)
+    assert out.returncode == 0, out.stderr
+    assert out.stdout.strip() == ""

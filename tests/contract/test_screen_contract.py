@@ -240,3 +240,53 @@ def test_screen_api_mirrors_cli(tmp_path, sites, grid):
     cli = pd.read_csv(out, dtype=str, keep_default_na=False)
     api = api_screen(pd.read_csv(sites, dtype=str, keep_default_na=False), layers=[grid])
     assert api["status"].tolist() == cli["status"].tolist()
+
+
+@pytest.mark.parametrize("suffix", [".csv", ".xlsx", ".parquet"])
+def test_input_formats_give_the_same_rows(tmp_path, sites, grid, suffix):
+    src = pd.read_csv(sites, dtype=str, keep_default_na=False)
+    p = tmp_path / f"in{suffix}"
+    if suffix == ".xlsx":
+        src.to_excel(p, index=False)
+    elif suffix == ".parquet":
+        src.to_parquet(p, index=False)
+    else:
+        p = sites
+    out = tmp_path / "o.csv"
+    assert screen(str(p), "-o", str(out), "--layer", grid).exit_code == 0
+    df = pd.read_csv(out, dtype=str, keep_default_na=False)
+    assert df["site_id"].tolist() == src["site_id"].tolist()
+    for sid, status in zip(df["site_id"], df["status"], strict=True):
+        if sid in EXPECT:
+            assert status == EXPECT[sid][0], (sid, status)
+
+
+def test_screen_and_site_agree_row_for_row(tmp_path, grid, overlap, dem):
+    # the two commands are one pipeline (DESIGN.md); invented random sites over the grid
+    import numpy as np
+
+    rng = np.random.default_rng(3)
+    n = 15
+    lat = 30.0 + rng.uniform(-0.002, 0.022, n)
+    lon = -40.0 + rng.uniform(-0.002, 0.032, n)
+    elev = rng.choice(["", "100ft", "300m", "900ft", "1200ft"], n)
+    p = tmp_path / "rand.csv"
+    pd.DataFrame({"site_id": range(n), "lat": lat, "lon": lon, "elevation": elev}).to_csv(
+        p, index=False
+    )
+    out = tmp_path / "o.csv"
+    layers = ["--layer", grid, "--layer", overlap]
+    assert screen(str(p), "-o", str(out), *layers, "--dem", dem).exit_code == 0
+    df = pd.read_csv(out, keep_default_na=False)
+    for i, row in df.iterrows():
+        args = ["site", *layers, "--at", f"{lat[i]},{lon[i]}", "--dem", dem]
+        if elev[i]:
+            args += ["--elevation", str(elev[i])]
+        res = run(*args, "--format", "json")
+        g = json.loads(res.stdout)["ground"]
+        assert g["status"] == row["status"], i
+        assert set(g["flags"]) == _flags(row["flags"]) - {"duplicate_site_id"}, i
+        if g["pg"] is None:
+            assert row["pg_psf"] == ""
+        else:
+            assert g["pg"]["psf"] == pytest.approx(float(row["pg_psf"]), abs=0.01)

@@ -153,11 +153,6 @@ def test_existing_map_not_overwritten(tmp_path, grid):
     assert m.read_text(encoding="utf-8") == "keep"
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="a fixed zone with a negative or missing pg crashes "
-    "neve site (ValueError in engine.steps.fmt via geo.explain.explain)",
-)
 @pytest.mark.parametrize("at", ["30.005,-39.985", "30.005,-39.975"])
 def test_defective_fixed_zone_is_status_error_not_a_crash(defective, at):
     res = run("site", "--layer", defective, "--at", at, "--format", "json")
@@ -175,11 +170,6 @@ def test_formula_cannot_run_code(hostile, tmp_path):
     assert not (tmp_path / "pwned").exists()
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="geopandas' UserWarning about a non-JSON 'table' column "
-    "leaks to stderr instead of becoming a layer problem",
-)
 def test_no_library_warnings_on_stderr(cdir):
     from tests.geo.conftest import cell, write_layer
 
@@ -194,11 +184,6 @@ def test_no_library_warnings_on_stderr(cdir):
     assert "Warning" not in out.stderr, out.stderr
 
 
-@pytest.mark.xfail(
-    strict=True,
-    reason="geo.site.resolve_site(roof=mapping) raises AttributeError; "
-    "the CLI and geo.screen.screen accept a roof mapping",
-)
 def test_resolve_site_accepts_a_roof_mapping(grid):
     r = resolve_site(30.005, -39.995, layers=[grid], roof={"shape": "flat"})
     assert r.to_json()["roof"]["design_uniform"]["psf"] > 0

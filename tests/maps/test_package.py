@@ -118,9 +118,19 @@ def test_existing_package_is_not_overwritten_unless_asked(tmp_path):
     with pytest.raises(InputError, match="package"):
         write_package(make_site_json(roof=False), [make_view()], dest)
     assert (dest / "keep.txt").exists()
-    write_package(make_site_json(roof=False), [make_view()], dest, overwrite=True)
-    assert not (dest / "keep.txt").exists() and (dest / "report.pdf").exists()
-    assert sorted(p.name for p in tmp_path.iterdir()) == ["pkg"]
+    # a folder of the user's own files is never replaced, even with overwrite
+    with pytest.raises(InputError, match="not a neve package"):
+        write_package(make_site_json(roof=False), [make_view()], dest, overwrite=True)
+    assert (dest / "keep.txt").exists()
+    # a previous package is replaced only with overwrite
+    other = tmp_path / "pkg2"
+    write_package(make_site_json(roof=False), [make_view()], other)
+    (other / "stale.txt").write_text("from the old package")
+    with pytest.raises(InputError, match="package"):
+        write_package(make_site_json(roof=False), [make_view()], other)
+    write_package(make_site_json(roof=False), [make_view()], other, overwrite=True)
+    assert not (other / "stale.txt").exists() and (other / "report.pdf").exists()
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["pkg", "pkg2"]
 
 
 def test_failed_build_leaves_nothing(tmp_path, monkeypatch):
