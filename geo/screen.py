@@ -235,7 +235,7 @@ def run_screen(
     lap("resolve")
     out = _assemble(site, idx, resolved)
     if roofs is not None:
-        _add_roof(out, site, roofs)
+        _add_roof(out, site, roofs, layer_list)
     results = _join_input(site.frame, out)
     lap("roof_and_assemble")
     summary = summarize(results, layer_list, engine=engine, seconds=time.perf_counter() - t0)
@@ -347,8 +347,9 @@ def _assemble(site: SiteArrays, idx: np.ndarray, resolved: pd.DataFrame | None) 
     }
 
 
-def _add_roof(out: dict, site: SiteArrays, roofs) -> None:
+def _add_roof(out: dict, site: SiteArrays, roofs, layers) -> None:
     from engine import uniform_loads
+    from geo.site import roof_engine_accepts
 
     n = len(site)
     for name in ROOF_LOADS:
@@ -356,6 +357,22 @@ def _add_roof(out: dict, site: SiteArrays, roofs) -> None:
     status = out["status"]
     pg = out["pg_psf"]
     usable = pd.Series(status).isin(ROOF_STATUSES).to_numpy() & np.isfinite(pg)
+    # only layers mapping ASCE 7-16-compatible ground loads feed the engine
+    refused = [
+        ly.name for ly in layers if not roof_engine_accepts(str(ly.meta.get("standard", "")))
+    ]
+    if refused:
+        other = usable & pd.Series(out["layer_name"]).isin(refused).to_numpy()
+        if other.any():
+            flags = pd.Series(out["flags"]).astype(object).to_numpy(copy=True)
+            for i in np.flatnonzero(other):
+                flags[i] = ";".join(
+                    sorted(
+                        set(filter(None, str(flags[i]).split(";"))) | {"roof_standard_unsupported"}
+                    )
+                )
+            out["flags"] = pd.Series(flags)
+            usable = usable & ~other
     groups = (
         [(roofs, usable)]
         if isinstance(roofs, Roof)

@@ -1,0 +1,31 @@
+"""Screening computes roof loads only from ASCE 7-16-compatible layers (geo.screen)."""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from geo.screen import screen
+from tests.geo.conftest import LAT0, LON0, D, fixture_rows, write_layer
+
+
+def _sites():
+    # Z1 (fixed 20 psf) and Z2 (fixed 30 psf, elev_max 500 ft) of the invented fixture grid
+    return pd.DataFrame({"lat": [LAT0 + D / 2] * 2, "lon": [LON0 + D / 2, LON0 + 1.5 * D]})
+
+
+def test_other_standard_gives_ground_values_but_no_roof_loads(tmp_path):
+    path = write_layer(tmp_path / "en.geojson", fixture_rows(), {"standard": "EN 1991-1-3"})
+    res = screen(_sites(), layers=[path], roof={"shape": "flat"})
+    assert list(res["pg_psf"]) == pytest.approx([20.0, 30.0])
+    assert np.isnan(res["pf_psf"]).all()
+    assert all("roof_standard_unsupported" in f for f in res["flags"])
+
+
+def test_asce_layer_gives_roof_loads(tmp_path):
+    path = write_layer(tmp_path / "asce.geojson", fixture_rows())
+    res = screen(_sites(), layers=[path], roof={"shape": "flat"})
+    # ASCE 7-16 Eq. 7.3-1 with Ce = Ct = Is = 1: pf = 0.7 pg (from memory)
+    assert list(res["pf_psf"]) == pytest.approx([14.0, 21.0])
+    assert not any("roof_standard_unsupported" in f for f in res["flags"])
