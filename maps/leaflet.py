@@ -10,6 +10,7 @@ run), and every text that Leaflet treats as HTML (layer switcher names,
 
 from __future__ import annotations
 
+import json
 import math
 from pathlib import Path
 
@@ -305,3 +306,29 @@ def check_path(path, field: str, suffixes=(".html", ".htm")) -> Path:
             field, f"{str(p)!r} does not end in {' or '.join(suffixes)}", "an .html path"
         )
     return p
+
+
+def refit_on_load(m, bounds) -> None:
+    """Re-measure the map and fit ``bounds`` once the page has laid out.
+
+    A map inside an ``iframe`` (the calculation package embeds the site map
+    that way) can run its scripts before the frame has its size; Leaflet then
+    keeps a zero size and draws every zone as a point.  This re-fits on
+    ``load`` and on ``resize``.
+    """
+    from branca.element import Element
+
+    name = m.get_name()
+    js = (
+        "<script>(function(){var b=" + json.dumps(bounds) + ";"
+        "function refit(){if(typeof "
+        + name
+        + "==='undefined'){return;}"
+        + name
+        + ".invalidateSize(false);"
+        + name
+        + ".fitBounds(b);}"
+        "window.addEventListener('load',refit);"
+        "window.addEventListener('resize',refit);})();</script>"
+    )
+    m.get_root().html.add_child(Element(js), name="neve_refit")

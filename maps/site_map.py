@@ -189,7 +189,9 @@ def write_site_map(
     # open on the neighbourhood: about 3 km either side of the site
     dlat = VIEW_HALF_WIDTH_M / 111_320.0
     dlon = dlat / max(math.cos(math.radians(lat)), 0.05)
-    m.fit_bounds([[lat - dlat, lon - dlon], [lat + dlat, lon + dlon]])
+    bounds = [[lat - dlat, lon - dlon], [lat + dlat, lon + dlon]]
+    m.fit_bounds(bounds)
+    leaflet.refit_on_load(m, bounds)
     from shapely.geometry import box
 
     label_window = box(lon - 0.9 * dlon, lat - 0.9 * dlat, lon + 0.9 * dlon, lat + 0.9 * dlat)

@@ -14,6 +14,12 @@ from engine.errors import InputError
 
 #: the marker file every package folder carries
 MARKER = ".neve-package"
+#: the names a package folder holds (a folder holding only these is a package
+#: written before the marker existed)
+PACKAGE_NAMES = {
+    MARKER, "report.html", "report.pdf", "site.json", "site_map.html",
+    "static_map.png", "static_map.svg", "diagrams",
+}  # fmt: skip
 
 
 def check_package_target(dest: str | Path, overwrite: bool) -> None:
@@ -23,7 +29,8 @@ def check_package_target(dest: str | Path, overwrite: bool) -> None:
         raise InputError("package", f"{str(dest)!r} is a file", "a folder path")
     if not dest.is_dir() or not any(dest.iterdir()):
         return
-    if not (dest / MARKER).is_file():
+    names = {p.name for p in dest.iterdir()}
+    if not (dest / MARKER).is_file() and not names <= PACKAGE_NAMES:
         raise InputError(
             "package",
             f"folder {str(dest)!r} exists, is not empty and is not a neve package",
