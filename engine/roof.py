@@ -107,6 +107,8 @@ def _check_pg(pg) -> float:
 def _uniform(pg, roof: Roof, log: StepLog | None):
     """Factors, pf, Cs, ps, pm and rain-on-snow; shared by both entry points."""
     factors, flags = resolve_factors(roof, log if log is not None else StepLog())
+    if not roof.shape_stated:
+        flags.append("shape_assumed")
     ce, ct, is_ = factors["Ce"], factors["Ct"], factors["Is"]
     pf = flat.flat_roof_load(pg, ce, ct, is_, log)
     slippery, sflags = slope.slippery_line_allowed(
@@ -120,7 +122,7 @@ def _uniform(pg, roof: Roof, log: StepLog | None):
     if roof.eave_to_ridge is None and np.any(ros > 0) and roof.slope > 0:
         flags.append("rain_on_snow_eave_to_ridge_unknown")
     pm_applies = bool(flat.minimum_applies(roof.shape, roof.slope))
-    pm = flat.minimum_load(pg, is_, log if pm_applies else None) if pm_applies else None
+    pm = flat.minimum_load(pg, is_, None) if pm_applies else None  # logged in its own case
     return factors, flags, pf, cs, ps, pm, ros, slippery
 
 
@@ -204,7 +206,7 @@ def analyze_roof(pg: float, roof: Roof) -> RoofResult:
         )
     unbalanced_cases(pg, ps, is_, roof, cases, skipped, flags)
     drift_cases(pg, ps, roof, cases, skipped)
-    sliding_cases(pf, roof, ps, cases, skipped)
+    sliding_cases(pf, roof, ps, cases, skipped, flags)
     ice_dam_case(pf, factors["Ct"], roof, cases, skipped, flags)
     partial_case(ps, roof, cases, skipped)
     design = max(ps + ros, pm if pm is not None else 0.0)

@@ -69,6 +69,7 @@ class RoofStep:
     upper_surface: str = "other"
     upper_eave_to_ridge: float | None = None  # W of the upper roof [ft], for sliding
     upper_slides_toward: bool = True  # the upper roof's eave is at the step
+    upper_pf: float | None = None  # flat roof load of the upper roof [psf], for sliding
 
 
 @dataclass(frozen=True)
@@ -109,6 +110,7 @@ class Roof:
     parapets: tuple[Parapet, ...] = field(default_factory=tuple)
     projections: tuple[Projection, ...] = field(default_factory=tuple)
     overhang: float | None = None  # overhang length beyond the exterior wall [ft]
+    shape_stated: bool = True  # False when the shape defaulted to flat
 
     def replace(self, **changes) -> Roof:
         return replace(self, **changes)
@@ -149,7 +151,7 @@ class Roof:
             raise InputError(
                 "slope", f"required for a {shape} roof", "rise:run such as 6:12, or 26.6deg"
             )
-        kw: dict = {"shape": shape, "slope": slope}
+        kw: dict = {"shape": shape, "slope": slope, "shape_stated": "shape" in data}
         kw["surface"] = choose_key("surface", data.get("surface", "other"), SURFACES)
         if "ct" in data and "thermal" in data:
             raise InputError("ct", "give ct or thermal, not both", "one of ct, thermal")
@@ -218,7 +220,7 @@ def _check_keys(entry: Mapping, where: str, keys: set[str]) -> None:
 def _steps(value) -> list[RoofStep]:
     out = []
     keys = {"name", "height", "upper_length", "lower_length", "separation", "upper_slope",
-            "upper_surface", "upper_eave_to_ridge", "upper_slides_toward"}  # fmt: skip
+            "upper_surface", "upper_eave_to_ridge", "upper_slides_toward", "upper_pf"}  # fmt: skip
     for i, e in enumerate(_table_list(value, "step")):
         w = f"step[{i}]"
         e = {str(k).replace("-", "_"): v for k, v in e.items()}
@@ -242,6 +244,9 @@ def _steps(value) -> list[RoofStep]:
                 upper_eave_to_ridge=None
                 if e.get("upper_eave_to_ridge") is None
                 else parse_length(e["upper_eave_to_ridge"], f"{w}.upper_eave_to_ridge"),
+                upper_pf=None
+                if e.get("upper_pf") is None
+                else parse_load(e["upper_pf"], f"{w}.upper_pf"),
                 upper_slides_toward=bool(
                     _bool(e.get("upper_slides_toward", True), f"{w}.upper_slides_toward")
                 ),

@@ -251,6 +251,14 @@ def resolve_site(
 
             roof_result = analyze_roof(float(row["pg_psf"]), roof)
             roof_json = roof_result.to_json()
+            if status == "provisional":
+                limiting = ", ".join(f for f in flags if f != "demo_data")
+                roof_json["flags"] = sorted(set(roof_json["flags"]) | {"ground_provisional"})
+                roof_json["cautions"].insert(
+                    0,
+                    f"These roof loads follow from a provisional ground snow load ({limiting});"
+                    " resolve those flags before design.",
+                )
         else:
             message += f" No roof snow loads were computed: the ground status is {status}."
     cautions = list(CAUTIONS)

@@ -66,6 +66,8 @@ def site_text(result, show_steps: bool = True) -> str:
         lines.append(f"Roof ({roof['standard']}):")
         body = roof_text(roof, show_steps=show_steps, show_cautions=False)
         lines += ["  " + line if line else "" for line in body.splitlines()]
+        if "ground_provisional" in roof.get("flags", []):
+            lines.append(f"  ! {roof['cautions'][0]}")
     lines.append("")
     lines.append("Cautions:")
     lines += [f"  - {c}" for c in g["cautions"]]

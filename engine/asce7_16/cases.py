@@ -152,8 +152,13 @@ def drift_cases(pg, ps, roof: Roof, cases, skipped) -> None:
         cases.append(_drift_case(f"drift at projection '{p.name}'", "projection", d, ps, log))
 
 
-def sliding_cases(pf, roof: Roof, ps, cases, skipped) -> None:
+def sliding_cases(pf, roof: Roof, ps, cases, skipped, flags) -> None:
     for i, st in enumerate(roof.steps):
+        if pf <= 0:
+            skipped.append(
+                {"case": "sliding", "name": st.name, "reason": "pf = 0: no snow to slide"}
+            )
+            continue
         if st.upper_slope is None or not st.upper_slides_toward:
             skipped.append(
                 {
@@ -180,17 +185,31 @@ def sliding_cases(pf, roof: Roof, ps, cases, skipped) -> None:
                 "a length such as 40ft",
             )
         log = StepLog()
-        log.add(
-            "pf_upper",
-            "flat roof snow load of the upper roof (taken equal to this roof's pf)",
-            "pf_upper = pf",
-            f"pf_upper = {fmt(pf)}",
-            pf,
-            "psf",
-            f"{STANDARD} Eq. 7.3-1",
-        )
+        if st.upper_pf is None:
+            pf_up = pf
+            flags.append("upper_pf_assumed")
+            log.add(
+                "pf_upper",
+                "flat roof snow load of the upper roof (not given: taken equal to this roof's pf)",
+                "pf_upper = pf",
+                f"pf_upper = {fmt(pf)}",
+                pf_up,
+                "psf",
+                f"{STANDARD} Eq. 7.3-1",
+            )
+        else:
+            pf_up = st.upper_pf
+            log.add(
+                "pf_upper",
+                "flat roof snow load of the upper roof (given)",
+                "pf_upper = 0.7 Ce Ct Is pg of the upper roof",
+                f"pf_upper = {fmt(pf_up)} (given)",
+                pf_up,
+                "psf",
+                f"{STANDARD} Eq. 7.3-1",
+            )
         v = sliding.sliding_load(
-            pf, st.upper_eave_to_ridge, st.lower_length, st.separation, st.height, log
+            pf_up, st.upper_eave_to_ridge, st.lower_length, st.separation, st.height, log
         )
         if not v["required"]:
             skipped.append(
@@ -213,6 +232,9 @@ def sliding_cases(pf, roof: Roof, ps, cases, skipped) -> None:
 
 def ice_dam_case(pf, ct, roof: Roof, cases, skipped, flags) -> None:
     if roof.overhang is None:
+        return
+    if pf <= 0:
+        skipped.append({"case": "ice_dam", "reason": "pf = 0: no snow on the roof"})
         return
     applies, f = eaves.ice_dam_applies(ct, roof.ventilated, roof.r_value)
     flags += f

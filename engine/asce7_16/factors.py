@@ -13,10 +13,6 @@ References
 
 from __future__ import annotations
 
-import math
-
-import numpy as np
-
 from engine.choices import choose
 from engine.errors import InputError
 from engine.steps import StepLog, fmt
@@ -29,11 +25,11 @@ IMPORTANCE_SNOW_TABLE_1_5_2 = {"I": 0.80, "II": 1.00, "III": 1.10, "IV": 1.20}
 
 #: surface roughness / terrain keys accepted for Table 7.3-1
 TERRAINS = {
-    "B": "Surface roughness B",
-    "C": "Surface roughness C",
-    "D": "Surface roughness D",
-    "above-treeline": "Above the tree line in windswept mountainous areas",
-    "treeless": "Alaska, no trees within a 2-mile (3 km) radius of the site",
+    "B": "terrain B",
+    "C": "terrain C",
+    "D": "terrain D",
+    "above-treeline": "windswept mountain site above the tree line",
+    "treeless": "Alaska site with no trees within 2 mi (3 km)",
 }
 #: roof exposure keys accepted for Table 7.3-1
 EXPOSURES = {
@@ -54,14 +50,14 @@ EXPOSURE_TABLE_7_3_1 = {
 
 #: thermal condition keys accepted for Table 7.3-2, with the row they stand for
 THERMAL = {
-    "heated": "All structures except as indicated below",
+    "heated": "heated building (the general row)",
     "cold-ventilated": (
-        "Structures kept just above freezing and others with cold, ventilated roofs "
-        "with R > 25 ft2.h.F/Btu between the ventilated and the heated space"
+        "kept just above freezing, or a cold ventilated roof with R > 25 ft2.h.F/Btu "
+        "between the ventilated and heated spaces"
     ),
-    "unheated": "Unheated and open air structures",
-    "below-freezing": "Structures intentionally kept below freezing (freezer buildings)",
-    "greenhouse": "Continuously heated greenhouses with roof R < 2.0 ft2.h.F/Btu",
+    "unheated": "unheated or open-air building",
+    "below-freezing": "freezer building kept below freezing",
+    "greenhouse": "continuously heated greenhouse, roof R < 2.0 ft2.h.F/Btu",
 }
 #: ASCE 7-16 Table 7.3-2: thermal factor Ct by thermal condition
 THERMAL_TABLE_7_3_2 = {
@@ -148,12 +144,3 @@ def resolve_factors(roof, log: StepLog) -> tuple[dict, list[str]]:
         f"{STANDARD} Table 1.5-2",
     )
     return {"Ce": ce, "Ct": ct, "Is": is_, "risk": risk}, flags
-
-
-def as_array(x) -> np.ndarray:
-    """Float array view of a scalar or array input."""
-    return np.asarray(x, dtype=float)
-
-
-def is_close(a: float, b: float) -> bool:
-    return math.isclose(a, b, rel_tol=0, abs_tol=1e-9)

@@ -35,7 +35,7 @@ CE_TABLE_7_3_1 = [
 
 # ASCE 7-16 Table 7.3-2 (from memory): (thermal condition, Ct)
 CT_TABLE_7_3_2 = [
-    ("heated", 1.0),  # all structures except those below
+    ("heated", 1.0),  # the general row: heated buildings
     ("cold-ventilated", 1.1),  # kept just above freezing / cold ventilated roofs, R > 25
     ("unheated", 1.2),  # unheated and open air structures
     ("below-freezing", 1.3),  # freezer buildings

@@ -45,3 +45,15 @@ def test_asce_layer_gives_roof_loads(tmp_path):
     # ASCE 7-16 Eq. 7.3-1 with Ce = Ct = Is = 1: pf = 0.7 x 20 = 14 psf (from memory)
     assert res["roof"]["loads"]["pf"]["psf"] == pytest.approx(14.0)
     assert "roof_standard_unsupported" not in res["ground"]["flags"]
+
+
+def test_roof_on_a_provisional_ground_value_says_so(tmp_path):
+    # Z2 is fixed 30 psf with elev_max 500 ft; with no elevation the limit cannot be
+    # checked, so the value is provisional (elevation_needed) and the roof must say so
+    path = write_layer(tmp_path / "asce.geojson", fixture_rows())
+    roof = Roof.from_mapping({"shape": "flat"})
+    res = resolve_site(LAT0 + D / 2, LON0 + 1.5 * D, layers=[path], roof=roof).to_json()
+    assert res["ground"]["status"] == "provisional"
+    assert "ground_provisional" in res["roof"]["flags"]
+    assert "provisional" in res["roof"]["cautions"][0]
+    assert "elevation_needed" in res["roof"]["cautions"][0]
