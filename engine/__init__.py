@@ -12,7 +12,7 @@ Nothing here reads files, prints, or imports GIS libraries.
 """
 
 from engine.errors import InputError, LayerError, MissingDataError, NeveError, UnsupportedError
-from engine.roof import RoofResult, analyze_roof, uniform_loads
+from engine.roof import RoofResult, analyze_roof, screening_flags, uniform_loads
 from engine.roof_spec import Roof
 
 __all__ = [
@@ -24,5 +24,6 @@ __all__ = [
     "RoofResult",
     "UnsupportedError",
     "analyze_roof",
+    "screening_flags",
     "uniform_loads",
 ]

@@ -23,7 +23,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from engine.asce7_16 import flat, slope
+from engine.asce7_16 import flat, slope, unbalanced
 from engine.asce7_16.cases import (
     case_record,
     drift_cases,
@@ -153,6 +153,29 @@ def uniform_loads(pg, roof: Roof) -> dict[str, np.ndarray]:
     design = np.fmax(ps + ros, pm_arr) if pm is not None else ps + ros
     design = np.where(np.isnan(pg), np.nan, design)
     return {"pf": pf, "ps": ps, "pm": pm_arr, "rain_on_snow": ros, "design_uniform": design}
+
+
+def screening_flags(roof: Roof) -> list[str]:
+    """Flags that go with :func:`uniform_loads` results of ``roof``.
+
+    The flags of the roof description (defaults assumed, slippery line not
+    used, rain-on-snow with W unknown) plus ``roof_cases_not_screened`` where
+    the roof has load cases beyond the uniform ones that can govern
+    (unbalanced, drifts, sliding, ice dams): screening reports uniform loads
+    only, and those cases need :func:`analyze_roof` (``neve site``).
+    """
+    roof = as_roof(roof)
+    _, flags, *_ = _uniform(np.array([10.0]), roof, None)
+    if (
+        roof.eave_to_ridge is None
+        and roof.slope > 0
+        and "rain_on_snow_eave_to_ridge_unknown" not in flags
+    ):
+        flags.append("rain_on_snow_eave_to_ridge_unknown")
+    more = bool(roof.steps or roof.parapets or roof.projections or roof.overhang is not None)
+    if more or bool(unbalanced.unbalanced_required(roof.shape, roof.slope)):
+        flags.append("roof_cases_not_screened")
+    return sorted(set(flags))
 
 
 def analyze_roof(pg: float, roof: Roof) -> RoofResult:

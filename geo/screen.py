@@ -233,7 +233,7 @@ def run_screen(
     else:
         resolved = resolve_local(site.lat[idx], site.lon[idx], elev_arg, **kwargs)
     lap("resolve")
-    out = _assemble(site, idx, resolved)
+    out = _assemble(site, idx, resolved, demo=any(ly.demo for ly in layer_list))
     if roofs is not None:
         _add_roof(out, site, roofs, layer_list)
     results = _join_input(site.frame, out)
@@ -286,7 +286,9 @@ def screen(sites, *, layers=None, dem=None, dem_units=None, roof=None, engine="l
     return run.results
 
 
-def _assemble(site: SiteArrays, idx: np.ndarray, resolved: pd.DataFrame | None) -> dict:
+def _assemble(
+    site: SiteArrays, idx: np.ndarray, resolved: pd.DataFrame | None, demo: bool = False
+) -> dict:
     """The result columns for every row: the resolver's where it ran, errors elsewhere.
 
     Text columns stay in the resolver's (Arrow-backed) string dtype and are
@@ -318,7 +320,7 @@ def _assemble(site: SiteArrays, idx: np.ndarray, resolved: pd.DataFrame | None) 
         errors = np.where(errors == "", "no coordinates for this row", errors)
         status[invalid] = "error"
         message[invalid] = errors
-        flags[invalid] = ""
+        flags[invalid] = "demo_data" if demo else ""
         source[invalid] = "none"
     if site.duplicate.any():
         d = site.duplicate
@@ -348,7 +350,7 @@ def _assemble(site: SiteArrays, idx: np.ndarray, resolved: pd.DataFrame | None) 
 
 
 def _add_roof(out: dict, site: SiteArrays, roofs, layers) -> None:
-    from engine import uniform_loads
+    from engine import screening_flags, uniform_loads
     from geo.site import roof_engine_accepts
 
     n = len(site)
@@ -378,12 +380,22 @@ def _add_roof(out: dict, site: SiteArrays, roofs, layers) -> None:
         if isinstance(roofs, Roof)
         else [(r, usable & (site.roof == name)) for name, r in roofs.items()]
     )
+    row_flags = None
     for roof, mask in groups:
         if not mask.any():
             continue
+        extra = screening_flags(roof)
+        if extra:
+            if row_flags is None:
+                row_flags = pd.Series(out["flags"]).astype(object).to_numpy(copy=True)
+            for i in np.flatnonzero(mask):
+                have = set(filter(None, str(row_flags[i]).split(";")))
+                row_flags[i] = ";".join(sorted(have | set(extra)))
         loads = uniform_loads(pg[mask], roof)
         for name in ROOF_LOADS:
             out[f"{name}_psf"][mask] = np.asarray(loads[name], dtype=float)
+    if row_flags is not None:
+        out["flags"] = pd.Series(row_flags)
     for name in ROOF_LOADS:
         out[f"{name}_kpa"] = out[f"{name}_psf"] * KPA_PER_PSF
     order = [c for name in ROOF_LOADS for c in (f"{name}_psf", f"{name}_kpa")]

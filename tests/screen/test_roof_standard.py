@@ -29,3 +29,28 @@ def test_asce_layer_gives_roof_loads(tmp_path):
     # ASCE 7-16 Eq. 7.3-1 with Ce = Ct = Is = 1: pf = 0.7 pg (from memory)
     assert list(res["pf_psf"]) == pytest.approx([14.0, 21.0])
     assert not any("roof_standard_unsupported" in f for f in res["flags"])
+
+
+def test_screen_names_the_cases_it_does_not_compute(tmp_path):
+    # ASCE 7-16 Sec. 7.6.1 (from memory): a 6:12 gable has an unbalanced case, which
+    # screening (uniform loads only) does not compute; the row must say so, and the
+    # unstated exposure/thermal/risk defaults must reach the row too
+    path = write_layer(tmp_path / "asce.geojson", fixture_rows())
+    roof = {"shape": "gable", "slope": "6:12", "eave_to_ridge": "30ft"}
+    res = screen(_sites(), layers=[path], roof=roof)
+    for flags in res["flags"]:
+        assert "roof_cases_not_screened" in flags
+        assert "exposure_assumed" in flags and "risk_assumed" in flags
+
+
+def test_fully_described_flat_roof_adds_no_roof_flags(tmp_path):
+    path = write_layer(tmp_path / "asce.geojson", fixture_rows())
+    roof = {
+        "shape": "flat",
+        "terrain": "C",
+        "exposure": "partially",
+        "thermal": "heated",
+        "risk": "II",
+    }
+    res = screen(_sites().iloc[:1], layers=[path], roof=roof)
+    assert res["flags"].iloc[0] == ""
