@@ -24,6 +24,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from engine.units import M_PER_FT
 from geo import rules as R
 
 #: WGS 84 first eccentricity squared
@@ -302,7 +303,7 @@ def layer_hits(layer, lon, lat, elev_ft, search_m: float | None = None) -> Hits:
     keep = dist <= search
     qn_site, nz, dist = qn_site[keep], nz[keep], dist[keep]
     ni = idx[qn_site]
-    scale = 1.0 if layer.meta["elevation_units"] == "ft" else 0.3048
+    scale = 1.0 if layer.meta["elevation_units"] == "ft" else M_PER_FT
     elev = np.asarray(elev_ft, dtype=float) * scale
     c_val, c_state = R.evaluate(zt, cz, elev[ci])
     n_val, n_state = R.evaluate(zt, nz, elev[ni])

@@ -118,7 +118,7 @@ def _other_layers(layers, hits, per_layer, gov, valid) -> np.ndarray:
     return out
 
 
-def _message(status: int, bits: int, layer, gov_state: int) -> str:
+def _message(status: int, bits: int, layer) -> str:
     name = f"layer {layer.name!r}" if layer is not None else "the layers given"
     parts: list[str] = []
     if bits & _BAD_COORDS:
@@ -264,7 +264,6 @@ def resolve_detail(
     rule = zone_id.copy()
     neigh = zone_id.copy()
     dist = np.full(n, np.nan)
-    gstate = np.full(n, NONE, dtype=np.int8)
     per_layer = []
     for k, h in enumerate(hits):
         st, fl = layer_status(h)
@@ -272,7 +271,7 @@ def resolve_detail(
         sel = gov == k
         status[sel], bits[sel], value[sel] = st[sel], fl[sel], h.value_psf[sel]
         zone_id[sel], zone_ids[sel], rule[sel] = h.zone_id[sel], h.zone_ids[sel], h.rule[sel]
-        neigh[sel], dist[sel], gstate[sel] = h.neigh_vals[sel], h.dist_other_m[sel], h.state[sel]
+        neigh[sel], dist[sel] = h.neigh_vals[sel], h.dist_other_m[sel]
         bits[sel & h.near_unknown] |= _NEAR_UNKNOWN
     ungov = gov < 0
     if hits:
@@ -291,7 +290,7 @@ def resolve_detail(
     msgs, ftxt = [], []
     for u in uniq:
         s, b, g = int(u >> 48), int((u >> 10) & ((1 << 38) - 1)), int(u & 1023) - 1
-        msgs.append(_message(s, b, layers[g] if 0 <= g < len(layers) else None, 0))
+        msgs.append(_message(s, b, layers[g] if 0 <= g < len(layers) else None))
         ftxt.append(";".join(sorted(f for f in FLAGS if b & BIT[f])))
     message = np.array(msgs, dtype=object)[inv]
     flag_text = np.array(ftxt, dtype=object)[inv]

@@ -152,11 +152,38 @@ def _summary(roof: dict | None) -> list[dict]:
             if k not in _CASE_META and isinstance(v, dict) and ("psf" in v)
         ]
         rows.append({"label": f"Case: {case.get('name') or case.get('case')}",
-                     "value": "; ".join(vals) or "\u2014", "ref": str(case.get("case") or ""),
+                     "value": "; ".join(vals) or "\u2014", "ref": f"{std} {_case_ref(case)}".strip(),
                      "governing": False})  # fmt: skip
-    rows.append({"label": "Design uniform roof snow load", "value": style.load_text(roof.get("design_uniform")),
-                 "ref": "governing uniform load", "governing": True})  # fmt: skip
+    rows.append({"label": "Governing uniform load (balanced or minimum; unbalanced, drift and "
+                          "sliding cases act separately)",
+                 "value": style.load_text(roof.get("design_uniform")),
+                 "ref": f"{std} larger of ps + rain-on-snow and pm (Sec. 7.3.4, 7.4, 7.10)".strip(),
+                 "governing": True})  # fmt: skip
     return rows
+
+
+#: the provision each kind of case comes from (ASCE 7-16 Chapter 7)
+_CASE_REFS = {
+    "balanced": "Eq. 7.4-1, Sec. 7.10",
+    "minimum": "Sec. 7.3.4",
+    "unbalanced": "Sec. 7.6.1",
+    "sliding": "Sec. 7.9",
+    "ice_dam": "Sec. 7.4.5",
+    "partial": "Sec. 7.5",
+}
+_DRIFT_REFS = {
+    "step": "Sec. 7.7.1",
+    "adjacent": "Sec. 7.7.2",
+    "parapet": "Sec. 7.8",
+    "projection": "Sec. 7.8",
+}
+
+
+def _case_ref(case: dict) -> str:
+    kind = str(case.get("case") or "")
+    if kind == "drift":
+        return _DRIFT_REFS.get(str(case.get("source") or ""), "Sec. 7.7, 7.8")
+    return _CASE_REFS.get(kind, kind)
 
 
 def _provenance(ground: dict) -> list[tuple[str, str]]:
