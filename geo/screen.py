@@ -349,6 +349,17 @@ def _assemble(
     }
 
 
+def _merge_flags(texts: np.ndarray, extra) -> np.ndarray:
+    """Add ``extra`` flags to ';'-joined flag texts, once per distinct text (fast)."""
+    codes, uniques = pd.factorize(pd.Series(texts, dtype=object).fillna(""))
+    merged = np.array(
+        [";".join(sorted(set(filter(None, str(u).split(";"))) | set(extra))) for u in uniques]
+        + [";".join(sorted(set(extra)))],
+        dtype=object,
+    )
+    return merged[codes]  # code -1 (missing) picks the last entry
+
+
 def _add_roof(out: dict, site: SiteArrays, roofs, layers) -> None:
     from engine import screening_flags, uniform_loads
     from geo.site import roof_engine_accepts
@@ -367,12 +378,7 @@ def _add_roof(out: dict, site: SiteArrays, roofs, layers) -> None:
         other = usable & pd.Series(out["layer_name"]).isin(refused).to_numpy()
         if other.any():
             flags = pd.Series(out["flags"]).astype(object).to_numpy(copy=True)
-            for i in np.flatnonzero(other):
-                flags[i] = ";".join(
-                    sorted(
-                        set(filter(None, str(flags[i]).split(";"))) | {"roof_standard_unsupported"}
-                    )
-                )
+            flags[other] = _merge_flags(flags[other], ["roof_standard_unsupported"])
             out["flags"] = pd.Series(flags)
             usable = usable & ~other
     groups = (
@@ -388,9 +394,7 @@ def _add_roof(out: dict, site: SiteArrays, roofs, layers) -> None:
         if extra:
             if row_flags is None:
                 row_flags = pd.Series(out["flags"]).astype(object).to_numpy(copy=True)
-            for i in np.flatnonzero(mask):
-                have = set(filter(None, str(row_flags[i]).split(";")))
-                row_flags[i] = ";".join(sorted(have | set(extra)))
+            row_flags[mask] = _merge_flags(row_flags[mask], extra)
         loads = uniform_loads(pg[mask], roof)
         for name in ROOF_LOADS:
             out[f"{name}_psf"][mask] = np.asarray(loads[name], dtype=float)
