@@ -195,15 +195,10 @@ def _sidecar(path: Path, **keys) -> None:
     meta = {"name": keys.pop("name"), "jurisdiction": keys.pop("jurisdiction")}
     meta.update(COMMON)
     meta.update(keys)
-    lines = ["# Sidecar of an invented demo layer: never for design."]
-    for k, v in meta.items():
-        if isinstance(v, bool):
-            lines.append(f"{k} = {'true' if v else 'false'}")
-        elif isinstance(v, (int, float)):
-            lines.append(f"{k} = {v}")
-        else:
-            lines.append(f'{k} = "{v}"')
-    Path(str(path) + ".toml").write_text("\n".join(lines) + "\n", encoding="utf-8")
+    import tomli_w
+
+    head = "# Sidecar of an invented demo layer: never for design.\n"
+    Path(str(path) + ".toml").write_text(head + tomli_w.dumps(meta), encoding="utf-8")
 
 
 def dem_heights(x_km: np.ndarray, y_km: np.ndarray) -> np.ndarray:

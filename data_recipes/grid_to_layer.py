@@ -28,7 +28,7 @@ from pathlib import Path
 import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
-from table_to_layer import run_check, sidecar_args, write_sidecar  # noqa: E402
+from table_to_layer import run_check, sidecar_args, sidecar_meta, write_sidecar  # noqa: E402
 
 NODATA = -9999.0
 
@@ -59,18 +59,7 @@ def build_grid(args: argparse.Namespace) -> Path:
     with rasterio.open(out, "w", dtype="float32", nodata=NODATA, **profile) as ds:
         ds.write(np.where(np.isfinite(vals), vals, NODATA).astype("float32"), 1)
         ds.set_band_unit(1, args.value_units)
-    meta = {
-        "name": args.name,
-        "jurisdiction": args.jurisdiction,
-        "standard": args.standard,
-        "value_units": args.value_units,
-        "elevation_units": args.elevation_units,
-        "source": args.source,
-        "license": args.license,
-        "date": args.date,
-        "boundary_tolerance_m": args.tolerance,
-        "demo": args.demo,
-    }
+    meta = sidecar_meta(args)
     if study.any():
         mask = out.with_name(out.stem + "_study.tif")
         with rasterio.open(mask, "w", dtype="uint8", nodata=None, **profile) as ms:

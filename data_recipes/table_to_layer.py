@@ -71,7 +71,23 @@ def build_layer(args: argparse.Namespace) -> Path:
     out = Path(args.out)
     out.unlink(missing_ok=True)
     merged.to_file(out, engine="pyogrio")
-    side = {
+    write_sidecar(out, sidecar_meta(args))
+    print(f"wrote {out} ({len(merged)} zones) and {out.name}.toml")
+    return out
+
+
+def write_sidecar(path: Path, meta: dict) -> Path:
+    """Write ``<path>.toml`` from a dict of plain values."""
+    import tomli_w
+
+    side = Path(str(path) + ".toml")
+    side.write_text(tomli_w.dumps(meta), encoding="utf-8")
+    return side
+
+
+def sidecar_meta(args: argparse.Namespace) -> dict:
+    """The sidecar keys from the options that :func:`sidecar_args` adds."""
+    return {
         "name": args.name,
         "jurisdiction": args.jurisdiction,
         "standard": args.standard,
@@ -83,25 +99,6 @@ def build_layer(args: argparse.Namespace) -> Path:
         "boundary_tolerance_m": args.tolerance,
         "demo": args.demo,
     }
-    write_sidecar(out, side)
-    print(f"wrote {out} ({len(merged)} zones) and {out.name}.toml")
-    return out
-
-
-def write_sidecar(path: Path, meta: dict) -> Path:
-    """Write ``<path>.toml`` from a dict of plain values."""
-    lines = []
-    for k, v in meta.items():
-        if isinstance(v, bool):
-            lines.append(f"{k} = {'true' if v else 'false'}")
-        elif isinstance(v, (int, float)):
-            lines.append(f"{k} = {v}")
-        else:
-            text = str(v).replace("\\", "\\\\").replace('"', '\\"')
-            lines.append(f'{k} = "{text}"')
-    side = Path(str(path) + ".toml")
-    side.write_text("\n".join(lines) + "\n", encoding="utf-8")
-    return side
 
 
 def sidecar_args(ap: argparse.ArgumentParser) -> None:

@@ -165,13 +165,8 @@ def screening_flags(roof: Roof) -> list[str]:
     only, and those cases need :func:`analyze_roof` (``neve site``).
     """
     roof = as_roof(roof)
+    # at pg = 10 psf rain-on-snow is in range, so its W-unknown flag shows too
     _, flags, *_ = _uniform(np.array([10.0]), roof, None)
-    if (
-        roof.eave_to_ridge is None
-        and roof.slope > 0
-        and "rain_on_snow_eave_to_ridge_unknown" not in flags
-    ):
-        flags.append("rain_on_snow_eave_to_ridge_unknown")
     more = bool(roof.steps or roof.parapets or roof.projections or roof.overhang is not None)
     if more or bool(unbalanced.unbalanced_required(roof.shape, roof.slope)):
         flags.append("roof_cases_not_screened")

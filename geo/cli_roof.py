@@ -117,11 +117,7 @@ def roof(pg, fmt, no_steps, **kwargs):
 
     pg_psf = parse_pg(pg, "pg")
     mapping = roof_mapping(kwargs) or {}
-    try:
-        r = Roof.from_mapping(mapping)
-    except InputError:
-        raise
-    result = analyze_roof(pg_psf, r).to_json()
+    result = analyze_roof(pg_psf, Roof.from_mapping(mapping)).to_json()
     if fmt == "json":
         click.echo(json.dumps(result, indent=2))
     else:

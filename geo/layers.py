@@ -338,3 +338,10 @@ def demo_layers() -> list[Layer]:
 def demo_dem_path() -> Path:
     """Path of the embedded synthetic demo DEM (metres)."""
     return DEMO_DIR / DEMO_DEM_FILE
+
+
+def dem_argument(dem):
+    """A ``--dem`` value: ``"demo"`` (with no file of that name) is the embedded DEM."""
+    if dem is not None and str(dem) == "demo" and not Path("demo").exists():
+        return demo_dem_path()
+    return dem

@@ -18,6 +18,7 @@ import numpy as np
 import pandas as pd
 
 from engine.errors import InputError
+from engine.roof import CAUTIONS
 from engine.units import KPA_PER_PSF
 from geo.printable import printable
 
@@ -34,11 +35,6 @@ XLSX_MAX_ROWS = 1_048_575
 STATUSES = ("ok", "provisional", "study_required", "no_data", "error")
 #: statuses whose ground value feeds the roof engine
 ROOF_STATUSES = ("ok", "provisional")
-CAUTIONS = (
-    "neve is an aid to, not a substitute for, the judgement of a licensed design professional.",
-    "Confirm every ground snow load with the authority having jurisdiction and its local amendments.",
-    "Sites flagged for a study need a site-specific case study by a qualified professional.",
-)
 #: columns that hold the coordinates used for each site [deg, WGS 84]
 LAT_COLUMN, LON_COLUMN = "site_lat", "site_lon"
 

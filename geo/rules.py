@@ -289,15 +289,11 @@ class ZoneTable:
         )
 
 
-#: largest plausible ground snow load [psf]
-PLAUSIBLE_PSF = PG_MAX_PSF
-
-
 def plausible_limit(value_units: str) -> float:
     """The largest plausible mapped value in a layer's value units."""
     from engine.units import KPA_PER_PSF
 
-    return PLAUSIBLE_PSF * KPA_PER_PSF if value_units == "kPa" else PLAUSIBLE_PSF
+    return PG_MAX_PSF * KPA_PER_PSF if value_units == "kPa" else PG_MAX_PSF
 
 
 def evaluate(zt: ZoneTable, zone: np.ndarray, elev: np.ndarray) -> tuple[np.ndarray, np.ndarray]:

@@ -180,10 +180,9 @@ def run_screen(
         timings[name] = round(time.perf_counter() - t0 - sum(timings.values()), 3)
 
     engine = choose_key("engine", engine, ENGINES)
-    if dem is not None and str(dem) == "demo" and not Path("demo").exists():
-        from geo.layers import demo_dem_path
+    from geo.layers import dem_argument
 
-        dem = demo_dem_path()  # the embedded synthetic DEM, as for `neve site --dem demo`
+    dem = dem_argument(dem)  # "demo": the embedded synthetic DEM, as for `neve site`
     if dem is not None and not Path(dem).is_file():
         raise InputError("dem", f"file {str(dem)!r} not found", "a GeoTIFF path, or 'demo'")
     layer_list = _layers(layers)

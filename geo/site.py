@@ -12,7 +12,6 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from pathlib import Path
 
 import numpy as np
 
@@ -23,7 +22,7 @@ from geo import rules as R
 from geo.coords import check_range
 from geo.elevation import parse_elevation
 from geo.explain import explain
-from geo.layers import as_layers, demo_dem_path
+from geo.layers import as_layers, dem_argument
 from geo.resolve import STATUSES, resolve_detail
 
 #: radius within which neighbouring zones are listed for one site [m]
@@ -33,12 +32,6 @@ DEMO_CAUTION = "DEMO DATA: the layer is invented (demo = true); its values are n
 
 def _num(x) -> float | None:
     return None if x is None or not math.isfinite(float(x)) else float(x)
-
-
-def _dem_path(dem):
-    if dem is not None and str(dem) == "demo" and not Path("demo").exists():
-        return demo_dem_path()
-    return dem
 
 
 @dataclass
@@ -193,7 +186,7 @@ def resolve_site(
     layers = as_layers(layers)
     elev_in = parse_elevation(elevation)
     df, ctx = resolve_detail(
-        [lat], [lon], layers=layers, elevation_ft=[elev_in], dem=_dem_path(dem),
+        [lat], [lon], layers=layers, elevation_ft=[elev_in], dem=dem_argument(dem),
         dem_units=dem_units, search_m=SEARCH_M,
     )  # fmt: skip
     row = df.iloc[0].to_dict()

@@ -14,6 +14,7 @@ import math
 import os
 from pathlib import Path
 
+from engine.roof import CAUTIONS
 from maps import leaflet, style
 from maps.geom import check_zones, site_lat_lon, zones_near
 from maps.templating import render
@@ -23,11 +24,8 @@ NEIGHBOUR_RADIUS_M = 5000.0
 #: the map opens on this half-width around the site [m]
 VIEW_HALF_WIDTH_M = 3000.0
 
-DEFAULT_CAUTIONS = (
-    "neve is an aid to, not a substitute for, the judgement of a licensed design professional.",
-    "Confirm the ground snow load with the authority having jurisdiction and its local amendments.",
-    "Sites flagged for a study need a site-specific case study by a qualified professional.",
-)
+#: neve's own cautions, shown on every map (one definition, in engine.roof)
+DEFAULT_CAUTIONS = tuple(CAUTIONS)
 
 
 def cautions_of(site_json: dict) -> list[str]:

@@ -55,15 +55,9 @@ def fixture_rows() -> list[dict]:
 
 
 def toml_text(meta: dict) -> str:
-    lines = []
-    for k, v in meta.items():
-        if isinstance(v, bool):
-            lines.append(f"{k} = {'true' if v else 'false'}")
-        elif isinstance(v, (int, float)):
-            lines.append(f"{k} = {v}")
-        else:
-            lines.append(f'{k} = "{v}"')
-    return "\n".join(lines) + "\n"
+    import tomli_w
+
+    return tomli_w.dumps(meta)
 
 
 def write_layer(path: Path, rows: list[dict], meta: dict | None = None, crs="EPSG:4326") -> Path:
