@@ -1,13 +1,22 @@
 """Site elevation: from the user's text or sampled from a DEM.
 
-The DEM may be in any CRS.  Its vertical unit comes from the band's unit
-metadata (``rasterio`` ``units``; e.g. ``m``, ``metre``, ``ft``, ``foot``,
-``US survey foot``) or from ``dem_units``, which overrides it; a DEM with
-neither is an error rather than a guess.  Sampling is vectorized: the sites
-are transformed to the DEM's CRS once, one window covering them is read,
-and cells are picked with ``rasterio.transform.rowcol`` (the cell that
+The DEM may be in any CRS.  Its vertical unit is the one the DEM states
+itself (the band's unit metadata, ``rasterio`` ``units``, e.g. ``m``,
+``metre``, ``ft``, ``US survey foot``; or, when the band is silent, the unit
+of a compound CRS's vertical part).  ``dem_units`` (``--dem-units``) names
+the unit of a DEM that states none; it never overrides a stated unit: a
+``dem_units`` that contradicts the DEM is refused, naming both.  A DEM with
+no unit at all is refused rather than guessed.  Sampling is vectorized: the
+sites are transformed to the DEM's CRS once, one window covering them is
+read, and cells are picked with ``rasterio.transform.rowcol`` (the cell that
 contains the site, as ``DatasetReader.sample`` picks it).  Nodata and sites
 outside the grid give NaN, which the resolver flags as ``dem_nodata``.
+
+Values outside the range of land elevations on Earth (:data:`DEM_MIN_M` to
+:data:`DEM_MAX_M`, after conversion to metres) are not elevations: a fill
+value the DEM does not declare as nodata, or a unit mistake.
+:func:`plausible_dem` separates them; the resolver flags them
+``dem_implausible`` and uses no elevation from the DEM there.
 """
 
 from __future__ import annotations
@@ -18,7 +27,7 @@ from pathlib import Path
 import numpy as np
 
 from engine.errors import InputError, LayerError
-from engine.units import FT_PER_M, parse_length_unit
+from engine.units import FT_PER_M, M_PER_FT, parse_length_unit
 
 #: vertical units accepted from band metadata or ``--dem-units`` -> factor to ft
 DEM_UNITS = {
@@ -34,7 +43,15 @@ DEM_UNITS = {
     "us survey foot": 1200.0 / 3937.0 * FT_PER_M,
     "us_survey_foot": 1200.0 / 3937.0 * FT_PER_M,
     "ftus": 1200.0 / 3937.0 * FT_PER_M,
+    "us-ft": 1200.0 / 3937.0 * FT_PER_M,
+    "foot_us": 1200.0 / 3937.0 * FT_PER_M,
 }
+#: the names ``--dem-units`` lists as accepted (every key of DEM_UNITS is read)
+DEM_UNIT_NAMES = ("m", "ft", "us-ft")
+#: plausible range of a DEM value on Earth's land surface [m]: the Dead Sea shore lies
+#: near -430 m and the summit of Everest near 8,849 m (from memory), with a margin
+DEM_MIN_M = -500.0
+DEM_MAX_M = 9000.0
 #: a given elevation and the DEM differing by more than this are flagged [m]
 MISMATCH_M = 15.0
 #: largest DEM window read at once [cells]; larger spreads are read in tiles
@@ -66,6 +83,125 @@ def dem_unit_factor(units: str | None, field: str = "dem-units") -> float:
     return DEM_UNITS[key]
 
 
+def canonical_dem_unit(units: str, field: str = "dem-units") -> str:
+    """The short name (``m``, ``ft``, ``us-ft``) of any accepted vertical unit spelling.
+
+    >>> canonical_dem_unit("Metre"), canonical_dem_unit("foot"), canonical_dem_unit("ftUS")
+    ('m', 'ft', 'us-ft')
+    """
+    factor = dem_unit_factor(units, field)
+    return next(name for name in DEM_UNIT_NAMES if DEM_UNITS[name] == factor)
+
+
+def stated_unit(ds) -> tuple[str | None, str]:
+    """The vertical unit a DEM states itself, and where it says so.
+
+    The band's unit metadata first; when it is empty, the unit of the
+    vertical part of a compound CRS.  ``(None, "")`` when the DEM is silent.
+    """
+    band = ds.units[0] if ds.units and ds.units[0] else None
+    if band and str(band).strip():
+        return str(band).strip(), "band unit metadata"
+    if ds.crs is not None:
+        try:
+            from pyproj import CRS
+
+            crs = CRS.from_wkt(ds.crs.to_wkt())
+        except Exception:  # a CRS pyproj cannot read states no vertical unit we can use
+            return None, ""
+        for sub in crs.sub_crs_list if crs.is_compound else []:
+            if sub.is_vertical and sub.axis_info:
+                return sub.axis_info[0].unit_name, "vertical CRS"
+    return None, ""
+
+
+def vertical_factor(ds, name: str, dem_units: str | None = None) -> float:
+    """Factor from a DEM's values to feet, from its own unit or ``dem_units``.
+
+    Raises
+    ------
+    InputError
+        ``dem-units`` when the DEM states no unit and none is given, when the
+        given unit contradicts the one the DEM states (both are named), or
+        when either unit is unknown.
+    """
+    unit, where = stated_unit(ds)
+    if unit is None:
+        if not dem_units:
+            raise InputError(
+                "dem-units",
+                f"DEM {name!r} does not state its vertical unit",
+                "--dem-units m, --dem-units ft or --dem-units us-ft",
+            )
+        return dem_unit_factor(dem_units, "dem-units")
+    stated = str(unit).strip().lower()
+    if dem_units is None:
+        return dem_unit_factor(unit, f"DEM {name} {where}")
+    given = dem_unit_factor(dem_units, "dem-units")
+    if DEM_UNITS.get(stated) != given:
+        raise InputError(
+            "dem-units",
+            f"--dem-units {dem_units!r} contradicts the unit {unit!r} that DEM {name!r} "
+            f"states in its {where}; the DEM's own unit is never overridden",
+            "no --dem-units for a DEM that states its unit (or the unit it states)",
+        )
+    return given
+
+
+def check_dem_options(dem, dem_units: str | None = None) -> float | None:
+    """Check ``--dem`` and ``--dem-units`` together before any work.
+
+    ``dem_units`` without a DEM is refused; with a DEM, the DEM is opened
+    and its vertical unit settled (:func:`vertical_factor`).  Returns the
+    factor to feet, or None without a DEM.  ``dem`` is a path (``"demo"``
+    already resolved by the caller).
+    """
+    if dem is None:
+        if dem_units is not None:
+            raise InputError(
+                "dem-units",
+                f"{dem_units!r} given without --dem",
+                "--dem-units together with --dem DEM.tif (the unit of that DEM)",
+            )
+        return None
+    with _open_dem(dem) as ds:
+        return vertical_factor(ds, Path(dem).name, dem_units)
+
+
+def plausible_dem(dem_ft) -> tuple[np.ndarray, np.ndarray]:
+    """Split DEM values [ft] into plausible elevations and a mask of implausible ones.
+
+    A finite value below :data:`DEM_MIN_M` or above :data:`DEM_MAX_M`
+    (in metres) is no elevation on Earth's land surface; it becomes NaN in
+    the first array and True in the mask.
+
+    >>> e, bad = plausible_dem([100.0, -40000.0, float("nan")])
+    >>> e.tolist()[:2], bad.tolist()
+    ([100.0, nan], [False, True, False])
+    """
+    ft = np.asarray(dem_ft, dtype=float)
+    m = ft * M_PER_FT
+    with np.errstate(invalid="ignore"):
+        bad = np.isfinite(ft) & ((m < DEM_MIN_M) | (m > DEM_MAX_M))
+    return np.where(bad, np.nan, ft), bad
+
+
+def _open_dem(dem):
+    import rasterio
+
+    p = Path(dem)
+    if not p.is_file():
+        raise InputError("dem", f"file {str(p)!r} not found", "a GeoTIFF of elevations")
+    try:
+        ds = rasterio.open(p)
+    except rasterio.errors.RasterioIOError as exc:
+        raise LayerError(f"DEM {str(p)!r} cannot be read ({exc})") from None
+    if ds.crs is None:
+        ds.close()
+        raise LayerError(f"DEM {str(p)!r} has no CRS; accepted: a georeferenced GeoTIFF")
+    return ds
+
+
 def sample_dem(dem: str | Path, lon, lat, dem_units: str | None = None) -> np.ndarray:
     """DEM elevation at many sites [ft]; NaN at nodata or outside the grid.
 
@@ -76,16 +212,22 @@ def sample_dem(dem: str | Path, lon, lat, dem_units: str | None = None) -> np.nd
     lon, lat : array_like
         Site coordinates [degrees, EPSG:4326].
     dem_units : str, optional
-        Vertical unit, overriding the band's unit metadata.
+        Vertical unit of a DEM that states none (never overrides a stated one).
+
+    Returns
+    -------
+    numpy.ndarray
+        The DEM values converted to feet, as read (:func:`plausible_dem`
+        sorts out values no land surface has).
 
     Raises
     ------
     LayerError
         When the DEM cannot be read or has no CRS.
     InputError
-        When the vertical unit is neither in the file nor given.
+        When the vertical unit is neither in the file nor given, or when the
+        given one contradicts the DEM's own.
     """
-    import rasterio
     from pyproj import Transformer
     from rasterio.transform import rowcol
     from rasterio.windows import Window
@@ -94,23 +236,8 @@ def sample_dem(dem: str | Path, lon, lat, dem_units: str | None = None) -> np.nd
     lat = np.atleast_1d(np.asarray(lat, dtype=float))
     out = np.full(lon.shape, np.nan)
     p = Path(dem)
-    if not p.is_file():
-        raise InputError("dem", f"file {str(p)!r} not found", "a GeoTIFF of elevations")
-    try:
-        ds = rasterio.open(p)
-    except rasterio.errors.RasterioIOError as exc:
-        raise LayerError(f"DEM {str(p)!r} cannot be read ({exc})") from None
-    with ds:
-        if ds.crs is None:
-            raise LayerError(f"DEM {str(p)!r} has no CRS; accepted: a georeferenced GeoTIFF")
-        unit = dem_units or (ds.units[0] if ds.units and ds.units[0] else None)
-        if not unit:
-            raise InputError(
-                "dem-units",
-                f"DEM {p.name!r} does not state its vertical unit",
-                "--dem-units m or --dem-units ft",
-            )
-        factor = dem_unit_factor(unit, "dem-units" if dem_units else f"DEM {p.name} band unit")
+    with _open_dem(p) as ds:
+        factor = vertical_factor(ds, p.name, dem_units)
         ok = np.flatnonzero(np.isfinite(lon) & np.isfinite(lat))
         if ok.size == 0:
             return out

@@ -66,7 +66,9 @@ class Hits:
     overlap: np.ndarray = None
     near: np.ndarray = None  # a zone with another value within the tolerance
     raised: np.ndarray = None  # ... and its larger value governs
-    near_unknown: np.ndarray = None  # ... and it has no usable value
+    near_unknown: np.ndarray = None  # ... and it has no usable value (elevation, defect)
+    near_study: np.ndarray = None  # a zone requiring a study lies within the tolerance
+    near_valued: np.ndarray = None  # a zone with another usable value lies within it
     dist_other_m: np.ndarray = None
     nearest_m: np.ndarray = None  # distance to the nearest zone, for sites outside
     neigh_vals: np.ndarray = None  # ';'-joined values within the tolerance [psf]
@@ -88,6 +90,8 @@ class Hits:
             near=np.zeros(n, dtype=bool),
             raised=np.zeros(n, dtype=bool),
             near_unknown=np.zeros(n, dtype=bool),
+            near_study=np.zeros(n, dtype=bool),
+            near_valued=np.zeros(n, dtype=bool),
             dist_other_m=np.full(n, np.nan),
             nearest_m=np.full(n, np.nan),
             neigh_vals=np.full(n, "", dtype=object),
@@ -166,6 +170,7 @@ def reduce_hits(
         np.maximum.at(kmax, ci[multi], keys)
         edge = (kmax > kmin) & ~h.overlap  # on a shared edge of zones with different values
         h.near[edge] = True
+        h.near_valued[edge] = True
         h.dist_other_m[edge] = 0.0
     # neighbours
     site_key = value_key(h.base_psf, np.where(h.state == NONE, R.OK, h.state))
@@ -179,9 +184,14 @@ def reduce_hits(
         within = other & (n_dist <= tol_m) & h.covered[ni]
         h.near[ni[within]] = True
         valued = within & np.isin(n_state, (R.OK, R.UNCHECKED))
+        h.near_valued[ni[valued]] = True
         best = np.full(n, np.nan)
         np.fmax.at(best, ni[valued], n_val[valued])
-        h.near_unknown[ni[within & ~valued]] = True
+        study_there = np.isin(n_state, (R.STUDY, R.ABOVE))
+        h.near_unknown[ni[within & ~valued & ~study_there]] = True
+        # a study area within the tolerance is reported whether or not the site is in a zone
+        near_study = study_there & (n_dist <= tol_m) & other
+        h.near_study[ni[near_study]] = True
         up = np.isfinite(h.base_psf) & (best > h.base_psf + 1e-9)
         h.raised = up
         if within.any():

@@ -15,15 +15,16 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from engine.errors import InputError
 from engine.roof import CAUTIONS
 from engine.steps import Step, fmt
-from engine.units import FT_PER_M, KPA_PER_PSF, length_json, load_json
+from engine.units import FT_PER_M, KPA_PER_PSF, M_PER_FT, length_json, load_json
 from geo import rules as R
 from geo.coords import check_range
-from geo.elevation import parse_elevation
+from geo.elevation import MISMATCH_M, check_dem_options, parse_elevation
 from geo.explain import explain
 from geo.layers import as_layers, dem_argument
-from geo.resolve import STATUSES, resolve_detail
+from geo.resolve import ELEVATION_SOURCES, STATUSES, resolve_detail
 
 #: radius within which neighbouring zones are listed for one site [m]
 SEARCH_M = 1000.0
@@ -93,17 +94,95 @@ def _steps(layer, hits, row, elev_ft: float, source: str) -> list[dict]:
         steps.append(Step("pg", "converted to psf", "pg [psf] = pg [kPa] / 0.04788",
                           f"{fmt(base * KPA_PER_PSF)} / {fmt(KPA_PER_PSF, 5)}", base, "psf",
                           "NIST SP 811 Appendix B (1 psf = 0.0478803 kPa)"))  # fmt: skip
-    if hits.overlap[0]:
+    valued = int(hits.state[0]) in (R.OK, R.UNCHECKED) and np.isfinite(base)
+    if hits.zone_ids[0] != zid and not valued and int(hits.state[0]) in (R.STUDY, R.ABOVE):
+        where = "overlapping zones" if hits.overlap[0] else "a shared edge of zones"
+        steps.append(Step("pg", f"{where}: a zone that requires a site-specific case study "
+                          "precedes the mapped values of the others",
+                          "study required where any zone of the site requires one",
+                          hits.zone_ids[0].replace(";", ", "), None, "psf",
+                          f"{layer.name} ({where}; README, site resolution)"))  # fmt: skip
+    elif hits.overlap[0] and valued:
         steps.append(Step("pg", "overlapping zones: the larger value governs",
                           "pg = max(pg of each zone)", hits.zone_ids[0], base, "psf",
                           f"{layer.name} (overlapping zones)"))  # fmt: skip
-    if hits.raised[0]:
+    if hits.raised[0] and valued:
         steps.append(Step("pg", f"zone with a larger value within {layer.tolerance_m:g} m "
                           "of the site: the larger value governs",
                           "pg = max(pg, neighbouring values)",
                           f"max({fmt(base)}; {hits.neigh_vals[0]})", row["pg_psf"], "psf",
                           f"{layer.name} (boundary tolerance)"))  # fmt: skip
     return [s.to_dict() for s in steps]
+
+
+def _elevation_step(row, rule: str) -> dict:
+    """The step that records a given elevation and the DEM disagreeing, and what governs."""
+    alt_src = row["alt_elevation_source"]
+    gov_src = "dem" if alt_src == "input" else "input"
+    here = _outcome_text(row["status"], row["pg_psf"])
+    there = _outcome_text(row["alt_status"], row["alt_pg_psf"])
+    at = {gov_src: (row["elevation_ft"], here), alt_src: (row["alt_elevation_ft"], there)}
+    sub = "; ".join(
+        f"{'given' if src == 'input' else 'DEM'} A = {fmt(at[src][0] * M_PER_FT)} m: {at[src][1]}"
+        for src in ("input", "dem")
+    )
+    if rule == "input":
+        eq, ref = "A = given elevation", "elevation source: input (given by the user)"
+    else:
+        eq = "A = the elevation with the more demanding ground load"
+        ref = "neve: the larger ground load governs (README, site resolution)"
+    return Step(
+        "A",
+        f"given elevation and DEM differ by more than {MISMATCH_M:g} m: "
+        f"ground load worked at both; the {'DEM' if gov_src == 'dem' else 'given'} "
+        "elevation governs",
+        eq, sub, row["elevation_ft"], "ft", ref,
+    ).to_dict()  # fmt: skip
+
+
+def _outcome_text(status: str, psf) -> str:
+    if status in ("ok", "provisional") and _num(psf) is not None:
+        return f"pg = {fmt(float(psf))} psf ({status})"
+    return status
+
+
+def _alternatives(row) -> list[dict]:
+    """Both elevations of a site whose given elevation and DEM disagree, with their results."""
+    alt_src = row["alt_elevation_source"]
+    if not alt_src:
+        return []
+    gov_src = "dem" if alt_src == "input" else "input"
+
+    def entry(src, ft, status, psf, zone, governs):
+        usable = status in ("ok", "provisional") and _num(psf) is not None
+        return {
+            "source": src,
+            "elevation": length_json(_num(ft)),
+            "status": status,
+            "pg": load_json(float(psf)) if usable else None,
+            "zone_id": zone or None,
+            "governs": governs,
+        }
+
+    both = [
+        entry(gov_src, row["elevation_ft"], row["status"], row["pg_psf"], row["zone_id"], True),
+        entry(alt_src, row["alt_elevation_ft"], row["alt_status"], row["alt_pg_psf"],
+              row["alt_zone_id"], False),
+    ]  # fmt: skip
+    return sorted(both, key=lambda e: e["source"] != "input")
+
+
+def _finite(obj):
+    """``obj`` with every non-finite float replaced by None, and whether any was."""
+    if isinstance(obj, dict):
+        pairs = [(k, _finite(v)) for k, v in obj.items()]
+        return {k: v for k, (v, _) in pairs}, any(b for _, (_, b) in pairs)
+    if isinstance(obj, list):
+        pairs = [_finite(v) for v in obj]
+        return [v for v, _ in pairs], any(b for _, b in pairs)
+    if isinstance(obj, (float, np.floating)) and not math.isfinite(float(obj)):
+        return None, True
+    return obj, False
 
 
 def _neighbours(hits, tol_m: float) -> list[dict]:
@@ -156,6 +235,7 @@ def resolve_site(
     project: str | None = None,
     address: str | None = None,
     given: str | None = None,
+    elevation_source: str = "larger",
 ) -> SiteResult:
     """Resolve one site to its ground snow load and, given a roof, its roof loads.
 
@@ -168,7 +248,8 @@ def resolve_site(
     dem : path, optional
         DEM to sample (``"demo"`` is the embedded synthetic DEM).
     dem_units : str, optional
-        Vertical unit of the DEM when its metadata does not say.
+        Vertical unit of a DEM that states none; never overrides the unit
+        the DEM states (a contradiction is refused), refused without ``dem``.
     layers : list of paths or Layer, optional
         Most local first; None gives the embedded demo stack.
     roof : engine.Roof, optional
@@ -176,6 +257,12 @@ def resolve_site(
         ``provisional``), the roof engine runs on the ground value.
     name, project, address, given : str, optional
         Reported in ``site`` (``given`` is the input as the user wrote it).
+    elevation_source : {"larger", "input"}
+        Where ``elevation`` and the DEM differ by more than 15 m
+        (``elevation_mismatch``), the ground load is worked at both and
+        reported in ``ground.elevation_alternatives``; ``"larger"`` (default)
+        lets the more demanding result govern, ``"input"`` the given
+        elevation (:func:`geo.resolve.more_demanding`).
     """
     lat, lon = float(lat), float(lon)
     check_range(lat, lon)
@@ -183,13 +270,27 @@ def resolve_site(
         from engine.roof_spec import as_roof
 
         roof = as_roof(roof)
+    from engine.choices import choose_key
+
+    elevation_source = choose_key("elevation-source", elevation_source, ELEVATION_SOURCES)
+    if elevation_source == "input" and elevation is None:
+        raise InputError(
+            "elevation-source",
+            "'input' given without --elevation",
+            "--elevation-source input together with --elevation (e.g. 412m)",
+        )
+    dem_path = dem_argument(dem)
+    check_dem_options(dem_path, dem_units)
     layers = as_layers(layers)
     elev_in = parse_elevation(elevation)
     df, ctx = resolve_detail(
-        [lat], [lon], layers=layers, elevation_ft=[elev_in], dem=dem_argument(dem),
-        dem_units=dem_units, search_m=SEARCH_M,
+        [lat], [lon], layers=layers, elevation_ft=[elev_in], dem=dem_path,
+        dem_units=dem_units, search_m=SEARCH_M, elevation_source=elevation_source,
     )  # fmt: skip
     row = df.iloc[0].to_dict()
+    alt = ctx["alt"]
+    if alt is not None and bool(alt["governs"][0]):  # the DEM elevation governs this site
+        ctx = dict(ctx, hits=alt["hits"], gov=alt["gov"], per_layer=alt["per_layer"])
     g = int(ctx["gov"][0])
     flags = [f for f in row["flags"].split(";") if f]
     status = row["status"]
@@ -200,6 +301,8 @@ def resolve_site(
     if gov_layer is not None:
         hits = ctx["hits"][g]
         steps = _steps(gov_layer, hits, row, row["elevation_ft"], row["elevation_source"])
+        if row["alt_elevation_source"]:
+            steps.insert(0, _elevation_step(row, elevation_source))
         neighbours = _neighbours(hits, gov_layer.tolerance_m)
         zone = f"Zone {row['zone_id']} ({row['rule']})"
         if row["zone_ids"] != row["zone_id"]:
@@ -270,6 +373,8 @@ def resolve_site(
         "elevation": length_json(elev_ft),
         "elevation_source": row["elevation_source"],
         "dem_elevation": length_json(_num(row["dem_elevation_ft"])),
+        "elevation_rule": elevation_source,
+        "elevation_alternatives": _alternatives(row),
         "distance_to_other": None if dist is None else length_json(dist * FT_PER_M),
         "neighbours": neighbours,
         "layer": gov_layer.info() if gov_layer is not None else None,
@@ -287,4 +392,8 @@ def resolve_site(
     }
     if address is not None:
         site["address"] = address
+    ground, nonfinite = _finite(ground)
+    if nonfinite:  # never NaN or infinity in an output: null, and said so
+        ground["flags"] = sorted(set(ground["flags"]) | {"non_finite_value"})
+        ground["message"] += " A value that is not a finite number was reported as null."
     return SiteResult(site, ground, roof_json, list(layers), row, roof_result)

@@ -283,9 +283,10 @@ def test_vectorized_neighbours_match_brute_force_on_the_demo_layer():
 
 def test_near_a_study_zone_is_flagged_and_explained(grid_layer):
     r = one([grid_layer], LAT0 + 0.005, LON0 + 2 * D - 0.0005, 100.0)  # Z2, 48 m from study Z3
-    assert r["status"] == "provisional" and r["flag_list"] == ["near_boundary"]
+    assert r["status"] == "provisional"
+    assert r["flag_list"] == ["near_boundary", "study_area_nearby"]  # issue 8, sec. 6
     assert r["pg_psf"] == 30.0 and r["neighbour_values_psf"] == "study"
-    assert "no usable value" in r["message"]
+    assert "site-specific case study lies within 100 m" in r["message"]
 
 
 def test_prefiltered_and_plain_paths_agree():
