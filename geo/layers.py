@@ -21,7 +21,7 @@ from pathlib import Path
 import numpy as np
 
 from engine.errors import LayerError
-from engine.units import KPA_PER_PSF
+from engine.units import FT_PER_M, KPA_PER_PSF
 from geo.rules import RULE_CODE, ZoneTable
 from geo.sidecar import read_sidecar, sidecar_path
 
@@ -144,6 +144,41 @@ class Layer:
             "demo": self.demo,
             "path": str(self.path),
         }
+
+    def site_errors(self, hits, sites: np.ndarray, elev_ft: np.ndarray) -> np.ndarray:
+        """Why sites have status ``error`` in this layer, naming the zone and the value.
+
+        Parameters
+        ----------
+        hits : geo.lookup.Hits
+            This layer's hits for all sites.
+        sites : numpy.ndarray of int
+            Indices of the sites in error (their governing zone is defective
+            or gave no plausible value).
+        elev_ft : numpy.ndarray of float
+            Their elevations [ft]; NaN where unknown.
+
+        Returns
+        -------
+        numpy.ndarray of object
+            One sentence per site ("" when there is nothing more to say).
+        """
+        sites = np.asarray(sites, dtype=np.intp)
+        if self.is_raster:
+            from geo.raster import cell_errors
+
+            return cell_errors(self, hits.zone_id[sites])
+        from geo.rule_checks import site_errors
+
+        zone = hits.zone_idx[sites]
+        out = np.full(sites.size, "", dtype=object)
+        known = zone >= 0
+        scale = 1.0 if self.meta["elevation_units"] == "ft" else 1.0 / FT_PER_M
+        out[known] = site_errors(
+            self.zones, zone[known], np.asarray(elev_ft, dtype=float)[known] * scale,
+            self.meta["value_units"], self.meta["elevation_units"],
+        )  # fmt: skip
+        return out
 
     # --- geometry caches (vector) -----------------------------------------------
     def tree(self):

@@ -2,7 +2,10 @@
 
 Each cell holds the ground load in the sidecar's ``value_units``; nodata
 (or a cell outside the grid) means the layer has no mapped value there, so
-the site is not covered and the next stacked layer may govern.  A companion
+the site is not covered and the next stacked layer may govern.  A cell that
+is negative, infinite or beyond the plausibility bound
+(:func:`geo.rules.plausible_limit`, 2000 psf) is defective: its sites get
+status ``error``, and its id ``cell:<value>`` names the value.  A companion
 mask raster named by the sidecar's ``study_mask`` (same grid) marks cells
 where a site-specific study is required (nonzero).
 
@@ -130,25 +133,28 @@ def raster_hits(layer, lon, lat, search_m: float | None = None) -> Hits:
         m = _read_window(props["mask"], r0, r1, c0, c1)
         study = np.ma.filled(m, 0) != 0
 
+    limit = R.plausible_limit(layer.meta["value_units"])
+
     def cell(rr, cc):
-        """value [value_units] and state at grid cells; covered flag."""
+        """value [value_units], state and raw cell value at grid cells; covered flag."""
         inside = (rr >= r0) & (rr < r1) & (cc >= c0) & (cc < c1)
-        v = np.full(rr.shape, np.nan)
+        raw = np.full(rr.shape, np.nan)
         s = np.zeros(rr.shape, dtype=bool)
-        v[inside] = vals[rr[inside] - r0, cc[inside] - c0]
+        raw[inside] = vals[rr[inside] - r0, cc[inside] - c0]
         s[inside] = study[rr[inside] - r0, cc[inside] - c0]
-        covered = inside & (np.isfinite(v) | s)
-        state = np.where(s, R.STUDY, np.where(v < 0, R.BAD, R.OK)).astype(np.int8)
-        v = np.where(state == R.OK, v, np.nan)
-        return v, state, covered
+        covered = inside & (~np.isnan(raw) | s)  # NaN is nodata; inf is a defect
+        plausible = (raw >= 0) & (raw <= limit)
+        state = np.where(s, R.STUDY, np.where(plausible, R.OK, R.BAD)).astype(np.int8)
+        v = np.where(state == R.OK, raw, np.nan)
+        return v, state, covered, raw
 
-    def ident(v, state):
-        return np.where(state == R.STUDY, "study", np.char.add("cell:", _g(v)))
+    def ident(raw, state):
+        return np.where(state == R.STUDY, "study", np.char.add("cell:", _g(raw)))
 
-    cv, cs, ccov = cell(rows, cols)
+    cv, cs, ccov, craw = cell(rows, cols)
     ci = idx[ccov]
     c_val, c_state = cv[ccov] * layer.to_psf, cs[ccov]
-    c_id = ident(cv[ccov], c_state).astype(object)
+    c_id = ident(craw[ccov], c_state).astype(object)
     c_rule = np.where(c_state == R.STUDY, "study", "fixed").astype(object)
     n_parts = []
     for di in range(-K, K + 1):
@@ -159,22 +165,38 @@ def raster_hits(layer, lon, lat, search_m: float | None = None) -> Hits:
             gap_c = np.maximum(0.0, np.maximum(cc - fc, fc - (cc + 1)))
             gap_r = np.maximum(0.0, np.maximum(rr - fr, fr - (rr + 1)))
             d = np.hypot(gap_c * dx, gap_r * dy)
-            v, s, cov = cell(rr, cc)
+            v, s, cov, raw = cell(rr, cc)
             sel = cov & (d <= search) & (np.abs(di) <= ky) & (np.abs(dj) <= kx)
             if sel.any():
-                n_parts.append((idx[sel], v[sel], s[sel], d[sel]))
+                n_parts.append((idx[sel], v[sel], s[sel], d[sel], raw[sel]))
     if n_parts:
         ni = np.concatenate([p[0] for p in n_parts])
         nv = np.concatenate([p[1] for p in n_parts])
         ns = np.concatenate([p[2] for p in n_parts])
         nd = np.concatenate([p[3] for p in n_parts])
+        nraw = np.concatenate([p[4] for p in n_parts])
     else:
         ni, nv, ns, nd = np.empty(0, int), np.empty(0), np.empty(0, np.int8), np.empty(0)
-    n_id = ident(nv, ns).astype(object)
+        nraw = np.empty(0)
+    n_id = ident(nraw, ns).astype(object)
     return reduce_hits(
         h, ci, c_val, c_state, np.ones(ci.size, bool), c_id, c_rule,
         np.full(ci.size, -1, dtype=np.intp), ni, nv * layer.to_psf, ns, nd, n_id, tol,
     )  # fmt: skip
+
+
+def cell_errors(layer, zone_id: np.ndarray) -> np.ndarray:
+    """Why sites in defective cells (ids ``cell:<value>``) have status error."""
+    vu = layer.meta["value_units"]
+    limit = R.plausible_limit(vu)
+    out = []
+    for zid in np.asarray(zone_id, dtype=object):
+        text = str(zid).removeprefix("cell:")
+        out.append(
+            f"The grid cell of layer {layer.name!r} at this site holds {text} {vu}, which is not "
+            f"a ground snow load (accepted: 0 to {limit:.4g} {vu})."
+        )
+    return np.array(out, dtype=object)
 
 
 def _g(v: np.ndarray) -> np.ndarray:

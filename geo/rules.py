@@ -18,6 +18,14 @@ Any rule may carry ``elev_max`` (above it a study is required) and
 ``pg_min`` (a floor on the result).  Elevations are in the layer's
 ``elevation_units`` and values in its ``value_units``.
 
+Every value a layer can produce (``pg``, ``pg_min``, table points, formula
+results) must lie between 0 and the plausibility bound of
+:func:`plausible_limit` (2000 psf, 95.8 kPa): a mapped value outside it is a
+unit or data-entry error, never a ground snow load.  A zone whose geometry
+is invalid (a self-intersecting ring, say) is defective too: which side of
+the crossing belongs to the zone is not knowable, so its sites get status
+``error`` rather than a value from a repaired guess.
+
 :class:`ZoneTable` parses the rows once, recording every defect as a
 problem (``neve layer check`` lists them; a site in a defective zone gets
 status ``error``); :func:`evaluate` works on arrays of (zone, elevation)
@@ -34,7 +42,7 @@ import numpy as np
 import pandas as pd
 
 from engine.roof_spec import PG_MAX_PSF
-from geo.expr import Expr, ExpressionError, compile_expr
+from geo.expr import MAX_MAGNITUDE, Expr, ExpressionError, compile_expr
 
 RULES = ("fixed", "study", "elevation_table", "formula")
 RULE_CODE = {name: i for i, name in enumerate(RULES)}
@@ -47,7 +55,7 @@ ABOVE = 2  #: the site is above elev_max or the end of the table: study required
 NEED_ELEV = 3  #: the rule needs an elevation and none is known
 BAD = 4  #: the zone's row is defective (see ZoneTable.problems)
 UNCHECKED = 5  #: a value exists but elev_max could not be checked (no elevation)
-NUMERIC = 6  #: the formula gave no finite, non-negative number at this site
+NUMERIC = 6  #: the rule gave no finite number from 0 to the plausibility bound at this site
 
 #: columns with a meaning of their own (never treated as formula variables)
 RESERVED = {"zone_id", "rule", "table", "expr", "source", "note", "geometry"}
@@ -130,6 +138,7 @@ class ZoneTable:
     source: np.ndarray | None = None
     problems: list[dict] = field(default_factory=list)
     limit: float = math.inf  # largest plausible value [value_units]
+    defects: dict[int, list[str]] = field(default_factory=dict)  # row -> problem messages
 
     def __len__(self) -> int:
         return len(self.zone_id)
@@ -154,13 +163,15 @@ class ZoneTable:
 
         Values above :func:`plausible_limit` (2000 psf, 95.8 kPa) are defects:
         no mapped ground snow load comes near them, so such a value is a unit
-        or data-entry error.
+        or data-entry error.  When ``df`` is a GeoDataFrame, zones with an
+        invalid geometry (shapely validity) are defects as well.
         """
         limit = plausible_limit(value_units)
         n = len(df)
         problems: list[dict] = []
         get = lambda col: df[col].tolist() if col in df.columns else [None] * n  # noqa: E731
         ids = [_clean_text(v) for v in get("zone_id")]
+        invalid_geom = _invalid_geometries(df)
         rules, values, elev_max, pg_min = (
             np.full(n, BAD_RULE, dtype=np.int8),
             np.full(n, np.nan),
@@ -178,8 +189,11 @@ class ZoneTable:
         tables: dict[int, tuple[np.ndarray, np.ndarray]] = {}
         exprs: dict[int, Expr] = {}
 
+        defects: dict[int, list[str]] = {}
+
         def problem(j, kind, message):
             bad[j] = True
+            defects.setdefault(j, []).append(message)
             problems.append({"kind": kind, "zone_id": ids[j] or None, "message": message})
 
         if "zone_id" not in df.columns:
@@ -197,6 +211,13 @@ class ZoneTable:
             label = ids[j] or f"row {j}"
             if not ids[j]:
                 problem(j, "missing_id", f"row {j} has no zone_id")
+            if invalid_geom.get(j):
+                problem(
+                    j,
+                    "invalid_geometry",
+                    f"zone {label}: invalid geometry ({invalid_geom[j]}); sites in this zone "
+                    "get status error until the geometry is repaired",
+                )
             name = _clean_text(raw_rules[j]).lower().replace("-", "_").replace(" ", "_")
             if name not in RULE_CODE:
                 problem(
@@ -214,6 +235,14 @@ class ZoneTable:
                     continue
                 if not math.isnan(x) and (not math.isfinite(x) or (col == "pg_min" and x < 0)):
                     problem(j, "parameter", f"zone {label}: {col} {raw[j]!r} is out of range")
+                    continue
+                if col == "pg_min" and x > limit:
+                    problem(
+                        j,
+                        "implausible_value",
+                        f"zone {label}: pg_min {raw[j]!r} {value_units} is implausibly large "
+                        f"(accepted: 0 to {limit:.4g} {value_units}); check the value and its units",
+                    )
                     continue
                 arr[j] = x
             if name == "fixed":
@@ -271,6 +300,19 @@ class ZoneTable:
                         j, "expression", f"zone {label}: column(s) {', '.join(empty)} empty here"
                     )
                     continue
+                wild = [
+                    f"{c} = {numeric[c][j]!r}"
+                    for c in sorted(expr.names - {"A"})
+                    if not abs(numeric[c][j]) <= MAX_MAGNITUDE
+                ]
+                if wild:
+                    problem(
+                        j,
+                        "parameter",
+                        f"zone {label}: the formula's column value(s) {', '.join(wild)} are not "
+                        f"finite numbers within {MAX_MAGNITUDE:g} in magnitude",
+                    )
+                    continue
                 exprs[j] = expr
         return cls(
             zone_id=np.array(ids, dtype=object),
@@ -286,7 +328,21 @@ class ZoneTable:
             source=np.array([_clean_text(v) for v in get("source")], dtype=object),
             problems=problems,
             limit=limit,
+            defects=defects,
         )
+
+
+def _invalid_geometries(df) -> dict[int, str]:
+    """Row index -> shapely's reason, for each present but invalid geometry of a GeoDataFrame."""
+    col = getattr(df, "_geometry_column_name", None)
+    if col is None or col not in df.columns:
+        return {}
+    import shapely
+
+    geoms = np.asarray(df[col].values)
+    present = ~(shapely.is_missing(geoms) | shapely.is_empty(geoms))
+    bad = np.flatnonzero(present & ~shapely.is_valid(geoms))
+    return {int(j): str(shapely.is_valid_reason(geoms[j])) for j in bad}
 
 
 def plausible_limit(value_units: str) -> float:
@@ -370,6 +426,9 @@ def evaluate(zt: ZoneTable, zone: np.ndarray, elev: np.ndarray) -> tuple[np.ndar
     valued = (state == OK) | (state == UNCHECKED)
     f = valued & np.isfinite(floor)
     value[f] = np.maximum(value[f], floor[f])
+    # the plausibility bound holds for every value, whatever rule produced it
+    valued = (state == OK) | (state == UNCHECKED)
+    state[valued & ~((value >= 0) & (value <= zt.limit))] = NUMERIC
     # defective rows last: they override everything
     state[bad] = BAD
     value[~((state == OK) | (state == UNCHECKED))] = np.nan

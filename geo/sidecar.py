@@ -3,9 +3,10 @@
 Every zone layer file (``zones.gpkg``, ``grid.tif`` ...) has a sidecar
 named after it with ``.toml`` appended (``zones.gpkg.toml``).  It is
 validated strictly: a missing file, a missing required key, an unknown key,
-an unknown unit or an unreasonable tolerance is a
-:class:`~engine.errors.LayerError` that names the key and what is accepted;
-nothing is guessed.
+an unknown unit or an unreasonable tolerance is a :class:`SidecarError` (a
+:class:`~engine.errors.LayerError`) that names the key and what is accepted;
+nothing is guessed.  The file is read as UTF-8, with or without a byte-order
+mark.
 
 Keys (DESIGN.md, "Zone layers"):
 
@@ -64,6 +65,21 @@ MAX_TOLERANCE_M = 5000.0
 QUANTITIES = ("pg",)
 
 
+class SidecarError(LayerError):
+    """A sidecar defect; :attr:`key` names the offending key (None: the file as a whole).
+
+    :attr:`kind` is the problem kind ``neve layer check`` files it under:
+    ``missing_sidecar``, ``units`` (an unknown ``value_units`` or
+    ``elevation_units``) or ``sidecar`` (anything else: unknown or missing
+    keys, wrong types, out-of-range values, TOML that does not parse).
+    """
+
+    def __init__(self, message: str, key: str | None = None, kind: str = "sidecar"):
+        super().__init__(message)
+        self.key = key
+        self.kind = kind
+
+
 def sidecar_path(layer_path: str | Path) -> Path:
     """The sidecar path of a layer file: the file name with ``.toml`` appended."""
     p = Path(layer_path)
@@ -74,7 +90,9 @@ def _unit(value: object, key: str, table: dict[str, float]) -> str:
     for canonical in table:
         if str(value).strip().lower() == canonical.lower():
             return canonical
-    raise LayerError(f"sidecar {key}: unknown unit {value!r}; accepted: {', '.join(table)}")
+    raise SidecarError(
+        f"sidecar {key}: unknown unit {value!r}; accepted: {', '.join(table)}", key, "units"
+    )
 
 
 def validate_meta(raw: dict, where: str = "sidecar") -> dict:
@@ -96,57 +114,70 @@ def validate_meta(raw: dict, where: str = "sidecar") -> dict:
 
     Raises
     ------
-    LayerError
+    SidecarError
         Naming the first offending key and what is accepted.
     """
     if not isinstance(raw, dict):
-        raise LayerError(f"{where}: not a TOML table")
+        raise SidecarError(f"{where}: not a TOML table")
     unknown = sorted(set(raw) - set(REQUIRED) - set(OPTIONAL))
     if unknown:
-        raise LayerError(
+        raise SidecarError(
             f"{where}: unknown key(s) {', '.join(unknown)}; accepted: "
-            + ", ".join(list(REQUIRED) + list(OPTIONAL))
+            + ", ".join(list(REQUIRED) + list(OPTIONAL)),
+            unknown[0],
         )
     missing = [k for k in REQUIRED if k not in raw]
     if missing:
-        raise LayerError(f"{where}: missing required key(s) {', '.join(missing)}")
+        raise SidecarError(f"{where}: missing required key(s) {', '.join(missing)}", missing[0])
     meta = dict(OPTIONAL)
     meta.update(raw)
     for key in ("name", "jurisdiction", "standard", "source", "license", "quantity", "notes"):
         if not isinstance(meta[key], str):
-            raise LayerError(f"{where} {key}: {meta[key]!r} is not text; accepted: a string")
+            raise SidecarError(f"{where} {key}: {meta[key]!r} is not text; accepted: a string", key)
     for key in ("name", "jurisdiction", "standard", "source"):
         if not meta[key].strip():
-            raise LayerError(f"{where} {key}: empty; accepted: a non-empty string")
+            raise SidecarError(f"{where} {key}: empty; accepted: a non-empty string", key)
     date = meta["date"]
     if isinstance(date, (_dt.date, _dt.datetime)):
         meta["date"] = date.isoformat()
     elif not isinstance(date, str):
-        raise LayerError(f"{where} date: {date!r} is not a date; accepted: 2024-05-01 or text")
-    meta["value_units"] = _unit(meta["value_units"], "value_units", VALUE_UNITS)
-    meta["elevation_units"] = _unit(meta["elevation_units"], "elevation_units", ELEVATION_UNITS)
+        raise SidecarError(
+            f"{where} date: {date!r} is not a date; accepted: 2024-05-01 or text", "date"
+        )
+    try:
+        meta["value_units"] = _unit(meta["value_units"], "value_units", VALUE_UNITS)
+        meta["elevation_units"] = _unit(meta["elevation_units"], "elevation_units", ELEVATION_UNITS)
+    except SidecarError as exc:
+        raise SidecarError(
+            f"{where} {str(exc).removeprefix('sidecar ')}", exc.key, exc.kind
+        ) from None
     tol = meta["boundary_tolerance_m"]
     if isinstance(tol, bool) or not isinstance(tol, (int, float)):
-        raise LayerError(
+        raise SidecarError(
             f"{where} boundary_tolerance_m: {tol!r} is not a number; "
-            f"accepted: metres from 0 to {MAX_TOLERANCE_M:g}"
+            f"accepted: metres from 0 to {MAX_TOLERANCE_M:g}",
+            "boundary_tolerance_m",
         )
     if not 0.0 <= float(tol) <= MAX_TOLERANCE_M:
-        raise LayerError(
+        raise SidecarError(
             f"{where} boundary_tolerance_m: {tol!r} is out of range; "
-            f"accepted: metres from 0 to {MAX_TOLERANCE_M:g}"
+            f"accepted: metres from 0 to {MAX_TOLERANCE_M:g}",
+            "boundary_tolerance_m",
         )
     meta["boundary_tolerance_m"] = float(tol)
     if not isinstance(meta["demo"], bool):
-        raise LayerError(f"{where} demo: {meta['demo']!r} is not true or false")
+        raise SidecarError(f"{where} demo: {meta['demo']!r} is not true or false", "demo")
     if meta["quantity"] not in QUANTITIES:
-        raise LayerError(
+        raise SidecarError(
             f"{where} quantity: {meta['quantity']!r} is not supported yet; "
-            f"accepted: {', '.join(QUANTITIES)}"
+            f"accepted: {', '.join(QUANTITIES)}",
+            "quantity",
         )
     mask = meta["study_mask"]
     if mask is not None and (not isinstance(mask, str) or not mask.strip()):
-        raise LayerError(f"{where} study_mask: {mask!r}; accepted: a raster file name")
+        raise SidecarError(
+            f"{where} study_mask: {mask!r}; accepted: a raster file name", "study_mask"
+        )
     return meta
 
 
@@ -155,18 +186,28 @@ def read_sidecar(layer_path: str | Path) -> dict:
 
     Raises
     ------
-    LayerError
-        When the sidecar is missing, is not valid TOML, or fails
+    SidecarError
+        When the sidecar is missing, is not valid UTF-8 TOML, or fails
         :func:`validate_meta`.
     """
     side = sidecar_path(layer_path)
     if not side.is_file():
-        raise LayerError(
+        raise SidecarError(
             f"layer {str(layer_path)!r} has no sidecar: expected {side.name!r} beside it "
-            f"with keys {', '.join(REQUIRED)}"
+            f"with keys {', '.join(REQUIRED)}",
+            kind="missing_sidecar",
         )
     try:
-        raw = tomllib.loads(side.read_text(encoding="utf-8"))
-    except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
-        raise LayerError(f"sidecar {side.name!r} is not valid TOML ({exc})") from None
+        # utf-8-sig: a byte-order mark written by some editors is not part of the TOML
+        text = side.read_bytes().decode("utf-8-sig")
+    except UnicodeDecodeError as exc:
+        raise SidecarError(
+            f"sidecar {side.name!r} is not UTF-8 text (byte {exc.start}); accepted: UTF-8 TOML"
+        ) from None
+    except OSError as exc:
+        raise SidecarError(f"sidecar {side.name!r} cannot be read ({exc.strerror})") from None
+    try:
+        raw = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise SidecarError(f"sidecar {side.name!r} is not valid TOML ({exc})") from None
     return validate_meta(raw, f"sidecar {side.name!r}")
