@@ -473,6 +473,11 @@ def resolve_detail(
         msgs.append(_message(s, b, layers[g] if 0 <= g < len(layers) else None))
         ftxt.append(";".join(sorted(f for f in FLAGS if b & BIT[f])))
     message = np.array(msgs, dtype=object)[inv]
+    err = np.flatnonzero(valid & (status == ERROR) & (gov >= 0))
+    for k in np.unique(gov[err]):  # the governing zone's own account: zone, value, why
+        sel = err[gov[err] == k]
+        why = layers[k].site_errors(main["hits"][k], sel, elev[sel])
+        message[sel] = np.where(why != "", why + " " + message[sel], message[sel])
     bad_dem = np.flatnonzero(valid & implausible)
     if bad_dem.size:
         message[bad_dem] = message[bad_dem] + _implausible_text(dem_raw[bad_dem])
