@@ -9,7 +9,13 @@ from pathlib import Path
 import click
 
 from engine.errors import InputError
-from geo.options import ROOF_OPTION_KEYS, read_toml, roof_options
+from geo.options import (
+    ROOF_OPTION_KEYS,
+    dem_units_option,
+    elevation_source_option,
+    read_toml,
+    roof_options,
+)
 
 
 def _roof(kwargs: dict):
@@ -49,11 +55,8 @@ def _terminate(signum, frame):  # pragma: no cover - exercised through a subproc
     type=click.Path(dir_okay=False),
     help="Elevation raster (GeoTIFF); 'demo' = the embedded demo DEM.",
 )
-@click.option(
-    "--dem-units",
-    type=click.Choice(["m", "ft"], case_sensitive=False),
-    help="Units of the DEM's values when its metadata does not say.",
-)
+@dem_units_option
+@elevation_source_option
 @roof_options
 @click.option("--map", "map_path", type=click.Path(dir_okay=False), help="Portfolio map (.html).")
 @click.option(
@@ -112,7 +115,7 @@ def _terminate(signum, frame):  # pragma: no cover - exercised through a subproc
     type=click.Path(dir_okay=False),
     help="Also write the run summary as JSON to this file.",
 )
-def screen(sites, output, layers, dem, dem_units, map_path, tiles, self_contained, engine, scheduler, staging, partitions,
+def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, tiles, self_contained, engine, scheduler, staging, partitions,
            gazetteer, geocoder_url, geocode_cache, quiet, overwrite, summary_json, **roof_kw):  # fmt: skip
     """Screen a portfolio: ground snow load (and roof loads) for every site in SITES.
 
@@ -162,6 +165,7 @@ def screen(sites, output, layers, dem, dem_units, map_path, tiles, self_containe
             layers=list(layers) or None,
             dem=dem,
             dem_units=dem_units,
+            elevation_source=elevation_source,
             roof=roof,
             engine=engine.lower(),
             scheduler=scheduler,

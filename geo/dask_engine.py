@@ -61,7 +61,7 @@ def _client(scheduler: str | None):
     return Client(cluster), cluster
 
 
-def _resolve_partition(part, layers, dem, dem_units, columns=None):
+def _resolve_partition(part, layers, dem, dem_units, columns=None, elevation_source="larger"):
     """Resolve one partition of staged sites (runs on a worker)."""
     from geo.resolve import resolve_points
 
@@ -75,6 +75,7 @@ def _resolve_partition(part, layers, dem, dem_units, columns=None):
         elevation_ft=elev if np.isfinite(elev).any() else None,
         dem=dem,
         dem_units=dem_units,
+        elevation_source=elevation_source,
     )
     res = pd.DataFrame(res).reset_index(drop=True)
     if columns is not None:
@@ -115,6 +116,7 @@ def resolve_dask(
     staging: str | Path | None = None,
     columns: list[str] | None = None,
     progress: bool = False,
+    elevation_source: str = "larger",
 ) -> pd.DataFrame:
     """Resolve sites on a Dask cluster; one row per site, in input order.
 
@@ -126,7 +128,7 @@ def resolve_dask(
         Given elevations [ft] (NaN where none).
     layers : list of Layer
         Zone layers, most local first (scattered to every worker).
-    dem, dem_units
+    dem, dem_units, elevation_source
         As for :func:`geo.resolve.resolve_points`; the DEM path must be
         readable on the workers.
     scheduler : str, optional
@@ -164,7 +166,7 @@ def resolve_dask(
     frame = pd.DataFrame({"row": np.arange(n), "lat": lat, "lon": lon, "elevation_ft": elev})
     meta = resolve_points(
         lat[:1], lon[:1], layers=layers, elevation_ft=None if elevation_ft is None else elev[:1],
-        dem=dem, dem_units=dem_units,
+        dem=dem, dem_units=dem_units, elevation_source=elevation_source,
     )  # fmt: skip
     meta = pd.DataFrame(meta).iloc[:0].copy()
     if columns is not None:
@@ -199,6 +201,7 @@ def resolve_dask(
             dem,
             dem_units,
             None if columns is None else list(columns),
+            elevation_source,
             meta=meta,
             align_dataframes=False,
         )

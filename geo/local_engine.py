@@ -90,6 +90,7 @@ def resolve_local(
     dem=None,
     dem_units: str | None = None,
     progress: bool = False,
+    elevation_source: str = "larger",
 ) -> pd.DataFrame | None:
     """Resolve sites in chunks on this machine; one DataFrame row per site, in order.
 
@@ -101,7 +102,7 @@ def resolve_local(
         Given elevations [ft] (NaN where none), or None when no row gives one.
     layers : list of geo.layers.Layer
         Zone layers, most local first.
-    dem, dem_units
+    dem, dem_units, elevation_source
         As for :func:`geo.resolve.resolve_points`.
     progress : bool
         Show a progress bar on stderr.
@@ -136,6 +137,7 @@ def resolve_local(
                 elevation_ft=None if elevation_ft is None else elevation_ft[start:stop],
                 dem=dem,
                 dem_units=dem_units,
+                elevation_source=elevation_source,
             )
         finally:
             pool.put(own)

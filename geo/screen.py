@@ -169,6 +169,7 @@ def run_screen(
     geocode_cache=None,
     max_rows: int | None = None,
     progress: bool = False,
+    elevation_source: str = "larger",
 ) -> ScreenRun:
     """Screen sites; return the results with their summary (see :func:`screen`)."""
     from engine.choices import choose_key
@@ -185,6 +186,9 @@ def run_screen(
     dem = dem_argument(dem)  # "demo": the embedded synthetic DEM, as for `neve site`
     if dem is not None and not Path(dem).is_file():
         raise InputError("dem", f"file {str(dem)!r} not found", "a GeoTIFF path, or 'demo'")
+    from geo.elevation import check_dem_options
+
+    check_dem_options(dem, dem_units)  # before any work: a unit without a DEM, or a clash
     layer_list = _layers(layers)
     roofs = _roofs(roof)
     lap("layers")
@@ -213,7 +217,13 @@ def run_screen(
     idx = np.flatnonzero(valid)
     elev = site.elevation_ft[idx]
     elev_arg = elev if np.isfinite(elev).any() else None
-    kwargs = dict(layers=layer_list, dem=dem, dem_units=dem_units, progress=progress)
+    kwargs = dict(
+        layers=layer_list,
+        dem=dem,
+        dem_units=dem_units,
+        progress=progress,
+        elevation_source=elevation_source,
+    )
     if len(idx) == 0:
         resolved = None
     elif engine == "dask":
