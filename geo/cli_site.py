@@ -8,7 +8,12 @@ from pathlib import Path
 import click
 
 from engine.errors import InputError
-from geo.options import roof_from_options, roof_options
+from geo.options import (
+    dem_units_option,
+    elevation_source_option,
+    roof_from_options,
+    roof_options,
+)
 
 
 def _check_output(path: str | None, field: str, overwrite: bool, is_dir: bool = False) -> None:
@@ -34,7 +39,8 @@ def _check_output(path: str | None, field: str, overwrite: bool, is_dir: bool = 
     "--dem",
     help="DEM GeoTIFF to sample the elevation from (any CRS); 'demo' = the embedded demo DEM.",
 )
-@click.option("--dem-units", help="Vertical unit of the DEM when its metadata lacks it: m, ft.")
+@dem_units_option
+@elevation_source_option
 @click.option(
     "--layer",
     "layers",
@@ -105,6 +111,7 @@ def site(**kw) -> None:
         project=kw["project"],
         address=address,
         given=given,
+        elevation_source=kw["elevation_source"],
     )
     data = result.to_json()
     if kw["map_path"] or kw["package_dir"]:

@@ -109,3 +109,45 @@ def roof_from_options(kwargs: dict) -> Roof | None:
     """The roof described by the options and ``--roof`` file, or None if none was."""
     data = roof_mapping(kwargs)
     return None if data is None else Roof.from_mapping(data)
+
+
+class DemUnitType(click.ParamType):
+    """``--dem-units``: one vertical unit (``m``, ``ft``, ``us-ft`` or a longer spelling)."""
+
+    name = "m|ft|us-ft"
+
+    def convert(self, value, param, ctx):
+        from geo.elevation import canonical_dem_unit
+
+        try:
+            return canonical_dem_unit(value)
+        except InputError:
+            self.fail(
+                f"{value!r} is not a vertical unit; accepted: m, ft, us-ft "
+                "(also metre, foot, US survey foot)",
+                param,
+                ctx,
+            )
+
+
+def dem_units_option(f):
+    """``--dem-units``, the same choice for every command that takes ``--dem``."""
+    return click.option(
+        "--dem-units",
+        type=DemUnitType(),
+        help="Vertical unit of a DEM that does not state one: m, ft, us-ft. Needs --dem; "
+        "never overrides the unit the DEM states (a contradiction is refused).",
+    )(f)
+
+
+def elevation_source_option(f):
+    """``--elevation-source``: which elevation governs where a given one and the DEM disagree."""
+    return click.option(
+        "--elevation-source",
+        "elevation_source",
+        type=click.Choice(["larger", "input"], case_sensitive=False),
+        default="larger",
+        show_default=True,
+        help="Where a given elevation and the DEM differ by more than 15 m: 'larger' lets "
+        "the more demanding ground load govern, 'input' the given elevation.",
+    )(f)

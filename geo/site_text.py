@@ -37,6 +37,13 @@ def site_text(result, show_steps: bool = True) -> str:
     lines.append(f"Elevation:   {_length(g['elevation'])}  source: {g['elevation_source']}")
     if g["dem_elevation"] is not None and g["elevation_source"] != "dem":
         lines.append(f"DEM:         {_length(g['dem_elevation'])}")
+    for alt in g.get("elevation_alternatives") or []:  # given elevation and DEM disagree
+        where = "given" if alt["source"] == "input" else "DEM"
+        role = "governs" if alt["governs"] else "does not govern"
+        lines.append(
+            f"  at {where:5} {_length(alt['elevation'])}: {alt['status']}, "
+            f"pg {_load(alt['pg'])} ({role})"
+        )
     if g["distance_to_other"] is not None:
         lines.append(
             f"Other value: nearest zone with another value {_length(g['distance_to_other'])}"
