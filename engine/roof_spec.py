@@ -5,16 +5,24 @@ know about the roof, in the standard's units (ft, degrees, ft2.h.F/Btu).
 :meth:`Roof.from_mapping` turns the option names of the CLI and ROOF.toml
 (``shape``, ``slope``, ``eave_to_ridge``, ``[[step]]`` ...) into one,
 validating every field; it reads no file (the caller parses the TOML).
+
+Every number is checked against :data:`RANGES` (and a flat roof against
+:data:`FLAT_SLOPE_MAX_DEG`) when a :class:`Roof`, :class:`RoofStep`,
+:class:`Parapet` or :class:`Projection` is built, so a roof built directly
+from Python is held to the same ranges as one read from options.
+:func:`merge_roof_levels` puts option levels together (a ROOF.toml, then the
+command line), a later level replacing what an earlier one said.
 """
 
 from __future__ import annotations
 
+import math
 from collections.abc import Mapping
 from dataclasses import dataclass, field, replace
 
 from engine.choices import choose_key
 from engine.errors import InputError, UnsupportedError
-from engine.units import parse_length, parse_load, parse_slope
+from engine.units import Bound, parse_length, parse_load, parse_slope
 
 #: roof shapes covered by the engine
 SHAPES = ("flat", "monoslope", "gable", "hip")
@@ -23,23 +31,147 @@ UNSUPPORTED_SHAPES = ("curved", "sawtooth", "folded-plate", "barrel-vault", "dom
 SURFACES = ("slippery", "other")
 RISKS = ("I", "II", "III", "IV")
 
+#: the steepest slope a roof given as ``flat`` may have [deg].  ASCE 7-16
+#: Sec. 7.3 works the flat roof snow load pf for roofs of 5 degrees or less
+#: (about 1.05 on 12); a steeper roof is a monoslope, gable or hip roof.
+FLAT_SLOPE_MAX_DEG = 5.0
+
+#: largest ground snow load neve accepts [psf]; far above any mapped value
+#: (common practice: the heaviest mapped mountain values are a few hundred psf)
+PG_MAX_PSF = 2000.0
+
+_PLAN = "longer than the roofs of the largest buildings"
+#: the accepted range of every number of a roof, keyed by its ROOF.toml name,
+#: in the engine's units.  Zero is refused where it makes no physical sense
+#: (a roof length, a height); a zero separation is a step within one structure.
+RANGES: dict[str, Bound] = {
+    "pg": Bound(0.0, PG_MAX_PSF, "psf", why="plausibility bound on ground snow loads"),
+    "ce": Bound(0.7, 1.2, why="the extremes of ASCE 7-16 Table 7.3-1"),
+    "ct": Bound(0.85, 1.3, why="the extremes of ASCE 7-16 Table 7.3-2"),
+    "r_value": Bound(0.0, 200.0, "ft2.h.F/Btu", why="far above any insulated roof"),
+    "eave_to_ridge": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
+    "overhang.length": Bound(0.0, 50.0, "ft", lo_open=True, why="a deep canopy; omit [overhang] when there is none"),
+    "step.height": Bound(0.0, 500.0, "ft", lo_open=True, why="a tall building beside a low roof"),
+    "step.upper_length": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
+    "step.lower_length": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
+    "step.separation": Bound(0.0, 5000.0, "ft", why="0 for a step in one structure; drifts stop at 20 ft (Sec. 7.7.2)"),
+    "step.upper_eave_to_ridge": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
+    "step.upper_pf": Bound(0.0, PG_MAX_PSF, "psf", why="the ground snow load bound"),
+    "parapet.height": Bound(0.0, 50.0, "ft", lo_open=True, why="taller walls are a roof step"),
+    "parapet.upwind_length": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
+    "projection.height": Bound(0.0, 100.0, "ft", lo_open=True, why="a rooftop penthouse"),
+    "projection.plan_length": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
+    "projection.upwind_length": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
+}  # fmt: skip
+
+#: yes/no keys and the key that says the opposite (``unventilated = true`` is
+#: ``ventilated = false``); both of a pair on one level contradict each other
+BOOL_PAIRS = {"ventilated": "unventilated", "unobstructed": "obstructed",
+              "prismatic": "non_prismatic"}  # fmt: skip
+#: keys that say the same thing in two ways: one level may use only one side,
+#: and a later level's side replaces an earlier level's other side
+_ALTERNATIVES = (
+    (("ct",), ("thermal",)),
+    (("ce",), ("terrain", "exposure")),
+    *(((k,), (v,)) for k, v in BOOL_PAIRS.items()),
+)
+
 _ROOF_KEYS = {
     "shape", "slope", "surface", "ct", "thermal", "ce", "terrain", "exposure", "risk",
     "eave_to_ridge", "r_value", "ventilated", "unobstructed", "prismatic", "name",
-    "step", "parapet", "projection", "overhang",
+    "step", "parapet", "projection", "overhang", *BOOL_PAIRS.values(),
 }  # fmt: skip
 
 
-def _float(value, name: str, lo: float, hi: float) -> float:
+def _norm_keys(data: Mapping) -> dict:
+    return {str(k).replace("-", "_"): v for k, v in dict(data).items() if v is not None}
+
+
+def merge_roof_levels(*levels: Mapping | None) -> dict:
+    """Merge roof option mappings, each later level overriding the earlier ones.
+
+    A level may give ``ct`` or ``thermal``, ``ce`` or ``terrain``/``exposure``,
+    ``ventilated`` or ``unventilated`` (and the other yes/no pairs), not both;
+    a later level that gives one side drops the other side of the earlier
+    levels, so ``--ct 1.1`` on the command line replaces ``thermal`` in the
+    ROOF.toml.  Both sides on one level are left in and refused by
+    :meth:`Roof.from_mapping`.
+
+    >>> merge_roof_levels({"thermal": "heated", "shape": "flat"}, {"ct": 1.1})
+    {'shape': 'flat', 'ct': 1.1}
+    """
+    out: dict = {}
+    for level in levels:
+        if not level:
+            continue
+        level = _norm_keys(level)
+        for side_a, side_b in _ALTERNATIVES:
+            for mine, theirs in ((side_a, side_b), (side_b, side_a)):
+                if any(k in level for k in mine):
+                    for k in theirs:
+                        if k not in level:
+                            out.pop(k, None)
+        out.update(level)
+    return out
+
+
+def _length(entry: Mapping, key: str, where: str, range_key: str, default=None, need=None):
+    """Parse ``entry[key]`` as a length [ft] and check it against ``RANGES[range_key]``.
+
+    ``need``: an example length, for a key that must be given.
+    """
+    text = entry.get(key, default)
+    name = f"{where}.{key}" if where else key
+    if text is None:
+        if need:
+            raise InputError(name, "missing", f"a length such as {need}")
+        return None
+    return parse_length(text, name, bound=RANGES[range_key])
+
+
+def _check(obj, prefix: str, names: dict[str, str]) -> None:
+    """Check the attributes of a roof part against RANGES (``names``: attribute -> range key)."""
+    for attr, key in names.items():
+        value = getattr(obj, attr)
+        if value is not None:
+            RANGES[key].check(value, f"{prefix}{attr}" if prefix else attr)
+
+
+def _slope_check(slope, name: str) -> None:
+    try:
+        x = float(slope)
+    except (TypeError, ValueError):
+        x = math.nan
+    if not (math.isfinite(x) and 0.0 <= x < 90.0):
+        raise InputError(name, f"{slope!r} degrees is not a roof slope", "0 to under 90 degrees")
+
+
+def _flat_too_steep(slope: float, stated: bool, given=None) -> None:
+    shown = f"{given!r} ({slope:.2f} degrees)" if given is not None else f"{slope:.2f} degrees"
+    limit = f"at most {FLAT_SLOPE_MAX_DEG:g} degrees (about 1.05:12; ASCE 7-16 Sec. 7.3)"
+    if stated:
+        raise InputError(
+            "slope",
+            f"{shown} is too steep for a flat roof",
+            f"a flat roof slope of {limit}, or shape monoslope, gable or hip",
+        )
+    raise InputError(
+        "shape",
+        f"not given, so the roof is taken as flat, but slope {shown} is too steep for a flat roof",
+        f"shape monoslope, gable or hip for this slope, or a slope of {limit}",
+    )
+
+
+def _float(value, name: str) -> float:
+    """A plain number (``ct``, ``ce``, ``r_value``) checked against ``RANGES[name]``."""
+    bound = RANGES[name]
+    if isinstance(value, bool):
+        raise InputError(name, f"{value!r} is not a number", bound.text())
     try:
         x = float(value)
     except (TypeError, ValueError):
-        raise InputError(
-            name, f"{value!r} is not a number", f"a number from {lo} to {hi}"
-        ) from None
-    if not (lo <= x <= hi):
-        raise InputError(name, f"{value!r} is out of range", f"a number from {lo} to {hi}")
-    return x
+        raise InputError(name, f"{value!r} is not a number", bound.text()) from None
+    return bound.check(x, name, value if isinstance(value, str) else None)
 
 
 def _bool(value, name: str) -> bool | None:
@@ -71,12 +203,23 @@ class RoofStep:
     upper_slides_toward: bool = True  # the upper roof's eave is at the step
     upper_pf: float | None = None  # flat roof load of the upper roof [psf], for sliding
 
+    def __post_init__(self):
+        _check(self, "step.", {a: f"step.{a}" for a in (
+            "height", "upper_length", "lower_length", "separation", "upper_eave_to_ridge",
+            "upper_pf")})  # fmt: skip
+        if self.upper_slope is not None:
+            _slope_check(self.upper_slope, "step.upper_slope")
+        choose_key("step.upper_surface", self.upper_surface, SURFACES)
+
 
 @dataclass(frozen=True)
 class Parapet:
     name: str
     height: float  # parapet height above the roof surface [ft]
     upwind_length: float  # roof length upwind of the parapet [ft]
+
+    def __post_init__(self):
+        _check(self, "parapet.", {a: f"parapet.{a}" for a in ("height", "upwind_length")})
 
 
 @dataclass(frozen=True)
@@ -85,6 +228,10 @@ class Projection:
     height: float  # projection height above the roof surface [ft]
     plan_length: float  # plan length of the projection's side [ft]
     upwind_length: float  # roof length upwind of the projection [ft]
+
+    def __post_init__(self):
+        names = ("height", "plan_length", "upwind_length")
+        _check(self, "projection.", {a: f"projection.{a}" for a in names})
 
 
 @dataclass(frozen=True)
@@ -112,6 +259,17 @@ class Roof:
     overhang: float | None = None  # overhang length beyond the exterior wall [ft]
     shape_stated: bool = True  # False when the shape defaulted to flat
 
+    def __post_init__(self):
+        choose_key("shape", self.shape, SHAPES)
+        choose_key("surface", self.surface, SURFACES)
+        _slope_check(self.slope, "slope")
+        _check(self, "", {"ce": "ce", "ct": "ct", "r_value": "r_value",
+                          "eave_to_ridge": "eave_to_ridge"})  # fmt: skip
+        if self.overhang is not None:
+            RANGES["overhang.length"].check(self.overhang, "overhang.length")
+        if self.shape == "flat" and self.slope > FLAT_SLOPE_MAX_DEG:
+            _flat_too_steep(self.slope, self.shape_stated)
+
     def replace(self, **changes) -> Roof:
         return replace(self, **changes)
 
@@ -129,7 +287,7 @@ class Roof:
                 f"{type(data).__name__} is not a table of roof options",
                 "a mapping such as ROOF.toml gives",
             )
-        data = {str(k).replace("-", "_"): v for k, v in dict(data).items() if v is not None}
+        data = _norm_keys(data)
         unknown = sorted(set(data) - _ROOF_KEYS)
         if unknown:
             raise InputError(
@@ -145,6 +303,8 @@ class Roof:
         shape = choose_key("shape", shape, SHAPES)
         if "slope" in data:
             slope = parse_slope(data["slope"], "slope")
+            if shape == "flat" and slope > FLAT_SLOPE_MAX_DEG:
+                _flat_too_steep(slope, "shape" in data, data["slope"])
         elif shape == "flat":
             slope = 0.0
         else:
@@ -159,10 +319,15 @@ class Roof:
             raise InputError(
                 "ce", "give ce or terrain/exposure, not both", "ce, or terrain with exposure"
             )
+        for key, opposite in BOOL_PAIRS.items():
+            if key in data and opposite in data:
+                raise InputError(
+                    key, f"give {key} or {opposite}, not both", f"one of {key}, {opposite}"
+                )
         if "ct" in data:
-            kw["ct"] = _float(data["ct"], "ct", 0.5, 2.0)
+            kw["ct"] = _float(data["ct"], "ct")
         if "ce" in data:
-            kw["ce"] = _float(data["ce"], "ce", 0.5, 2.0)
+            kw["ce"] = _float(data["ce"], "ce")
         from engine.asce7_16.factors import EXPOSURES, TERRAINS, THERMAL
 
         if "thermal" in data:
@@ -173,15 +338,15 @@ class Roof:
             kw["exposure"] = choose_key("exposure", data["exposure"], EXPOSURES)
         if "risk" in data:
             kw["risk"] = choose_key("risk", str(data["risk"]).upper(), RISKS)
-        if "eave_to_ridge" in data:
-            kw["eave_to_ridge"] = parse_length(data["eave_to_ridge"], "eave_to_ridge")
-            if kw["eave_to_ridge"] <= 0:
-                raise InputError("eave_to_ridge", "must be above zero", "a length such as 30ft")
+        kw["eave_to_ridge"] = _length(data, "eave_to_ridge", "", "eave_to_ridge")
         if "r_value" in data:
-            kw["r_value"] = _float(data["r_value"], "r_value", 0.0, 1000.0)
-        for key in ("ventilated", "unobstructed", "prismatic"):
+            kw["r_value"] = _float(data["r_value"], "r_value")
+        for key, opposite in BOOL_PAIRS.items():
             if key in data:
                 kw[key] = _bool(data[key], key)
+            elif opposite in data:
+                said = _bool(data[opposite], opposite)
+                kw[key] = None if said is None else not said
         if "name" in data:
             kw["name"] = str(data["name"])
         kw["steps"] = tuple(_steps(data.get("step", [])))
@@ -190,10 +355,11 @@ class Roof:
         if "overhang" in data:
             oh = data["overhang"]
             if isinstance(oh, Mapping):
+                _check_keys(oh, "overhang", {"length"})
                 if "length" not in oh:
                     raise InputError("overhang.length", "missing", "a length such as 2ft")
                 oh = oh["length"]
-            kw["overhang"] = parse_length(oh, "overhang.length")
+            kw["overhang"] = _length({"length": oh}, "length", "overhang", "overhang.length")
         return cls(**kw)
 
 
@@ -205,16 +371,19 @@ def _table_list(value, name: str) -> list[Mapping]:
     return list(value)
 
 
-def _need(entry: Mapping, key: str, where: str, example: str):
-    if key not in entry:
-        raise InputError(f"{where}.{key}", "missing", example)
-    return entry[key]
-
-
 def _check_keys(entry: Mapping, where: str, keys: set[str]) -> None:
     unknown = sorted(set(entry) - keys)
     if unknown:
         raise InputError(where, f"unknown key(s) {', '.join(unknown)}", ", ".join(sorted(keys)))
+
+
+def _part(cls, where: str, **kw):
+    """Build a roof part; its own range errors get the entry's name (``step[0].height``)."""
+    try:
+        return cls(**kw)
+    except InputError as exc:
+        name = exc.field.split(".", 1)[-1]
+        raise InputError(f"{where}.{name}", exc.problem, exc.accepted) from None
 
 
 def _steps(value) -> list[RoofStep]:
@@ -227,33 +396,29 @@ def _steps(value) -> list[RoofStep]:
         _check_keys(e, w, keys)
         up_slope = e.get("upper_slope")
         out.append(
-            RoofStep(
+            _part(
+                RoofStep,
+                w,
                 name=str(e.get("name", f"step {i + 1}")),
-                height=parse_length(_need(e, "height", w, "a length such as 10ft"), f"{w}.height"),
-                upper_length=parse_length(
-                    _need(e, "upper_length", w, "a length such as 120ft"), f"{w}.upper_length"
-                ),
-                lower_length=parse_length(
-                    _need(e, "lower_length", w, "a length such as 60ft"), f"{w}.lower_length"
-                ),
-                separation=parse_length(e.get("separation", "0ft"), f"{w}.separation"),
+                height=_length(e, "height", w, "step.height", need="10ft"),
+                upper_length=_length(e, "upper_length", w, "step.upper_length", need="120ft"),
+                lower_length=_length(e, "lower_length", w, "step.lower_length", need="60ft"),
+                separation=_length(e, "separation", w, "step.separation", "0ft"),
                 upper_slope=None if up_slope is None else parse_slope(up_slope, f"{w}.upper_slope"),
                 upper_surface=choose_key(
                     f"{w}.upper_surface", e.get("upper_surface", "other"), SURFACES
                 ),
-                upper_eave_to_ridge=None
-                if e.get("upper_eave_to_ridge") is None
-                else parse_length(e["upper_eave_to_ridge"], f"{w}.upper_eave_to_ridge"),
+                upper_eave_to_ridge=_length(
+                    e, "upper_eave_to_ridge", w, "step.upper_eave_to_ridge"
+                ),
                 upper_pf=None
                 if e.get("upper_pf") is None
-                else parse_load(e["upper_pf"], f"{w}.upper_pf"),
+                else parse_load(e["upper_pf"], f"{w}.upper_pf", bound=RANGES["step.upper_pf"]),
                 upper_slides_toward=bool(
                     _bool(e.get("upper_slides_toward", True), f"{w}.upper_slides_toward")
                 ),
             )
         )
-        if out[-1].height <= 0:
-            raise InputError(f"{w}.height", "must be above zero", "a length such as 10ft")
     return out
 
 
@@ -263,12 +428,12 @@ def _parapets(value) -> list[Parapet]:
         w = f"parapet[{i}]"
         _check_keys(e, w, {"name", "height", "upwind_length"})
         out.append(
-            Parapet(
+            _part(
+                Parapet,
+                w,
                 name=str(e.get("name", f"parapet {i + 1}")),
-                height=parse_length(_need(e, "height", w, "a length such as 3ft"), f"{w}.height"),
-                upwind_length=parse_length(
-                    _need(e, "upwind_length", w, "a length such as 100ft"), f"{w}.upwind_length"
-                ),
+                height=_length(e, "height", w, "parapet.height", need="3ft"),
+                upwind_length=_length(e, "upwind_length", w, "parapet.upwind_length", need="100ft"),
             )
         )
     return out
@@ -280,23 +445,18 @@ def _projections(value) -> list[Projection]:
         w = f"projection[{i}]"
         _check_keys(e, w, {"name", "height", "plan_length", "upwind_length"})
         out.append(
-            Projection(
+            _part(
+                Projection,
+                w,
                 name=str(e.get("name", f"projection {i + 1}")),
-                height=parse_length(_need(e, "height", w, "a length such as 4ft"), f"{w}.height"),
-                plan_length=parse_length(
-                    _need(e, "plan_length", w, "a length such as 20ft"), f"{w}.plan_length"
-                ),
-                upwind_length=parse_length(
-                    _need(e, "upwind_length", w, "a length such as 80ft"), f"{w}.upwind_length"
+                height=_length(e, "height", w, "projection.height", need="4ft"),
+                plan_length=_length(e, "plan_length", w, "projection.plan_length", need="20ft"),
+                upwind_length=_length(
+                    e, "upwind_length", w, "projection.upwind_length", need="80ft"
                 ),
             )
         )
     return out
-
-
-#: largest ground snow load neve accepts [psf]; far above any mapped value
-#: (common practice: the heaviest mapped mountain values are a few hundred psf)
-PG_MAX_PSF = 2000.0
 
 
 def parse_pg(text, field: str = "pg") -> float:

@@ -23,6 +23,7 @@ from __future__ import annotations
 
 import math
 import re
+from dataclasses import dataclass
 
 import numpy as np
 
@@ -107,14 +108,21 @@ def _split(text: object, field: str, kind: str) -> tuple[float, str]:
     return value, unit.strip().lower().replace(" ", "")
 
 
-def _parse(text: object, field: str, kind: str, table: dict[str, float]) -> float:
+def _parse(text: object, field: str, kind: str, table: dict[str, float], bound=None) -> float:
     value, unit = _split(text, field, kind)
     if unit not in table:
         raise InputError(field, f"unknown unit {unit!r} in {text!r}", _ACCEPTED[kind])
-    return value * table[unit]
+    value = value * table[unit]
+    if bound is not None:
+        return bound.check(value, field, text)
+    if not math.isfinite(value):  # e.g. 1e308m: finite as written, infinite in ft
+        raise InputError(field, f"{text!r} is too large to be a {kind}", _ACCEPTED[kind])
+    return value
 
 
-def parse_load(text: object, field: str, *, allow_negative: bool = False) -> float:
+def parse_load(
+    text: object, field: str, *, allow_negative: bool = False, bound: Bound | None = None
+) -> float:
     """Parse a pressure such as ``35psf`` or ``1.68kPa`` into psf.
 
     Parameters
@@ -125,21 +133,28 @@ def parse_load(text: object, field: str, *, allow_negative: bool = False) -> flo
         Input field name for error messages.
     allow_negative : bool
         Negative loads are rejected unless this is true.
+    bound : Bound, optional
+        The accepted range [psf]; a value outside it is refused with the range.
 
     Returns
     -------
     float
         The load [psf].
     """
-    value = _parse(text, field, "load", LOAD_UNITS)
+    value = _parse(text, field, "load", LOAD_UNITS, bound)
     if value < 0 and not allow_negative:
         raise InputError(field, f"{text!r} is negative", "a load of zero or more")
     return value
 
 
-def parse_length(text: object, field: str, *, allow_negative: bool = False) -> float:
-    """Parse a length such as ``30ft`` or ``9.1m`` into feet [ft]."""
-    value = _parse(text, field, "length", LENGTH_UNITS)
+def parse_length(
+    text: object, field: str, *, allow_negative: bool = False, bound: Bound | None = None
+) -> float:
+    """Parse a length such as ``30ft`` or ``9.1m`` into feet [ft].
+
+    With ``bound``, a value outside that range [ft] is refused with the range.
+    """
+    value = _parse(text, field, "length", LENGTH_UNITS, bound)
     if value < 0 and not allow_negative:
         raise InputError(field, f"{text!r} is negative", "a length of zero or more")
     return value
@@ -193,6 +208,100 @@ def parse_slope(text: object, field: str = "slope") -> float:
     if deg < 0 or deg >= 90.0:
         raise InputError(field, f"{text!r} is {deg:.1f} degrees", _ACCEPTED["slope"])
     return deg
+
+
+#: how each engine unit is shown in a range, with its SI twin (factor, SI unit)
+_SI_TWIN = {"ft": (M_PER_FT, "m"), "psf": (KPA_PER_PSF, "kPa"),
+            "ft2.h.F/Btu": (1.0 / RUS_PER_RSI, "m2.K/W")}  # fmt: skip
+
+
+#: what a value of each engine unit is called in a message
+_NOUN = {"": "a number", "ft": "a length", "psf": "a load", "deg": "a slope"}
+
+
+def _g(x: float) -> str:
+    return f"{x:.4g}"
+
+
+@dataclass(frozen=True)
+class Bound:
+    """The accepted range of one input, in the engine's unit.
+
+    Parameters
+    ----------
+    lo, hi : float
+        The lowest and highest accepted value [``unit``].
+    unit : str
+        ``ft``, ``psf``, ``deg``, ``ft2.h.F/Btu`` or ``""`` for a plain factor.
+    lo_open : bool
+        True where ``lo`` itself is refused (a roof length of zero).
+    why : str
+        Where the range comes from, for the README table and the docstrings.
+
+    >>> Bound(0.0, 500.0, "ft", lo_open=True).text()
+    'a length above 0 ft and at most 500 ft (152.4 m)'
+    >>> Bound(0.7, 1.2, "").check(1.5, "ce")
+    Traceback (most recent call last):
+    ...
+    engine.errors.InputError: ce: 1.5 is out of range; accepted: a number from 0.7 to 1.2
+    """
+
+    lo: float
+    hi: float
+    unit: str = ""
+    lo_open: bool = False
+    why: str = ""
+
+    def _with_unit(self, x: float, twin: bool = False) -> str:
+        text = _g(x) if not self.unit else f"{_g(x)} {self.unit}"
+        if twin and self.unit in _SI_TWIN and x != 0:
+            factor, si = _SI_TWIN[self.unit]
+            text += f" ({_g(x * factor)} {si})"
+        return text
+
+    def text(self) -> str:
+        """The range in words, e.g. ``a length above 0 ft and at most 500 ft (152.4 m)``."""
+        noun = _NOUN.get(self.unit, "a number")
+        if self.lo_open:
+            lo, hi = self._with_unit(self.lo), self._with_unit(self.hi, True)
+            return f"{noun} above {lo} and at most {hi}"
+        return f"{noun} from {_g(self.lo)} to {self._with_unit(self.hi, True)}"
+
+    def contains(self, value: float) -> bool:
+        """Whether ``value`` (a finite number) is in the range."""
+        above = value > self.lo if self.lo_open else value >= self.lo
+        return bool(math.isfinite(value) and above and value <= self.hi)
+
+    def check(self, value: object, field: str, given: object = None) -> float:
+        """Return ``value`` as a float, or raise :class:`InputError` naming ``field`` and the range.
+
+        ``given`` is the text the user wrote (shown in the message); without
+        it the value itself is shown.
+        """
+        shown = repr(given) if given is not None else None
+        if isinstance(value, bool):
+            raise InputError(field, f"{value!r} is not a number", self.text())
+        try:
+            x = float(value)
+        except (TypeError, ValueError):
+            raise InputError(
+                field, f"{shown or repr(value)} is not a number", self.text()
+            ) from None
+        if math.isnan(x):
+            raise InputError(field, f"{shown or repr(value)} is not a number", self.text())
+        if math.isinf(x):
+            problem = "is out of range" if shown else "is not a finite number"
+            raise InputError(field, f"{shown or repr(value)} {problem}", self.text())
+        if self.contains(x):
+            return x
+        what = self._with_unit(x)
+        if shown is not None:
+            what = f"{shown} ({what})" if self.unit else shown
+        if self.lo_open and x == self.lo:
+            problem = f"{what} is not above {self._with_unit(self.lo)}"
+        else:
+            problem = f"{what} is out of range"
+        raise InputError(field, problem, self.text())
 
 
 def psf_to_kpa(psf):

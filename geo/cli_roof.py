@@ -2,11 +2,10 @@
 
 from __future__ import annotations
 
-import json
-
 import click
 
 from engine.errors import InputError
+from engine.jsonsafe import dumps
 from engine.roof_spec import Roof, parse_pg
 from geo.options import roof_mapping, roof_options
 from geo.printable import printable
@@ -19,16 +18,22 @@ def _once(field: str, values: tuple):
     return values[0]
 
 
+def _num(x, spec: str) -> str:
+    """A number in ``spec`` format; None (a value that was not finite) shows as n/a."""
+    return "n/a" if x is None else format(x, spec)
+
+
 def _load(v: dict | None) -> str:
+    """A load as ``35.0 psf (1.68 kPa)``: psf first, its kPa twin in brackets."""
     if v is None:
         return "n/a"
-    return f"{v['psf']:.1f} psf ({v['kPa']:.2f} kPa)"
+    return f"{_num(v['psf'], '.1f')} psf ({_num(v['kPa'], '.2f')} kPa)"
 
 
 def _length(v: dict | None) -> str:
     if v is None:
         return "n/a"
-    return f"{v['ft']:.2f} ft ({v['m']:.2f} m)"
+    return f"{_num(v['ft'], '.2f')} ft ({_num(v['m'], '.2f')} m)"
 
 
 def _case_values(case: dict) -> list[str]:
@@ -42,9 +47,11 @@ def _case_values(case: dict) -> list[str]:
         elif "ft" in value:
             out.append(f"{key} = {_length(value)}")
         elif "plf" in value:
-            out.append(f"{key} = {value['plf']:.0f} plf ({value['kN/m']:.2f} kN/m)")
+            out.append(
+                f"{key} = {_num(value['plf'], '.0f')} plf ({_num(value['kN/m'], '.2f')} kN/m)"
+            )
         elif "pcf" in value:
-            out.append(f"{key} = {value['pcf']:.1f} pcf")
+            out.append(f"{key} = {_num(value['pcf'], '.1f')} pcf")
     if case.get("governs"):
         out.append(f"governs = {case['governs']}")
     return out
@@ -119,6 +126,6 @@ def roof(pg, fmt, no_steps, **kwargs):
     mapping = roof_mapping(kwargs) or {}
     result = analyze_roof(pg_psf, Roof.from_mapping(mapping)).to_json()
     if fmt == "json":
-        click.echo(json.dumps(result, indent=2))
+        click.echo(dumps(result, indent=2))
     else:
         click.echo(printable(roof_text(result, show_steps=not no_steps)))

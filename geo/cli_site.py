@@ -2,12 +2,12 @@
 
 from __future__ import annotations
 
-import json
 from pathlib import Path
 
 import click
 
 from engine.errors import InputError
+from engine.jsonsafe import dumps, finite_copy
 from geo.options import (
     dem_units_option,
     elevation_source_option,
@@ -113,7 +113,7 @@ def site(**kw) -> None:
         given=given,
         elevation_source=kw["elevation_source"],
     )
-    data = result.to_json()
+    data = finite_copy(result.to_json())  # no NaN or infinity in any output: null + a flag
     if kw["map_path"] or kw["package_dir"]:
         views = result.views()
         if kw["map_path"]:
@@ -134,7 +134,7 @@ def site(**kw) -> None:
                 overwrite=kw["overwrite"],
             )
     if kw["fmt"] == "json":
-        click.echo(json.dumps(data, indent=2, ensure_ascii=False, allow_nan=False))
+        click.echo(dumps(data, indent=2, ensure_ascii=False))
     else:
         click.echo(result.to_text())
         for what, path in (("map", kw["map_path"]), ("package", kw["package_dir"])):

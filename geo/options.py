@@ -14,13 +14,28 @@ from pathlib import Path
 import click
 
 from engine.errors import InputError
-from engine.roof_spec import Roof
+from engine.roof_spec import Roof, merge_roof_levels
 
 #: roof option names as they appear in kwargs (and ROOF.toml keys)
 ROOF_OPTION_KEYS = (
     "shape", "slope", "surface", "ct", "thermal", "ce", "terrain", "exposure", "risk",
     "eave_to_ridge", "r_value", "ventilated", "unobstructed", "prismatic",
 )  # fmt: skip
+
+
+def _one_answer(ctx, param, values: tuple):
+    """A yes/no pair (``--ventilated/--unventilated``) given once, or both ways: refused."""
+    if not values:
+        return None
+    if len(set(values)) > 1:
+        yes, no = param.opts[0], param.secondary_opts[0]
+        raise InputError(param.name, f"{yes} and {no} given together", f"one of {yes}, {no}")
+    return values[0]
+
+
+def _pair(decl: str, name: str, help_: str):
+    """A yes/no option pair; giving both spellings is a contradiction (exit 2)."""
+    return click.option(decl, name, default=None, multiple=True, callback=_one_answer, help=help_)
 
 
 def roof_options(f):
@@ -52,23 +67,16 @@ def roof_options(f):
         click.option(
             "--r-value", "r_value", help="Roof thermal resistance R [ft2.h.F/Btu], e.g. 30."
         ),
-        click.option(
-            "--ventilated/--unventilated",
-            "ventilated",
-            default=None,
-            help="Whether the roof is ventilated.",
-        ),
-        click.option(
+        _pair("--ventilated/--unventilated", "ventilated", "Whether the roof is ventilated."),
+        _pair(
             "--unobstructed/--obstructed",
             "unobstructed",
-            default=None,
-            help="Whether snow can slide off the eaves unobstructed.",
+            "Whether snow can slide off the eaves unobstructed.",
         ),
-        click.option(
+        _pair(
             "--prismatic/--non-prismatic",
             "prismatic",
-            default=None,
-            help="Simply supported prismatic members from ridge to eave (Sec. 7.6.1).",
+            "Simply supported prismatic members from ridge to eave (Sec. 7.6.1).",
         ),
     ]
     for opt in reversed(opts):
@@ -77,18 +85,31 @@ def roof_options(f):
 
 
 def read_toml(path: str | Path, field: str) -> dict:
-    """Read a TOML file; a missing or malformed file is an InputError naming ``field``."""
+    """Read a TOML file; a missing or malformed file is an InputError naming ``field``.
+
+    The text is UTF-8; a byte-order mark at its start (as some Windows editors
+    write) is dropped, since TOML itself does not allow one.
+    """
     p = Path(path)
     if not p.is_file():
         raise InputError(field, f"file {str(p)!r} not found", "a path to a TOML file")
     try:
-        return tomllib.loads(p.read_text(encoding="utf-8"))
+        return tomllib.loads(p.read_text(encoding="utf-8-sig"))
     except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
         raise InputError(field, f"{str(p)!r} is not valid TOML ({exc})", "a TOML file") from None
+    except OSError as exc:
+        raise InputError(
+            field, f"{str(p)!r} cannot be read ({exc.strerror})", "a readable TOML file"
+        ) from None
 
 
 def roof_mapping(kwargs: dict) -> dict | None:
-    """Merge ``--roof`` file content and the roof options into one mapping."""
+    """Merge ``--roof`` file content and the roof options into one mapping.
+
+    The options override the file (:func:`engine.roof_spec.merge_roof_levels`):
+    ``--ct`` replaces the file's ``thermal``, ``--unventilated`` its
+    ``ventilated = true``, and so on.
+    """
     data: dict = {}
     if kwargs.get("roof_file"):
         data = read_toml(kwargs["roof_file"], "roof")
@@ -101,8 +122,7 @@ def roof_mapping(kwargs: dict) -> dict | None:
     given = {k: kwargs.get(k) for k in ROOF_OPTION_KEYS if kwargs.get(k) is not None}
     if not data and not given:
         return None
-    data.update(given)
-    return data
+    return merge_roof_levels(data, given)
 
 
 def roof_from_options(kwargs: dict) -> Roof | None:

@@ -7,12 +7,17 @@ from geo.printable import printable
 DEMO_BANNER = "*** DEMO DATA — invented values, never for design ***"
 
 
+def _num(x, spec: str) -> str:
+    return "—" if x is None else format(x, spec)
+
+
 def _load(x: dict | None) -> str:
-    return "—" if x is None else f"{x['psf']:g} psf ({x['kPa']:g} kPa)"
+    """A load as ``35 psf (1.676 kPa)``: psf first, its kPa twin in brackets."""
+    return "—" if x is None else f"{_num(x['psf'], 'g')} psf ({_num(x['kPa'], 'g')} kPa)"
 
 
 def _length(x: dict | None) -> str:
-    return "—" if x is None else f"{x['ft']:.0f} ft ({x['m']:.1f} m)"
+    return "—" if x is None else f"{_num(x['ft'], '.0f')} ft ({_num(x['m'], '.1f')} m)"
 
 
 def site_text(result, show_steps: bool = True) -> str:

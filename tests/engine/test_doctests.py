@@ -1,7 +1,8 @@
 """Run the doctest examples of the engine's public helpers.
 
 ``pytest --doctest-modules`` is not configured for the suite, so the examples
-in the docstrings of engine/units.py and engine/choices.py are run here; a
+in the docstrings of engine/units.py, engine/choices.py, engine/jsonsafe.py
+and engine/roof_spec.py are run here; a
 broken example fails this test. (regression guard)
 """
 
@@ -12,10 +13,14 @@ import doctest
 import pytest
 
 import engine.choices
+import engine.jsonsafe
+import engine.roof_spec
 import engine.units
 
+MODULES = [engine.units, engine.choices, engine.jsonsafe, engine.roof_spec]
 
-@pytest.mark.parametrize("module", [engine.units, engine.choices], ids=lambda m: m.__name__)
+
+@pytest.mark.parametrize("module", MODULES, ids=lambda m: m.__name__)
 def test_module_doctests(module):
     result = doctest.testmod(module, optionflags=doctest.ELLIPSIS, verbose=False)
     assert result.attempted > 0, f"{module.__name__} has no doctest examples"
