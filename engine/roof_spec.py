@@ -6,23 +6,36 @@ know about the roof, in the standard's units (ft, degrees, ft2.h.F/Btu).
 (``shape``, ``slope``, ``eave_to_ridge``, ``[[step]]`` ...) into one,
 validating every field; it reads no file (the caller parses the TOML).
 
-Every number is checked against :data:`RANGES` (and a flat roof against
-:data:`FLAT_SLOPE_MAX_DEG`) when a :class:`Roof`, :class:`RoofStep`,
-:class:`Parapet` or :class:`Projection` is built, so a roof built directly
-from Python is held to the same ranges as one read from options.
-:func:`merge_roof_levels` puts option levels together (a ROOF.toml, then the
-command line), a later level replacing what an earlier one said.
+Every number is checked against :data:`engine.roof_limits.RANGES` (and a
+flat roof against ``FLAT_SLOPE_MAX_DEG``) when a :class:`Roof`,
+:class:`RoofStep`, :class:`Parapet` or :class:`Projection` is built, so a
+roof built directly from Python is held to the same ranges as one read from
+options.
 """
 
 from __future__ import annotations
 
-import math
 from collections.abc import Mapping
 from dataclasses import dataclass, field, replace
 
 from engine.choices import choose_key
 from engine.errors import InputError, UnsupportedError
-from engine.units import Bound, parse_length, parse_load, parse_slope
+from engine.roof_limits import (
+    BOOL_PAIRS,
+    FLAT_SLOPE_MAX_DEG,
+    PG_MAX_PSF,
+    RANGES,
+    flat_too_steep,
+    merge_roof_levels,
+    norm_keys,
+    slope_check,
+)
+from engine.units import parse_length, parse_load, parse_slope
+
+__all__ = [
+    "FLAT_SLOPE_MAX_DEG", "PG_MAX_PSF", "RANGES", "SHAPES", "Parapet", "Projection", "Roof",
+    "RoofStep", "as_roof", "merge_roof_levels", "parse_pg",
+]  # fmt: skip
 
 #: roof shapes covered by the engine
 SHAPES = ("flat", "monoslope", "gable", "hip")
@@ -31,88 +44,11 @@ UNSUPPORTED_SHAPES = ("curved", "sawtooth", "folded-plate", "barrel-vault", "dom
 SURFACES = ("slippery", "other")
 RISKS = ("I", "II", "III", "IV")
 
-#: the steepest slope a roof given as ``flat`` may have [deg].  ASCE 7-16
-#: Sec. 7.3 works the flat roof snow load pf for roofs of 5 degrees or less
-#: (about 1.05 on 12); a steeper roof is a monoslope, gable or hip roof.
-FLAT_SLOPE_MAX_DEG = 5.0
-
-#: largest ground snow load neve accepts [psf]; far above any mapped value
-#: (common practice: the heaviest mapped mountain values are a few hundred psf)
-PG_MAX_PSF = 2000.0
-
-_PLAN = "longer than the roofs of the largest buildings"
-#: the accepted range of every number of a roof, keyed by its ROOF.toml name,
-#: in the engine's units.  Zero is refused where it makes no physical sense
-#: (a roof length, a height); a zero separation is a step within one structure.
-RANGES: dict[str, Bound] = {
-    "pg": Bound(0.0, PG_MAX_PSF, "psf", why="plausibility bound on ground snow loads"),
-    "ce": Bound(0.7, 1.2, why="the extremes of ASCE 7-16 Table 7.3-1"),
-    "ct": Bound(0.85, 1.3, why="the extremes of ASCE 7-16 Table 7.3-2"),
-    "r_value": Bound(0.0, 200.0, "ft2.h.F/Btu", why="far above any insulated roof"),
-    "eave_to_ridge": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
-    "overhang.length": Bound(0.0, 50.0, "ft", lo_open=True, why="a deep canopy; omit [overhang] when there is none"),
-    "step.height": Bound(0.0, 500.0, "ft", lo_open=True, why="a tall building beside a low roof"),
-    "step.upper_length": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
-    "step.lower_length": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
-    "step.separation": Bound(0.0, 5000.0, "ft", why="0 for a step in one structure; drifts stop at 20 ft (Sec. 7.7.2)"),
-    "step.upper_eave_to_ridge": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
-    "step.upper_pf": Bound(0.0, PG_MAX_PSF, "psf", why="the ground snow load bound"),
-    "parapet.height": Bound(0.0, 50.0, "ft", lo_open=True, why="taller walls are a roof step"),
-    "parapet.upwind_length": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
-    "projection.height": Bound(0.0, 100.0, "ft", lo_open=True, why="a rooftop penthouse"),
-    "projection.plan_length": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
-    "projection.upwind_length": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
-}  # fmt: skip
-
-#: yes/no keys and the key that says the opposite (``unventilated = true`` is
-#: ``ventilated = false``); both of a pair on one level contradict each other
-BOOL_PAIRS = {"ventilated": "unventilated", "unobstructed": "obstructed",
-              "prismatic": "non_prismatic"}  # fmt: skip
-#: keys that say the same thing in two ways: one level may use only one side,
-#: and a later level's side replaces an earlier level's other side
-_ALTERNATIVES = (
-    (("ct",), ("thermal",)),
-    (("ce",), ("terrain", "exposure")),
-    *(((k,), (v,)) for k, v in BOOL_PAIRS.items()),
-)
-
 _ROOF_KEYS = {
     "shape", "slope", "surface", "ct", "thermal", "ce", "terrain", "exposure", "risk",
     "eave_to_ridge", "r_value", "ventilated", "unobstructed", "prismatic", "name",
     "step", "parapet", "projection", "overhang", *BOOL_PAIRS.values(),
 }  # fmt: skip
-
-
-def _norm_keys(data: Mapping) -> dict:
-    return {str(k).replace("-", "_"): v for k, v in dict(data).items() if v is not None}
-
-
-def merge_roof_levels(*levels: Mapping | None) -> dict:
-    """Merge roof option mappings, each later level overriding the earlier ones.
-
-    A level may give ``ct`` or ``thermal``, ``ce`` or ``terrain``/``exposure``,
-    ``ventilated`` or ``unventilated`` (and the other yes/no pairs), not both;
-    a later level that gives one side drops the other side of the earlier
-    levels, so ``--ct 1.1`` on the command line replaces ``thermal`` in the
-    ROOF.toml.  Both sides on one level are left in and refused by
-    :meth:`Roof.from_mapping`.
-
-    >>> merge_roof_levels({"thermal": "heated", "shape": "flat"}, {"ct": 1.1})
-    {'shape': 'flat', 'ct': 1.1}
-    """
-    out: dict = {}
-    for level in levels:
-        if not level:
-            continue
-        level = _norm_keys(level)
-        for side_a, side_b in _ALTERNATIVES:
-            for mine, theirs in ((side_a, side_b), (side_b, side_a)):
-                if any(k in level for k in mine):
-                    for k in theirs:
-                        if k not in level:
-                            out.pop(k, None)
-        out.update(level)
-    return out
 
 
 def _length(entry: Mapping, key: str, where: str, range_key: str, default=None, need=None):
@@ -135,31 +71,6 @@ def _check(obj, prefix: str, names: dict[str, str]) -> None:
         value = getattr(obj, attr)
         if value is not None:
             RANGES[key].check(value, f"{prefix}{attr}" if prefix else attr)
-
-
-def _slope_check(slope, name: str) -> None:
-    try:
-        x = float(slope)
-    except (TypeError, ValueError):
-        x = math.nan
-    if not (math.isfinite(x) and 0.0 <= x < 90.0):
-        raise InputError(name, f"{slope!r} degrees is not a roof slope", "0 to under 90 degrees")
-
-
-def _flat_too_steep(slope: float, stated: bool, given=None) -> None:
-    shown = f"{given!r} ({slope:.2f} degrees)" if given is not None else f"{slope:.2f} degrees"
-    limit = f"at most {FLAT_SLOPE_MAX_DEG:g} degrees (about 1.05:12; ASCE 7-16 Sec. 7.3)"
-    if stated:
-        raise InputError(
-            "slope",
-            f"{shown} is too steep for a flat roof",
-            f"a flat roof slope of {limit}, or shape monoslope, gable or hip",
-        )
-    raise InputError(
-        "shape",
-        f"not given, so the roof is taken as flat, but slope {shown} is too steep for a flat roof",
-        f"shape monoslope, gable or hip for this slope, or a slope of {limit}",
-    )
 
 
 def _float(value, name: str) -> float:
@@ -208,7 +119,7 @@ class RoofStep:
             "height", "upper_length", "lower_length", "separation", "upper_eave_to_ridge",
             "upper_pf")})  # fmt: skip
         if self.upper_slope is not None:
-            _slope_check(self.upper_slope, "step.upper_slope")
+            slope_check(self.upper_slope, "step.upper_slope")
         choose_key("step.upper_surface", self.upper_surface, SURFACES)
 
 
@@ -262,13 +173,13 @@ class Roof:
     def __post_init__(self):
         choose_key("shape", self.shape, SHAPES)
         choose_key("surface", self.surface, SURFACES)
-        _slope_check(self.slope, "slope")
+        slope_check(self.slope, "slope")
         _check(self, "", {"ce": "ce", "ct": "ct", "r_value": "r_value",
                           "eave_to_ridge": "eave_to_ridge"})  # fmt: skip
         if self.overhang is not None:
             RANGES["overhang.length"].check(self.overhang, "overhang.length")
         if self.shape == "flat" and self.slope > FLAT_SLOPE_MAX_DEG:
-            _flat_too_steep(self.slope, self.shape_stated)
+            flat_too_steep(self.slope, self.shape_stated)
 
     def replace(self, **changes) -> Roof:
         return replace(self, **changes)
@@ -287,7 +198,7 @@ class Roof:
                 f"{type(data).__name__} is not a table of roof options",
                 "a mapping such as ROOF.toml gives",
             )
-        data = _norm_keys(data)
+        data = norm_keys(data)
         unknown = sorted(set(data) - _ROOF_KEYS)
         if unknown:
             raise InputError(
@@ -304,7 +215,7 @@ class Roof:
         if "slope" in data:
             slope = parse_slope(data["slope"], "slope")
             if shape == "flat" and slope > FLAT_SLOPE_MAX_DEG:
-                _flat_too_steep(slope, "shape" in data, data["slope"])
+                flat_too_steep(slope, "shape" in data, data["slope"])
         elif shape == "flat":
             slope = 0.0
         else:
@@ -460,15 +371,8 @@ def _projections(value) -> list[Projection]:
 
 
 def parse_pg(text, field: str = "pg") -> float:
-    """Parse a ground snow load with its unit into psf (0 to 2000 psf)."""
-    value = parse_load(text, field)
-    if value > PG_MAX_PSF:
-        raise InputError(
-            field,
-            f"{text!r} is implausibly large",
-            f"a ground snow load of 0 to {PG_MAX_PSF:g} psf (95.8 kPa)",
-        )
-    return value
+    """Parse a ground snow load with its unit into psf (0 to 2000 psf, ``RANGES["pg"]``)."""
+    return parse_load(text, field, bound=RANGES["pg"])
 
 
 def as_roof(roof) -> Roof:

@@ -239,7 +239,7 @@ class Bound:
         Where the range comes from, for the README table and the docstrings.
 
     >>> Bound(0.0, 500.0, "ft", lo_open=True).text()
-    'a length above 0 ft and at most 500 ft (152.4 m)'
+    'a length above zero, up to 500 ft (152.4 m)'
     >>> Bound(0.7, 1.2, "").check(1.5, "ce")
     Traceback (most recent call last):
     ...
@@ -260,12 +260,14 @@ class Bound:
         return text
 
     def text(self) -> str:
-        """The range in words, e.g. ``a length above 0 ft and at most 500 ft (152.4 m)``."""
+        """The range in words, e.g. ``a length above zero, up to 500 ft (152.4 m)``."""
         noun = _NOUN.get(self.unit, "a number")
+        hi = self._with_unit(self.hi, True)
+        if self.lo == 0:
+            return f"{noun} {'above zero' if self.lo_open else 'of zero or more'}, up to {hi}"
         if self.lo_open:
-            lo, hi = self._with_unit(self.lo), self._with_unit(self.hi, True)
-            return f"{noun} above {lo} and at most {hi}"
-        return f"{noun} from {_g(self.lo)} to {self._with_unit(self.hi, True)}"
+            return f"{noun} above {self._with_unit(self.lo)}, up to {hi}"
+        return f"{noun} from {_g(self.lo)} to {hi}"
 
     def contains(self, value: float) -> bool:
         """Whether ``value`` (a finite number) is in the range."""
@@ -297,8 +299,10 @@ class Bound:
         what = self._with_unit(x)
         if shown is not None:
             what = f"{shown} ({what})" if self.unit else shown
-        if self.lo_open and x == self.lo:
-            problem = f"{what} is not above {self._with_unit(self.lo)}"
+        if self.lo == 0 and x < 0:
+            problem = f"{what} is negative"
+        elif self.lo_open and x == self.lo:
+            problem = f"{what} is not above {'zero' if self.lo == 0 else self._with_unit(self.lo)}"
         else:
             problem = f"{what} is out of range"
         raise InputError(field, problem, self.text())

@@ -2,7 +2,7 @@
 
 ``pytest --doctest-modules`` is not configured for the suite, so the examples
 in the docstrings of engine/units.py, engine/choices.py, engine/jsonsafe.py
-and engine/roof_spec.py are run here; a
+and engine/roof_limits.py are run here; a
 broken example fails this test. (regression guard)
 """
 
@@ -14,10 +14,10 @@ import pytest
 
 import engine.choices
 import engine.jsonsafe
-import engine.roof_spec
+import engine.roof_limits
 import engine.units
 
-MODULES = [engine.units, engine.choices, engine.jsonsafe, engine.roof_spec]
+MODULES = [engine.units, engine.choices, engine.jsonsafe, engine.roof_limits]
 
 
 @pytest.mark.parametrize("module", MODULES, ids=lambda m: m.__name__)
