@@ -107,6 +107,8 @@ def area_of_use_problems(bounds: np.ndarray, crs, ids) -> list[dict]:
     from pyproj import CRS, Transformer
 
     crs = CRS.from_user_input(crs)
+    if crs.area_of_use is None and crs.to_epsg() is not None:
+        crs = CRS.from_epsg(crs.to_epsg())  # a CRS read from WKT (rasterio) may drop its area
     area = crs.area_of_use
     b = np.asarray(bounds, dtype=float).reshape(-1, 4)
     if area is None or b.size == 0:

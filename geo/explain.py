@@ -14,7 +14,7 @@ import math
 import numpy as np
 
 from engine.steps import Step, fmt
-from geo.rules import ABOVE, BAD, NEED_ELEV, OK, RULES, UNCHECKED, ZoneTable, evaluate
+from geo.rules import ABOVE, BAD, NEED_ELEV, NUMERIC, OK, RULES, UNCHECKED, ZoneTable, evaluate
 
 
 def explain(zt: ZoneTable, j: int, elev: float, meta: dict, ref: str) -> list[Step]:
@@ -131,6 +131,21 @@ def explain(zt: ZoneTable, j: int, elev: float, meta: dict, ref: str) -> list[St
                 f"pg = {expr.text}",
                 subs,
                 raw_val if math.isfinite(raw_val) else None,
+                vu,
+                ref,
+            )  # fmt: skip
+        )
+    if state == NUMERIC:
+        from geo.rule_checks import site_errors
+
+        why = site_errors(zt, np.array([j]), np.array([elev]), vu, eu)[0]
+        steps.append(
+            Step(
+                "pg",
+                f"zone {zid} gives no usable ground snow load at this site",
+                f"0 <= pg <= {fmt(zt.limit)} {vu} (plausibility bound)",
+                why or "no finite value within the bound",
+                None,
                 vu,
                 ref,
             )  # fmt: skip

@@ -197,7 +197,9 @@ def _batch_problems(zt, batch, rule_of, value_units, elevation_units) -> list[di
             value = ""
             if c.startswith("gives") and np.isfinite(raw[hit]).any():
                 ext = raw[hit][np.argmax(np.abs(np.nan_to_num(raw[hit])))]
-                value = f"; e.g. {_num(ext)} {value_units}, accepted 0 to {zt.limit:.4g}"
+                value = (
+                    f"; e.g. {_num(ext)} {value_units}, accepted 0 to {zt.limit:.4g} {value_units}"
+                )
             beyond = "beyond the plausibility bound" in c
             kind = "implausible_value" if beyond else f"{rule_of[int(zt.rule[j])]}_range"
             if "A" not in getattr(zt.exprs.get(j), "names", {"A"}):
