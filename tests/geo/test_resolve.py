@@ -310,7 +310,8 @@ def test_prefiltered_and_plain_paths_agree():
 
 
 def test_defective_geometries_do_not_break_the_lookup(fixture_dir):
-    """A null geometry and a bow-tie (both reported by `neve layer check`) still resolve."""
+    """A null geometry and a bow-tie (both reported by `neve layer check`) do not break the
+    look-up; sites in the bow-tie are errors (shapely validity), the others resolve."""
     from shapely.geometry import Polygon
 
     rows = fixture_rows()
@@ -327,4 +328,6 @@ def test_defective_geometries_do_not_break_the_lookup(fixture_dir):
         df = resolve_points(lat, lon, layers=[path], elevation_ft=np.full(n, 100.0))
         in_z1 = (lat < LAT0 + D) & (lon < LON0 + D)
         assert (df.loc[in_z1, "zone_id"] != "Z1").all()  # the null zone covers nothing
-        assert set(df["status"]) <= {"ok", "provisional", "study_required", "no_data"}
+        in_z6 = (df["zone_id"] == "Z6").to_numpy()  # the bow-tie: never a silent ok (issue 8)
+        assert in_z6.any() and (df.loc[in_z6, "status"] == "error").all()
+        assert set(df.loc[~in_z6, "status"]) <= {"ok", "provisional", "study_required", "no_data"}
