@@ -10,6 +10,25 @@ Status and flags follow DESIGN.md ("Site resolution result"); nothing is
 silently defaulted.  When several layers are given (most local first) the
 first layer that covers a site governs and the others are reported in
 ``other_layers``.
+
+Readings where the contract leaves room (README, "Elevation, DEM and study
+areas"):
+
+* A study precedes mapped values: a site inside, or on the edge of, a zone
+  that requires a site-specific case study is ``study_required``, whatever
+  the other zones there map (:data:`geo.lookup.RANK`).
+* A zone requiring a study within the layer's boundary tolerance of the site
+  (``study_area_nearby``): the mapped value of the site's own zone is reported
+  (raised by any larger value within the tolerance) and the status is
+  ``provisional``.  The map cannot place its boundaries closer than the
+  tolerance, so the site may lie in the study area: the engineer confirms
+  that it does not, or treats the site as ``study_required``.
+* A given elevation more than :data:`geo.elevation.MISMATCH_M` from the DEM
+  (``elevation_mismatch``): the ground load is worked at both elevations and
+  the more demanding result governs (:func:`more_demanding`), unless
+  ``elevation_source="input"``; the other result is reported beside it.
+* DEM values outside :data:`geo.elevation.DEM_MIN_M` ..
+  :data:`geo.elevation.DEM_MAX_M` are no elevation (``dem_implausible``).
 """
 
 from __future__ import annotations
