@@ -7,6 +7,7 @@ contract"); the numbers are hand calculations from ASCE 7-16 (from memory).
 from __future__ import annotations
 
 import json
+import re
 import shutil
 import subprocess
 import sys
@@ -336,3 +337,18 @@ def test_help_lists_the_design_card_options():
                  "--ventilated", "--unventilated", "--unobstructed", "--obstructed",
                  "--format"):  # fmt: skip
         assert name in r.output, name
+
+
+def test_text_output_prints_psf_then_kpa_beside_each_load():
+    # NIST SP 811: 1 psf = 0.04788026 kPa; ASCE 7-16 Eq. 7.3-1 with the neutral factors:
+    # pg = 35 psf = 1.676 kPa, pf = ps = 0.7 x 35 = 24.5 psf = 1.173 kPa. Swapping the
+    # unit labels or the numbers beside them fails here.
+    res = invoke("--pg", "35psf", "--shape", "flat", "--ce", "1.0", "--ct", "1.0", "--risk", "II")
+    assert res.exit_code == 0, res.output
+    assert "pg = 35.0 psf (1.68 kPa)" in res.output
+    assert "pf = 24.5 psf (1.17 kPa)   ps = 24.5 psf (1.17 kPa)" in res.output
+    assert "design uniform load = 24.5 psf (1.17 kPa)" in res.output
+    pairs = re.findall(r"([0-9.]+) psf \(([0-9.]+) kPa\)", res.output)
+    assert len(pairs) >= 5
+    for psf, kpa in pairs:  # every printed pair: kPa = psf x 0.04788026, to the printed digits
+        assert float(kpa) == pytest.approx(float(psf) * 0.04788026, abs=0.006)

@@ -11,7 +11,7 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from engine.asce7_16.drift import drift_height, drift_shape, snow_density
+from engine.asce7_16.drift import drift_height, drift_required, drift_shape, snow_density
 from tests.engine.helpers import cases, run, skipped
 
 PG = 30.0
@@ -133,6 +133,40 @@ def test_no_drift_when_hc_over_hb_below_0_2(height, required):
     out = step_run(height=height, upper_length="100ft", lower_length="60ft")
     assert bool(cases(out, "drift")) is required
     assert bool(skipped(out, "drift")) is (not required)
+
+
+@pytest.mark.parametrize(
+    ("hc", "hb", "required"),
+    [
+        (1.0, 5.0, True),  # hc/hb = 0.2 exactly: not below 0.2, so drift is required
+        (0.999, 5.0, False),  # hc/hb = 0.1998 < 0.2
+        (1.001, 5.0, True),  # hc/hb = 0.2002
+    ],
+)
+def test_drift_required_at_exactly_0_2(hc, hb, required):
+    # ASCE 7-16 Sec. 7.7.1 (from memory): drift loads need not be applied where hc/hb < 0.2;
+    # at hc/hb = 0.2 exactly they are applied
+    assert bool(drift_required(hc, hb)) is required
+
+
+@pytest.mark.parametrize(("height", "required"), [("3.92ft", True), ("3.919ft", False)])
+def test_step_drift_at_exactly_hc_over_hb_0_2(height, required):
+    # ASCE 7-16 Eq. 7.7-1, Eq. 7.3-1, Sec. 7.7.1 (from memory), hand calculation:
+    # pg = 140 psf: gamma = 0.13 x 140 + 14 = 32.2 -> capped at 30 pcf;
+    # pf = ps = 0.7 x 140 = 98 psf (neutral factors, flat); hb = 98 / 30 = 3.26667 ft.
+    # h = 3.92 ft = 1.2 hb: hc = 0.65333 ft, hc/hb = 0.2 exactly (in binary too) -> drift.
+    # h = 3.919 ft: hc/hb = 0.19969 < 0.2 -> no drift.
+    out = run(140.0, shape="flat", step=[{"height": height, "upper_length": "100ft",
+                                          "lower_length": "60ft"}])  # fmt: skip
+    assert bool(cases(out, "drift")) is required
+    assert bool(skipped(out, "drift")) is (not required)
+    if required:
+        (d,) = cases(out, "drift")
+        assert d["hb"]["ft"] == pytest.approx(98.0 / 30.0, abs=1e-3)
+        assert d["hc"]["ft"] == pytest.approx(0.2 * 98.0 / 30.0, abs=1e-3)
+    else:
+        (s,) = skipped(out, "drift")
+        assert "< 0.2" in s["reason"]
 
 
 def test_drift_truncated_at_far_edge_not_reduced_to_zero():

@@ -3,8 +3,10 @@
 from __future__ import annotations
 
 import json
+import re
 import shutil
 import subprocess
+import sys
 
 import pytest
 from click.testing import CliRunner
@@ -13,7 +15,7 @@ from engine.units import KPA_PER_PSF
 from geo.cli import main
 from geo.site import resolve_site
 
-from .conftest import LAT0, LON0, D, centre
+from .conftest import LAT0, LON0, D, centre, fixture_rows, write_layer
 
 #: the README's demo site: central highlands zone, elevation from the demo DEM
 DEMO_AT = "47.4822,-140.0269"
@@ -172,14 +174,69 @@ def test_map_and_package(tmp_path):
     assert again.exit_code == 2 and "--overwrite" in again.output
 
 
-def test_installed_command_runs():
+def _neve() -> list[str]:
+    """The installed ``neve`` command, or the same entry point through this Python."""
     exe = shutil.which("neve")
-    assert exe, "the neve console script is not installed"
+    return [exe] if exe else [sys.executable, "-m", "geo.cli"]
+
+
+def test_installed_command_runs():
+    # runs as a separate process: the console script when it is on PATH, else python -m
     out = subprocess.run(
-        [exe, "site", "--at", DEMO_AT, "--dem", "demo", "--format", "json"],
+        [*_neve(), "site", "--at", DEMO_AT, "--dem", "demo", "--format", "json"],
         capture_output=True, text=True, timeout=120, check=False,
     )  # fmt: skip
     assert out.returncode == 0, out.stderr
     assert json.loads(out.stdout)["ground"]["zone_id"] == "SK-H"
-    bad = subprocess.run([exe, "site", "--at", "91,0"], capture_output=True, text=True, check=False)
+    bad = subprocess.run([*_neve(), "site", "--at", "91,0"], capture_output=True, text=True,
+                         check=False)  # fmt: skip
     assert bad.returncode == 2 and "latitude" in bad.stderr
+
+
+def test_installed_command_runs_without_neve_on_path(monkeypatch):
+    # regression guard: the fallback itself works when the console script is missing
+    monkeypatch.setattr(shutil, "which", lambda name: None)
+    assert _neve()[:2] == [sys.executable, "-m"]
+    out = subprocess.run([*_neve(), "site", "--at", DEMO_AT, "--format", "json"],
+                         capture_output=True, text=True, timeout=120, check=False)  # fmt: skip
+    assert out.returncode == 0, out.stderr
+    assert json.loads(out.stdout)["ground"]["zone_id"] == "SK-H"
+
+
+#: the printed ground load: a value in psf, then its kPa twin in brackets
+GROUND_LINE = re.compile(r"Ground pg: +([0-9.]+) psf \(([0-9.]+) kPa\)")
+
+
+@pytest.fixture(scope="module")
+def kpa_layer(tmp_path_factory):
+    """The fixture grid with its values in kPa: Z1 is 1.68 kPa (invented fixture)."""
+    rows = [dict(r) for r in fixture_rows()]
+    rows[0]["pg"] = 1.68
+    path = tmp_path_factory.mktemp("kpa") / "grid_kpa.gpkg"
+    return write_layer(path, rows, meta={"value_units": "kPa"})
+
+
+def test_text_prints_psf_and_kpa_in_their_places(grid_layer, kpa_layer):
+    # NIST SP 811: 1 psf = 0.04788026 kPa. Z1 of the psf layer is 20 psf = 0.9576 kPa;
+    # Z1 of the kPa layer is 1.68 kPa = 35.0875 psf. Swapping the units (or the numbers
+    # beside them) fails here.
+    lat, lon = centre(0, 0)
+    for layer, psf, kpa in ((grid_layer, 20.0, 0.9576), (kpa_layer, 35.0875, 1.68)):
+        res = run("--at", f"{lat},{lon}", "--layer", str(layer))
+        assert res.exit_code == 0, res.output
+        m = GROUND_LINE.search(res.output)
+        assert m, res.output
+        assert float(m.group(1)) == pytest.approx(psf, abs=1e-3)
+        assert float(m.group(2)) == pytest.approx(kpa, abs=1e-4)
+        assert float(m.group(2)) == pytest.approx(float(m.group(1)) * 0.04788026, abs=1e-3)
+
+
+def test_text_roof_loads_print_psf_then_kpa(kpa_layer):
+    # NIST SP 811: 1 psf = 0.04788026 kPa; ASCE 7-16 Eq. 7.3-1: pf = 0.7 x 35.0875 = 24.56 psf
+    # with the neutral factors (Ce = Ct = Is = 1.0), = 1.176 kPa
+    lat, lon = centre(0, 0)
+    res = run("--at", f"{lat},{lon}", "--layer", str(kpa_layer), "--shape", "flat",
+              "--ce", "1.0", "--ct", "1.0", "--risk", "II")  # fmt: skip
+    assert res.exit_code == 0, res.output
+    assert "pg = 35.1 psf (1.68 kPa)" in res.output
+    assert "pf = 24.6 psf (1.18 kPa)" in res.output
