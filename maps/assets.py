@@ -177,7 +177,8 @@ def prepare_assets(m, elements=(), *, self_contained: bool, cluster: bool = Fals
         The page uses Leaflet.markercluster.
     """
     import folium
-    from branca.element import Element
+
+    from maps.templating import fixed_html
 
     if self_contained:
         m.default_js = []
@@ -185,7 +186,8 @@ def prepare_assets(m, elements=(), *, self_contained: bool, cluster: bool = Fals
         for el in elements:
             el.default_js = []
             el.default_css = []
-        m.get_root().header.add_child(Element(inline_head(cluster=cluster)), name="neve_assets")
+        # library code is data too: never compiled as a template
+        m.get_root().header.add_child(fixed_html(inline_head(cluster=cluster)), name="neve_assets")
     else:
         m.default_js = [(n, u) for n, u in folium.Map.default_js if n in LINKED_JS]
         m.default_css = [(n, u) for n, u in folium.Map.default_css if n in LINKED_CSS]

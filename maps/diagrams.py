@@ -144,6 +144,7 @@ def _slug(text: str) -> str:
     return re.sub(r"[^a-z0-9]+", "_", text.lower()).strip("_")[:40] or "case"
 
 
+@style.plain_figure_text
 def write_case_diagrams(roof_json: dict | None, outdir: str | os.PathLike) -> dict[str, Path]:
     """Draw a PNG load diagram for each unbalanced, drift and sliding case.
 

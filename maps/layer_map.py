@@ -116,7 +116,9 @@ def write_layer_map(
             tips[p["zone_id"]] = (
                 tips.get(p["zone_id"], "") + f"\nProblem: {p['kind']}: {p['message']}"
             ).strip()
-    group = folium.FeatureGroup(name=style.esc(view.get("name") or "layer"), control=False)
+    group = folium.FeatureGroup(
+        name=leaflet.layer_label(view.get("name") or "layer"), control=False
+    )
     leaflet.add_zones(
         group,
         draw,

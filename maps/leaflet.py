@@ -1,15 +1,25 @@
 """Shared folium building blocks for neve's HTML maps.
 
-Text from inputs never reaches the page as markup: tooltips and popups are
-bound by our own small script that sets ``textContent`` from JSON-encoded
-strings (folium's own ``Tooltip``/``Popup``/``GeoJsonTooltip`` insert text as
-HTML inside JavaScript template literals, which would let a hostile zone note
-run), and every text that Leaflet treats as HTML (layer switcher names,
-``DivIcon`` labels) is HTML-escaped first.
+Text from inputs never reaches the page as markup and is never compiled as
+a template:
+
+- branca's ``Element(text)`` compiles ``text`` as Jinja source, so a site name
+  such as ``{{ ... }}`` would run on the machine writing the map.  neve never
+  calls it with content: its own HTML is rendered by neve's autoescaping
+  environment (:mod:`maps.templating`) with the text passed as variables, and
+  the result enters the folium tree through :func:`maps.templating.fixed_html`, an element
+  whose template is a constant and which carries that HTML as data.
+- tooltips and popups are bound by our own small script that sets
+  ``textContent`` from JSON-encoded strings (folium's own ``Tooltip``/
+  ``Popup``/``GeoJsonTooltip`` insert text as HTML inside JavaScript template
+  literals, which would let a hostile zone note run);
+- every text that Leaflet treats as HTML (layer switcher names, ``DivIcon``
+  labels) is HTML-escaped first (:func:`layer_label`).
 """
 
 from __future__ import annotations
 
+import functools
 import json
 import math
 from pathlib import Path
@@ -17,7 +27,7 @@ from pathlib import Path
 from engine.choices import choose_key
 from engine.errors import InputError
 from maps import assets, style
-from maps.templating import render
+from maps.templating import data_macro, fixed_html, render
 
 #: accepted values of ``tiles``
 TILES = {"none": None, "osm": "OpenStreetMap"}
@@ -60,39 +70,57 @@ def new_map(lat: float, lon: float, tiles: str = "none", zoom: int = 12):
     return m
 
 
+@functools.cache
+def _safe_text_class():
+    from folium.template import Template
+
+    class SafeText(data_macro()):
+        """Binds a plain-text tooltip/popup; the text is data (``tojson``), never source."""
+
+        _template = Template(
+            """{% macro script(this, kwargs) %}
+            (function () {
+                var text = {{ this.text|tojson }};
+                var make = function () {
+                    var d = document.createElement('div');
+                    d.className = 'neve-tip';
+                    d.textContent = text;
+                    return d;
+                };
+                {% if this.tooltip %}{{ this._parent.get_name() }}.bindTooltip(make);{% endif %}
+                {% if this.popup %}{{ this._parent.get_name() }}.bindPopup(make);{% endif %}
+            })();
+            {% endmacro %}"""
+        )
+
+        def __init__(self, text: str, tooltip: bool, popup: bool):
+            super().__init__()
+            self._name = "SafeText"
+            self.text = str(text)
+            self.tooltip = tooltip
+            self.popup = popup
+
+    return SafeText
+
+
 class SafeText:
     """Factory of a folium element binding a plain-text tooltip/popup to its parent."""
 
     @staticmethod
     def make(text: str, *, tooltip: bool = True, popup: bool = True):
-        from branca.element import MacroElement
-        from folium.template import Template
+        return _safe_text_class()(text, tooltip, popup)
 
-        class _SafeText(MacroElement):
-            _template = Template(
-                """{% macro script(this, kwargs) %}
-                (function () {
-                    var text = {{ this.text|tojson }};
-                    var make = function () {
-                        var d = document.createElement('div');
-                        d.className = 'neve-tip';
-                        d.textContent = text;
-                        return d;
-                    };
-                    {% if this.tooltip %}{{ this._parent.get_name() }}.bindTooltip(make);{% endif %}
-                    {% if this.popup %}{{ this._parent.get_name() }}.bindPopup(make);{% endif %}
-                })();
-                {% endmacro %}"""
-            )
 
-            def __init__(self):
-                super().__init__()
-                self._name = "SafeText"
-                self.text = str(text)
-                self.tooltip = tooltip
-                self.popup = popup
+def layer_label(text: object) -> str:
+    """A layer switcher name: Leaflet inserts it with ``innerHTML``, so it is escaped."""
+    return style.esc(text)
 
-        return _SafeText()
+
+def add_layer_control(m, **options) -> None:
+    """The layer switcher; its (escaped) layer names are data, never template source."""
+    import folium
+
+    data_macro(folium.LayerControl)(**options).add_to(m)
 
 
 def zone_style(row, classes: list[dict], *, governing: bool = False, problem: bool = False) -> dict:
@@ -207,7 +235,7 @@ def add_zones(
     features.sort(key=lambda f: f["properties"]["zone_id"] in gov)
     from folium.utilities import JsCode
 
-    folium.GeoJson(
+    data_macro(folium.GeoJson)(
         {"type": "FeatureCollection", "features": features},
         style_function=lambda f: f["properties"]["neve_style"],
         on_each_feature=JsCode(_SAFE_FEATURE_JS),
@@ -234,7 +262,7 @@ def add_zones(
             text = zone_value_text(row.to_dict(), units)
             folium.Marker(
                 [pt.y, pt.x],
-                icon=folium.DivIcon(
+                icon=data_macro(folium.DivIcon)(
                     html=f'<div class="neve-zone-label"><span>{style.esc(text)}</span></div>',
                     class_name="neve-label-icon",
                     icon_size=(0, 0),
@@ -249,7 +277,7 @@ def add_site_marker(parent, lat: float, lon: float, text: str) -> None:
 
     marker = folium.Marker(
         [lat, lon],
-        icon=folium.DivIcon(
+        icon=data_macro(folium.DivIcon)(
             html='<div class="neve-site-pin" id="neve-site-marker">'
             '<i class="fa-solid fa-building"></i></div>',
             class_name="neve-site-icon",
@@ -263,18 +291,14 @@ def add_site_marker(parent, lat: float, lon: float, text: str) -> None:
 
 
 def add_html(m, html: str, name: str) -> None:
-    """Add already-escaped panel HTML to the page body."""
-    from branca.element import Element
-
-    m.get_root().html.add_child(Element(html), name=name)
+    """Add already-escaped panel HTML to the page body (as data, never compiled)."""
+    m.get_root().html.add_child(fixed_html(html), name=name)
 
 
 def add_defs(m, *, demo: bool) -> None:
     """Our CSS, the SVG hatch pattern and (for demo data) the banner."""
-    from branca.element import Element
-
     # an empty icon, so the browser does not ask the server for /favicon.ico
-    m.get_root().header.add_child(Element('<link rel="icon" href="data:,">'), name="neve_icon")
+    m.get_root().header.add_child(fixed_html('<link rel="icon" href="data:,">'), name="neve_icon")
     add_html(
         m,
         render(
@@ -316,8 +340,6 @@ def refit_on_load(m, bounds) -> None:
     keeps a zero size and draws every zone as a point.  This re-fits on
     ``load`` and on ``resize``.
     """
-    from branca.element import Element
-
     name = m.get_name()
     js = (
         "<script>(function(){var b=" + json.dumps(bounds) + ";"
@@ -331,4 +353,4 @@ def refit_on_load(m, bounds) -> None:
         "window.addEventListener('load',refit);"
         "window.addEventListener('resize',refit);})();</script>"
     )
-    m.get_root().html.add_child(Element(js), name="neve_refit")
+    m.get_root().html.add_child(fixed_html(js), name="neve_refit")

@@ -139,7 +139,9 @@ def _layer_class():
     from folium.plugins import MarkerCluster
     from folium.template import Template
 
-    class PortfolioLayer(JSCSSMixin):
+    from maps.templating import data_macro
+
+    class PortfolioLayer(JSCSSMixin, data_macro()):  # site text is data, never compiled
         _template = Template(_TEMPLATE)
         default_js = list(MarkerCluster.default_js)
         default_css = list(MarkerCluster.default_css)
@@ -293,10 +295,8 @@ def write_portfolio_map(
     if len(rows):
         m.fit_bounds([[float(la.min()), float(lo.min())], [float(la.max()), float(lo.max())]])
     leaflet.add_defs(m, demo=demo)
-    from branca.element import Element
-
     m.get_root().header.add_child(
-        Element(f"<style>{_CLUSTER_CSS}</style>"), name="neve_cluster_css"
+        leaflet.fixed_html(f"<style>{_CLUSTER_CSS}</style>"), name="neve_cluster_css"
     )
     layer = _layer_class()(payload)
     layer.add_to(m)

@@ -219,7 +219,9 @@ def write_site_map(
                 leaflet.zone_value_text(r, v_units) == "no value" for r in near.to_dict("records")
             )
         label = f"{view.get('name') or 'layer'}" + (" (governs)" if i == g_index else "")
-        group = folium.FeatureGroup(name=style.esc(label), show=(i == g_index), control=True)
+        group = folium.FeatureGroup(
+            name=leaflet.layer_label(label), show=(i == g_index), control=True
+        )
         leaflet.add_zones(
             group,
             near,
@@ -251,5 +253,5 @@ def write_site_map(
         "neve_legend",
     )
     if len(layer_groups) > 1:
-        folium.LayerControl(collapsed=False, position="topleft").add_to(m)
+        leaflet.add_layer_control(m, collapsed=False, position="topleft")
     return leaflet.finish(m, out, self_contained=self_contained)

@@ -92,6 +92,7 @@ def true_north_angle(lat: float, lon: float, crs) -> float:
     return math.degrees(math.atan2(-(x1 - x0), y1 - y0))
 
 
+@style.plain_figure_text
 def write_static_map(
     site_json: dict,
     views: list[dict],

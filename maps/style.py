@@ -9,6 +9,7 @@ governs the site.
 
 from __future__ import annotations
 
+import functools
 import math
 from html import escape
 
@@ -189,3 +190,21 @@ def portfolio_band(pg_psf) -> int:
 def short_sha(sha: object, n: int = 12) -> str:
     """The first ``n`` hex digits of a SHA-256 (empty when unknown)."""
     return "" if not sha else str(sha)[:n]
+
+
+def plain_figure_text(func):
+    """Run a figure-drawing function with matplotlib's mathtext off.
+
+    matplotlib parses text between ``$`` signs as mathematics, so a site or
+    case name such as ``$\\frac{a}$`` would crash the drawing (and ``$x$``
+    would not show as typed).  Names from inputs are shown as typed.
+    """
+
+    @functools.wraps(func)
+    def wrapper(*args, **kwargs):
+        import matplotlib
+
+        with matplotlib.rc_context({"text.parse_math": False}):
+            return func(*args, **kwargs)
+
+    return wrapper
