@@ -28,10 +28,12 @@ from geo.expr import DIV_ZERO, FAILURES, FINE, OVERFLOW, UNDEFINED
 DEFAULT_TOP_M = 4500.0
 #: highest elevation ever checked (above the highest summit on Earth) [m]
 HIGHEST_M = 9000.0
-#: most elevations checked per zone
-MAX_POINTS = 30_001
+#: most evenly spaced elevations checked per formula (besides the numbers written in it)
+MAX_POINTS = 5_001
 #: most (zone, elevation) pairs evaluated at once (bounds memory)
-CHUNK_PAIRS = 2_000_000
+CHUNK_PAIRS = 500_000
+#: most zones evaluated at once (evaluate() visits table zones one by one)
+MAX_BATCH = 64
 
 
 def _num(x: float) -> str:
@@ -120,20 +122,40 @@ def claimed_top(zt: R.ZoneTable, j: int, elevation_units: str) -> float:
 
 
 def _grid(zt: R.ZoneTable, j: int, top: float) -> np.ndarray:
-    """Elevations checked for zone ``j``: every whole unit (or finer steps), the ends,
-    the table's points and the numbers written in the formula."""
-    step = max(1.0, top / (MAX_POINTS - 1))
-    extra = [0.0, top]
+    """Elevations checked for zone ``j`` [layer elevation_units].
+
+    A table is piecewise linear, so its extremes lie at its points and at the
+    ends of the range: those are checked.  A formula is checked at every
+    whole unit (evenly spaced, at most :data:`MAX_POINTS`, when the range is
+    longer), at the ends, and at the numbers written in it (and their
+    negatives), where a division by zero is most likely.
+    """
     if j in zt.tables:
-        extra.extend(zt.tables[j][0].tolist())
-    if j in zt.exprs:
+        a = np.concatenate([[0.0, top], zt.tables[j][0]])
+    else:
         import ast
 
+        n = int(min(MAX_POINTS, math.floor(top) + 1))
+        extra = [top]
         for node in ast.walk(zt.exprs[j].tree):
             if isinstance(node, ast.Constant):
                 extra.extend([float(node.value), -float(node.value)])
-    a = np.concatenate([np.arange(0.0, top + step / 2, step), np.array(extra, dtype=float)])
+        a = np.concatenate([np.linspace(0.0, max(n - 1, 0), n) * (top / max(n - 1, 1)), extra])
+        if "A" not in zt.exprs[j].names:
+            a = a[:1]
     return np.unique(a[(a >= 0) & (a <= top)])
+
+
+def _key(zt: R.ZoneTable, j: int, top: float) -> tuple:
+    """Zones with equal keys evaluate alike: each distinct rule is worked once."""
+    floor = float(zt.pg_min[j])
+    floor = None if math.isnan(floor) else floor  # NaN is not equal to itself: no dict key
+    if j in zt.tables:
+        e, v = zt.tables[j]
+        return ("table", top, tuple(e.tolist()), tuple(v.tolist()), floor)
+    expr = zt.exprs[j]
+    cols = tuple(float(zt.columns[c][j]) for c in sorted(expr.names - {"A"}))
+    return ("formula", top, expr.text, cols, floor)
 
 
 def range_problems(zt: R.ZoneTable, value_units: str, elevation_units: str) -> list[dict]:
@@ -149,32 +171,38 @@ def range_problems(zt: R.ZoneTable, value_units: str, elevation_units: str) -> l
         problem per zone and cause, at the lowest elevation where it occurs.
     """
     rule_of = {R.RULE_CODE["formula"]: "formula", R.RULE_CODE["elevation_table"]: "table"}
-    todo = [
-        j
-        for j in range(len(zt))
-        if zt.rule[j] in rule_of and not zt.bad[j] and (j in zt.exprs or j in zt.tables)
-    ]
-    problems: list[dict] = []
+    groups: dict[tuple, list[int]] = {}
+    for j in range(len(zt)):
+        if zt.rule[j] in rule_of and not zt.bad[j] and (j in zt.exprs or j in zt.tables):
+            groups.setdefault(_key(zt, j, claimed_top(zt, j, elevation_units)), []).append(j)
+    found: dict[int, list[dict]] = {}
     batch: list[tuple[int, np.ndarray]] = []
     size = 0
-    for k, j in enumerate(todo):
+    reps = [js[0] for js in groups.values()]
+    for k, j in enumerate(reps):
         grid = _grid(zt, j, claimed_top(zt, j, elevation_units))
-        if j in zt.exprs and "A" not in zt.exprs[j].names:
-            grid = grid[:1]
         batch.append((j, grid))
         size += grid.size
-        if size >= CHUNK_PAIRS or k == len(todo) - 1:
-            problems.extend(_batch_problems(zt, batch, rule_of, value_units, elevation_units))
+        if size >= CHUNK_PAIRS or len(batch) >= MAX_BATCH or k == len(reps) - 1:
+            found.update(_batch_problems(zt, batch, rule_of, value_units, elevation_units))
             batch, size = [], 0
+    problems: list[dict] = []
+    for js in groups.values():
+        for p in found.get(js[0], []):
+            for j in js:
+                zid = zt.zone_id[j] or f"row {j}"
+                rep = zt.zone_id[js[0]] or f"row {js[0]}"
+                msg = f"zone {zid}:" + p["message"].removeprefix(f"zone {rep}:")
+                problems.append(dict(p, zone_id=zt.zone_id[j] or None, message=msg))
     return problems
 
 
-def _batch_problems(zt, batch, rule_of, value_units, elevation_units) -> list[dict]:
+def _batch_problems(zt, batch, rule_of, value_units, elevation_units) -> dict[int, list[dict]]:
     zone = np.concatenate([np.full(g.size, j, dtype=np.intp) for j, g in batch])
     elev = np.concatenate([g for _, g in batch])
     _, state = R.evaluate(zt, zone, elev)
     failed = state == R.NUMERIC
-    out: list[dict] = []
+    out: dict[int, list[dict]] = {}
     for j in np.unique(zone[failed]):
         j = int(j)
         sel = failed & (zone == j)
@@ -205,7 +233,7 @@ def _batch_problems(zt, batch, rule_of, value_units, elevation_units) -> list[di
             if "A" not in getattr(zt.exprs.get(j), "names", {"A"}):
                 where = "every elevation"
                 span = "the formula does not use A"
-            out.append(
+            out.setdefault(j, []).append(
                 {
                     "kind": kind,
                     "zone_id": zt.zone_id[j] or None,
