@@ -11,7 +11,7 @@ import importlib
 import pytest
 
 
-@pytest.mark.parametrize("name", ["geo.coords", "geo.expr", "geo.printable"])
+@pytest.mark.parametrize("name", ["geo.coords", "geo.expr", "geo.printable", "geo.elevation"])
 def test_module_doctests(name):
     module = importlib.import_module(name)
     result = doctest.testmod(module, optionflags=doctest.ELLIPSIS, verbose=False)
