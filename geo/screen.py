@@ -27,7 +27,7 @@ import numpy as np
 import pandas as pd
 
 from engine.errors import InputError
-from engine.roof_spec import Roof
+from engine.roof_spec import Roof, merge_roof_levels
 from engine.units import KPA_PER_PSF, M_PER_FT
 from geo.local_engine import (  # noqa: F401  (the local engine's names re-exported)
     CHUNK_SIZE,
@@ -97,13 +97,15 @@ def roofs_from_mapping(data: Mapping, overrides: Mapping | None = None) -> Roof 
 
     A file with ``[profile.NAME]`` tables gives one roof per profile; keys at
     the top of the file are shared defaults that each profile may override.
-    ``overrides`` (command-line roof options) win over both.
+    ``overrides`` (command-line roof options) win over both, also across
+    spellings (a profile's ``ct`` replaces a shared ``thermal``; see
+    :func:`engine.roof_spec.merge_roof_levels`).
     """
     data = dict(data)
     overrides = {k: v for k, v in dict(overrides or {}).items() if v is not None}
     profiles = data.pop("profile", None)
     if profiles is None:
-        return Roof.from_mapping({**data, **overrides})
+        return Roof.from_mapping(merge_roof_levels(data, overrides))
     if not isinstance(profiles, Mapping) or not profiles:
         raise InputError("roof", "[profile] must hold named tables", "[profile.NAME] tables")
     out = {}
@@ -111,7 +113,8 @@ def roofs_from_mapping(data: Mapping, overrides: Mapping | None = None) -> Roof 
         if not isinstance(table, Mapping):
             raise InputError(f"profile.{name}", "is not a table", "[profile.NAME] with roof keys")
         try:
-            out[str(name)] = Roof.from_mapping({"name": str(name), **data, **table, **overrides})
+            levels = merge_roof_levels({"name": str(name)}, data, table, overrides)
+            out[str(name)] = Roof.from_mapping(levels)
         except InputError as exc:
             raise InputError(f"profile.{name}.{exc.field}", exc.problem, exc.accepted) from None
     return out

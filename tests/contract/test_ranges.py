@@ -397,3 +397,20 @@ def test_analyze_roof_at_the_top_of_every_range_stays_finite():
     out = analyze_roof(2000.0, roof).to_json()
     assert NON_FINITE_FLAG not in out["flags"]
     json.loads(json.dumps(out, allow_nan=False))
+
+
+def test_screen_profiles_override_shared_keys_across_spellings():
+    # README (neve screen): top-level keys are shared defaults a profile may override, and
+    # options override both; ASCE 7-16 Table 7.3-2 (from memory): unheated Ct = 1.2
+    from geo.screen import roofs_from_mapping
+
+    data = {"thermal": "unheated", "shape": "flat",
+            "profile": {"a": {"ct": 1.1}, "b": {}, "c": {"ventilated": True}}}  # fmt: skip
+    roofs = roofs_from_mapping(data)
+    assert (roofs["a"].ct, roofs["a"].thermal) == (1.1, None)
+    assert (roofs["b"].ct, roofs["b"].thermal) == (None, "unheated")
+    over = roofs_from_mapping(data, {"ct": 1.0, "unventilated": True})
+    assert all(r.ct == 1.0 and r.thermal is None for r in over.values())
+    assert over["c"].ventilated is False
+    with pytest.raises(InputError, match="profile.a.ct"):
+        roofs_from_mapping({"profile": {"a": {"ct": 1.1, "thermal": "heated"}}})
