@@ -135,14 +135,14 @@ def explain(zt: ZoneTable, j: int, elev: float, meta: dict, ref: str) -> list[St
                 ref,
             )  # fmt: skip
         )
-    if state == NUMERIC:
+    if state in (NUMERIC, BAD):
         from geo.rule_checks import site_errors
 
         why = site_errors(zt, np.array([j]), np.array([elev]), vu, eu)[0]
         steps.append(
             Step(
                 "pg",
-                f"zone {zid} gives no usable ground snow load at this site",
+                f"zone {zid} gives no usable ground snow load at this site (status error)",
                 f"0 <= pg <= {fmt(zt.limit)} {vu} (plausibility bound)",
                 why or "no finite value within the bound",
                 None,

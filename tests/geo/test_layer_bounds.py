@@ -248,6 +248,34 @@ def test_huge_literal_in_site_and_screen_is_an_error_row_not_a_crash(tmp_path):
 
     df = pd.read_csv(out)
     assert list(df["status"]) == ["error", "ok"] and "L1" in df["message"].iloc[0]
+    assert res.stderr == ""
+
+
+def test_screen_rows_with_failing_formulas_are_errors_and_print_no_warning(tmp_path):
+    import pandas as pd
+
+    rows = [
+        zone("R1", "formula", cell(0, 0), expr="A ** 1000"),  # overflows an IEEE double
+        zone("R2", "formula", cell(1, 0), expr="Z - 0.1 * A", Z=20.0),  # negative above 200 ft
+        zone("R3", "formula", cell(2, 0), expr="20 / (A - 100)"),  # x / 0 at 100 ft
+    ]
+    layer = write_layer(tmp_path / "rt.geojson", rows)
+    (la, lo), (lb, lb_lon), (lc, lc_lon) = centre(0, 0), centre(1, 0), centre(2, 0)
+    sites = tmp_path / "s.csv"
+    sites.write_text(
+        "site_id,lat,lon,elevation_ft\n"
+        f"a,{la},{lo},100\nb,{lb},{lb_lon},500\nc,{lc},{lc_lon},100\nd,{lb},{lb_lon},100\n",
+        encoding="utf-8",
+    )
+    out = tmp_path / "out.csv"
+    res = run("screen", str(sites), "-o", str(out), "--layer", str(layer), "--quiet")
+    assert res.exit_code == 0 and res.stderr == "", res.output
+    df = pd.read_csv(out)
+    assert list(df["status"]) == ["error", "error", "error", "ok"]
+    assert df["pg_psf"].iloc[3] == pytest.approx(10.0)  # 20 - 0.1 x 100 (arithmetic)
+    assert "overflows" in df["message"].iloc[0] and "R1" in df["message"].iloc[0]
+    assert "-30" in df["message"].iloc[1]  # 20 - 0.1 x 500
+    assert "divides by zero" in df["message"].iloc[2]
 
 
 # --- §4: formulas and tables over the elevation range the layer claims ---------------------
@@ -379,6 +407,8 @@ def test_invalid_geometry_is_reported_with_its_zone_and_never_a_silent_ok(tmp_pa
     # inside the western triangle of the bow-tie: an error, not the zone's 20 psf
     g = site_json(layer, y0 + 0.005, x0 + 0.002, "--elevation", "100ft")
     assert g["status"] == "error" and g["pg"] is None and "G1" in g["message"]
+    last = g["steps"][-1]  # the calculation never ends on the zone's 20 psf
+    assert last["value"] is None and "status error" in last["description"]
     assert site_json(layer, *centre(1, 0))["status"] == "ok"
 
 
