@@ -14,8 +14,9 @@ import pytest
 
 from engine import Roof
 from geo.site import resolve_site
+from tests.geo.conftest import write_dem, write_layer
 
-from .conftest import run, run_json
+from .conftest import run, run_json, zone
 
 LOAD = {"psf", "kPa"}
 LENGTH = {"ft", "m"}
@@ -42,12 +43,57 @@ CASES = [
     ("mismatch", "grid", "30.015,-39.995", ["--dem", "DEM", "--elevation", "5000ft"], None,
      {"elevation_mismatch"}),
     ("defective formula", "defective", "30.005,-39.995", ["--elevation", "100ft"], "error", set()),
+    # issue 8 sec. 6: a study zone in an overlap, on an edge and 29 m away; sec. 3: a DEM value
+    # no land surface has, and a given elevation 16 m from the DEM (15 m: README)
+    ("study overlap", "study_overlap", "30.005,-39.9875", [], "study_required",
+     {"study_required", "overlapping_zones"}),
+    ("study edge", "study_edge", "30.005,-39.99", [], "study_required", {"study_required"}),
+    ("study nearby", "study_edge", "30.005,-39.9903", [], "provisional",
+     {"study_area_nearby", "near_boundary"}),
+    ("dem implausible", "big", "30.015,-39.995", ["--dem", "BADDEM"], "no_data",
+     {"dem_implausible", "elevation_needed"}),
+    ("mismatch 16 m", "big", "30.015,-39.995", ["--dem", "FLATDEM", "--elevation", "116m"],
+     "provisional", {"elevation_mismatch"}),
+    ("match 14 m", "big", "30.015,-39.995", ["--dem", "FLATDEM", "--elevation", "114m"], "ok",
+     set()),
 ]  # fmt: skip
 
 
+@pytest.fixture(scope="module")
+def study_edge(cdir) -> str:
+    """F (fixed 20 psf) west of -39.99, S (study) east of it (invented)."""
+    from shapely.geometry import box
+
+    rows = [zone("F", "fixed", box(-40.0, 30.0, -39.99, 30.01), pg=20.0),
+            zone("S", "study", box(-39.99, 30.0, -39.98, 30.01))]  # fmt: skip
+    return str(write_layer(cdir / "study_edge.geojson", rows))
+
+
+@pytest.fixture(scope="module")
+def study_overlap(cdir) -> str:
+    """F (fixed 20 psf) and S (study) overlapping between -39.99 and -39.985 (invented)."""
+    from shapely.geometry import box
+
+    rows = [zone("F", "fixed", box(-40.0, 30.0, -39.985, 30.01), pg=20.0),
+            zone("S", "study", box(-39.99, 30.0, -39.98, 30.01))]  # fmt: skip
+    return str(write_layer(cdir / "study_overlap.geojson", rows))
+
+
 def _args(request, extra):
-    dem = request.getfixturevalue("dem")
-    return [dem if a == "DEM" else a for a in extra]
+    dems = {"DEM": "dem", "BADDEM": "bad_dem", "FLATDEM": "flat_dem"}
+    return [request.getfixturevalue(dems[a]) if a in dems else a for a in extra]
+
+
+@pytest.fixture(scope="module")
+def bad_dem(cdir) -> str:
+    """A DEM whose cells hold -32768 (a fill value it does not declare as nodata)."""
+    return str(write_dem(cdir / "bad_dem.tif", fill=-32768.0))
+
+
+@pytest.fixture(scope="module")
+def flat_dem(cdir) -> str:
+    """A DEM at 100 m everywhere (but its nodata corner)."""
+    return str(write_dem(cdir / "flat_dem.tif", fill=100.0))
 
 
 @pytest.mark.parametrize("name, layer, at, extra, status, flags", CASES, ids=[c[0] for c in CASES])
