@@ -89,3 +89,30 @@ def test_resolver_uses_the_dem_and_flags_nodata_and_mismatch(grid_layer, dem):
     # the DEM's nodata corner (north-west): flagged, and a rule needing elevation cannot run
     far = resolve_points([LAT0 + 0.034], [LON0 - 0.004], layers=[grid_layer], dem=dem).iloc[0]
     assert "dem_nodata" in far["flags"] and far["elevation_source"] == "none"
+
+
+def test_dem_units_never_override_the_stated_unit(tmp_path):
+    """A DEM stating feet: --dem-units m is a clash naming both; foot agrees (issue 8, sec. 3)."""
+    from geo.elevation import check_dem_options
+
+    ft = write_dem(tmp_path / "ft.tif", unit="ft", fill=1000.0)
+    lat, lon = centre(1, 1)
+    with pytest.raises(InputError, match=r"'m'.*'ft'"):
+        sample_dem(ft, [lon], [lat], dem_units="m")
+    with pytest.raises(InputError, match="contradicts"):
+        check_dem_options(ft, "metre")
+    assert sample_dem(ft, [lon], [lat], dem_units="foot")[0] == 1000.0
+    assert check_dem_options(ft, None) == 1.0
+    with pytest.raises(InputError, match="without --dem"):
+        check_dem_options(None, "m")
+    assert check_dem_options(None, None) is None
+
+
+def test_a_stated_unit_neve_does_not_know_is_refused(tmp_path):
+    """A band unit such as 'cubit' is neither guessed nor overridden (issue 8, sec. 3)."""
+    odd = write_dem(tmp_path / "odd.tif", unit="cubit", fill=10.0)
+    lat, lon = centre(1, 1)
+    with pytest.raises(InputError, match="unknown vertical unit 'cubit'"):
+        sample_dem(odd, [lon], [lat])
+    with pytest.raises(InputError, match="contradicts"):
+        sample_dem(odd, [lon], [lat], dem_units="m")
