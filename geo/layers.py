@@ -194,9 +194,12 @@ class Layer:
         if "tree_m" not in self._cache:
             import shapely
 
-            geoms = np.asarray(
-                shapely.make_valid(np.asarray(self.frame.geometry.to_crs(3395).values))
-            )
+            # coordinates that do not project (a layer outside its CRS's area of use, which
+            # `neve layer check` reports) become inf here: they match no site, quietly
+            with np.errstate(invalid="ignore", over="ignore"):
+                geoms = np.asarray(
+                    shapely.make_valid(np.asarray(self.frame.geometry.to_crs(3395).values))
+                )
             self._cache["tree_m"] = (geoms, shapely.STRtree(geoms))
         return self._cache["tree_m"]
 
@@ -228,7 +231,8 @@ class Layer:
             b = self.frame.geometry.to_crs(4326).bounds
             lat_max = np.maximum(np.abs(b["miny"].to_numpy()), np.abs(b["maxy"].to_numpy()))
             k = mercator_scale(np.nan_to_num(lat_max, nan=0.0))
-            shrunk = shapely.buffer(geoms, -distance_m * k * 1.001)
+            with np.errstate(invalid="ignore", over="ignore"):
+                shrunk = shapely.buffer(geoms, -distance_m * k * 1.001)
             shapely.prepare(shrunk)
             self._cache[key] = shrunk
         return self._cache[key]
@@ -244,7 +248,8 @@ class Layer:
             geoms, _ = self.tree_m()
             b = self.frame.geometry.to_crs(4326).total_bounds
             k = float(mercator_scale(max(abs(b[1]), abs(b[3]))))
-            cover = shapely.buffer(shapely.union_all(geoms), distance_m * k * 1.001 + 1.0)
+            with np.errstate(invalid="ignore", over="ignore"):
+                cover = shapely.buffer(shapely.union_all(geoms), distance_m * k * 1.001 + 1.0)
             shapely.prepare(cover)
             self._cache[key] = cover
         return self._cache[key]

@@ -349,6 +349,17 @@ def test_utm_metres_labelled_as_degrees_are_found(tmp_path):
     assert code == 1 and len(crs) == 1  # pyproj: EPSG:4326 area of use is +-180, +-90
     assert crs[0]["swapped"] is False and "projected metres" in crs[0]["message"]
     assert set(crs[0]["zone_ids"]) == {"Z1", "Z2", "Z3", "Z4", "Z5", "Z6"}
+    # look-ups on it never match and print nothing (2500 sites: the prefilters run too)
+    sites = tmp_path / "many.csv"
+    rng = np.random.default_rng(8)
+    lat, lon = LAT0 + rng.uniform(0, 0.02, 2500), LON0 + rng.uniform(0, 0.03, 2500)
+    sites.write_text("lat,lon\n" + "".join(f"{a},{b}\n" for a, b in zip(lat, lon, strict=True)))
+    out = tmp_path / "many_out.parquet"
+    res = run("screen", str(sites), "-o", str(out), "--layer", str(p), "--quiet")
+    assert res.exit_code == 0 and res.stderr == "", res.stderr
+    import pandas as pd
+
+    assert set(pd.read_parquet(out)["status"]) == {"no_data"}
 
 
 def test_swapped_axes_in_geojson_are_found(tmp_path):
