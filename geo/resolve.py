@@ -493,10 +493,22 @@ def resolve_detail(
         ftxt.append(";".join(sorted(f for f in FLAGS if b & BIT[f])))
     message = np.array(msgs, dtype=object)[inv]
     err = np.flatnonzero(valid & (status == ERROR) & (gov >= 0))
+    # where the DEM elevation governs, the governing hits are those of the second look-up
+    at_dem = np.zeros(n, dtype=bool)
+    pos = np.full(n, -1, dtype=np.intp)
+    if alt is not None:
+        at_dem[sub[alt["governs"]]] = True
+        pos[sub] = np.arange(sub.size)
     for k in np.unique(gov[err]):  # the governing zone's own account: zone, value, why
-        sel = err[gov[err] == k]
-        why = layers[k].site_errors(main["hits"][k], sel, elev[sel])
-        message[sel] = np.where(why != "", why + " " + message[sel], message[sel])
+        for use_alt in (False, True):
+            sel = err[(gov[err] == k) & (at_dem[err] == use_alt)]
+            if sel.size == 0:
+                continue
+            if use_alt:
+                why = layers[k].site_errors(alt["hits"][k], pos[sel], elev[sel])
+            else:
+                why = layers[k].site_errors(main["hits"][k], sel, elev[sel])
+            message[sel] = np.where(why != "", why + " " + message[sel], message[sel])
     bad_dem = np.flatnonzero(valid & implausible)
     if bad_dem.size:
         message[bad_dem] = message[bad_dem] + _implausible_text(dem_raw[bad_dem])

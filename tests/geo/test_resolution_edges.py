@@ -496,3 +496,18 @@ def test_every_edge_case_gives_strict_json(tmp_path, edge_layer, overlap_layer, 
     for layer, (lat, lon), extra in cases:
         d = site_json("--layer", str(layer), "--at", f"{lat},{lon}", *extra, "--shape", "flat")
         assert "non_finite_value" not in d["ground"]["flags"]
+
+
+def test_mismatch_a_defect_at_the_dem_elevation_governs_and_is_explained(tmp_path):
+    """A formula beyond the 2000 psf bound at the DEM elevation only: error governs, and
+    the message accounts for the zone at the DEM elevation (README, site resolution)."""
+    layer = write_layer(
+        tmp_path / "fx.geojson",
+        [zone("FX", "formula", box(LON0, LAT0, LON0 + D, LAT0 + D), expr="A * 10")],
+    )  # 50 m = 164 ft -> 1640 psf; 100 m = 328 ft -> 3281 psf, beyond 2000 psf
+    r = one(layer, *T_SITE, 50.0 * FT_PER_M, dem=dem(tmp_path, "d.tif", 100.0))
+    assert (r["status"], r["elevation_source"]) == ("error", "dem")
+    assert r["alt_status"] == "provisional" and r["alt_pg_psf"] == pytest.approx(
+        10 * 50.0 * FT_PER_M
+    )
+    assert "Zone FX" in r["message"] and "328.084 ft" in r["message"]
