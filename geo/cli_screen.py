@@ -110,13 +110,21 @@ def _terminate(signum, frame):  # pragma: no cover - exercised through a subproc
 @click.option("--quiet", is_flag=True, help="No progress bar.")
 @click.option("--overwrite", is_flag=True, help="Replace existing output files.")
 @click.option(
+    "--csv-raw",
+    "csv_raw",
+    is_flag=True,
+    help="CSV output: write text cells as they are. By default a text cell starting with "
+    "=, +, -, @, tab or CR that is not a plain number gets a leading ' so that spreadsheets "
+    "show it as text.",
+)
+@click.option(
     "--summary-json",
     "summary_json",
     type=click.Path(dir_okay=False),
     help="Also write the run summary as JSON to this file.",
 )
 def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, tiles, self_contained, engine, scheduler, staging, partitions,
-           gazetteer, geocoder_url, geocode_cache, quiet, overwrite, summary_json, **roof_kw):  # fmt: skip
+           gazetteer, geocoder_url, geocode_cache, quiet, overwrite, csv_raw, summary_json, **roof_kw):  # fmt: skip
     """Screen a portfolio: ground snow load (and roof loads) for every site in SITES.
 
     SITES is a CSV, XLSX, GeoPackage or Parquet file with lat/lon (or
@@ -131,11 +139,25 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
     """
     import json
 
-    from geo.outputs import XLSX_MAX_ROWS, check_target, result_format, write_results
+    from geo.outputs import (
+        XLSX_MAX_ROWS,
+        check_distinct,
+        check_target,
+        result_format,
+        write_results,
+    )
     from geo.screen import format_summary, run_screen
 
     # check every target before any work, so a refusal costs nothing
     fmt = result_format(output)
+    check_distinct(
+        {"output": output, "summary-json": summary_json, "map": map_path,
+         "geocode-cache": geocode_cache},
+        {"sites": sites, "gazetteer": gazetteer, "layer": list(layers), "dem": dem,
+         "roof": roof_kw.get("roof_file")},
+    )  # fmt: skip
+    if csv_raw and fmt != "csv":
+        raise InputError("csv-raw", f"given for a .{fmt} output", "--csv-raw with a .csv output")
     check_target(output, overwrite)
     if map_path:
         if Path(map_path).suffix.lower() not in (".html", ".htm"):
@@ -178,14 +200,19 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
             progress=progress,
         )
         write_results(
-            run.results, output, overwrite=overwrite, summary=run.summary, geometry=run.geometry
+            run.results,
+            output,
+            overwrite=overwrite,
+            summary=run.summary,
+            geometry=run.geometry,
+            csv_raw=csv_raw,
         )
         if map_path:
             _write_map(run, map_path, overwrite, tiles=tiles, self_contained=self_contained)
         if summary_json:
             from geo.outputs import atomic_path
 
-            with atomic_path(summary_json, overwrite=overwrite) as tmp:
+            with atomic_path(summary_json, overwrite=overwrite, field="summary-json") as tmp:
                 tmp.write_text(json.dumps(run.summary, indent=2), encoding="utf-8")
     finally:
         if previous is not None:
@@ -220,7 +247,7 @@ def _write_map(
         raise InputError("map", f"the portfolio map is not available ({exc})", "no --map") from None
     from geo.outputs import atomic_path
 
-    with atomic_path(map_path, overwrite=overwrite) as tmp:
+    with atomic_path(map_path, overwrite=overwrite, field="map") as tmp:
         write_portfolio_map(
             map_frame(run.results),
             tmp,

@@ -8,8 +8,6 @@ output is replaced only when ``overwrite=True``.
 
 from __future__ import annotations
 
-import os
-import tempfile
 from collections.abc import Callable, Iterator
 from contextlib import contextmanager
 from pathlib import Path
@@ -52,8 +50,16 @@ def result_format(path: str | Path, field: str = "output") -> str:
 
 
 def check_target(path: str | Path, overwrite: bool, field: str = "output") -> Path:
-    """Refuse an existing target unless ``overwrite``; check its folder exists."""
+    """Refuse an existing target unless ``overwrite``; check its folder exists.
+
+    Temporary files that killed runs left for this target are removed on the way
+    (:func:`maps.target.remove_stale`).
+    """
+    from maps.target import remove_stale
+
     p = Path(path)
+    if p.parent.is_dir():
+        remove_stale(p)
     if p.exists() and not overwrite:
         raise InputError(field, f"{str(p)!r} already exists", "a new path, or --overwrite")
     if p.exists() and p.is_dir():
@@ -65,29 +71,85 @@ def check_target(path: str | Path, overwrite: bool, field: str = "output") -> Pa
     return p
 
 
-@contextmanager
-def atomic_path(path: str | Path, *, overwrite: bool = False) -> Iterator[Path]:
-    """Yield a temporary path beside ``path``; rename it over ``path`` on success.
+def _same_file(a: Path, b: Path) -> bool:
+    import os
 
-    On any exception (including KeyboardInterrupt) the temporary file and any
-    side files a driver left (``-wal``, ``-shm``, ``-journal``) are removed.
+    if os.path.normcase(os.path.realpath(a)) == os.path.normcase(os.path.realpath(b)):
+        return True
+    try:
+        return a.exists() and b.exists() and os.path.samefile(a, b)  # hard links
+    except OSError:
+        return False
+
+
+def check_distinct(outputs: dict, inputs: dict | None = None) -> None:
+    """Refuse two outputs of one run on the same file, or an output on an input file.
+
+    Paths are compared after resolving ``..``, relative paths and symbolic links
+    (and hard links, for files that exist), before any work is done.
+
+    Parameters
+    ----------
+    outputs : dict
+        Option name (``output``, ``summary-json``, ``map``, ``geocode-cache``) -> path or None.
+    inputs : dict, optional
+        Option name (``sites``, ``gazetteer``, ``layer``, ``dem``, ``roof``) -> path,
+        list of paths, or None.
     """
-    target = check_target(path, overwrite)
-    fd, tmp_name = tempfile.mkstemp(
-        prefix=f".{target.name}.", suffix=f".part{target.suffix}", dir=target.parent
-    )
-    os.close(fd)
-    tmp = Path(tmp_name)
-    tmp.unlink()  # writers create the file themselves (some refuse an existing one)
+    outs = [(name, Path(p)) for name, p in outputs.items() if p]
+    for k, (name, path) in enumerate(outs):
+        for other, other_path in outs[:k]:
+            if _same_file(path, other_path):
+                raise InputError(
+                    name,
+                    f"{str(path)!r} is also the --{other} file of this run",
+                    "a different file for each output",
+                )
+    ins = []
+    for name, value in (inputs or {}).items():
+        for p in value if isinstance(value, (list, tuple)) else [value]:
+            if p and str(p) != "demo":
+                ins.append((name, Path(p)))
+    for name, path in outs:
+        for other, in_path in ins:
+            if _same_file(path, in_path):
+                raise InputError(
+                    name,
+                    f"{str(path)!r} is the {other} input of this run; it would be replaced",
+                    "an output path that is not one of the input files",
+                )
+
+
+@contextmanager
+def atomic_path(
+    path: str | Path, *, overwrite: bool = False, field: str = "output"
+) -> Iterator[Path]:
+    """Yield a temporary path for ``path``; move it into place on success.
+
+    The temporary path is ``path``'s own name inside a hidden folder beside it
+    (``.NAME.neve-HOST-PID-RANDOM.part/NAME``), so every writer sees the real
+    suffix while no glob of the results' folder (``*.csv``, ``results*.parquet``)
+    can pick up a partial file.  On success the file is moved into place without
+    replacing anything unless ``overwrite`` (see :func:`maps.target.publish`); on
+    any exception (including KeyboardInterrupt) the folder and everything a driver
+    left in it (``-wal``, ``-shm``, ``-journal``) is removed.  Folders of runs that
+    were killed are removed by the next run to the same target
+    (:func:`maps.target.remove_stale`).
+    """
+    import shutil
+
+    from maps.target import make_temp, publish
+
+    target = check_target(path, overwrite, field)
+    folder = make_temp(target, "part")
+    tmp = folder / target.name
     try:
         yield tmp
         if not tmp.exists():
             raise OSError(f"the writer produced no file for {target}")
-        if target.exists() and not overwrite:
-            raise InputError("output", f"{str(target)!r} appeared during the run", "--overwrite")
-        os.replace(tmp, target)
+        publish(tmp, target, overwrite=overwrite, field=field)
     finally:
-        _remove(tmp)
+        shutil.rmtree(folder, ignore_errors=True)
 
 
 def _points(df: pd.DataFrame, geometry=None):
@@ -111,17 +173,138 @@ def _remove(path: Path) -> None:
             pass
 
 
-def _write_csv(df: pd.DataFrame, tmp: Path) -> None:
-    """CSV through Arrow's writer (several times faster than pandas); pandas as fallback."""
+#: first characters that make a spreadsheet read a text cell as a formula
+FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
+_FORMULA_START = r"^[=+\-@\t\r]"
+#: a text cell that is a plain decimal number (``-140.05``, ``+3``, ``-1e5``) is no formula
+_PLAIN_NUMBER = r"^[+-]?(?:[0-9]+\.?[0-9]*|\.[0-9]+)(?:[eE][+-]?[0-9]+)?$"
+
+
+def _write_csv(df: pd.DataFrame, tmp: Path, *, raw: bool = False) -> int:
+    """CSV through Arrow's writer (several times faster than pandas); pandas as fallback.
+
+    Unless ``raw``, every text cell that a spreadsheet would read as a formula
+    (it starts with ``=``, ``+``, ``-``, ``@``, a tab or a carriage return and is
+    not a plain number) is written with a leading ``'``.  Numbers (neve's numeric
+    columns, and text cells such as ``-140.05``) are written as they are.
+
+    Returns
+    -------
+    int
+        The number of cells given a leading ``'``.
+    """
     import pyarrow as pa
     import pyarrow.csv as pcsv
 
     try:
-        table = pa.Table.from_pandas(_dictionary_encoded(df), preserve_index=False)
+        table = _csv_table(df)
+        changed = 0
+        if not raw:
+            table, changed = _neutralise_table(table)
         pcsv.write_csv(table, tmp, write_options=pcsv.WriteOptions(quoting_style="needed"))
+        return changed
     except (pa.ArrowInvalid, pa.ArrowTypeError, pa.ArrowNotImplementedError):
         _remove(tmp)
-        df.to_csv(tmp, index=False)
+    out, changed = (df, 0) if raw else _neutralise_frame(df)
+    out.to_csv(tmp, index=False)
+    return changed
+
+
+def _csv_table(df: pd.DataFrame):
+    """The results as an Arrow table; cells Arrow cannot hold or write as CSV become text."""
+    import pyarrow as pa
+
+    df = _dictionary_encoded(df)
+    try:
+        table = pa.Table.from_pandas(df, preserve_index=False)
+    except (pa.ArrowInvalid, pa.ArrowTypeError):
+        table = pa.Table.from_pandas(_arrow_safe(df), preserve_index=False)
+    for i, f in enumerate(table.schema):
+        t = f.type
+        if pa.types.is_nested(t) or pa.types.is_binary(t) or pa.types.is_large_binary(t):
+            text = pa.array([None if v is None else str(v) for v in table.column(i).to_pylist()],
+                            type=pa.string())  # fmt: skip
+            table = table.set_column(i, f.name, text)
+    return table
+
+
+def _formula_mask(arr):
+    """True where a text cell starts like a formula and is not a plain number."""
+    import pyarrow.compute as pc
+
+    mask = pc.and_(
+        pc.match_substring_regex(arr, _FORMULA_START),
+        pc.invert(pc.match_substring_regex(arr, _PLAIN_NUMBER)),
+    )
+    return pc.fill_null(mask, False)
+
+
+def _neutralise_array(arr):
+    """One Arrow text array with formula-like cells given a leading ``'`` (and how many)."""
+    import pyarrow as pa
+    import pyarrow.compute as pc
+
+    if pa.types.is_dictionary(arr.type):
+        words = arr.dictionary
+        if not (pa.types.is_string(words.type) or pa.types.is_large_string(words.type)):
+            return arr, 0
+        mask = _formula_mask(words)
+        if not pc.any(mask).as_py():
+            return arr, 0
+        n = int(pc.sum(pc.fill_null(pc.take(mask, arr.indices), False)).as_py() or 0)
+        quoted = pc.binary_join_element_wise(
+            pa.scalar("'", words.type), words, pa.scalar("", words.type)
+        )
+        return pa.DictionaryArray.from_arrays(arr.indices, pc.if_else(mask, quoted, words)), n
+    if not (pa.types.is_string(arr.type) or pa.types.is_large_string(arr.type)):
+        return arr, 0
+    mask = _formula_mask(arr)
+    n = int(pc.sum(mask).as_py() or 0)
+    if not n:
+        return arr, 0
+    quoted = pc.binary_join_element_wise(pa.scalar("'", arr.type), arr, pa.scalar("", arr.type))
+    return pc.if_else(mask, quoted, arr), n
+
+
+def _neutralise_table(table):
+    """Every text column of an Arrow table through :func:`_neutralise_array`."""
+    import pyarrow as pa
+
+    total = 0
+    for i, f in enumerate(table.schema):
+        col = table.column(i)
+        chunks, changed = [], 0
+        for chunk in col.chunks:
+            new, n = _neutralise_array(chunk)
+            chunks.append(new)
+            changed += n
+        if changed:
+            table = table.set_column(i, f.name, pa.chunked_array(chunks, type=chunks[0].type))
+            total += changed
+    return table, total
+
+
+def _neutralise_frame(df: pd.DataFrame) -> tuple[pd.DataFrame, int]:
+    """The pandas twin of :func:`_neutralise_table` (used when Arrow cannot write the table)."""
+    import re
+
+    start, number = re.compile(_FORMULA_START), re.compile(_PLAIN_NUMBER)
+
+    def risky(v) -> bool:
+        return isinstance(v, str) and bool(start.match(v)) and not number.match(v)
+
+    out, total = None, 0
+    for col in df.columns:
+        if df[col].dtype.kind in "biufcmM":
+            continue
+        mask = df[col].map(risky).to_numpy(dtype=bool)
+        if mask.any():
+            out = df.copy() if out is None else out
+            values = out[col].astype(object).to_numpy(copy=True)
+            values[mask] = ["'" + v for v in values[mask]]
+            out[col] = values
+            total += int(mask.sum())
+    return (df if out is None else out), total
 
 
 def _dictionary_encoded(df: pd.DataFrame) -> pd.DataFrame:
@@ -181,6 +364,7 @@ def _arrow_safe(df: pd.DataFrame) -> pd.DataFrame:
 def summary_rows(summary: dict) -> pd.DataFrame:
     """A two-column table (item, value) of a screening summary for the XLSX sheet."""
     rows: list[tuple[str, object]] = [("sites", summary.get("rows"))]
+    rows.extend(("input", line.strip()) for line in input_lines(summary.get("input")))
     for status, count in summary.get("status", {}).items():
         rows.append((f"status: {status}", count))
     for flag, count in summary.get("flags", {}).items():
@@ -199,6 +383,92 @@ def summary_rows(summary: dict) -> pd.DataFrame:
     return pd.DataFrame(rows, columns=["item", "value"])
 
 
+#: the most characters an XLSX cell holds
+XLSX_MAX_CELL = 32_767
+#: characters an XLSX file cannot hold (XML 1.0 forbids them; openpyxl refuses them)
+_XLSX_ILLEGAL = r"[\x00-\x08\x0b\x0c\x0e-\x1f]"
+#: GeoPackage text ends at a NUL character (GDAL's strings are C strings)
+_GPKG_ILLEGAL = r"\x00"
+
+
+def _picture(match) -> str:
+    """A control character as its visible Unicode control picture (NUL -> U+2400)."""
+    return chr(0x2400 + ord(match.group(0)))
+
+
+def _fit_text(df: pd.DataFrame, illegal: str, limit: int | None, fmt: str):
+    """Text cells a format cannot hold, made to fit, with each changed row flagged.
+
+    Control characters the format refuses are replaced by their visible control
+    pictures (NUL -> U+2400, ...) and flagged ``cell_escaped``; text longer than
+    ``limit`` characters is cut and flagged ``cell_truncated``.  The row's message
+    says which columns were changed.  Returns the frame to write and the flag counts.
+    """
+    import re
+
+    pattern = re.compile(illegal)
+    n = len(df)
+    escaped = np.zeros(n, dtype=bool)
+    cut = np.zeros(n, dtype=bool)
+    notes: dict[int, list[str]] = {}
+    out = None
+    for col in df.columns:
+        if df[col].dtype.kind in "biufcmM":
+            continue
+        values = df[col].to_numpy(dtype=object)
+        is_text = np.fromiter((isinstance(v, str) for v in values), dtype=bool, count=n)
+        if not is_text.any():
+            continue
+        text = pd.Series(values[is_text], dtype=object)
+        bad = text.str.contains(illegal, regex=True).to_numpy(dtype=bool)
+        long = (text.str.len() > limit).to_numpy(dtype=bool) if limit else np.zeros(len(text), bool)
+        if not (bad.any() or long.any()):
+            continue
+        rows = np.flatnonzero(is_text)
+        new = values.copy()
+        for k in np.flatnonzero(bad | long):
+            i, v = rows[k], text.iloc[k]
+            if bad[k]:
+                v = pattern.sub(_picture, v)
+                escaped[i] = True
+                notes.setdefault(i, []).append(f"control characters in {col} shown as symbols")
+            if limit and len(v) > limit:
+                notes.setdefault(i, []).append(f"{col} cut to {limit:,} of {len(v):,} characters")
+                v = v[:limit]
+                cut[i] = True
+            new[i] = v
+        out = df.copy() if out is None else out
+        out[col] = new
+    counts = {"cell_escaped": int(escaped.sum()), "cell_truncated": int(cut.sum())}
+    if out is None:
+        return df, counts
+    if "flags" in out.columns and "message" in out.columns:
+        flags = out["flags"].astype(object).where(out["flags"].notna(), "").to_numpy(copy=True)
+        message = (
+            out["message"].astype(object).where(out["message"].notna(), "").to_numpy(copy=True)
+        )
+        for i, texts in notes.items():
+            extra = [f for f, m in (("cell_escaped", escaped), ("cell_truncated", cut)) if m[i]]
+            have = [f for f in str(flags[i]).split(";") if f]
+            flags[i] = ";".join(sorted(set(have) | set(extra)))
+            note = f"{fmt}: " + "; ".join(texts) + "."
+            message[i] = f"{message[i]} {note}".strip()
+        out["flags"] = flags
+        out["message"] = message
+    return out, counts
+
+
+def _count_flags(summary: dict | None, counts: dict) -> None:
+    """Add the flags the writer set to the run summary's counts (printed after writing)."""
+    if summary is None or not any(counts.values()):
+        return
+    flags = summary.setdefault("flags", {})
+    for name, count in counts.items():
+        if count:
+            flags[name] = int(flags.get(name, 0)) + count
+    summary["flags"] = dict(sorted(flags.items()))
+
+
 def _write_xlsx(df: pd.DataFrame, tmp: Path, summary: dict | None) -> None:
     if len(df) > XLSX_MAX_ROWS:
         raise InputError(
@@ -206,11 +476,24 @@ def _write_xlsx(df: pd.DataFrame, tmp: Path, summary: dict | None) -> None:
             f"{len(df):,} rows do not fit in one XLSX sheet ({XLSX_MAX_ROWS:,} at most)",
             "a .csv, .gpkg or .parquet output for large portfolios",
         )
-    with pd.ExcelWriter(tmp, engine="openpyxl") as xw:
+    df, counts = _fit_text(df, _XLSX_ILLEGAL, XLSX_MAX_CELL, "XLSX")
+    _count_flags(summary, counts)
+    names = [str(c) for c in df.columns]
+    fitted = [_fit_name(c) for c in names]
+    if fitted != names:
+        df = df.set_axis(fitted, axis=1)
+    sheet2, _ = _fit_text(summary_rows(summary or {}), _XLSX_ILLEGAL, XLSX_MAX_CELL, "XLSX")
+    with open(tmp, "wb") as fh, pd.ExcelWriter(fh, engine="openpyxl") as xw:
         df.to_excel(xw, sheet_name="results", index=False)
-        summary_rows(summary or {}).to_excel(xw, sheet_name="summary", index=False)
+        sheet2.to_excel(xw, sheet_name="summary", index=False)
         for sheet in xw.sheets.values():
             _defuse_formulas(sheet)
+
+
+def _fit_name(name: str) -> str:
+    import re
+
+    return re.sub(_XLSX_ILLEGAL, _picture, name)[:XLSX_MAX_CELL]
 
 
 def _defuse_formulas(sheet) -> None:
@@ -242,6 +525,7 @@ def write_results(
     overwrite: bool = False,
     summary: dict | None = None,
     geometry=None,
+    csv_raw: bool = False,
     _writer_hook: Callable | None = None,
 ) -> Path:
     """Write a results table atomically in the format its suffix names.
@@ -260,6 +544,14 @@ def write_results(
         The input's own geometry (GeoPackage / GeoParquet input), written as
         the output geometry (or as WKT text in CSV/XLSX); otherwise points
         are made from ``site_lat``/``site_lon``.
+    csv_raw : bool
+        CSV only: write text cells as they are.  By default a text cell that a
+        spreadsheet would take for a formula (it starts with ``=``, ``+``, ``-``,
+        ``@``, a tab or a carriage return and is not a plain number such as
+        ``-140.05``) gets a leading ``'``; the count is ``summary["csv_cells_neutralised"]``.
+        XLSX always stores such cells as text; XLSX cells the format cannot hold
+        (control characters, over 32,767 characters) and GeoPackage text with NUL
+        are made to fit and flagged ``cell_escaped`` / ``cell_truncated``.
 
     Returns
     -------
@@ -270,7 +562,9 @@ def write_results(
     target = Path(path)
     with atomic_path(target, overwrite=overwrite) as tmp:
         if fmt == "csv":
-            _write_csv(_for_text(df, geometry), tmp)
+            changed = _write_csv(_for_text(df, geometry), tmp, raw=csv_raw)
+            if summary is not None:
+                summary["csv_cells_neutralised"] = changed
         elif fmt == "xlsx":
             _write_xlsx(_for_text(df, geometry), tmp, summary)
         elif fmt == "parquet":
@@ -281,6 +575,8 @@ def write_results(
         else:
             import pyogrio
 
+            df, counts = _fit_text(df, _GPKG_ILLEGAL, None, "GPKG")
+            _count_flags(summary, counts)
             gdf = _points(df, geometry)
             try:  # Arrow I/O is much faster for large tables
                 pyogrio.write_dataframe(gdf, tmp, driver="GPKG", layer="results", use_arrow=True)
@@ -292,8 +588,14 @@ def write_results(
     return target
 
 
-def summarize(results: pd.DataFrame, layers=(), *, engine="local", seconds=None) -> dict:
-    """Counts by status and by flag, the range of pg, the layers used and the cautions."""
+def summarize(
+    results: pd.DataFrame, layers=(), *, engine="local", seconds=None, input_info=None
+) -> dict:
+    """Counts by status and by flag, the range of pg, the layers used and the cautions.
+
+    ``input_info`` (how the site file was laid out: physical lines against
+    records, see :class:`geo.site_read.ReadNotes`) is kept as ``input``.
+    """
     status_counts = results["status"].value_counts()
     statuses = {s: int(status_counts.get(s, 0)) for s in STATUSES}
     for s, c in status_counts.items():
@@ -330,7 +632,43 @@ def summarize(results: pd.DataFrame, layers=(), *, engine="local", seconds=None)
         "engine": engine,
         "seconds": None if seconds is None else round(float(seconds), 3),
         "cautions": list(CAUTIONS),
+        **({"input": dict(input_info)} if input_info else {}),
     }
+
+
+def input_lines(info: dict | None) -> list[str]:
+    """How the site file was read, in words: physical lines (or sheet rows) against records."""
+    if not info:
+        return []
+    records = int(info.get("records", 0))
+    bad = int(info.get("records_with_read_errors", 0))
+    if info.get("format") == "csv" and "lines" in info:
+        multi = int(info.get("multiline_records", 0))
+        text = (
+            f"input: {info['lines']:,} lines = header (line {info.get('header_line', 1)}) + "
+            f"{records:,} records + {info.get('blank_lines', 0):,} blank"
+        )
+        if info.get("header_line", 1) > 1:
+            text += " (blank lines before the header included)"
+        out = [text]
+        if multi:
+            out.append(
+                f"  {multi:,} record(s) span several lines (a quoted cell with line breaks; "
+                "flagged multiline_field): check them for a stray quote"
+            )
+        if bad:
+            out.append(f"  {bad:,} record(s) could not be read as written: status error")
+        return out
+    if info.get("format") == "xlsx" and "sheet_rows" in info:
+        out = [
+            f"input: sheet {info.get('sheet')!r}, {info['sheet_rows']:,} rows = header "
+            f"(row {info.get('header_row', 1)}) + {records:,} records + "
+            f"{info.get('blank_rows', 0):,} empty"
+        ]
+        if bad:
+            out.append(f"  {bad:,} record(s) could not be read as written: status error")
+        return out
+    return [f"input: {records:,} records ({info.get('format', 'table')})"]
 
 
 def format_summary(summary: dict) -> str:
@@ -339,6 +677,12 @@ def format_summary(summary: dict) -> str:
     if summary.get("demo"):
         lines.append("DEMO DATA: the zone layer is invented; never use these results for design.")
     lines.append(f"sites: {summary['rows']:,}")
+    lines.extend(input_lines(summary.get("input")))
+    if summary.get("csv_cells_neutralised"):
+        lines.append(
+            f"csv: {summary['csv_cells_neutralised']:,} text cell(s) that a spreadsheet would "
+            "take for a formula written with a leading ' (--csv-raw writes them as they are)"
+        )
     width = max(len(s) for s in summary["status"]) if summary["status"] else 0
     for s, c in summary["status"].items():
         lines.append(f"  {s:<{width}}  {c:>10,}")

@@ -250,7 +250,13 @@ def run_screen(
         _add_roof(out, site, roofs, layer_list)
     results = _join_input(site.frame, out)
     lap("roof_and_assemble")
-    summary = summarize(results, layer_list, engine=engine, seconds=time.perf_counter() - t0)
+    summary = summarize(
+        results,
+        layer_list,
+        engine=engine,
+        seconds=time.perf_counter() - t0,
+        input_info=site.input_info,
+    )
     summary["timings_s"] = timings
     geometry = getattr(site, "geometry", None)
     return ScreenRun(results, summary, geometry, layer_list)
@@ -338,6 +344,19 @@ def _assemble(
         d = site.duplicate
         old = flags[d].fillna("")
         flags[d] = np.where(old == "", "duplicate_site_id", old + ";duplicate_site_id")
+    if site.multiline:  # a quoted cell with line breaks: kept, never silently
+        rows = np.fromiter(site.multiline, dtype=np.int64, count=len(site.multiline))
+        old = flags.iloc[rows].fillna("").to_numpy(dtype=object)
+        flags.iloc[rows] = [
+            ";".join(sorted(set(filter(None, str(f).split(";"))) | {"multiline_field"}))
+            for f in old
+        ]
+        said = message.iloc[rows].fillna("").to_numpy(dtype=object)
+        message.iloc[rows] = [
+            f"{m} Input record on lines {a}-{b} of the file: a quoted cell holds line breaks "
+            f"(if that is not meant, look for a stray quote on line {a}).".strip()
+            for m, (a, b) in zip(said, site.multiline.values(), strict=True)
+        ]
     text = {}
     for col in ("zone_id", "rule", "layer_name"):  # no zone: missing, not an empty name
         v = res[col]

@@ -7,10 +7,20 @@ geometry, or WKT text in a ``geometry`` column of a CSV or XLSX file).  The
 column names neve looks for are defined here; turning the rows into arrays
 is :mod:`geo.sitefile`'s job.  A file that cannot be read as a table is an
 :class:`engine.errors.InputError`.
+
+Cells come back as they are stored: every CSV cell is text, exactly as
+written (:mod:`geo.site_csv`; ``NA``, ``null``, ``02134`` and empty cells stay
+text); XLSX cells keep the value type of the sheet (text, number, date,
+boolean; empty cells are missing); Parquet and GeoPackage columns keep their
+own types (integer columns with missing values stay integers).  Problems of
+single records (a CSV row with a stray quote, an extra comma or a byte that is
+not UTF-8; an XLSX value outside the named columns) make those rows errors;
+they travel with the table as :class:`ReadNotes` in ``frame.attrs``.
 """
 
 from __future__ import annotations
 
+from dataclasses import dataclass, field
 from pathlib import Path
 
 import numpy as np
@@ -30,8 +40,11 @@ SITE_FORMATS = {
     ".pq": "parquet",
 }
 #: accepted latitude / longitude column names (matched case-blind)
-LAT_NAMES = ("lat", "latitude", "site_lat")  # site_lat/site_lon: neve's own results
-LON_NAMES = ("lon", "longitude", "lng", "long", "site_lon")
+#: (site_lat/site_lon: the coordinates in neve's own results, used when no other is given)
+GIVEN_LAT_NAMES = ("lat", "latitude")
+GIVEN_LON_NAMES = ("lon", "longitude", "lng", "long")
+LAT_NAMES = (*GIVEN_LAT_NAMES, "site_lat")
+LON_NAMES = (*GIVEN_LON_NAMES, "site_lon")
 #: text columns of WKT points (EPSG:4326) accepted in CSV and XLSX files
 WKT_NAMES = ("geometry", "wkt")
 ADDRESS_NAMES = ("address",)
@@ -63,6 +76,42 @@ def find_column(columns, names) -> str | None:
     return None
 
 
+#: key of :class:`ReadNotes` in a site table's ``attrs``
+READ_NOTES = "neve_read_notes"
+
+
+@dataclass
+class ReadNotes:
+    """What reading a site file found about single rows, and how the file was laid out.
+
+    Attributes
+    ----------
+    errors : dict
+        Row index -> why the row could not be read as written (an error row).
+    multiline : dict
+        Row index -> (first, last) physical line of a CSV record whose quoted
+        cells hold line breaks (flagged ``multiline_field``).
+    info : dict
+        How the file was laid out: ``format``, ``records`` and, for CSV,
+        ``lines``, ``header_line``, ``blank_lines``, ``multiline_records``,
+        ``records_with_read_errors`` (XLSX: ``sheet``, ``sheet_rows``,
+        ``header_row``, ``blank_rows``, ``records_with_read_errors``).
+    """
+
+    errors: dict = field(default_factory=dict)
+    multiline: dict = field(default_factory=dict)
+    info: dict = field(default_factory=dict)
+
+    def __deepcopy__(self, memo):  # pandas copies attrs on every operation: share instead
+        return self
+
+
+def read_notes(frame: pd.DataFrame) -> ReadNotes | None:
+    """The :class:`ReadNotes` a site table was read with, if any."""
+    notes = frame.attrs.get(READ_NOTES) if hasattr(frame, "attrs") else None
+    return notes if isinstance(notes, ReadNotes) else None
+
+
 def read_sites(path: str | Path) -> tuple[pd.DataFrame, object]:
     """Read a site file into a DataFrame plus its point geometry (or None).
 
@@ -83,16 +132,18 @@ def read_sites(path: str | Path) -> tuple[pd.DataFrame, object]:
         raise InputError("sites", f"file {str(p)!r} not found", "a CSV, XLSX, GPKG or Parquet file")
     fmt = site_format(p)
     geometry = None
+    notes = ReadNotes()
     try:
         if fmt == "csv":
-            frame = _read_csv(p)
-        elif fmt == "xlsx":
-            frame = pd.read_excel(p, sheet_name=0, engine="openpyxl")
-        elif fmt == "gpkg":
-            import pyogrio
+            from geo.site_csv import read_csv_records
 
-            gdf = pyogrio.read_dataframe(p)
-            frame, geometry = split_geometry(gdf)
+            rec = read_csv_records(p)
+            frame = rec.frame
+            notes = ReadNotes(rec.errors, rec.multiline, rec.info)
+        elif fmt == "xlsx":
+            frame, notes = _read_xlsx(p)
+        elif fmt == "gpkg":
+            frame, geometry = split_geometry(_read_gpkg(p))
         else:
             frame, geometry = _read_parquet(p)
     except InputError:
@@ -110,7 +161,11 @@ def read_sites(path: str | Path) -> tuple[pd.DataFrame, object]:
         raise InputError("sites", f"{str(p)!r} has no columns", ACCEPTED_COORDS)
     if len(frame) == 0:
         raise InputError("sites", f"{str(p)!r} has no rows", "a table with at least one site")
-    return frame.reset_index(drop=True), geometry
+    frame = frame.reset_index(drop=True)
+    notes.info.setdefault("format", fmt)
+    notes.info.setdefault("records", int(len(frame)))
+    frame.attrs[READ_NOTES] = notes
+    return frame, geometry
 
 
 def _wkt_geometry(frame: pd.DataFrame):
@@ -129,17 +184,101 @@ def _wkt_geometry(frame: pd.DataFrame):
     return gpd.GeoSeries(geoms, crs="EPSG:4326")
 
 
-def _read_csv(p: Path) -> pd.DataFrame:
-    head = pd.read_csv(p, nrows=0, encoding="utf-8-sig")
-    text_cols = {
-        c: str
-        for c in head.columns
-        if str(c).strip().lower() in SITE_ID_NAMES + ADDRESS_NAMES + ROOF_NAMES + ("elevation",)
+def _read_xlsx(p: Path) -> tuple[pd.DataFrame, ReadNotes]:
+    """The first sheet, each cell the value stored in it (openpyxl, values not formulas).
+
+    The first row that is not empty names the columns; empty rows are skipped
+    and counted.  A value in a column the header does not name makes its row an
+    error row (the value is quoted in the message).
+    """
+    import openpyxl
+
+    wb = openpyxl.load_workbook(p, read_only=True, data_only=True)
+    try:
+        ws = wb.worksheets[0]
+        ws.reset_dimensions()  # read every stored row, whatever the sheet claims its size is
+        header: list[str] | None = None
+        header_row = 0
+        blank = 0
+        last = 0
+        rows: list[tuple] = []
+        errors: dict[int, str] = {}
+        for number, values in enumerate(ws.iter_rows(values_only=True), start=1):
+            last = number
+            if all(v is None or (isinstance(v, str) and v == "") for v in values):
+                blank += 1
+                continue
+            if header is None:
+                cells = list(values)
+                while cells and cells[-1] is None:
+                    cells.pop()
+                header = ["" if v is None else str(v) for v in cells]
+                header_row = number
+                continue
+            width = len(header)
+            extra = [(k, v) for k, v in enumerate(values[width:], start=width) if v is not None]
+            if extra:
+                from openpyxl.utils import get_column_letter
+
+                k, v = extra[0]
+                errors[len(rows)] = (
+                    f"row {number}: a value in column {get_column_letter(k + 1)}, which the "
+                    f"header (row {header_row}) does not name: {v!r}"
+                )
+            cells = tuple(values[:width])
+            rows.append(cells + (None,) * (width - len(cells)))
+    finally:
+        wb.close()
+    if header is None:
+        return pd.DataFrame(), ReadNotes()
+    _refuse_repeated(p, header)
+    frame = pd.DataFrame(
+        {k: pd.Series([r[k] for r in rows], dtype=object) for k in range(len(header))}
+    )
+    frame.columns = header
+    info = {
+        "format": "xlsx",
+        "sheet": ws.title,
+        "sheet_rows": last,
+        "header_row": header_row,
+        "records": len(rows),
+        "blank_rows": blank - (header_row - 1 if header_row else 0),
+        "records_with_read_errors": len(errors),
     }
-    try:  # the multi-threaded Arrow reader first; the C reader for what it refuses
-        return pd.read_csv(p, dtype=text_cols, encoding="utf-8-sig", engine="pyarrow")
-    except Exception:
-        return pd.read_csv(p, dtype=text_cols, encoding="utf-8-sig", skipinitialspace=True)
+    return frame, ReadNotes(errors=errors, info=info)
+
+
+def _refuse_repeated(p: Path, names) -> None:
+    seen: dict[str, int] = {}
+    for name in names:
+        seen[str(name)] = seen.get(str(name), 0) + 1
+    twice = [n for n, c in seen.items() if c > 1]
+    if twice:
+        raise InputError(
+            "sites",
+            f"{str(p)!r}: the header names column(s) {', '.join(map(repr, twice))} more than once",
+            "a header row whose column names are all different",
+        )
+
+
+def _integers_stay_integers(pa_type):
+    """Arrow -> pandas: integer columns become nullable integers (a missing value keeps 7 as 7)."""
+    import pyarrow as pa
+
+    if pa.types.is_integer(pa_type):
+        return pd.api.types.pandas_dtype(str(pa_type).replace("uint", "UInt").replace("int", "Int"))
+    return None
+
+
+def _read_gpkg(p: Path):
+    import pyogrio
+
+    try:
+        return pyogrio.read_dataframe(
+            p, use_arrow=True, arrow_to_pandas_kwargs={"types_mapper": _integers_stay_integers}
+        )
+    except (ImportError, NotImplementedError, TypeError):  # a GDAL without Arrow support
+        return pyogrio.read_dataframe(p)
 
 
 def split_geometry(gdf) -> tuple[pd.DataFrame, object]:
@@ -158,8 +297,9 @@ def _read_parquet(p: Path) -> tuple[pd.DataFrame, object]:
     import pyarrow.parquet as pq
 
     meta = pq.read_schema(p).metadata or {}
+    keep = {"types_mapper": _integers_stay_integers}
     if b"geo" in meta:
         import geopandas as gpd
 
-        return split_geometry(gpd.read_parquet(p))
-    return pd.read_parquet(p), None
+        return split_geometry(gpd.read_parquet(p, to_pandas_kwargs=keep))
+    return pq.read_table(p).to_pandas(**keep), None

@@ -30,13 +30,18 @@ from engine.units import LENGTH_UNITS
 from geo.site_read import (  # noqa: F401  (file-level names re-exported)
     ACCEPTED_COORDS,
     ADDRESS_NAMES,
+    GIVEN_LAT_NAMES,
+    GIVEN_LON_NAMES,
     LAT_NAMES,
     LON_NAMES,
+    READ_NOTES,
     ROOF_NAMES,
     SITE_FORMATS,
     SITE_ID_NAMES,
     WKT_NAMES,
+    ReadNotes,
     find_column,
+    read_notes,
     read_sites,
     site_format,
     split_geometry,
@@ -84,6 +89,11 @@ class SiteArrays:
         The name of the site-id column, if any.
     duplicate : numpy.ndarray
         True where the row's site id also appears on another row.
+    multiline : dict
+        Row index -> (first, last) physical line of CSV records whose quoted
+        cells hold line breaks (flagged ``multiline_field``).
+    input_info : dict
+        How the file was laid out (see :class:`geo.site_read.ReadNotes`).
     """
 
     frame: pd.DataFrame
@@ -98,18 +108,84 @@ class SiteArrays:
     duplicate: np.ndarray = field(default_factory=lambda: np.zeros(0, bool))
     columns: dict = field(default_factory=dict)
     geometry: object = None
+    multiline: dict = field(default_factory=dict)
+    input_info: dict = field(default_factory=dict)
 
     def __len__(self) -> int:
         return len(self.frame)
 
 
+def _odd_cells(series: pd.Series) -> tuple[np.ndarray, str]:
+    """Cells that are booleans or dates (never numbers here), and what they are."""
+    import datetime as _dt
+
+    dtype = series.dtype
+    n = len(series)
+    present = series.notna().to_numpy(dtype=bool)
+    if pd.api.types.is_bool_dtype(dtype):
+        return present, "a boolean (true/false)"
+    if dtype.kind in "mM" or isinstance(dtype, pd.PeriodDtype):
+        return present, "a date or time"
+    if isinstance(dtype, pd.ArrowDtype):
+        import pyarrow as pa
+
+        t = dtype.pyarrow_dtype
+        if pa.types.is_boolean(t):
+            return present, "a boolean (true/false)"
+        if pa.types.is_temporal(t):
+            return present, "a date or time"
+    if isinstance(dtype, np.dtype) and dtype == np.dtype(object):
+        values = series.to_numpy(dtype=object)
+        kinds = (_dt.date, _dt.time, _dt.timedelta, np.datetime64, np.timedelta64)
+        boolean = np.fromiter((isinstance(v, (bool, np.bool_)) for v in values), bool, count=n)
+        dated = np.fromiter((isinstance(v, kinds) for v in values), bool, count=n)
+        if boolean.any() or dated.any():
+            what = np.where(boolean, "a boolean (true/false)", "a date or time")
+            return boolean | dated, what
+    return np.zeros(n, dtype=bool), ""
+
+
+def _as_float(series: pd.Series) -> np.ndarray | None:
+    """All cells of a text column as finite numbers through Arrow, or None (then the slow path)."""
+    if not isinstance(series.dtype, pd.StringDtype):
+        return None
+    import pyarrow as pa
+    import pyarrow.compute as pc
+
+    try:
+        values = pc.cast(pa.array(series.array), pa.float64()).to_numpy(zero_copy_only=False)
+    except (pa.ArrowInvalid, pa.ArrowNotImplementedError, pa.ArrowTypeError, TypeError):
+        return None
+    return values if np.isfinite(values).all() else None
+
+
 def _numbers(series: pd.Series, name: str) -> tuple[np.ndarray, np.ndarray]:
-    """Numeric values of a column and the per-row error text for unparseable cells."""
+    """Numeric values of a column and the per-row error text for unparseable cells.
+
+    Booleans and dates (an XLSX ``TRUE``, a Parquet timestamp) are never taken
+    for numbers: their rows are errors.
+    """
     err = np.full(len(series), "", dtype=object)
-    if pd.api.types.is_numeric_dtype(series.dtype) and not pd.api.types.is_bool_dtype(series.dtype):
-        values = series.to_numpy(dtype=float, na_value=np.nan)
-        err[~np.isfinite(values)] = f"{name}: missing"
+    odd, what = _odd_cells(series)
+    if odd.any():
+        values = np.full(len(series), np.nan)
+        what = np.broadcast_to(np.asarray(what, dtype=object), odd.shape)
+        cells = zip(series[odd], what[odd], strict=True)
+        err[odd] = [f"{name}: {v!r} is {w}, not a number" for v, w in cells]
+        rest = ~odd
+        if rest.any():
+            sub_values, sub_err = _numbers(series[rest].astype(object), name)
+            values[rest] = sub_values
+            err[rest] = sub_err
         return values, err
+    if pd.api.types.is_numeric_dtype(series.dtype):
+        values = series.to_numpy(dtype=float, na_value=np.nan)
+        err[np.isinf(values)] = f"{name}: not a finite number"
+        err[np.isnan(values)] = f"{name}: missing"
+        return values, err
+    fast = _as_float(series)
+    if fast is not None:
+        return fast, err
     values = pd.to_numeric(series, errors="coerce").to_numpy(dtype=float, na_value=np.nan)
     blank = series.isna().to_numpy() | (series.astype(str).str.strip() == "").to_numpy()
     bad = np.isnan(values) & ~blank
@@ -150,8 +226,12 @@ def parse_elevation_cells(series: pd.Series, unit: str | None, name: str):
     out = np.full(n, np.nan)
     if n == 0:
         return out, err
-    if unit is not None and pd.api.types.is_numeric_dtype(series.dtype):
+    odd, what = _odd_cells(series)
+    fast = None if unit is None or odd.any() else _as_float(series)
+    if unit is not None and not odd.any() and pd.api.types.is_numeric_dtype(series.dtype):
         out = series.to_numpy(dtype=float, na_value=np.nan) * LENGTH_UNITS[unit]
+    elif fast is not None:  # a text column of plain numbers, unit in the column name
+        out = fast * LENGTH_UNITS[unit]
     else:
         text = series.astype(object).where(series.notna(), "").astype(str).str.strip()
         parts = text.str.extract(_CELL)
@@ -161,7 +241,10 @@ def parse_elevation_cells(series: pd.Series, unit: str | None, name: str):
         unparsed = np.isnan(number) & ~blank
         factor = cell_unit.map(LENGTH_UNITS).to_numpy(dtype=float, na_value=np.nan)
         has_unit = (cell_unit != "").to_numpy()
-        if unit is not None:  # a bare number takes the column's unit
+        contradicts = np.zeros(n, dtype=bool)
+        if unit is not None:  # a bare number takes the column's unit; another unit is refused
+            with np.errstate(invalid="ignore"):
+                contradicts = has_unit & ~np.isnan(factor) & (factor != LENGTH_UNITS[unit])
             factor = np.where(has_unit, factor, LENGTH_UNITS[unit])
         out = number * factor
         bare = ~has_unit & ~np.isnan(number) & (unit is None)
@@ -170,11 +253,19 @@ def parse_elevation_cells(series: pd.Series, unit: str | None, name: str):
             (unparsed, "is not an elevation"),
             (bare, "is a bare number with no unit"),
             (unknown, "has a unit that is not a length"),
+            (
+                contradicts & ~np.isnan(number),
+                f"gives a unit that contradicts the column's ({unit})",
+            ),
         ):
             if mask.any():
                 err[mask] = [
                     f"{name}: {v!r} {why}; accepted: {ACCEPTED_ELEVATION}" for v in text[mask]
                 ]
+        if odd.any():
+            what = np.broadcast_to(np.asarray(what, dtype=object), odd.shape)
+            cells = zip(series[odd], what[odd], strict=True)
+            err[odd] = [f"{name}: {v!r} is {w}, not an elevation" for v, w in cells]
         out[err != ""] = np.nan
     lo, hi = ELEVATION_RANGE_FT
     with np.errstate(invalid="ignore"):
@@ -191,6 +282,14 @@ def parse_elevation_cells(series: pd.Series, unit: str | None, name: str):
 def find_columns(frame: pd.DataFrame, has_geometry: bool) -> dict:
     """Which columns hold coordinates, address, elevation, site id and roof."""
     cols = frame.columns
+    for names, what in ((GIVEN_LAT_NAMES, "latitude"), (GIVEN_LON_NAMES, "longitude")):
+        given = [c for c in cols if str(c).strip().lower() in names]
+        if len(given) > 1:  # lat and latitude, or lat and LAT: which one is meant?
+            raise InputError(
+                "sites",
+                f"columns {' and '.join(map(repr, given))} both give the {what}",
+                f"one {what} column (one of {', '.join(names)}, any case)",
+            )
     found = {
         "lat": find_column(cols, LAT_NAMES),
         "lon": find_column(cols, LON_NAMES),
@@ -236,16 +335,21 @@ def parse_sites(frame: pd.DataFrame, geometry=None) -> SiteArrays:
     -------
     SiteArrays
     """
+    notes = read_notes(frame) or ReadNotes()
     frame = frame.reset_index(drop=True)
     n = len(frame)
     if n == 0:
         raise InputError("sites", "the table has no rows", "a table with at least one site")
     cols = find_columns(frame, geometry is not None)
     err = np.full(n, "", dtype=object)
+    for i, why in notes.errors.items():  # rows the file itself got wrong come first
+        err[i] = why
     address = None
     if cols["address"] is not None:
         address = frame[cols["address"]].astype(object).where(frame[cols["address"]].notna(), "")
         address = address.astype(str).str.strip().to_numpy(dtype=object)
+        if notes.errors:  # never geocode a row that could not be read as written
+            address[list(notes.errors)] = ""
     if cols["lat"] is not None:
         source = "latlon"
         lat, lat_err = _numbers(frame[cols["lat"]], str(cols["lat"]))
@@ -311,6 +415,8 @@ def parse_sites(frame: pd.DataFrame, geometry=None) -> SiteArrays:
         duplicate=duplicate,
         columns=cols,
         geometry=None if geometry is None else np.asarray(geometry, dtype=object),
+        multiline=dict(notes.multiline),
+        input_info=dict(notes.info) or {"format": "table", "records": n},
     )
 
 

@@ -18,7 +18,6 @@ import base64
 import functools
 import os
 import re
-import tempfile
 from importlib import resources
 from pathlib import Path
 
@@ -204,12 +203,20 @@ def atomic_write_text(path: str | os.PathLike, text: str) -> Path:
 
 
 def atomic_write_bytes(path: str | os.PathLike, data: bytes) -> Path:
-    """Write ``data`` to ``path`` through a temp file in the same folder, then rename."""
+    """Write ``data`` to ``path`` through a temp file in the same folder, then rename.
+
+    The temp file is named as :mod:`maps.target` names them (hidden, ending in
+    ``.part``, never in the target's suffix); ones that killed runs left for this
+    target are removed first.  The caller decides whether ``path`` may be replaced.
+    """
+    from maps.target import make_temp, remove_stale
+
     target = Path(path)
     target.parent.mkdir(parents=True, exist_ok=True)
-    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=".tmp", dir=target.parent)
+    remove_stale(target)
+    tmp = make_temp(target, "part", folder=False)
     try:
-        with os.fdopen(fd, "wb") as fh:
+        with open(tmp, "wb") as fh:
             fh.write(data)
         os.chmod(tmp, 0o644)
         os.replace(tmp, target)

@@ -16,14 +16,13 @@ import datetime as _dt
 import json
 import os
 import shutil
-import tempfile
 from pathlib import Path
 
 from maps import assets, style
 from maps.diagrams import write_case_diagrams
 from maps.site_map import cautions_of, is_demo, summary_context, write_site_map
 from maps.static import write_static_map
-from maps.target import MARKER, check_package_target
+from maps.target import MARKER, check_package_target, make_temp, publish, remove_stale
 from maps.templating import render
 
 #: keys of a case that are not values to tabulate
@@ -261,7 +260,8 @@ def write_package(
     if site_name is not None:
         data["site"]["name"] = site_name
     dest.parent.mkdir(parents=True, exist_ok=True)
-    tmp = Path(tempfile.mkdtemp(prefix=f".{dest.name}.building-", dir=dest.parent))
+    remove_stale(dest)  # what killed runs left beside this package
+    tmp = make_temp(dest, "building")
     os.chmod(tmp, 0o755)
     try:
         files: dict[str, Path] = {}
@@ -303,19 +303,33 @@ def write_package(
         files["report_html"] = assets.atomic_write_text(tmp / "report.html", html)
         pdf = HTML(string=html, url_fetcher=_offline_fetcher(), base_url=str(tmp)).write_pdf()
         files["report_pdf"] = assets.atomic_write_bytes(tmp / "report.pdf", pdf)
-        old = None
-        if dest.exists():
-            old = Path(tempfile.mkdtemp(prefix=f".{dest.name}.old-", dir=dest.parent))
-            os.replace(dest, old / "package")
-        try:
-            os.replace(tmp, dest)
-        except OSError:
-            if old is not None:  # put the previous package back
-                os.replace(old / "package", dest)
-            raise
-        if old is not None:
-            shutil.rmtree(old, ignore_errors=True)
+        _put_in_place(tmp, dest, overwrite)
     except BaseException:
         shutil.rmtree(tmp, ignore_errors=True)
         raise
     return {k: dest / p.relative_to(tmp) for k, p in files.items()}
+
+
+def _put_in_place(tmp: Path, dest: Path, overwrite: bool) -> None:
+    """Rename the finished package folder ``tmp`` to ``dest``.
+
+    Without ``overwrite`` the rename never replaces a package: a folder that
+    another run (or program) put at ``dest`` while this one was building is
+    left as it is and the run fails with an :class:`InputError`.  With
+    ``overwrite`` the previous package is checked again (it must still be a
+    neve package), put aside, and put back if the rename fails; the folder it
+    is put aside in is one that :func:`maps.target.remove_stale` restores if
+    the run is killed in between.
+    """
+    if not overwrite or not dest.exists():
+        publish(tmp, dest, overwrite=False, field="package")
+        return
+    check_package_target(dest, overwrite=True)  # what is there now may not be what was checked
+    old = make_temp(dest, "old")
+    os.rename(dest, old / "package")
+    try:
+        os.rename(tmp, dest)
+    except OSError:
+        os.rename(old / "package", dest)  # put the previous package back
+        raise
+    shutil.rmtree(old, ignore_errors=True)
