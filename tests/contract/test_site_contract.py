@@ -8,7 +8,9 @@ DESIGN.md's "Site resolution result" table (regression guard of the contract).
 from __future__ import annotations
 
 import json
+import shutil
 import subprocess
+import sys
 
 import pytest
 
@@ -17,6 +19,9 @@ from geo.site import resolve_site
 from tests.geo.conftest import write_dem, write_layer
 
 from .conftest import run, run_json, zone
+
+#: the installed command, or the same entry point through this Python when it is not on PATH
+NEVE = [shutil.which("neve")] if shutil.which("neve") else [sys.executable, "-m", "geo.cli"]
 
 LOAD = {"psf", "kPa"}
 LENGTH = {"ft", "m"}
@@ -208,7 +213,7 @@ def test_defective_fixed_zone_is_status_error_not_a_crash(defective, at):
 
 def test_formula_cannot_run_code(hostile, tmp_path):
     for at in ("30.005,-39.995", "30.005,-39.985", "30.005,-39.975"):
-        out = subprocess.run(["neve", "site", "--layer", hostile, "--at", at, "--elevation",
+        out = subprocess.run([*NEVE, "site", "--layer", hostile, "--at", at, "--elevation",
                               "100ft", "--format", "json"], cwd=tmp_path, capture_output=True,
                              text=True, timeout=60)  # fmt: skip
         assert out.returncode == 0, out.stderr
@@ -224,7 +229,7 @@ def test_no_library_warnings_on_stderr(cdir):
     p = write_layer(cdir / "badtable.geojson",
                     [zone("T1", "elevation_table", cell(0, 0), table="[[0, 20], [1000, 40]]"),
                      zone("T2", "elevation_table", cell(1, 0), table="not json")])  # fmt: skip
-    out = subprocess.run(["neve", "site", "--layer", str(p), "--at", "30.005,-39.995",
+    out = subprocess.run([*NEVE, "site", "--layer", str(p), "--at", "30.005,-39.995",
                           "--elevation", "100ft"], capture_output=True, text=True, timeout=60)  # fmt: skip
     assert out.returncode == 0
     assert "Warning" not in out.stderr, out.stderr
