@@ -39,6 +39,9 @@ STATUS_SYMBOLS = {
     "error": ("error", "error in the row (crossed square)"),
 }
 
+#: longest text a popup shows per field [characters]; longer text is cut with an ellipsis
+POPUP_TEXT_LIMITS = {"site_id": 80, "zone": 60, "flags": 160, "message": 240, "extra": 40}
+
 _TEMPLATE = """{% macro script(this, kwargs) %}
 (function () {
     var d = {{ this.payload_js }};
@@ -267,7 +270,7 @@ def write_portfolio_map(
     s_index = {s: i for i, s in enumerate(statuses)}
     sub = results.iloc[rows]
     message = [
-        "" if (trim and st == "ok") else _clean(v)
+        "" if (trim and st == "ok") else _clean(v, POPUP_TEXT_LIMITS["message"])
         for v, st in zip(sub["message"].tolist(), status[rows].tolist(), strict=True)
     ]
     payload = {
@@ -277,13 +280,15 @@ def write_portfolio_map(
         "codes": codes,
         "status": [s_index[s] for s in status[rows].tolist()],
         "status_names": statuses,
-        "site_id": [_clean(v, 80) for v in sub["site_id"].tolist()],
+        "site_id": [_clean(v, POPUP_TEXT_LIMITS["site_id"]) for v in sub["site_id"].tolist()],
         "pg": [None if not math.isfinite(v) else round(float(v), 2) for v in pg[rows]],
-        "zone": [_clean(v, 60) for v in sub["zone_id"].tolist()],
-        "flags": [_clean(v, 160) for v in flags[rows].tolist()],
+        "zone": [_clean(v, POPUP_TEXT_LIMITS["zone"]) for v in sub["zone_id"].tolist()],
+        "flags": [_clean(v, POPUP_TEXT_LIMITS["flags"]) for v in flags[rows].tolist()],
         "message": message,
         "extra_names": [c.replace("_", " ") for c in extra_cols],
-        "extra": [[_clean(v, 40) for v in sub[c].tolist()] for c in extra_cols],
+        "extra": [
+            [_clean(v, POPUP_TEXT_LIMITS["extra"]) for v in sub[c].tolist()] for c in extra_cols
+        ],
     }
 
     if len(rows):
