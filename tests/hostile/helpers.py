@@ -275,27 +275,48 @@ class Record:
     fields: list[str]
     first_line: int
     last_line: int
+    malformed: bool = False  # not an RFC 4180 record: the line is read on its own
 
     @property
     def lines(self) -> int:
         return self.last_line - self.first_line + 1
 
 
-def csv_records(data: bytes) -> list[Record]:
-    """The records of a CSV file as Python's csv module reads them (RFC 4180 quoting).
-
-    A line with nothing on it is not a record.  Bytes that are not UTF-8 are
-    kept as surrogate escapes so they never shift a record boundary.
-    """
+def physical_lines(data: bytes) -> list[str]:
+    """The physical lines of a CSV file (ends kept; CR, LF and CR LF end a line)."""
     text = data.decode("utf-8", "surrogateescape")
     if text.startswith("\ufeff"):
         text = text[1:]
-    reader = csv.reader(io.StringIO(text, newline=""))
-    out, previous = [], 0
-    for fields in reader:
-        if fields:
-            out.append(Record(fields, previous + 1, reader.line_num))
-        previous = reader.line_num
+    return list(io.StringIO(text, newline=""))
+
+
+def csv_records(data: bytes) -> list[Record]:
+    """The records of a CSV file as a strict RFC 4180 reader finds them, line by line.
+
+    From each line that starts a record, Python's csv module (``strict=True``)
+    reads one record: a quoted field may hold line breaks, so a record may span
+    several physical lines.  Where the lines do not make a well-formed record
+    (a quote never closed, text after a closing quote), that one line is a
+    record of its own, marked malformed (an error row), and reading goes on
+    with the next line, so a stray quote never swallows the rows after it.  A
+    line with nothing on it is not a record.  Bytes that are not UTF-8 are kept
+    as surrogate escapes so they never shift a record boundary.
+    """
+    lines = physical_lines(data)
+    out, i = [], 0
+    while i < len(lines):
+        if lines[i] in ("\n", "\r\n", "\r"):
+            i += 1
+            continue
+        reader = csv.reader(iter(lines[i:]), strict=True)
+        try:
+            fields = next(reader)
+            out.append(Record(fields, i + 1, i + reader.line_num))
+            i += reader.line_num
+        except csv.Error:
+            fields = next(csv.reader([lines[i]]), [])
+            out.append(Record(fields, i + 1, i + 1, malformed=True))
+            i += 1
     return out
 
 
@@ -321,7 +342,7 @@ def same_cell(expected, got, numeric_ok: bool = False) -> bool:
     the same number.
     """
     if is_missing(got):
-        return expected is None or expected == ""
+        return is_missing(expected) or expected == ""
     if isinstance(expected, str) and isinstance(got, str):
         return got == expected
     if isinstance(got, bool) or isinstance(expected, bool):

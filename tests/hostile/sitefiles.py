@@ -164,6 +164,9 @@ def _row(draw, header, lat_name, lon_name, elev_name, text_cols) -> Row:
         else:
             bad = ELEV_CELL_BAD if elev_name == "elevation" else ELEV_NUM_BAD
             values[elev_name] = draw(st.sampled_from(bad))
+    if kind == "mid_quote":  # one line: a bare quote never starts a multi-line cell
+        for col in text_cols:
+            values[col] = values[col].replace("\r", " ").replace("\n", " ")
     if kind in DAMAGE_IN_TEXT:
         row.damage_col = header.index(draw(st.sampled_from(text_cols)))
         row.values[header[row.damage_col]] = None  # not a readable value

@@ -113,6 +113,12 @@ def _write_xlsx(path: Path, elev_name: str, rows: list[dict]) -> list[str]:
             if isinstance(row[col], str):
                 cell.data_type = "s"  # text stays text, even when it starts with '='
     book.save(path)
+    # what the file holds, as openpyxl reads it back (XML turns a CR LF in a cell into LF)
+    sheet = openpyxl.load_workbook(path)[book.active.title]
+    for r, row in enumerate(rows, start=2):
+        for c, col in enumerate(header, start=1):
+            if isinstance(row[col], str):
+                row[col] = sheet.cell(row=r, column=c).value
     return header
 
 
