@@ -12,6 +12,7 @@ from __future__ import annotations
 
 import os
 import re
+import textwrap
 from pathlib import Path
 
 from maps import style
@@ -191,7 +192,8 @@ def write_case_diagrams(roof_json: dict | None, outdir: str | os.PathLike) -> di
         else:
             _sliding(ax, case, scale, balanced, roof_json.get("loads"))
         name = str(case.get("name") or kind)
-        ax.set_title(f"{kind}: {name}", fontsize=10, loc="left")
+        title = textwrap.fill(f"{kind}: {name}", 100, max_lines=2, placeholder=" \u2026")
+        ax.set_title(title, fontsize=10, loc="left")
         ax.set_xlim(-2.2, 8.6)
         ax.set_ylim(-2.0, 3.0)
         ax.set_aspect("auto")

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import math
 import os
+import textwrap
 from pathlib import Path
 
 from maps import style
@@ -219,7 +220,8 @@ def write_static_map(
     ax.set_xlabel("")
     ax.set_ylabel("")
     site = site_json.get("site") or {}
-    title = str(site.get("name") or "Site")
+    # a long site name wraps (at most three lines) instead of running off the figure
+    title = textwrap.fill(str(site.get("name") or "Site"), 90, max_lines=3, placeholder=" \u2026")
     ax.set_title(title, fontsize=10, loc="left")
     foot = f"{crs.name} \u00b7 {lat:.5f}, {lon:.5f}"
     if is_demo(site_json, views):
@@ -233,23 +235,27 @@ def write_static_map(
         buf = io.BytesIO()
         # SVG keeps its text as text, so it can be searched and edited
         with matplotlib.rc_context({"svg.fonttype": "none"}):
-            fig.savefig(buf, format=fmt, metadata={"Date": None} if fmt == "svg" else None)
+            # "tight": the legend beside the axes is never clipped
+            fig.savefig(buf, format=fmt, bbox_inches="tight", pad_inches=0.12,
+                        metadata={"Date": None} if fmt == "svg" else None)  # fmt: skip
         written.append(atomic_write_bytes(path, buf.getvalue()))
     plt.close(fig)
     return written
 
 
+#: longest zone id written on the static map [characters]; the report lists it in full
+LABEL_ID_CHARS = 24
+
+
 def _label(row, units: str) -> str:
+    zid = str(row["zone_id"])
+    zid = zid if len(zid) <= LABEL_ID_CHARS else zid[: LABEL_ID_CHARS - 1] + "\u2026"
     rule = str(row["rule"])
     if bool(row.get("study")) or rule == "study":
-        return f"{row['zone_id']}\nstudy"
+        return f"{zid}\nstudy"
     try:
         if math.isfinite(float(row["pg"])):
-            return f"{row['zone_id']}\n{style.num(row['pg'], 2)} {units}"
+            return f"{zid}\n{style.num(row['pg'], 2)} {units}"
     except (TypeError, ValueError):
         pass
-    return (
-        f"{row['zone_id']}\nby elevation"
-        if rule in ("elevation_table", "formula")
-        else f"{row['zone_id']}"
-    )
+    return f"{zid}\nby elevation" if rule in ("elevation_table", "formula") else zid
