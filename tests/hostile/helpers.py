@@ -17,6 +17,7 @@ import math
 import os
 import re
 import traceback
+import warnings
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -69,12 +70,32 @@ def examples(n: int = 20) -> settings:
 # --------------------------------------------------------------------------- running neve
 
 
+#: warning categories Python does not show a user by default
+_HIDDEN_WARNINGS = (DeprecationWarning, PendingDeprecationWarning, ImportWarning, ResourceWarning)
+
+
 def run(args: list[str]):
-    """Run ``neve ARGS`` in-process through click's CliRunner (no geocoder from the environment)."""
+    """Run ``neve ARGS`` in-process through click's CliRunner (no geocoder from the environment).
+
+    The Python warnings a user would see on stderr are kept as ``result.shown_warnings``.
+    """
     from geo.cli import main
 
     runner = CliRunner(env={"NEVE_GEOCODER_URL": None})
-    return runner.invoke(main, [str(a) for a in args], catch_exceptions=True)
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        result = runner.invoke(main, [str(a) for a in args], catch_exceptions=True)
+    result.shown_warnings = [w for w in caught if not issubclass(w.category, _HIDDEN_WARNINGS)]
+    return result
+
+
+def warning_problems(result, what: str) -> list[str]:
+    """A library warning that would reach the user's stderr (flags say it, warnings never)."""
+    return [
+        f"{what}: {w.category.__name__} on stderr: {str(w.message)[:160]} "
+        f"({Path(w.filename).name}:{w.lineno})"
+        for w in getattr(result, "shown_warnings", [])
+    ]
 
 
 def crash_text(result) -> str:

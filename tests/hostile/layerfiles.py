@@ -89,25 +89,71 @@ def _expr():
     return st.one_of(st.none(), st.sampled_from(FORMULAS), hostile_text())
 
 
+def _well_formed(draw, kind: str) -> dict:
+    """Rule parameters a careful author would write (values in psf or kPa alike)."""
+    none = {"pg": None, "pg_min": None, "elev_max": None, "table": None, "expr": None, "Z": None}
+    if kind == "fixed":
+        pg = draw(st.floats(0.0, 90.0))
+        return {**none, "rule": "fixed", "pg": pg,
+                "elev_max": draw(st.one_of(st.none(), st.floats(100.0, 5000.0))),
+                "pg_min": draw(st.one_of(st.none(), st.floats(0.0, pg)))}  # fmt: skip
+    if kind == "study":
+        return {**none, "rule": "study"}
+    if kind == "elevation_table":
+        n = draw(st.integers(2, 5))
+        elev = sorted(draw(st.sets(st.integers(0, 5000), min_size=n, max_size=n)))
+        vals = draw(st.lists(st.floats(0.0, 90.0), min_size=n, max_size=n))
+        table = [[e, round(v, 3)] for e, v in zip(elev, vals, strict=True)]
+        return {**none, "rule": "elevation_table", "table": json.dumps(table)}
+    coeff = draw(st.sampled_from(("0.001", "0.005", "0.01", "0.02")))
+    return {**none, "rule": "formula", "expr": f"Z + {coeff} * max(A - 500, 0)",
+            "Z": draw(st.floats(0.0, 60.0)), "pg_min": draw(st.one_of(st.none(), st.floats(0.0, 20.0)))}  # fmt: skip
+
+
+def _random_params(draw) -> dict:
+    return {
+        "rule": draw(st.one_of(st.sampled_from(RULE_TEXT), hostile_text())),
+        "pg": draw(_number()),
+        "pg_min": draw(_number()),
+        "elev_max": draw(_number()),
+        "table": draw(_table()),
+        "expr": draw(_expr()),
+        "Z": draw(_number()),
+    }
+
+
+ZONE_KINDS = ("fixed", "study", "elevation_table", "formula", "random", "random")
+
+
 @st.composite
-def zone_rows(draw, n):
+def zone_rows(draw, n, careful: bool = False):
+    """Zones of every rule, well formed or with random parameters; text always random.
+
+    ``careful``: every zone well formed, with a zone_id of its own (text still random).
+    """
     rows = []
-    for _ in range(n):
+    for i in range(n):
+        kind = draw(st.sampled_from(ZONE_KINDS[:4] if careful else ZONE_KINDS))
+        params = _random_params(draw) if kind == "random" else _well_formed(draw, kind)
+        zone_id = (
+            draw(marked_text(2)) + f" #{i}"
+            if careful
+            else draw(st.one_of(marked_text(), hostile_text(), st.integers(-5, 5)))
+        )
         rows.append(
             {
-                "zone_id": draw(st.one_of(marked_text(), hostile_text(), st.integers(-5, 5))),
-                "rule": draw(st.one_of(st.sampled_from(RULE_TEXT), hostile_text())),
-                "pg": draw(_number()),
-                "pg_min": draw(_number()),
-                "elev_max": draw(_number()),
-                "table": draw(_table()),
-                "expr": draw(_expr()),
-                "Z": draw(_number()),
+                "zone_id": zone_id,
+                **params,
                 "note": draw(st.one_of(marked_text(), hostile_text())),
                 "source": draw(st.one_of(marked_text(), hostile_text())),
             }
         )
     return rows
+
+
+def _sidecar_text():
+    """Random text that is not blank (a blank name is refused, rightly, with exit 2)."""
+    return st.one_of(marked_text(), hostile_text().map(lambda t: t if t.strip() else f"x{t}"))
 
 
 @dataclass
@@ -144,15 +190,15 @@ class LayerFile:
 def layer_files(draw, max_zones: int = 4) -> LayerFile:
     n = draw(st.integers(1, max_zones))
     meta = {
-        "name": draw(st.one_of(marked_text(), hostile_text())),
-        "jurisdiction": draw(st.one_of(marked_text(), hostile_text())),
+        "name": draw(_sidecar_text()),
+        "jurisdiction": draw(_sidecar_text()),
         "standard": draw(st.sampled_from(("ASCE 7-16", "ASCE 7-16", "ASCE 7-22", "EN 1991-1-3"))),
         "value_units": draw(st.sampled_from(("psf", "kPa"))),
         "elevation_units": draw(st.sampled_from(("ft", "m"))),
-        "source": draw(st.one_of(marked_text(), hostile_text())),
+        "source": draw(_sidecar_text()),
         "license": "CC0-1.0 (invented test data)",
         "date": "2026-01-01",
         "boundary_tolerance_m": draw(st.sampled_from((0, 100, 500))),
         "demo": False,
     }
-    return LayerFile(draw(zone_rows(n)), meta)
+    return LayerFile(draw(zone_rows(n, careful=draw(st.booleans()))), meta)

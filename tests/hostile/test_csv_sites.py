@@ -54,6 +54,7 @@ from tests.hostile.helpers import (
     same_cell,
     shows_token,
     strict_json,
+    warning_problems,
 )
 from tests.hostile.sitefiles import (
     CLEAN_KINDS,
@@ -112,7 +113,7 @@ def screen_problems(sf: SiteFile, folder: Path) -> list[str]:
          "--summary-json", folder / "s.json", "--quiet"]
     )  # fmt: skip
     assert_exit(result, (0,), "neve screen (parquet)")
-    problems: list[str] = []
+    problems: list[str] = warning_problems(result, "neve screen (parquet)")
     names, cols = read_parquet_columns(folder / "r.parquet")
     n_out = len(cols["status"])
     if n_out != len(wants):
@@ -171,8 +172,7 @@ def _csv_output_problems(sf: SiteFile, folder: Path, wants: list[dict]) -> list[
     result = run(["screen", folder / "sites.csv", "-o", folder / "r.csv", "--quiet"])
     assert_exit(result, (0,), "neve screen (csv)")
     problems = []
-    if "Warning" in result.stderr:
-        problems.append(f"CSV output: warning on stderr: {result.stderr[-500:]}")
+    problems += warning_problems(result, "neve screen (csv)")
     text = (folder / "r.csv").read_bytes().decode("utf-8-sig")
     rows = list(csv.reader(io.StringIO(text, newline="")))
     if len(rows) - 1 != len(wants):
@@ -205,8 +205,7 @@ def _xlsx_output_problems(folder: Path, n_in: int) -> list[str]:
     result = run(["screen", folder / "sites.csv", "-o", folder / "r.xlsx", "--quiet"])
     assert_exit(result, (0,), "neve screen (xlsx)")
     problems = []
-    if "Warning" in result.stderr:
-        problems.append(f"XLSX output: warning on stderr: {result.stderr[-500:]}")
+    problems += warning_problems(result, "neve screen (xlsx)")
     book = openpyxl.load_workbook(folder / "r.xlsx", read_only=True)
     n_rows = sum(1 for _ in book["results"].iter_rows(min_row=2))
     book.close()

@@ -23,7 +23,7 @@ import tempfile
 from pathlib import Path
 
 import pytest
-from hypothesis import given
+from hypothesis import event, given
 from hypothesis import strategies as st
 
 from tests.hostile.helpers import (
@@ -36,6 +36,7 @@ from tests.hostile.helpers import (
     run,
     shows_token,
     strict_json,
+    warning_problems,
 )
 from tests.hostile.layerfiles import LayerFile, layer_files
 
@@ -56,17 +57,20 @@ def _ground_problems(ground: dict, clean_layer: bool, where: str) -> list[str]:
 
 
 def layer_problems(lf: LayerFile, folder: Path, elevation_m: float, k: int) -> list[str]:
-    path = lf.write(folder)
     problems: list[str] = []
+    path = lf.write(folder)
     check = run(["layer", "check", path, "--format", "json"])
     assert_exit(check, (0, 1, 2), "neve layer check")
+    problems += warning_problems(check, "neve layer check")
     clean = check.exit_code == 0
+    event(f"layer check exit {check.exit_code}")
     if check.exit_code in (0, 1):
         report = strict_json(check.stdout)
         if bool(report.get("ok")) != clean:
             problems.append(f"layer check: ok={report.get('ok')!r} with exit {check.exit_code}")
     show = run(["layer", "show", path, "--map", folder / "layer.html"])
     assert_exit(show, (0, 2), "neve layer show")
+    problems += warning_problems(show, "neve layer show")
     if show.exit_code == 0:
         page = folder / "layer.html"
         problems += page_defects(page)
@@ -77,8 +81,11 @@ def layer_problems(lf: LayerFile, folder: Path, elevation_m: float, k: int) -> l
     site = run(["site", "--at", f"{lat},{lon}", "--layer", path, "--elevation",
                 f"{elevation_m:.1f}m", "--format", "json", "--map", folder / "site.html"])  # fmt: skip
     assert_exit(site, (0, 2), "neve site")
+    problems += warning_problems(site, "neve site")
+    event(f"site exit {site.exit_code}")
     if site.exit_code == 0:
         data = strict_json(site.stdout)
+        event(f"site status {data['ground'].get('status')}")
         problems += _ground_problems(data["ground"], clean, f"site in zone {k}")
         problems += page_defects(folder / "site.html")
         if not shows_token(folder / "site.html", lf.meta["name"]):
@@ -92,6 +99,7 @@ def layer_problems(lf: LayerFile, folder: Path, elevation_m: float, k: int) -> l
     screen = run(["screen", folder / "sites.csv", "--layer", path, "-o", folder / "r.parquet",
                   "--summary-json", folder / "s.json", "--quiet"])  # fmt: skip
     assert_exit(screen, (0, 2), "neve screen")
+    problems += warning_problems(screen, "neve screen")
     if screen.exit_code == 0:
         _, cols = read_parquet_columns(folder / "r.parquet")
         if len(cols["status"]) != len(lines) - 1:

@@ -34,6 +34,7 @@ from tests.hostile.helpers import (
     run,
     shows_token,
     strict_json,
+    warning_problems,
 )
 
 #: points in the zones of the demo layer (invented demo data) and one at sea
@@ -55,6 +56,7 @@ def _site_problems(folder: Path, name: str, project: str, at: str, elevation: st
     result = run(["site", "--at", at, "--elevation", elevation, "--site-name", name,
                   "--project", project, "--map", page, "--format", "json"])  # fmt: skip
     assert_exit(result, (0, 2), "neve site --format json")
+    problems += warning_problems(result, "neve site --map")
     if result.exit_code == 2:
         if "site-name" not in result.stderr and "project" not in result.stderr:
             problems.append(f"refusal does not name the option: {result.stderr[-300:]}")
@@ -71,6 +73,7 @@ def _site_problems(folder: Path, name: str, project: str, at: str, elevation: st
     text_run = run(["site", "--at", at, "--elevation", elevation, "--site-name", name,
                     "--project", project])  # fmt: skip
     assert_exit(text_run, (0,), "neve site --format text")
+    problems += warning_problems(text_run, "neve site --format text")
     for evaluated in (f for forms in TEMPLATE_PAYLOADS.values() for f in forms):
         if evaluated in text_run.stdout:
             problems.append(f"text output shows {evaluated!r}")
@@ -120,7 +123,7 @@ def _package_problems(folder: Path, name: str, project: str, element_names: list
     assert_exit(result, (0, 2), "neve site --package")
     if result.exit_code == 2:
         return [] if pkg.exists() is False else [f"refused but wrote {pkg}"]
-    problems = []
+    problems = warning_problems(result, "neve site --package")
     pages = output_pages(pkg)
     if not any(p.name == "report.html" for p in pages):
         problems.append(f"no report.html in the package: {[p.name for p in pages]}")
@@ -193,5 +196,6 @@ def test_each_payload_as_site_id_in_the_portfolio_map(tmp_path, payload):
     result = run(["screen", tmp_path / "s.csv", "-o", tmp_path / "r.csv", "--map", page,
                   "--quiet"])  # fmt: skip
     assert_exit(result, (0,), "screen --map")
+    assert not warning_problems(result, "screen --map")
     assert not page_defects(page)
     assert shows_token(page, payload)

@@ -30,6 +30,7 @@ from tests.hostile.helpers import (
     read_parquet_columns,
     run,
     same_cell,
+    warning_problems,
 )
 from tests.hostile.sitefiles import ISLAND
 
@@ -134,7 +135,7 @@ def test_xlsx_typed_cells(spec):
         result = run(["screen", folder / "sites.xlsx", "-o", folder / "r.parquet", "--quiet"])
         assert_exit(result, (0,), "screen xlsx")
         _, cols = read_parquet_columns(folder / "r.parquet")
-    problems = _typed_problems(header, rows, cols)
+    problems = _typed_problems(header, rows, cols) + warning_problems(result, "screen xlsx")
     assert not problems, "\n".join(problems)
 
 
@@ -223,8 +224,7 @@ def test_parquet_typed_columns(spec):
         xlsx = run(["screen", folder / "sites.parquet", "-o", folder / "r.xlsx", "--quiet"])
         assert_exit(xlsx, (0,), "screen parquet -> xlsx")
         problems = []
-        if "Warning" in xlsx.stderr:
-            problems.append(f"XLSX output: warning on stderr: {xlsx.stderr[-400:]}")
+        problems += warning_problems(result, "screen parquet") + warning_problems(xlsx, "xlsx")
         problems += _xlsx_count(folder / "r.xlsx", len(frame))
     problems += _typed_problems(["site_id", "note", "lat", "lon"], rows, cols)
     assert not problems, "\n".join(problems)
@@ -290,7 +290,7 @@ def test_control_characters_and_long_cells_to_xlsx(tmp_path):
     frame.to_parquet(tmp_path / "s.parquet", index=False)
     result = run(["screen", tmp_path / "s.parquet", "-o", tmp_path / "r.xlsx", "--quiet"])
     assert_exit(result, (0,), "xlsx output")
-    assert "Warning" not in result.stderr
+    assert not warning_problems(result, "xlsx output")
     book = openpyxl.load_workbook(tmp_path / "r.xlsx", read_only=True)
     rows = list(book["results"].iter_rows(values_only=True))
     book.close()
