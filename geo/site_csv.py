@@ -179,17 +179,6 @@ def _header(path, text_bytes: bytes, line_no: int) -> list[str]:
     return names
 
 
-def _frame(names: list[str], columns: list) -> pd.DataFrame:
-    import pyarrow as pa
-
-    table = pa.table(
-        {f"c{k}": columns[k] for k in range(len(names))},
-    )
-    frame = table.to_pandas()
-    frame.columns = names
-    return frame
-
-
 def _read_fast(path, data: bytes) -> CsvRecords | None:
     """Arrow's reader for a file that the vectorised checks find clean; None otherwise."""
     import pyarrow as pa
@@ -267,20 +256,100 @@ def _quotes_clean(data: bytes) -> bool:
     return bool((opens | closes | doubled).all())
 
 
+class _Lines:
+    """The physical lines of a file (with their terminators), and which need a closer look.
+
+    Lines end at LF, CRLF or a bare CR.  Unless the file has bare CRs, line
+    boundaries and the per-line counts of commas, quotes and non-ASCII bytes are
+    found with numpy, so that plain lines (the header's number of commas, no
+    quote) can go to Arrow in bulk and only the others are looked at one by one.
+    """
+
+    def __init__(self, data: bytes):
+        self.data = data
+        self.counted = data.count(b"\r") == data.count(b"\r\n")
+        if not self.counted:
+            self._list = data.splitlines(keepends=True)
+            self.n = len(self._list)
+            return
+        arr = np.frombuffer(data, dtype=np.uint8)
+        newlines = np.flatnonzero(arr == 10)
+        starts = np.r_[0, newlines + 1]
+        stops = np.r_[newlines + 1, len(data)]
+        if stops[-1] == starts[-1]:  # the file ends with a line break
+            starts, stops = starts[:-1], stops[:-1]
+        self.arr, self.starts, self.stops, self.n = arr, starts, stops, len(starts)
+        body = stops - starts
+        ends_lf = np.zeros(self.n, dtype=bool)
+        ends_lf[: len(newlines)] = True
+        body -= ends_lf
+        crlf = ends_lf & (body > 0)
+        crlf[crlf] = arr[stops[crlf] - 2] == 13
+        self.body_len = body - crlf
+
+        def per_line(mask):
+            pos = np.flatnonzero(mask)
+            return np.bincount(np.searchsorted(newlines, pos), minlength=self.n)[: self.n]
+
+        self.commas = per_line(arr == 44)
+        self.quotes = per_line(arr == 34)
+        self.high = per_line(arr >= 0x80)
+
+    def __getitem__(self, j: int) -> bytes:
+        if not self.counted:
+            return self._list[j]
+        return self.data[self.starts[j] : self.stops[j]]
+
+    def plain(self, width: int, first: int) -> np.ndarray:
+        """Lines after ``first`` that need no closer look (None of them if uncounted)."""
+        out = np.zeros(self.n, dtype=bool)
+        if not self.counted:
+            return out
+        out[first + 1 :] = True
+        out &= (self.commas == width - 1) & (self.quotes == 0) & (self.body_len > 0)
+        return out
+
+    def joined(self, which: np.ndarray) -> bytes:
+        """The bytes of the lines in ``which``, each ending in a line break."""
+        lengths = self.stops - self.starts
+        mask = np.repeat(which, lengths)
+        out = self.arr[mask].tobytes()
+        if which[-1] and not self.data.endswith(b"\n"):
+            out += b"\n"
+        return out
+
+
 def _read_careful(path, data: bytes) -> CsvRecords:
-    """Record by record: every physical line accounted for, every problem named."""
-    lines = data.splitlines(keepends=True)
-    n = len(lines)
+    """Every physical line accounted for, every problem named.
+
+    Plain lines go to Arrow in bulk; the others (quotes, a wrong number of
+    commas, blank lines, and non-ASCII lines when they do not decode together)
+    are read one record at a time.
+    """
+    import pyarrow as pa
+    import pyarrow.csv as pcsv
+
+    lines = _Lines(data)
+    n = lines.n
     i = 0
     blank = 0
     while i < n and not _body(lines[i]).strip():
         blank += 1
         i += 1
+    if i == n:
+        raise _not_a_table(path, "the file holds only blank lines")
     header_line = i + 1
     names = _header(path, _body(lines[i]), header_line)
     width = len(names)
-    i += 1
+    plain = lines.plain(width, i)
+    if plain.any() and (lines.high[plain] > 0).any():
+        wide = plain & (lines.high > 0)
+        try:
+            lines.joined(wide).decode("utf-8")
+        except UnicodeDecodeError:
+            plain &= ~wide  # some of them hold bytes that are not UTF-8: look one by one
     rows: list[list] = []
+    first_lines: list[int] = []
     errors: dict[int, str] = {}
     multiline: dict[int, tuple[int, int]] = {}
 
@@ -289,11 +358,24 @@ def _read_careful(path, data: bytes) -> CsvRecords:
             return cells[:width]
         return list(cells) + [None] * (width - len(cells))
 
-    while i < n:
+    def add(cells, first, problem=None, span=None):
+        if problem:
+            errors[len(rows)] = problem
+        if span:
+            multiline[len(rows)] = span
+        rows.append(cells)
+        first_lines.append(first)
+
+    todo = np.flatnonzero(~plain)
+    todo = todo[todo > i]
+    done_to = i  # lines up to here are read (a quoted cell may take the following lines)
+    for i in todo.tolist():
+        if i <= done_to:
+            continue
+        done_to = i
         body = _body(lines[i])
         if not body:
             blank += 1
-            i += 1
             continue
         text, bad_byte = _decode(body)
         state, cells = _split(text)
@@ -301,49 +383,77 @@ def _read_careful(path, data: bytes) -> CsvRecords:
         if state == "open":
             found = _close_quote(lines, i)
             if found is None:
-                errors[len(rows)] = (
+                add(
+                    fit(_lenient(text)),
+                    first,
                     f"line {first}: a quote opens a cell that is never closed (a stray quote?); "
-                    "the lines after it are read as rows of their own; the line: " + _shown(text)
+                    "the lines after it are read as rows of their own; the line: " + _shown(text),
                 )
-                rows.append(fit(_lenient(text)))
-                i += 1
                 continue
             j, text, bad_byte, cells = found
             last = j + 1
-            multiline[len(rows)] = (first, last)
-            i = j + 1
-        else:
-            i += 1
+            plain[i : j + 1] = False  # lines inside the quoted cell are not rows
+            done_to = j
         where = _lines(first, last)
+        span = (first, last) if last > first else None
         if bad_byte:
-            errors[len(rows)] = f"{where}: {bad_byte}; save the file as UTF-8"
-            rows.append(fit(cells if cells is not None else _lenient(text)))
-            continue
-        if state == "bad":
-            errors[len(rows)] = (
+            problem = f"{where}: {bad_byte}; save the file as UTF-8"
+            add(fit(cells if cells is not None else _lenient(text)), first, problem, span)
+        elif state == "bad":
+            problem = (
                 f"{where}: a quote inside a cell or after a closing quote (a cell holding "
                 "quotes must be quoted whole, with its quotes doubled); the line: " + _shown(text)
             )
-            rows.append(fit(_lenient(text)))
-            continue
-        if len(cells) != width:
+            add(fit(_lenient(text)), first, problem, span)
+        elif len(cells) != width:
             hint = "an unquoted comma in a cell?" if len(cells) > width else "a missing comma?"
-            errors[len(rows)] = (
+            problem = (
                 f"{where}: {len(cells)} cells where the header has {width} ({hint}); "
                 f"the line: {_shown(text)}"
             )
-            rows.append(fit(cells))
-            continue
-        rows.append(cells)
-    import pyarrow as pa
-
-    columns = [pa.array([r[k] for r in rows], type=pa.large_string()) for k in range(width)]
-    frame = _frame(names, columns)
+            add(fit(cells), first, problem, span)
+        else:
+            add(cells, first, None, span)
+    keys = [f"c{k}" for k in range(width)]
+    careful = [pa.array([r[k] for r in rows], type=pa.large_string()) for k in range(width)]
+    if plain.any():
+        bulk = pcsv.read_csv(
+            pa.py_buffer(lines.joined(plain)),
+            read_options=pcsv.ReadOptions(column_names=keys),
+            parse_options=pcsv.ParseOptions(newlines_in_values=False),
+            convert_options=pcsv.ConvertOptions(
+                column_types={k: pa.large_string() for k in keys},
+                strings_can_be_null=False,
+                quoted_strings_can_be_null=False,
+                null_values=[],
+            ),
+        )
+        plain_first = np.flatnonzero(plain) + 1
+        order = np.argsort(
+            np.r_[plain_first, np.asarray(first_lines, dtype=np.int64)], kind="stable"
+        )
+        columns = [
+            _interleave(
+                bulk.column(k).combine_chunks(), careful[k], plain_first, first_lines, order
+            )
+            for k in range(width)
+        ]
+        rank = np.empty(len(order), dtype=np.int64)
+        rank[order] = np.arange(len(order))
+        shift = len(plain_first)
+        errors = {int(rank[shift + k]): v for k, v in errors.items()}
+        multiline = {int(rank[shift + k]): v for k, v in multiline.items()}
+        records = len(order)
+    else:
+        columns = careful
+        records = len(rows)
+    frame = pa.table(dict(zip(keys, columns, strict=True))).to_pandas()
+    frame.columns = names
     info = {
         "format": "csv",
         "lines": n,
         "header_line": header_line,
-        "records": len(rows),
+        "records": records,
         "blank_lines": blank,
         "multiline_records": len(multiline),
         "records_with_read_errors": len(errors),
@@ -351,7 +461,25 @@ def _read_careful(path, data: bytes) -> CsvRecords:
     return CsvRecords(frame=frame, errors=errors, multiline=multiline, info=info)
 
 
-def _close_quote(lines: list[bytes], i: int):
+def _interleave(bulk, careful, bulk_first, careful_first, order):
+    """The rows of both arrays in line order (few careful rows: slices, not a gather)."""
+    import pyarrow as pa
+
+    if len(careful) == 0:
+        return bulk
+    if len(careful) > 1000:
+        return pa.concat_arrays([bulk, careful]).take(pa.array(order))
+    cuts = np.searchsorted(bulk_first, np.asarray(careful_first), side="left").tolist()
+    parts, start = [], 0
+    for k, cut in enumerate(cuts):
+        parts.append(bulk.slice(start, cut - start))
+        parts.append(careful.slice(k, 1))
+        start = cut
+    parts.append(bulk.slice(start))
+    return pa.concat_arrays(parts)
+
+
+def _close_quote(lines, i: int):
     """The record that a quote left open on line ``i`` makes, if a later line closes it.
 
     Returns ``(j, text, bad_byte, cells)`` with ``j`` the last line of the record,
@@ -359,7 +487,7 @@ def _close_quote(lines: list[bytes], i: int):
     well-formed record (the quote is then taken for a stray one).
     """
     joined = lines[i]
-    n = len(lines)
+    n = lines.n
     j = i
     while j + 1 < n and j + 1 - i < MAX_RECORD_LINES:
         j += 1

@@ -678,3 +678,70 @@ def test_numbers_in_text_cells_parse_like_numbers():
     s = parse_sites(frame)
     np.testing.assert_allclose(s.lat[:3], [44.5, 44.5, 10.0])
     assert s.error[3].startswith("lat: 'nan' is not a number") and s.error[4] == "lat: missing"
+
+
+# --- the CSV reader itself ---------------------------------------------------------
+
+
+def _reference(text: str) -> list[list[str]]:
+    """Python's csv module (strict) as the reference reader of well-formed CSV (RFC 4180)."""
+    import csv
+    import io
+
+    return [row for row in csv.reader(io.StringIO(text, newline=""), strict=True) if row]
+
+
+@pytest.mark.parametrize("seed", [1, 2, 3])
+def test_well_formed_csv_reads_as_pythons_csv_module_reads_it(tmp_path, seed):
+    from geo.site_csv import read_csv_records
+
+    rng = np.random.default_rng(seed)
+    words = ["a", "", "NA", "02134", "x,y", 'say "hi"', "two\nlines", "é ü", "=1+2", " 7 "]
+    rows = [["c0", "c1", "c2"]]
+    for _ in range(300):
+        rows.append([str(words[k]) for k in rng.integers(0, len(words), 3)])
+
+    def cell(v):
+        return '"' + v.replace('"', '""') + '"' if any(c in v for c in ',"\n') else v
+
+    text = "".join(",".join(cell(v) for v in r) + ("\r\n" if seed == 2 else "\n") for r in rows)
+    path = _csv(tmp_path, text)
+    got = read_csv_records(path)
+    expected = _reference(text)
+    assert got.frame.columns.tolist() == expected[0]
+    assert got.frame.astype(object).values.tolist() == expected[1:]
+    assert not got.errors
+    assert got.info["records"] == 300
+    multi = sum(1 for r in rows[1:] if any("\n" in v for v in r))
+    assert len(got.multiline) == multi
+
+
+def test_bad_lines_anywhere_keep_the_order_of_every_record(tmp_path):
+    from geo.site_csv import read_csv_records
+
+    rng = np.random.default_rng(4)
+    lines, expected_bad = [], set()
+    for k in range(5000):
+        kind = rng.integers(0, 50)
+        if kind == 0:
+            lines.append(f"R{k},1,2,3".encode())  # extra comma
+            expected_bad.add(f"R{k}")
+        elif kind == 1:
+            lines.append(f"R{k}\xe9,1,2".encode("latin-1"))  # not UTF-8
+            expected_bad.add(f"R{k}\\xe9")
+        elif kind == 2:
+            lines.append(f"R{k},Zoë,2".encode())  # fine, not ASCII
+        elif kind == 3:
+            lines.append(b"")  # blank
+        else:
+            lines.append(f"R{k},{k},{k}".encode())
+    data = b"id,a,b\n" + b"\n".join(lines) + b"\n"
+    got = read_csv_records(_csv(tmp_path, data))
+    ids = got.frame["id"].tolist()
+    assert ids == [ln.decode("utf-8", "backslashreplace").split(",")[0] for ln in lines if ln]
+    assert {ids[i] for i in got.errors} == expected_bad
+    line_of = {ln.decode("utf-8", "backslashreplace").split(",")[0]: k + 2
+               for k, ln in enumerate(lines) if ln}  # fmt: skip
+    for i, why in got.errors.items():
+        assert why.startswith(f"line {line_of[ids[i]]}:")
+    assert got.info["lines"] == 5001 and got.info["blank_lines"] == sum(1 for ln in lines if not ln)
