@@ -27,6 +27,7 @@ from hypothesis import event, given
 from hypothesis import strategies as st
 
 from tests.hostile.helpers import (
+    PAYLOADS,
     PG_MAX_PSF,
     assert_exit,
     examples,
@@ -208,3 +209,51 @@ def test_site_in_overlap_of_fixed_and_study_zone_gives_strict_json(tmp_path):
                 "--format", "json"])  # fmt: skip
     assert_exit(site, (0,), "site in the overlap")
     assert strict_json(site.stdout)["ground"]["status"] == "study_required"
+
+
+@pytest.mark.issue8("1")
+@pytest.mark.parametrize("payload", list(PAYLOADS), ids=lambda p: p[:14])
+def test_each_payload_in_every_layer_text_field(tmp_path, payload):
+    # issue 8 sections 1 and 6: zone_id, note, source and the sidecar's name, jurisdiction
+    # and source, on the layer map and on the site map with two stacked layers (the layer
+    # switcher shows both names)
+    lf = _one_zone(zone_id=payload, rule="fixed", pg=30.0, note=payload, source=payload)
+    lf.meta.update(name=payload, jurisdiction=payload, source=payload)
+    local = lf.write(tmp_path, "local.geojson")
+    wide = LayerFile(lf.rows, {**lf.meta, "name": "wide " + payload}).write(
+        tmp_path, "wide.geojson"
+    )
+    show = run(["layer", "show", local, "--map", tmp_path / "layer.html"])
+    assert_exit(show, (0,), "layer show")
+    assert not page_defects(tmp_path / "layer.html")
+    assert shows_token(tmp_path / "layer.html", payload)
+    lat, lon = lf.centres()[0]
+    site = run(["site", "--at", f"{lat},{lon}", "--layer", local, "--layer", wide,
+                "--elevation", "100ft", "--map", tmp_path / "site.html", "--format", "json"])  # fmt: skip
+    assert_exit(site, (0,), "site with two hostile layers")
+    assert strict_json(site.stdout)["ground"]["zone_id"] == payload
+    assert not page_defects(tmp_path / "site.html")
+    assert shows_token(tmp_path / "site.html", payload)
+
+
+@pytest.mark.issue8("5")
+def test_mixed_type_layer_column_prints_no_library_warning(tmp_path):
+    # found by this suite: a GeoJSON column holding a number in one zone and text in another
+    # (GDAL types it as JSON); reading it must not print a library warning on stderr
+    lf = LayerFile(
+        [
+            {"zone_id": 1, "rule": "study", "note": "", "source": ""},
+            {"zone_id": "B", "rule": "study", "note": "", "source": ""},
+        ],
+        dict(META),
+    )
+    path = lf.write(tmp_path)
+    lat, lon = lf.centres()[1]
+    for args in (
+        ["layer", "check", path],
+        ["layer", "show", path, "--map", tmp_path / "m.html"],
+        ["site", "--at", f"{lat},{lon}", "--layer", path, "--elevation", "10m"],
+    ):
+        result = run(args)
+        assert_exit(result, (0, 1), " ".join(map(str, args[:2])))
+        assert not warning_problems(result, " ".join(map(str, args[:2])))
