@@ -745,3 +745,26 @@ def test_bad_lines_anywhere_keep_the_order_of_every_record(tmp_path):
     for i, why in got.errors.items():
         assert why.startswith(f"line {line_of[ids[i]]}:")
     assert got.info["lines"] == 5001 and got.info["blank_lines"] == sum(1 for ln in lines if not ln)
+
+
+def test_xlsx_value_outside_the_named_columns_is_an_error_row(tmp_path, grid_layer):
+    src = _xlsx_with(
+        tmp_path,
+        ["site_id", "lat", "lon"],
+        [
+            ["A", 44.5, -109.5],
+            ["B", 44.5, -109.5, "stray"],
+            [None, None, None],
+            ["C", 44.5, -109.5],
+        ],
+    )
+    out = tmp_path / "o.csv"
+    summary = tmp_path / "s.json"
+    r = _run(src, "-o", out, "--layer", grid_layer, "--summary-json", summary)
+    assert r.exit_code == 0, r.output
+    df = _text_back(out)
+    assert df["site_id"].tolist() == ["A", "B", "C"]  # the empty sheet row is no site
+    assert df.loc[1, "status"] == "error" and "column D" in df.loc[1, "message"]
+    assert "'stray'" in df.loc[1, "message"] and df.loc[2, "status"] == "ok"
+    info = json.loads(summary.read_text(encoding="utf-8"))["input"]
+    assert (info["sheet_rows"], info["records"], info["blank_rows"]) == (5, 3, 1)
