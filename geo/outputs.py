@@ -677,12 +677,6 @@ def format_summary(summary: dict) -> str:
     if summary.get("demo"):
         lines.append("DEMO DATA: the zone layer is invented; never use these results for design.")
     lines.append(f"sites: {summary['rows']:,}")
-    lines.extend(input_lines(summary.get("input")))
-    if summary.get("csv_cells_neutralised"):
-        lines.append(
-            f"csv: {summary['csv_cells_neutralised']:,} text cell(s) that a spreadsheet would "
-            "take for a formula written with a leading ' (--csv-raw writes them as they are)"
-        )
     width = max(len(s) for s in summary["status"]) if summary["status"] else 0
     for s, c in summary["status"].items():
         lines.append(f"  {s:<{width}}  {c:>10,}")
@@ -699,6 +693,12 @@ def format_summary(summary: dict) -> str:
         )
     else:
         lines.append("pg range: no site has a usable ground snow load")
+    lines.extend(input_lines(summary.get("input")))
+    if summary.get("csv_cells_neutralised"):
+        lines.append(
+            f"csv: {summary['csv_cells_neutralised']:,} text cell(s) that a spreadsheet would "
+            "take for a formula written with a leading ' (--csv-raw writes them as they are)"
+        )
     for layer in summary.get("layers", []):
         sha = (layer.get("sha256") or "")[:12]
         lines.append(f"layer: {layer['name']}" + (f" (sha256 {sha}...)" if sha else ""))
