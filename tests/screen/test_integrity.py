@@ -768,3 +768,14 @@ def test_xlsx_value_outside_the_named_columns_is_an_error_row(tmp_path, grid_lay
     assert "'stray'" in df.loc[1, "message"] and df.loc[2, "status"] == "ok"
     info = json.loads(summary.read_text(encoding="utf-8"))["input"]
     assert (info["sheet_rows"], info["records"], info["blank_rows"]) == (5, 3, 1)
+
+
+def test_a_killed_package_build_is_removed_by_the_next_build(tmp_path):
+    from maps.target import _host_tag, remove_stale
+
+    dest = tmp_path / "calc"
+    dead = tmp_path / f".calc.neve-{_host_tag()}-{_dead_pid()}-k1ll3d.building"
+    dead.mkdir()
+    (dead / "report.html").write_text("half a report")
+    assert not list(tmp_path.glob("calc*"))  # no glob for the package picks it up
+    assert remove_stale(dest) == [dead] and not dead.exists()
