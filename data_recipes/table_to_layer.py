@@ -117,7 +117,7 @@ def sidecar_args(ap: argparse.ArgumentParser) -> None:
 
 def run_check(path: Path) -> int:
     """Run ``neve layer check`` on the result and return its exit code."""
-    return subprocess.call([sys.executable, "-m", "geo.cli", "layer", "check", str(path)])
+    return subprocess.call([sys.executable, "-m", "neve.cli", "layer", "check", str(path)])
 
 
 def main(argv: list[str] | None = None) -> int:

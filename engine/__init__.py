@@ -2,7 +2,7 @@
 
 Public API::
 
-    from engine import Roof, analyze_roof, uniform_loads
+    from neve.engine import Roof, analyze_roof, uniform_loads
     roof = Roof.from_mapping({"shape": "gable", "slope": "6:12", "eave_to_ridge": "30ft"})
     result = analyze_roof(35.0, roof)          # pg in psf -> RoofResult
     result.to_json()                           # the JSON contract of `neve roof`
@@ -11,9 +11,9 @@ Public API::
 Nothing here reads files, prints, or imports GIS libraries.
 """
 
-from engine.errors import InputError, LayerError, MissingDataError, NeveError, UnsupportedError
-from engine.roof import RoofResult, analyze_roof, screening_flags, uniform_loads
-from engine.roof_spec import Roof
+from neve.engine.errors import InputError, LayerError, MissingDataError, NeveError, UnsupportedError
+from neve.engine.roof import RoofResult, analyze_roof, screening_flags, uniform_loads
+from neve.engine.roof_spec import Roof
 
 __all__ = [
     "InputError",

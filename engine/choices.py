@@ -9,7 +9,7 @@ gives the same kind of message: the field, the value, and the accepted list.
 >>> choose("risk", "V", {"I": 0.8, "II": 1.0})
 Traceback (most recent call last):
 ...
-engine.errors.InputError: risk: 'V' is not accepted; accepted: I, II
+neve.engine.errors.InputError: risk: 'V' is not accepted; accepted: I, II
 """
 
 from __future__ import annotations
@@ -17,7 +17,7 @@ from __future__ import annotations
 from collections.abc import Mapping
 from typing import TypeVar
 
-from engine.errors import InputError
+from neve.engine.errors import InputError
 
 T = TypeVar("T")
 

@@ -23,8 +23,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from engine.asce7_16 import flat, slope, unbalanced
-from engine.asce7_16.cases import (
+from neve.engine.asce7_16 import flat, slope, unbalanced
+from neve.engine.asce7_16.cases import (
     case_record,
     drift_cases,
     ice_dam_case,
@@ -32,11 +32,11 @@ from engine.asce7_16.cases import (
     sliding_cases,
     unbalanced_cases,
 )
-from engine.asce7_16.factors import STANDARD, resolve_factors
-from engine.errors import InputError
-from engine.roof_spec import PG_MAX_PSF, Roof, as_roof
-from engine.steps import StepLog
-from engine.units import length_json, load_json
+from neve.engine.asce7_16.factors import STANDARD, resolve_factors
+from neve.engine.errors import InputError
+from neve.engine.roof_spec import PG_MAX_PSF, Roof, as_roof
+from neve.engine.steps import StepLog
+from neve.engine.units import length_json, load_json
 
 #: shown with every result (DESIGN.md "Cautions")
 CAUTIONS = [

@@ -24,8 +24,8 @@ from __future__ import annotations
 import math
 from collections.abc import Mapping
 
-from engine.errors import InputError
-from engine.units import Bound
+from neve.engine.errors import InputError
+from neve.engine.units import Bound
 
 #: the steepest slope a roof given as ``flat`` may have [deg].  ASCE 7-16
 #: Sec. 7.3 works the flat roof snow load pf for roofs of 5 degrees or less

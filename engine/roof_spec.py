@@ -6,7 +6,7 @@ know about the roof, in the standard's units (ft, degrees, ft2.h.F/Btu).
 (``shape``, ``slope``, ``eave_to_ridge``, ``[[step]]`` ...) into one,
 validating every field; it reads no file (the caller parses the TOML).
 
-Every number is checked against :data:`engine.roof_limits.RANGES` (and a
+Every number is checked against :data:`neve.engine.roof_limits.RANGES` (and a
 flat roof against ``FLAT_SLOPE_MAX_DEG``) when a :class:`Roof`,
 :class:`RoofStep`, :class:`Parapet` or :class:`Projection` is built, so a
 roof built directly from Python is held to the same ranges as one read from
@@ -18,9 +18,9 @@ from __future__ import annotations
 from collections.abc import Mapping
 from dataclasses import dataclass, field, replace
 
-from engine.choices import choose_key
-from engine.errors import InputError, UnsupportedError
-from engine.roof_limits import (
+from neve.engine.choices import choose_key
+from neve.engine.errors import InputError, UnsupportedError
+from neve.engine.roof_limits import (
     BOOL_PAIRS,
     FLAT_SLOPE_MAX_DEG,
     PG_MAX_PSF,
@@ -30,7 +30,7 @@ from engine.roof_limits import (
     norm_keys,
     slope_check,
 )
-from engine.units import parse_length, parse_load, parse_slope
+from neve.engine.units import parse_length, parse_load, parse_slope
 
 __all__ = [
     "FLAT_SLOPE_MAX_DEG", "PG_MAX_PSF", "RANGES", "SHAPES", "Parapet", "Projection", "Roof",
@@ -239,7 +239,7 @@ class Roof:
             kw["ct"] = _float(data["ct"], "ct")
         if "ce" in data:
             kw["ce"] = _float(data["ce"], "ce")
-        from engine.asce7_16.factors import EXPOSURES, TERRAINS, THERMAL
+        from neve.engine.asce7_16.factors import EXPOSURES, TERRAINS, THERMAL
 
         if "thermal" in data:
             kw["thermal"] = choose_key("thermal", data["thermal"], THERMAL)

@@ -4,7 +4,7 @@ Every quantity that crosses a boundary (CLI, file, JSON, report) carries its
 unit.  Text such as ``35psf``, ``1.68kPa``, ``1.68 kN/m2``, ``412m``,
 ``1350ft``, ``6:12`` or ``26.6deg`` is parsed here into the units ASCE 7
 writes its formulas in (psf, ft, pcf, degrees).  A bare number where a unit
-is needed is an :class:`~engine.errors.InputError` that lists the accepted
+is needed is an :class:`~neve.engine.errors.InputError` that lists the accepted
 units.
 
 Conversion factors are exact by definition of the international foot
@@ -27,7 +27,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from engine.errors import InputError
+from neve.engine.errors import InputError
 
 #: metres in one international foot [m/ft]
 M_PER_FT = 0.3048
@@ -243,7 +243,7 @@ class Bound:
     >>> Bound(0.7, 1.2, "").check(1.5, "ce")
     Traceback (most recent call last):
     ...
-    engine.errors.InputError: ce: 1.5 is out of range; accepted: a number from 0.7 to 1.2
+    neve.engine.errors.InputError: ce: 1.5 is out of range; accepted: a number from 0.7 to 1.2
     """
 
     lo: float

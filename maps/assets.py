@@ -135,7 +135,7 @@ def leaflet_icon_js() -> str:
 
 def package_text(name: str) -> str:
     """Text of one of neve's own files under ``maps/static/``."""
-    return resources.files("maps").joinpath("static", name).read_text(encoding="utf-8")
+    return resources.files("neve.maps").joinpath("static", name).read_text(encoding="utf-8")
 
 
 def inline_head(*, cluster: bool = False, icons: bool = True) -> str:
@@ -177,7 +177,7 @@ def prepare_assets(m, elements=(), *, self_contained: bool, cluster: bool = Fals
     """
     import folium
 
-    from maps.templating import fixed_html
+    from neve.maps.templating import fixed_html
 
     if self_contained:
         m.default_js = []
@@ -205,11 +205,11 @@ def atomic_write_text(path: str | os.PathLike, text: str) -> Path:
 def atomic_write_bytes(path: str | os.PathLike, data: bytes) -> Path:
     """Write ``data`` to ``path`` through a temp file in the same folder, then rename.
 
-    The temp file is named as :mod:`maps.target` names them (hidden, ending in
+    The temp file is named as :mod:`neve.maps.target` names them (hidden, ending in
     ``.part``, never in the target's suffix); ones that killed runs left for this
     target are removed first.  The caller decides whether ``path`` may be replaced.
     """
-    from maps.target import make_temp, remove_stale
+    from neve.maps.target import make_temp, remove_stale
 
     target = Path(path)
     target.parent.mkdir(parents=True, exist_ok=True)

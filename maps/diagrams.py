@@ -15,8 +15,8 @@ import re
 import textwrap
 from pathlib import Path
 
-from maps import style
-from maps.assets import atomic_write_bytes
+from neve.maps import style
+from neve.maps.assets import atomic_write_bytes
 
 #: case kinds that get a diagram
 DIAGRAM_CASES = ("unbalanced", "drift", "sliding")

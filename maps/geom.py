@@ -10,7 +10,7 @@ from __future__ import annotations
 
 import math
 
-from engine.errors import InputError, LayerError
+from neve.engine.errors import InputError, LayerError
 
 #: columns every zone frame handed to maps must have
 ZONE_COLUMNS = ("zone_id", "rule", "pg", "geometry")

@@ -13,11 +13,11 @@ import os
 from collections import Counter
 from pathlib import Path
 
-from engine.errors import InputError
-from maps import leaflet, style
-from maps.geom import check_zones
-from maps.site_map import DEFAULT_CAUTIONS
-from maps.templating import render
+from neve.engine.errors import InputError
+from neve.maps import leaflet, style
+from neve.maps.geom import check_zones
+from neve.maps.site_map import DEFAULT_CAUTIONS
+from neve.maps.templating import render
 
 #: above this many zones the value labels are left out (hover still works)
 MAX_LABELS = 400
@@ -68,7 +68,7 @@ def write_layer_map(
     ----------
     view : dict
         One layer (``name``, ``meta``, ``sha256``, ``demo``, ``value_units``,
-        ``zones``), as for :func:`maps.site_map.write_site_map`.
+        ``zones``), as for :func:`neve.maps.site_map.write_site_map`.
     problems : list of dict
         Problems found by the layer check: ``{kind, zone_id or None, message,
         area_m2 (optional) [m2]}``.

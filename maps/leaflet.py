@@ -6,8 +6,8 @@ a template:
 - branca's ``Element(text)`` compiles ``text`` as Jinja source, so a site name
   such as ``{{ ... }}`` would run on the machine writing the map.  neve never
   calls it with content: its own HTML is rendered by neve's autoescaping
-  environment (:mod:`maps.templating`) with the text passed as variables, and
-  the result enters the folium tree through :func:`maps.templating.fixed_html`, an element
+  environment (:mod:`neve.maps.templating`) with the text passed as variables, and
+  the result enters the folium tree through :func:`neve.maps.templating.fixed_html`, an element
   whose template is a constant and which carries that HTML as data.
 - tooltips and popups are bound by our own small script that sets
   ``textContent`` from JSON-encoded strings (folium's own ``Tooltip``/
@@ -24,10 +24,10 @@ import json
 import math
 from pathlib import Path
 
-from engine.choices import choose_key
-from engine.errors import InputError
-from maps import assets, style
-from maps.templating import data_macro, fixed_html, render
+from neve.engine.choices import choose_key
+from neve.engine.errors import InputError
+from neve.maps import assets, style
+from neve.maps.templating import data_macro, fixed_html, render
 
 #: accepted values of ``tiles``
 TILES = {"none": None, "osm": "OpenStreetMap"}

@@ -18,12 +18,12 @@ import os
 import shutil
 from pathlib import Path
 
-from maps import assets, style
-from maps.diagrams import write_case_diagrams
-from maps.site_map import cautions_of, is_demo, summary_context, write_site_map
-from maps.static import write_static_map
-from maps.target import MARKER, check_package_target, make_temp, publish, remove_stale
-from maps.templating import render
+from neve.maps import assets, style
+from neve.maps.diagrams import write_case_diagrams
+from neve.maps.site_map import cautions_of, is_demo, summary_context, write_site_map
+from neve.maps.static import write_static_map
+from neve.maps.target import MARKER, check_package_target, make_temp, publish, remove_stale
+from neve.maps.templating import render
 
 #: keys of a case that are not values to tabulate
 _CASE_META = ("case", "name", "steps")
@@ -233,7 +233,7 @@ def write_package(
     site_json : dict
         The ``neve site`` JSON object (``site``, ``ground``, ``roof``).
     views : list of dict
-        Zone layers, most local first (see :func:`maps.site_map.write_site_map`).
+        Zone layers, most local first (see :func:`neve.maps.site_map.write_site_map`).
     outdir : path-like
         The package folder; it must not exist (or be empty) unless
         ``overwrite`` is true.
@@ -318,7 +318,7 @@ def _put_in_place(tmp: Path, dest: Path, overwrite: bool) -> None:
     left as it is and the run fails with an :class:`InputError`.  With
     ``overwrite`` the previous package is checked again (it must still be a
     neve package), put aside, and put back if the rename fails; the folder it
-    is put aside in is one that :func:`maps.target.remove_stale` restores if
+    is put aside in is one that :func:`neve.maps.target.remove_stale` restores if
     the run is killed in between.
     """
     if not overwrite or not dest.exists():

@@ -1,7 +1,7 @@
 """The portfolio map of ``neve screen``: every screened site, by ground-load band.
 
 Sites are coloured by bands of ground snow load of our own (see
-:data:`maps.style.PORTFOLIO_BANDS_PSF`); provisional sites carry an orange
+:data:`neve.maps.style.PORTFOLIO_BANDS_PSF`); provisional sites carry an orange
 ring, study-required sites a hatched diamond, sites without data a dotted
 circle and failed rows a crossed square, so none of them can be read as a
 plain value.  Markers are clustered (Leaflet.markercluster, loaded in chunks)
@@ -20,9 +20,9 @@ import os
 from collections import Counter
 from pathlib import Path
 
-from engine.errors import InputError
-from maps import leaflet, style
-from maps.site_map import DEFAULT_CAUTIONS
+from neve.engine.errors import InputError
+from neve.maps import leaflet, style
+from neve.maps.site_map import DEFAULT_CAUTIONS
 
 #: columns ``results`` must have
 REQUIRED = ("lat", "lon", "site_id", "status", "pg_psf", "flags", "message", "zone_id")
@@ -142,7 +142,7 @@ def _layer_class():
     from folium.plugins import MarkerCluster
     from folium.template import Template
 
-    from maps.templating import data_macro
+    from neve.maps.templating import data_macro
 
     class PortfolioLayer(JSCSSMixin, data_macro()):  # site text is data, never compiled
         _template = Template(_TEMPLATE)
@@ -310,7 +310,7 @@ def write_portfolio_map(
 
 
 def _legend_html(counts: Counter, n_total: int, n_drawn: int, notes: list[str]) -> str:
-    from maps.templating import render
+    from neve.maps.templating import render
 
     bands = [
         {"label": label, "colour": style.PORTFOLIO_BAND_COLOURS[i]}

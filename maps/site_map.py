@@ -14,17 +14,17 @@ import math
 import os
 from pathlib import Path
 
-from engine.roof import CAUTIONS
-from maps import leaflet, style
-from maps.geom import check_zones, site_lat_lon, zones_near
-from maps.templating import render
+from neve.engine.roof import CAUTIONS
+from neve.maps import leaflet, style
+from neve.maps.geom import check_zones, site_lat_lon, zones_near
+from neve.maps.templating import render
 
 #: zones within this distance of the site are drawn [m]
 NEIGHBOUR_RADIUS_M = 5000.0
 #: the map opens on this half-width around the site [m]
 VIEW_HALF_WIDTH_M = 3000.0
 
-#: neve's own cautions, shown on every map (one definition, in engine.roof)
+#: neve's own cautions, shown on every map (one definition, in neve.engine.roof)
 DEFAULT_CAUTIONS = tuple(CAUTIONS)
 
 

@@ -13,10 +13,10 @@ import os
 import textwrap
 from pathlib import Path
 
-from maps import style
-from maps.assets import atomic_write_bytes
-from maps.geom import check_zones, local_crs, site_lat_lon, zones_near
-from maps.site_map import governing_ids, governing_index, is_demo
+from neve.maps import style
+from neve.maps.assets import atomic_write_bytes
+from neve.maps.geom import check_zones, local_crs, site_lat_lon, zones_near
+from neve.maps.site_map import governing_ids, governing_index, is_demo
 
 #: half-width of the mapped window around the site [m]
 WINDOW_M = 5000.0

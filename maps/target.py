@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from engine.errors import InputError
+from neve.engine.errors import InputError
 
 #: the marker file every package folder carries
 MARKER = ".neve-package"

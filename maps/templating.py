@@ -27,13 +27,13 @@ def environment():
     from jinja2 import ChainableUndefined, Environment, PackageLoader
 
     env = Environment(
-        loader=PackageLoader("maps", "templates"),
+        loader=PackageLoader("neve.maps", "templates"),
         autoescape=True,
         undefined=ChainableUndefined,
         trim_blocks=True,
         lstrip_blocks=True,
     )
-    from maps import style
+    from neve.maps import style
 
     env.filters["load_text"] = style.load_text
     env.filters["len_text"] = style.length_text
@@ -69,7 +69,7 @@ def fixed_html(html: str):
     """A folium/branca element that writes ``html`` verbatim, never compiling it.
 
     ``html`` must already be safe markup: neve's own constant markup, or the
-    output of :func:`maps.templating.render` (input text autoescaped there).
+    output of :func:`neve.maps.templating.render` (input text autoescaped there).
     """
     return _fixed_html_class()(html)
 

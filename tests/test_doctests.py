@@ -11,7 +11,15 @@ import importlib
 import pytest
 
 
-@pytest.mark.parametrize("name", ["geo.coords", "geo.expr", "geo.printable", "geo.elevation"])
+@pytest.mark.parametrize(
+    "name",
+    [
+        "neve.geo.site.coords",
+        "neve.geo.layers.formula",
+        "neve.engine.printable",
+        "neve.geo.site.elevation",
+    ],
+)
 def test_module_doctests(name):
     module = importlib.import_module(name)
     result = doctest.testmod(module, optionflags=doctest.ELLIPSIS, verbose=False)

@@ -1,4 +1,4 @@
-"""The ASCE 7-16 load cases of a roof, each with its steps (used by engine.roof).
+"""The ASCE 7-16 load cases of a roof, each with its steps (used by neve.engine.roof).
 
 Each builder appends the cases that apply to ``cases`` and, for those that do
 not, an entry with the reason to ``skipped``.  ``_NOT_WITH`` records which
@@ -8,13 +8,13 @@ cases each may not be combined with (ASCE 7-16 Sec. 7.3.4, 7.4.5, 7.5, 7.9,
 
 from __future__ import annotations
 
-from engine.asce7_16 import drift as dr
-from engine.asce7_16 import eaves, sliding, unbalanced
-from engine.asce7_16.factors import STANDARD
-from engine.errors import InputError
-from engine.roof_spec import Roof
-from engine.steps import StepLog, fmt
-from engine.units import KNM3_PER_PCF, length_json, line_load_json, load_json
+from neve.engine.asce7_16 import drift as dr
+from neve.engine.asce7_16 import eaves, sliding, unbalanced
+from neve.engine.asce7_16.factors import STANDARD
+from neve.engine.errors import InputError
+from neve.engine.roof_spec import Roof
+from neve.engine.steps import StepLog, fmt
+from neve.engine.units import KNM3_PER_PCF, length_json, line_load_json, load_json
 
 _NOT_WITH = {
     "balanced": "",

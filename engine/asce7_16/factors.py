@@ -13,9 +13,9 @@ References
 
 from __future__ import annotations
 
-from engine.choices import choose
-from engine.errors import InputError
-from engine.steps import StepLog, fmt
+from neve.engine.choices import choose
+from neve.engine.errors import InputError
+from neve.engine.steps import StepLog, fmt
 
 STANDARD = "ASCE 7-16"
 

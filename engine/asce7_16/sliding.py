@@ -11,7 +11,7 @@ import math
 
 import numpy as np
 
-from engine.steps import StepLog, fmt
+from neve.engine.steps import StepLog, fmt
 
 STANDARD = "ASCE 7-16"
 

@@ -14,7 +14,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from engine.steps import StepLog, fmt
+from neve.engine.steps import StepLog, fmt
 
 STANDARD = "ASCE 7-16"
 

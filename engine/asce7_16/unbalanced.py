@@ -12,8 +12,8 @@ import math
 
 import numpy as np
 
-from engine.asce7_16.drift import drift_height, snow_density
-from engine.steps import StepLog, fmt
+from neve.engine.asce7_16.drift import drift_height, snow_density
+from neve.engine.steps import StepLog, fmt
 
 STANDARD = "ASCE 7-16"
 

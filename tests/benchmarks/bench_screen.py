@@ -13,7 +13,7 @@ profile), then prints, from one run each:
   ``resource.getrusage(RUSAGE_CHILDREN)`` measured by a wrapper process),
 * the floor: the same CSV read, ``geopandas.sjoin(points, zones, "within")``,
   the DEM read by window and indexed as arrays, and a Parquet write,
-* a per-site loop (``geo.resolve.resolve_points`` on one site at a time) timed
+* a per-site loop (``neve.geo.site.resolve.resolve_points`` on one site at a time) timed
   on a sample and extrapolated to the whole portfolio.
 
 Not collected by pytest (``norecursedirs``) and not run by CI.
@@ -178,8 +178,8 @@ def per_site_loop(paths: dict, sample: int) -> float:
     """Seconds per site when neve's resolver is called one site at a time."""
     import pandas as pd
 
-    from geo.layers import load_layer
-    from geo.resolve import resolve_points
+    from neve.geo.layers.model import load_layer
+    from neve.geo.site.resolve import resolve_points
 
     layer = load_layer(paths["zones"])
     df = pd.read_csv(paths["sites"], nrows=sample)

@@ -14,7 +14,7 @@ from pathlib import Path
 import pytest
 from click.testing import CliRunner
 
-from geo.cli import main
+from neve.cli import main
 from tests.geo.conftest import cell, fixture_rows, write_dem, write_layer
 
 NAN = float("nan")

@@ -1,4 +1,4 @@
-"""The Python API mirrors the CLI and refuses bad input with engine.errors.InputError.
+"""The Python API mirrors the CLI and refuses bad input with neve.engine.errors.InputError.
 
 Source: issue 2 ("every case ... answered by the Python API"), STYLE.md point 8
 ("everything the CLI can do, a Python user can do with the same names"), and
@@ -9,20 +9,20 @@ from __future__ import annotations
 
 import pytest
 
-from engine import InputError, Roof, analyze_roof
-from geo.layers import load_layer
+from neve.engine import InputError, Roof, analyze_roof
+from neve.geo.layers.model import load_layer
 
 from .conftest import run
 
 
 def test_public_names_exist():
-    import engine
-    import geo.layers
-    import geo.screen
-    import geo.site
+    import neve.engine as engine
+    import neve.geo.layers.model
+    import neve.geo.screen.run
+    import neve.geo.site.one
 
-    for mod, name in [(engine, "analyze_roof"), (engine, "Roof"), (geo.site, "resolve_site"),
-                      (geo.screen, "screen"), (geo.layers, "load_layer")]:  # fmt: skip
+    for mod, name in [(engine, "analyze_roof"), (engine, "Roof"), (neve.geo.site.one, "resolve_site"),
+                      (neve.geo.screen.run, "screen"), (neve.geo.layers.model, "load_layer")]:  # fmt: skip
         assert callable(getattr(mod, name)), name
     assert callable(Roof.from_mapping)
 

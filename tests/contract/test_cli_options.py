@@ -9,7 +9,7 @@ from __future__ import annotations
 import click
 import pytest
 
-from geo.cli import main
+from neve.cli import main
 
 from .conftest import run
 

@@ -146,12 +146,12 @@ def test_package_written_whole_with_cautions(tmp_path, grid):
 
 
 def test_failed_package_leaves_nothing(tmp_path, grid, monkeypatch):
-    import maps.package
+    import neve.maps.package
 
     def broken(*a, **k):
         raise RuntimeError("renderer died (simulated)")
 
-    monkeypatch.setattr(maps.package, "write_static_map", broken)
+    monkeypatch.setattr(neve.maps.package, "write_static_map", broken)
     pkg = tmp_path / "pkg"
     res = run("site", "--layer", grid, "--at", "30.005,-39.995", "--package", str(pkg))
     assert res.exit_code == 1  # unexpected failure (DESIGN.md exit codes)

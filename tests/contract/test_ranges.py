@@ -3,7 +3,7 @@
 Sources, beside each check:
 
 * the ranges are neve's own choice, listed in the README ("Accepted ranges of
-  roof input") and in ``engine.roof_limits.RANGES``: common practice (a value
+  roof input") and in ``neve.engine.roof_limits.RANGES``: common practice (a value
   outside them is a typo or a unit slip on any real building); the Ce and Ct
   ranges are the extremes of ASCE 7-16 Table 7.3-1 and Table 7.3-2 (from
   memory);
@@ -19,10 +19,10 @@ import math
 import pytest
 import tomli_w
 
-from engine import InputError, Roof, analyze_roof
-from engine.jsonsafe import NON_FINITE_FLAG, dumps, finite_copy
-from engine.roof_limits import FLAT_SLOPE_MAX_DEG, RANGES
-from engine.roof_spec import Parapet, Projection, RoofStep
+from neve.engine import InputError, Roof, analyze_roof
+from neve.engine.jsonsafe import NON_FINITE_FLAG, dumps, finite_copy
+from neve.engine.roof_limits import FLAT_SLOPE_MAX_DEG, RANGES
+from neve.engine.roof_spec import Parapet, Projection, RoofStep
 
 from .conftest import run
 
@@ -340,7 +340,7 @@ def test_finite_copy_turns_non_finite_values_into_null_with_a_flag():
 
 def test_dumps_fails_loudly_if_a_non_finite_value_slips_through(monkeypatch):
     # RFC 8259: dumps never writes NaN; with the copy bypassed it raises instead
-    import engine.jsonsafe as js
+    import neve.engine.jsonsafe as js
 
     monkeypatch.setattr(js, "finite_copy", lambda obj: obj)
     with pytest.raises(ValueError):
@@ -362,9 +362,9 @@ class _FakeSite:
 
 def test_neve_site_json_never_carries_nan(monkeypatch):
     # RFC 8259: a NaN that reaches neve site's output becomes null with a flag, exit 0
-    import geo.site
+    import neve.geo.site.one
 
-    monkeypatch.setattr(geo.site, "resolve_site", lambda *a, **k: _FakeSite())
+    monkeypatch.setattr(neve.geo.site.one, "resolve_site", lambda *a, **k: _FakeSite())
     res = run("site", "--at", "30,-40", "--format", "json")
     assert res.exit_code == 0, res.output
     g = json.loads(res.stdout, parse_constant=_no_constant)["ground"]
@@ -402,7 +402,7 @@ def test_analyze_roof_at_the_top_of_every_range_stays_finite():
 def test_screen_profiles_override_shared_keys_across_spellings():
     # README (neve screen): top-level keys are shared defaults a profile may override, and
     # options override both; ASCE 7-16 Table 7.3-2 (from memory): unheated Ct = 1.2
-    from geo.screen import roofs_from_mapping
+    from neve.geo.screen.run import roofs_from_mapping
 
     data = {"thermal": "unheated", "shape": "flat",
             "profile": {"a": {"ct": 1.1}, "b": {}, "c": {"ventilated": True}}}  # fmt: skip

@@ -12,7 +12,7 @@ import sys
 
 import pytest
 
-from engine import Roof, analyze_roof
+from neve.engine import Roof, analyze_roof
 
 from .conftest import run, run_json
 
@@ -232,7 +232,7 @@ def test_api_mirrors_cli():
 
 
 def test_installed_command_runs():
-    exe = [sys.executable, "-c", "from geo.cli import main; main()"]
+    exe = [sys.executable, "-c", "from neve.cli import main; main()"]
     import shutil
 
     if shutil.which("neve"):
@@ -274,7 +274,7 @@ def test_roof_does_not_import_heavy_libraries():
     code = (
         "import sys\n"
         "from click.testing import CliRunner\n"
-        "from geo.cli import main\n"
+        "from neve.cli import main\n"
         "r = CliRunner().invoke(main, ['roof', '--pg', '35psf', '--format', 'json'])\n"
         "assert r.exit_code == 0, r.output\n"
         "heavy = [m for m in ('geopandas', 'folium', 'matplotlib', 'weasyprint', 'dask',"

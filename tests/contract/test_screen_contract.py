@@ -149,13 +149,13 @@ def test_existing_output_not_overwritten(tmp_path, sites, grid):
 
 
 def test_interrupted_write_leaves_no_file(tmp_path, sites, grid, monkeypatch):
-    import geo.outputs
+    import neve.geo.screen.outputs
 
     def broken(df, tmp):
         tmp.write_text("partial", encoding="utf-8")
         raise RuntimeError("disk full (simulated)")
 
-    monkeypatch.setattr(geo.outputs, "_write_csv", broken)
+    monkeypatch.setattr(neve.geo.screen.outputs, "_write_csv", broken)
     out = tmp_path / "o.csv"
     res = screen(str(sites), "-o", str(out), "--layer", grid)
     assert res.exit_code == 1  # unexpected failure (DESIGN.md exit codes)
@@ -233,7 +233,7 @@ def test_elevation_units_in_column_or_cell(tmp_path, grid, header, cell, ft):
 
 
 def test_screen_api_mirrors_cli(tmp_path, sites, grid):
-    from geo.screen import screen as api_screen
+    from neve.geo.screen.run import screen as api_screen
 
     out = tmp_path / "o.csv"
     assert screen(str(sites), "-o", str(out), "--layer", grid).exit_code == 0

@@ -14,14 +14,14 @@ import sys
 
 import pytest
 
-from engine import Roof
-from geo.site import resolve_site
+from neve.engine import Roof
+from neve.geo.site.one import resolve_site
 from tests.geo.conftest import write_dem, write_layer
 
 from .conftest import run, run_json, zone
 
 #: the installed command, or the same entry point through this Python when it is not on PATH
-NEVE = [shutil.which("neve")] if shutil.which("neve") else [sys.executable, "-m", "geo.cli"]
+NEVE = [shutil.which("neve")] if shutil.which("neve") else [sys.executable, "-m", "neve.cli"]
 
 LOAD = {"psf", "kPa"}
 LENGTH = {"ft", "m"}

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from engine import Roof, analyze_roof
+from neve.engine import Roof, analyze_roof
 
 #: a neutral roof: every factor 1.0, so hand arithmetic stays short
 NEUTRAL = {"ce": 1.0, "ct": 1.0, "risk": "II"}

@@ -15,7 +15,7 @@ import sys
 import pytest
 from click.testing import CliRunner
 
-from geo.cli import main
+from neve.cli import main
 
 GABLE = ["--shape", "gable", "--slope", "6:12", "--eave-to-ridge", "30ft"]
 
@@ -251,7 +251,7 @@ def test_flags_do_not_fail_the_run():
 
 def test_installed_neve_command_subprocess(tmp_path):
     exe = shutil.which("neve")
-    cmd = [exe] if exe else [sys.executable, "-m", "geo.cli"]
+    cmd = [exe] if exe else [sys.executable, "-m", "neve.cli"]
     ok = subprocess.run(
         [
             *cmd,

@@ -11,7 +11,7 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from engine import Roof, analyze_roof, uniform_loads
+from neve.engine import Roof, analyze_roof, uniform_loads
 from tests.engine.helpers import cases, roof, run
 
 STEP_KEYS = {"symbol", "description", "equation", "substituted", "value", "unit", "ref"}
@@ -158,7 +158,7 @@ def test_every_case_carries_step_records():
 @pytest.mark.parametrize("pg", [-1.0, float("nan"), float("inf")])
 def test_analyze_roof_refuses_bad_pg(pg):
     # common practice: a ground snow load is a finite value of zero or more
-    from engine import InputError
+    from neve.engine import InputError
 
     with pytest.raises(InputError) as info:
         analyze_roof(pg, roof())
@@ -168,7 +168,7 @@ def test_analyze_roof_refuses_bad_pg(pg):
 def test_uniform_loads_gives_no_negative_load_for_negative_pg():
     # common practice: a negative ground load is bad input; for a batch it should come back
     # as NaN (or an InputError naming pg), never as a negative design load (-3.5 psf here)
-    from engine import InputError
+    from neve.engine import InputError
 
     try:
         out = uniform_loads(np.array([-5.0, 30.0]), roof())

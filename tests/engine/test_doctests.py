@@ -12,12 +12,12 @@ import doctest
 
 import pytest
 
-import engine.choices
-import engine.jsonsafe
-import engine.roof_limits
-import engine.units
+import neve.engine.choices
+import neve.engine.jsonsafe
+import neve.engine.roof_limits
+import neve.engine.units
 
-MODULES = [engine.units, engine.choices, engine.jsonsafe, engine.roof_limits]
+MODULES = [neve.engine.units, neve.engine.choices, neve.engine.jsonsafe, neve.engine.roof_limits]
 
 
 @pytest.mark.parametrize("module", MODULES, ids=lambda m: m.__name__)

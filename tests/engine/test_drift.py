@@ -11,7 +11,7 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from engine.asce7_16.drift import drift_height, drift_required, drift_shape, snow_density
+from neve.engine.asce7_16.drift import drift_height, drift_required, drift_shape, snow_density
 from tests.engine.helpers import cases, run, skipped
 
 PG = 30.0

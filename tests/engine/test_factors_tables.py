@@ -9,8 +9,8 @@ from __future__ import annotations
 
 import pytest
 
-from engine import InputError
-from engine.asce7_16.factors import exposure_factor, importance_factor, thermal_factor
+from neve.engine import InputError
+from neve.engine.asce7_16.factors import exposure_factor, importance_factor, thermal_factor
 from tests.engine.helpers import run
 
 # ASCE 7-16 Table 1.5-2, snow column (from memory)
@@ -110,7 +110,7 @@ def test_factors_given_directly_override_tables():
 
 def test_unstated_factors_are_flagged_not_silent():
     # common practice (DESIGN.md: nothing is silently defaulted)
-    from engine import Roof, analyze_roof
+    from neve.engine import Roof, analyze_roof
 
     out = analyze_roof(30.0, Roof.from_mapping({"shape": "flat"})).to_json()
     assert {"exposure_assumed", "thermal_assumed", "risk_assumed"} <= set(out["flags"])
@@ -118,7 +118,7 @@ def test_unstated_factors_are_flagged_not_silent():
 
 def test_ct_and_thermal_together_is_refused():
     # common practice: one source for a factor
-    from engine import Roof
+    from neve.engine import Roof
 
     with pytest.raises(InputError) as info:
         Roof.from_mapping({"ct": 1.1, "thermal": "heated"})

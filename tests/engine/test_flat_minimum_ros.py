@@ -9,7 +9,7 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from engine.asce7_16.flat import flat_roof_load, minimum_load, rain_on_snow_applies
+from neve.engine.asce7_16.flat import flat_roof_load, minimum_load, rain_on_snow_applies
 from tests.engine.helpers import cases, run, skipped
 
 

@@ -12,8 +12,8 @@ from __future__ import annotations
 
 import pytest
 
-from engine.asce7_16.eaves import ice_dam_applies, ice_dam_load, partial_exempt
-from engine.units import parse_slope
+from neve.engine.asce7_16.eaves import ice_dam_applies, ice_dam_load, partial_exempt
+from neve.engine.units import parse_slope
 from tests.engine.helpers import cases, run, skipped
 
 

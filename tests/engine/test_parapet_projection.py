@@ -11,8 +11,8 @@ from __future__ import annotations
 
 import pytest
 
-from engine import InputError
-from engine.asce7_16.drift import projection_exempt
+from neve.engine import InputError
+from neve.engine.asce7_16.drift import projection_exempt
 from tests.engine.helpers import cases, run, skipped
 
 PG = 30.0

@@ -13,10 +13,10 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from engine import Roof, analyze_roof, uniform_loads
-from engine.asce7_16.drift import drift_height, drift_shape, snow_density
-from engine.asce7_16.slope import slope_factor
-from engine.units import ft_to_m, kpa_to_psf, m_to_ft, parse_length, parse_load, psf_to_kpa
+from neve.engine import Roof, analyze_roof, uniform_loads
+from neve.engine.asce7_16.drift import drift_height, drift_shape, snow_density
+from neve.engine.asce7_16.slope import slope_factor
+from neve.engine.units import ft_to_m, kpa_to_psf, m_to_ft, parse_length, parse_load, psf_to_kpa
 
 FAST = settings(max_examples=60, deadline=None, database=None)
 

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import pytest
 
-from engine import Roof, analyze_roof
+from neve.engine import Roof, analyze_roof
 
 
 def _sliding_roof(**step_extra):

@@ -12,9 +12,9 @@ from __future__ import annotations
 
 import pytest
 
-from engine import InputError
-from engine.asce7_16.sliding import sliding_load, sliding_required
-from engine.units import parse_slope
+from neve.engine import InputError
+from neve.engine.asce7_16.sliding import sliding_load, sliding_required
+from neve.engine.units import parse_slope
 from tests.engine.helpers import cases, run, skipped
 
 

@@ -13,7 +13,7 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from engine.asce7_16.slope import slope_factor
+from neve.engine.asce7_16.slope import slope_factor
 from tests.engine.helpers import run
 
 # (Ct, slippery, knee [deg]) from ASCE 7-16 Fig. 7.4-1 (from memory)

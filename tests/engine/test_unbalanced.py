@@ -10,9 +10,9 @@ from __future__ import annotations
 
 import pytest
 
-from engine import InputError
-from engine.asce7_16.unbalanced import unbalanced_required
-from engine.units import parse_slope
+from neve.engine import InputError
+from neve.engine.asce7_16.unbalanced import unbalanced_required
+from neve.engine.units import parse_slope
 from tests.engine.helpers import cases, run, skipped
 
 

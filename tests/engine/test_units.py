@@ -13,8 +13,8 @@ import math
 
 import pytest
 
-from engine import InputError
-from engine.units import (
+from neve.engine import InputError
+from neve.engine.units import (
     ft_to_m,
     kpa_to_psf,
     length_json,

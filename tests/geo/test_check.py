@@ -1,4 +1,4 @@
-"""`neve layer check` (geo.check, geo.cli_layer): every defect is caught."""
+"""`neve layer check` (neve.geo.layers.check, neve.cli.layer): every defect is caught."""
 
 from __future__ import annotations
 
@@ -9,9 +9,9 @@ import pytest
 from click.testing import CliRunner
 from shapely.geometry import Polygon, box
 
-from engine.errors import LayerError
-from geo.check import check_layer, geodesic_area_m2
-from geo.cli import main
+from neve.engine.errors import LayerError
+from neve.geo.layers.check import check_layer, geodesic_area_m2
+from neve.cli import main
 
 from .conftest import FIXTURE_META, LAT0, LON0, fixture_rows, toml_text, write_layer
 
@@ -26,7 +26,7 @@ def test_clean_layer(grid_layer):
 
 
 def test_demo_layers_are_clean():
-    from geo.layers import DEMO_DIR, DEMO_LAYER_FILES
+    from neve.geo.layers.model import DEMO_DIR, DEMO_LAYER_FILES
 
     for name in DEMO_LAYER_FILES:
         assert check_layer(DEMO_DIR / name)["ok"], name
@@ -138,7 +138,7 @@ def test_cli_exit_codes_and_json(grid_layer, tmp_path):
 
 
 def test_cli_show_calls_the_layer_map(grid_layer, tmp_path):
-    pytest.importorskip("maps.layer_map")
+    pytest.importorskip("neve.maps.layer_map")
     out = tmp_path / "layer.html"
     res = CliRunner().invoke(main, ["layer", "show", str(grid_layer), "--map", str(out)])
     assert res.exit_code == 0, res.output

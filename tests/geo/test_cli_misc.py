@@ -10,15 +10,17 @@ import sys
 import pytest
 from click.testing import CliRunner
 
-import geo.coords
-import geo.expr
-from geo.cli import main
+import neve.geo.site.coords
+import neve.geo.layers.formula
+from neve.cli import main
 
 from .test_cli_site import DEMO_AT, ROOF
 from .test_raster_layer import cell_centre, grid  # noqa: F401 - fixture
 
 
-@pytest.mark.parametrize("module", [geo.coords, geo.expr], ids=lambda m: m.__name__)
+@pytest.mark.parametrize(
+    "module", [neve.geo.site.coords, neve.geo.layers.formula], ids=lambda m: m.__name__
+)
 def test_module_doctests(module):
     """The docstring examples run (regression guard)."""
     result = doctest.testmod(module, optionflags=doctest.ELLIPSIS)
@@ -29,7 +31,7 @@ def test_site_does_not_import_the_heavy_map_libraries():
     code = (
         "import sys\n"
         "from click.testing import CliRunner\n"
-        "from geo.cli import main\n"
+        "from neve.cli import main\n"
         f"r = CliRunner().invoke(main, ['site', '--at', '{DEMO_AT}', '--format', 'json'])\n"
         "assert r.exit_code == 0, r.output\n"
         "print(sorted(m for m in ('folium', 'matplotlib', 'weasyprint', 'dask', 'maps')"

@@ -1,4 +1,4 @@
-"""`neve site` (geo.cli_site, geo.site): the JSON contract, text output, exit codes."""
+"""`neve site` (neve.cli.site, neve.geo.site.one): the JSON contract, text output, exit codes."""
 
 from __future__ import annotations
 
@@ -11,9 +11,9 @@ import sys
 import pytest
 from click.testing import CliRunner
 
-from engine.units import KPA_PER_PSF
-from geo.cli import main
-from geo.site import resolve_site
+from neve.engine.units import KPA_PER_PSF
+from neve.cli import main
+from neve.geo.site.one import resolve_site
 
 from .conftest import LAT0, LON0, D, centre, fixture_rows, write_layer
 
@@ -58,7 +58,7 @@ def test_json_contract_on_the_demo_site():
 
 
 def test_roof_matches_the_engine_on_the_ground_value():
-    from engine import Roof, analyze_roof
+    from neve.engine import Roof, analyze_roof
 
     roof = Roof.from_mapping({"shape": "gable", "slope": "6:12", "eave_to_ridge": "30ft"})
     res = resolve_site(47.4822, -140.0269, dem="demo", roof=roof)
@@ -163,8 +163,8 @@ def test_swapped_coordinates(grid_layer):
 
 
 def test_map_and_package(tmp_path):
-    pytest.importorskip("maps.site_map")
-    pytest.importorskip("maps.package")
+    pytest.importorskip("neve.maps.site_map")
+    pytest.importorskip("neve.maps.package")
     m, pkg = tmp_path / "site.html", tmp_path / "pkg"
     res = run("--at", DEMO_AT, "--dem", "demo", *ROOF, "--map", str(m), "--package", str(pkg),
               "--site-name", "Hut", "--project", "Demo")  # fmt: skip
@@ -177,7 +177,7 @@ def test_map_and_package(tmp_path):
 def _neve() -> list[str]:
     """The installed ``neve`` command, or the same entry point through this Python."""
     exe = shutil.which("neve")
-    return [exe] if exe else [sys.executable, "-m", "geo.cli"]
+    return [exe] if exe else [sys.executable, "-m", "neve.cli"]
 
 
 def test_installed_command_runs():

@@ -1,11 +1,11 @@
-"""Coordinates (geo.coords): decimal and DMS input, ranges."""
+"""Coordinates (neve.geo.site.coords): decimal and DMS input, ranges."""
 
 from __future__ import annotations
 
 import pytest
 
-from engine.errors import InputError
-from geo.coords import parse_latlon, suspect_mask
+from neve.engine.errors import InputError
+from neve.geo.site.coords import parse_latlon, suspect_mask
 
 
 @pytest.mark.parametrize(

@@ -10,8 +10,8 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from geo.layers import DEMO_DIR, load_layer
-from geo.resolve import resolve_points
+from neve.geo.layers.model import DEMO_DIR, load_layer
+from neve.geo.site.resolve import resolve_points
 
 from .conftest import LAT0, LON0, cell
 

@@ -1,4 +1,4 @@
-"""Elevation input and DEM sampling (geo.elevation), checked against rasterio's sample()."""
+"""Elevation input and DEM sampling (neve.geo.site.elevation), checked against rasterio's sample()."""
 
 from __future__ import annotations
 
@@ -7,10 +7,10 @@ import math
 import numpy as np
 import pytest
 
-from engine.errors import InputError
-from engine.units import FT_PER_M
-from geo.elevation import parse_elevation, sample_dem
-from geo.resolve import resolve_points
+from neve.engine.errors import InputError
+from neve.engine.units import FT_PER_M
+from neve.geo.site.elevation import parse_elevation, sample_dem
+from neve.geo.site.resolve import resolve_points
 
 from .conftest import LAT0, LON0, centre, write_dem
 
@@ -93,7 +93,7 @@ def test_resolver_uses_the_dem_and_flags_nodata_and_mismatch(grid_layer, dem):
 
 def test_dem_units_never_override_the_stated_unit(tmp_path):
     """A DEM stating feet: --dem-units m is a clash naming both; foot agrees (issue 8, sec. 3)."""
-    from geo.elevation import check_dem_options
+    from neve.geo.site.elevation import check_dem_options
 
     ft = write_dem(tmp_path / "ft.tif", unit="ft", fill=1000.0)
     lat, lon = centre(1, 1)

@@ -1,4 +1,4 @@
-"""The safe expression evaluator of formula zones (geo.expr)."""
+"""The safe expression evaluator of formula zones (neve.geo.layers.formula)."""
 
 from __future__ import annotations
 
@@ -7,7 +7,7 @@ import math
 import numpy as np
 import pytest
 
-from geo.expr import MAX_LENGTH, ExpressionError, compile_expr
+from neve.geo.layers.formula import MAX_LENGTH, ExpressionError, compile_expr
 
 
 @pytest.mark.parametrize(

@@ -1,4 +1,4 @@
-"""Addresses (geo.geocode): gazetteer file, a Nominatim-format server on loopback, failures.
+"""Addresses (neve.geo.site.geocode): gazetteer file, a Nominatim-format server on loopback, failures.
 
 The loopback server answers ``/search`` the way the Nominatim search API
 documents its ``format=json`` output: a JSON list of places with ``lat`` and
@@ -16,9 +16,9 @@ from urllib.parse import parse_qs, urlsplit
 import pytest
 from click.testing import CliRunner
 
-from engine.errors import InputError
-from geo.cli import main
-from geo.geocode import GeocodeError, geocode, normalise
+from neve.engine.errors import InputError
+from neve.cli import main
+from neve.geo.site.geocode import GeocodeError, geocode, normalise
 
 PLACES = {
     "1 harbour road, port hallin": [

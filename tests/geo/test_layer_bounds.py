@@ -26,12 +26,12 @@ import pytest
 from click.testing import CliRunner
 from shapely.geometry import Polygon, box
 
-from geo import rules as R
-from geo.check import check_layer
-from geo.cli import main
-from geo.expr import ExpressionError, compile_expr
-from geo.layers import load_layer
-from geo.resolve import resolve_points
+from neve.geo.layers import rules as R
+from neve.geo.layers.check import check_layer
+from neve.cli import main
+from neve.geo.layers.formula import ExpressionError, compile_expr
+from neve.geo.layers.model import load_layer
+from neve.geo.site.resolve import resolve_points
 
 from .conftest import FIXTURE_META, LAT0, LON0, cell, centre, fixture_rows, toml_text, write_layer
 
@@ -322,7 +322,7 @@ def test_range_problem_names_zone_cause_and_elevation(tmp_path):
 
 
 def test_tables_within_bounds_are_clean_and_demo_layers_stay_clean():
-    from geo.layers import DEMO_DIR, DEMO_LAYER_FILES
+    from neve.geo.layers.model import DEMO_DIR, DEMO_LAYER_FILES
 
     for f in DEMO_LAYER_FILES:  # regression guard: the invented demo layers pass every check
         assert check_layer(DEMO_DIR / f)["problems"] == []

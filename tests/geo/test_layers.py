@@ -1,4 +1,4 @@
-"""Layer loading and views (geo.layers), formats and the demo stack."""
+"""Layer loading and views (neve.geo.layers.model), formats and the demo stack."""
 
 from __future__ import annotations
 
@@ -6,8 +6,8 @@ import hashlib
 
 import pytest
 
-from engine.errors import LayerError
-from geo.layers import demo_dem_path, demo_layers, load_layer
+from neve.engine.errors import LayerError
+from neve.geo.layers.model import demo_dem_path, demo_layers, load_layer
 
 from .conftest import FIXTURE_META, centre, fixture_rows, toml_text, write_layer
 
@@ -20,7 +20,7 @@ def test_every_vector_format_reads(tmp_path, suffix):
     path = write_layer(tmp_path / f"z{suffix}", fixture_rows())
     layer = load_layer(path)
     assert len(layer.zones) == 6 and not layer.is_raster and layer.zones.problems == []
-    from geo.resolve import resolve_points
+    from neve.geo.site.resolve import resolve_points
 
     r = resolve_points([centre(0, 0)[0]], [centre(0, 0)[1]], layers=[layer]).iloc[0]
     assert r["pg_psf"] == 20.0
@@ -73,7 +73,7 @@ def test_demo_stack_is_marked_and_complete():
 
 
 def test_view_of_a_kpa_layer_converts_to_psf():
-    from engine.units import KPA_PER_PSF
+    from neve.engine.units import KPA_PER_PSF
 
     town = demo_layers()[0]
     z = town.view()["zones"].set_index("zone_id")

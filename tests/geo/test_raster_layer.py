@@ -1,4 +1,4 @@
-"""Raster zone layers (geo.raster): cell values, nodata, study mask, boundary, view."""
+"""Raster zone layers (neve.geo.layers.raster): cell values, nodata, study mask, boundary, view."""
 
 from __future__ import annotations
 
@@ -7,9 +7,9 @@ import math
 import numpy as np
 import pytest
 
-from engine.errors import LayerError
-from geo.layers import load_layer
-from geo.resolve import resolve_points
+from neve.engine.errors import LayerError
+from neve.geo.layers.model import load_layer
+from neve.geo.site.resolve import resolve_points
 
 from .conftest import FIXTURE_META, toml_text
 

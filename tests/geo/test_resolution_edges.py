@@ -16,12 +16,12 @@ import numpy as np
 import pytest
 from click.testing import CliRunner
 
-from engine.errors import InputError
-from engine.units import FT_PER_M, M_PER_FT
-from geo.cli import main
-from geo.elevation import DEM_MAX_M, DEM_MIN_M, MISMATCH_M, plausible_dem, stated_unit
-from geo.resolve import more_demanding, resolve_points
-from geo.site import resolve_site
+from neve.engine.errors import InputError
+from neve.engine.units import FT_PER_M, M_PER_FT
+from neve.cli import main
+from neve.geo.site.elevation import DEM_MAX_M, DEM_MIN_M, MISMATCH_M, plausible_dem, stated_unit
+from neve.geo.site.resolve import more_demanding, resolve_points
+from neve.geo.site.one import resolve_site
 
 from .conftest import LAT0, LON0, D, write_dem, write_layer
 
@@ -456,8 +456,8 @@ def test_dem_units_without_dem_is_refused(tmp_path, command):
 
 def test_dem_units_is_one_choice_in_both_commands():
     """The same option definition in neve site and neve screen (issue 8, sec. 3)."""
-    from geo.cli_screen import screen
-    from geo.cli_site import site
+    from neve.cli.screen import screen
+    from neve.cli.site import site
 
     def opt(cmd):
         return next(p for p in cmd.params if p.name == "dem_units")

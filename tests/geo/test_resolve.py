@@ -1,4 +1,4 @@
-"""Vectorized site resolution (geo.resolve): every status and flag on hand-made layers."""
+"""Vectorized site resolution (neve.geo.site.resolve): every status and flag on hand-made layers."""
 
 from __future__ import annotations
 
@@ -7,9 +7,9 @@ import math
 import numpy as np
 import pytest
 
-from engine.units import KPA_PER_PSF, M_PER_FT
-from geo.layers import load_layer
-from geo.resolve import COLUMNS, resolve_points
+from neve.engine.units import KPA_PER_PSF, M_PER_FT
+from neve.geo.layers.model import load_layer
+from neve.geo.site.resolve import COLUMNS, resolve_points
 
 from .conftest import LAT0, LON0, D, centre, fixture_rows, write_layer
 
@@ -106,7 +106,7 @@ def test_mercator_scale_factor_against_pyproj_geodesic():
     """Metres on the ground from EPSG:3395 / k, checked with pyproj.Geod at several latitudes."""
     from pyproj import Geod, Transformer
 
-    from geo.lookup import mercator_scale
+    from neve.geo.layers.vector import mercator_scale
 
     geod = Geod(ellps="WGS84")
     tr = Transformer.from_crs(4326, 3395, always_xy=True)
@@ -224,7 +224,7 @@ def test_elevation_columns_in_feet_and_metres(grid_layer):
 
 
 def test_demo_data_flag_on_the_demo_stack():
-    from geo.layers import demo_layers
+    from neve.geo.layers.model import demo_layers
 
     r = one(None, 47.4822, -140.0269)
     assert "demo_data" in r["flag_list"] and "DEMO DATA" in r["message"]
@@ -248,8 +248,8 @@ def test_vectorized_neighbours_match_brute_force_on_the_demo_layer():
     import shapely
     from pyproj import Transformer
 
-    from geo.layers import demo_dem_path, demo_layers
-    from geo.lookup import mercator_scale
+    from neve.geo.layers.model import demo_dem_path, demo_layers
+    from neve.geo.layers.vector import mercator_scale
 
     base = demo_layers()[1]
     rng = np.random.default_rng(0)
@@ -293,8 +293,8 @@ def test_prefiltered_and_plain_paths_agree():
     """Many sites (prefilters on) and the same sites in small chunks (off) give one answer."""
     import pandas as pd
 
-    from geo.layers import demo_dem_path
-    from geo.lookup import PREFILTER_MIN_SITES
+    from neve.geo.layers.model import demo_dem_path
+    from neve.geo.layers.vector import PREFILTER_MIN_SITES
 
     rng = np.random.default_rng(21)
     n = PREFILTER_MIN_SITES + 500

@@ -1,11 +1,11 @@
-"""Which layer standards may feed the ASCE 7-16 roof engine (geo.site)."""
+"""Which layer standards may feed the ASCE 7-16 roof engine (neve.geo.site.one)."""
 
 from __future__ import annotations
 
 import pytest
 
-from engine import Roof
-from geo.site import resolve_site, roof_engine_accepts
+from neve.engine import Roof
+from neve.geo.site.one import resolve_site, roof_engine_accepts
 from tests.geo.conftest import LAT0, LON0, D, fixture_rows, write_layer
 
 

@@ -1,4 +1,4 @@
-"""Zone rules on arrays (geo.rules): fixed, study, elevation_table, formula, limits, floors."""
+"""Zone rules on arrays (neve.geo.layers.rules): fixed, study, elevation_table, formula, limits, floors."""
 
 from __future__ import annotations
 
@@ -10,8 +10,8 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from geo import rules as R
-from geo.explain import explain
+from neve.geo.layers import rules as R
+from neve.geo.layers.explain import explain
 
 NAN = math.nan
 

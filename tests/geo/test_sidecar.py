@@ -1,11 +1,11 @@
-"""Sidecar validation (geo.sidecar): required keys, units, tolerance, types."""
+"""Sidecar validation (neve.geo.layers.sidecar): required keys, units, tolerance, types."""
 
 from __future__ import annotations
 
 import pytest
 
-from engine.errors import LayerError
-from geo.sidecar import read_sidecar, sidecar_path, validate_meta
+from neve.engine.errors import LayerError
+from neve.geo.layers.sidecar import read_sidecar, sidecar_path, validate_meta
 
 from .conftest import FIXTURE_META, toml_text
 

@@ -79,7 +79,7 @@ def run(args: list[str]):
 
     The Python warnings a user would see on stderr are kept as ``result.shown_warnings``.
     """
-    from geo.cli import main
+    from neve.cli import main
 
     runner = CliRunner(env={"NEVE_GEOCODER_URL": None})
     with warnings.catch_warnings(record=True) as caught:

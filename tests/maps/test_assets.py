@@ -6,7 +6,7 @@ import re
 
 import pytest
 
-from maps import assets
+from neve.maps import assets
 
 
 def test_inline_head_has_no_remote_reference_and_closes_every_script():

@@ -75,7 +75,7 @@ def _hostile_site_and_views():
 
 
 def test_site_map_offline_in_chromium(tmp_path):
-    from maps.site_map import write_site_map
+    from neve.maps.site_map import write_site_map
 
     site, views = _hostile_site_and_views()
     write_site_map(site, views, tmp_path / "site.html", self_contained=True)
@@ -135,7 +135,7 @@ def test_site_map_offline_in_chromium(tmp_path):
 
 
 def test_layer_map_offline_in_chromium(tmp_path):
-    from maps.layer_map import write_layer_map
+    from neve.maps.layer_map import write_layer_map
 
     view = make_view(name=hostile("layer"), note=hostile("note"), source=hostile("zone source"))
     view["meta"].update(
@@ -167,8 +167,8 @@ def test_layer_map_offline_in_chromium(tmp_path):
 def test_portfolio_map_offline_in_chromium(tmp_path):
     import pandas as pd
 
-    from maps.portfolio import POPUP_TEXT_LIMITS as LIMITS
-    from maps.portfolio import write_portfolio_map
+    from neve.maps.portfolio import POPUP_TEXT_LIMITS as LIMITS
+    from neve.maps.portfolio import write_portfolio_map
 
     short = "<img src=x onerror=alert(1)>{{ 7*7 }}"  # fits the shortest popup field
     df = pd.DataFrame(
@@ -206,7 +206,7 @@ def test_portfolio_map_offline_in_chromium(tmp_path):
 
 
 def test_report_html_offline_in_chromium(tmp_path):
-    from maps.package import write_package
+    from neve.maps.package import write_package
 
     site, views = _hostile_site_and_views()
     for case in site["roof"]["cases"]:

@@ -9,8 +9,8 @@ import subprocess
 import pytest
 from click.testing import CliRunner
 
-from geo.cli import main
-from maps import assets
+from neve.cli import main
+from neve.maps import assets
 
 DEMO_SITE = ["--at", "47.52,-140.05", "--dem", "demo"]
 ROOF = ["--shape", "gable", "--slope", "6:12", "--eave-to-ridge", "30ft"]

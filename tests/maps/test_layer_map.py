@@ -4,9 +4,9 @@ from __future__ import annotations
 
 import pytest
 
-from engine.errors import InputError
-from maps import assets, layer_map, style
-from maps.layer_map import write_layer_map
+from neve.engine.errors import InputError
+from neve.maps import assets, layer_map, style
+from neve.maps.layer_map import write_layer_map
 from tests.maps.conftest import HOSTILE, make_view
 
 PROBLEMS = [

@@ -8,9 +8,9 @@ import subprocess
 
 import pytest
 
-from engine.errors import InputError
-from maps import assets, package, style
-from maps.package import write_package
+from neve.engine.errors import InputError
+from neve.maps import assets, package, style
+from neve.maps.package import write_package
 from tests.maps.conftest import HOSTILE, make_site_json, make_view
 
 RAW_HOSTILE = ("<script>alert", "<img src=x", "onerror=alert(2)>")

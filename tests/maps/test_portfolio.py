@@ -10,9 +10,9 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from engine.errors import InputError
-from maps import assets, portfolio
-from maps.portfolio import write_portfolio_map
+from neve.engine.errors import InputError
+from neve.maps import assets, portfolio
+from neve.maps.portfolio import write_portfolio_map
 
 
 def _results(n: int, seed: int = 0) -> pd.DataFrame:

@@ -4,9 +4,9 @@ from __future__ import annotations
 
 import pytest
 
-from engine.errors import InputError, LayerError
-from maps import assets, style
-from maps.site_map import governing_index, write_site_map
+from neve.engine.errors import InputError, LayerError
+from neve.maps import assets, style
+from neve.maps.site_map import governing_index, write_site_map
 from tests.maps.conftest import HOSTILE, make_site_json, make_view
 
 RAW_HOSTILE = ("<script>alert", "<img src=x", "onerror=alert(2)>")

@@ -12,9 +12,9 @@ import xml.etree.ElementTree as ET
 
 import pytest
 
-from maps.diagrams import write_case_diagrams
-from maps.geom import local_crs
-from maps.static import _nice_length, true_north_angle, write_static_map
+from neve.maps.diagrams import write_case_diagrams
+from neve.maps.geom import local_crs
+from neve.maps.static import _nice_length, true_north_angle, write_static_map
 from tests.maps.conftest import make_roof_json, make_site_json, make_view
 
 
@@ -29,8 +29,8 @@ def test_static_map_and_diagrams_without_display_or_network(tmp_path):
         socket.create_connection = refuse
         sys.path.insert(0, {os.getcwd()!r})
         from tests.maps.conftest import make_site_json, make_view, make_roof_json
-        from maps.static import write_static_map
-        from maps.diagrams import write_case_diagrams
+        from neve.maps.static import write_static_map
+        from neve.maps.diagrams import write_case_diagrams
         import matplotlib
         out = write_static_map(make_site_json(), [make_view()], {str(tmp_path / "m.png")!r},
                                {str(tmp_path / "m.svg")!r})

@@ -6,9 +6,9 @@ import math
 
 import pytest
 
-from engine.errors import InputError, LayerError
-from maps import style
-from maps.geom import check_zones, local_crs, site_lat_lon, zones_near
+from neve.engine.errors import InputError, LayerError
+from neve.maps import style
+from neve.maps.geom import check_zones, local_crs, site_lat_lon, zones_near
 from tests.maps.conftest import SITE_LAT, SITE_LON, make_view
 
 

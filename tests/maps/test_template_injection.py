@@ -32,7 +32,7 @@ import jinja2
 import pytest
 from click.testing import CliRunner
 
-from geo.cli import main
+from neve.cli import main
 from tests.maps import hostile
 
 #: invented site, inside the invented zone ``zone_id`` of the fixture layers
@@ -268,7 +268,7 @@ def test_layer_show_map(name, self_contained, inputs, compiled, tmp_path):
 
 
 def clip(text: str, limit: int) -> str:
-    """A popup text as the portfolio map cuts it (see ``maps.portfolio.POPUP_TEXT_LIMITS``)."""
+    """A popup text as the portfolio map cuts it (see ``neve.maps.portfolio.POPUP_TEXT_LIMITS``)."""
     return text if len(text) <= limit else text[: limit - 1] + "\u2026"
 
 
@@ -277,7 +277,7 @@ def clip(text: str, limit: int) -> str:
 def test_screen_portfolio_map(name, self_contained, inputs, compiled, tmp_path):
     import pandas as pd
 
-    from maps.portfolio import POPUP_TEXT_LIMITS as LIMITS
+    from neve.maps.portfolio import POPUP_TEXT_LIMITS as LIMITS
 
     inp = inputs(name)
     page = tmp_path / "portfolio.html"

@@ -16,9 +16,9 @@ from click.testing import CliRunner
 
 from tests.screen.conftest import interior_points
 
-pytest.importorskip("geo.resolve")
+pytest.importorskip("neve.geo.site.resolve")
 
-from geo.cli import main  # noqa: E402
+from neve.cli import main  # noqa: E402
 
 
 def _run(*args):
@@ -243,7 +243,7 @@ def test_sigint_is_exit_not_traceback(tmp_path, grid_layer):
 
 
 def test_portfolio_map_written_beside_results(tmp_path, sites_csv, grid_layer):
-    pytest.importorskip("maps.portfolio")
+    pytest.importorskip("neve.maps.portfolio")
     out, html = tmp_path / "r.csv", tmp_path / "portfolio.html"
     r = _run(sites_csv, "-o", out, "--layer", grid_layer, "--map", html)
     assert r.exit_code == 0, r.output
@@ -254,7 +254,7 @@ def test_portfolio_map_written_beside_results(tmp_path, sites_csv, grid_layer):
 
 
 def test_map_frame_uses_coordinates_of_address_rows():
-    from geo.cli_screen import map_frame
+    from neve.cli.screen import map_frame
 
     res = pd.DataFrame(
         {"address": ["x"], "site_lat": [45.5], "site_lon": [-109.5], "status": ["ok"]}
@@ -302,7 +302,7 @@ def test_demo_portfolio_on_the_embedded_demo_data(tmp_path):
 
     from pyproj import Transformer
 
-    from geo.layers import demo_layers
+    from neve.geo.layers.model import demo_layers
 
     base = demo_layers()[-1]
     x0, y0, x1, y1 = base.frame.total_bounds
@@ -364,9 +364,9 @@ def test_roof_profiles_from_the_command_line(tmp_path, grid_layer, sites_frame):
 
 
 def test_too_many_rows_for_xlsx_refused_before_work(tmp_path, sites_csv, grid_layer, monkeypatch):
-    import geo.outputs
+    import neve.geo.screen.outputs
 
-    monkeypatch.setattr(geo.outputs, "XLSX_MAX_ROWS", 10)
+    monkeypatch.setattr(neve.geo.screen.outputs, "XLSX_MAX_ROWS", 10)
     r = _run(sites_csv, "-o", tmp_path / "r.xlsx", "--layer", grid_layer)
     assert r.exit_code == 2
     assert "40 sites do not fit" in r.output and ".parquet" in r.output

@@ -8,9 +8,9 @@ import pytest
 
 pytest.importorskip("dask_geopandas")
 distributed = pytest.importorskip("distributed")
-pytest.importorskip("geo.resolve")
+pytest.importorskip("neve.geo.site.resolve")
 
-from geo.screen import screen  # noqa: E402
+from neve.geo.screen.run import screen  # noqa: E402
 from tests.screen.conftest import malformed_portfolio  # noqa: E402
 
 pytestmark = pytest.mark.slow
@@ -55,7 +55,7 @@ def test_dask_matches_local_row_for_row(
 ):
     df, roof = portfolio
     local = screen(df, layers=[grid_layer], roof=roof)
-    import geo.dask_engine as de
+    import neve.geo.screen.dask_runner as de
 
     staged_calls = []
     original_stage = de._stage
@@ -75,7 +75,7 @@ def test_dask_matches_local_row_for_row(
 def test_cli_dask_engine_starts_its_own_cluster(tmp_path, grid_layer, sites_frame):
     from click.testing import CliRunner
 
-    from geo.cli import main
+    from neve.cli import main
 
     sites = tmp_path / "s.csv"
     sites_frame.to_csv(sites, index=False)
@@ -91,11 +91,11 @@ def test_cli_dask_engine_starts_its_own_cluster(tmp_path, grid_layer, sites_fram
 def test_unreachable_scheduler_is_exit_2(tmp_path, grid_layer, sites_frame, monkeypatch):
     from click.testing import CliRunner
 
-    import geo.dask_engine as de
+    import neve.geo.screen.dask_runner as de
 
     monkeypatch.setattr(de, "CONNECT_TIMEOUT", "2s")
 
-    from geo.cli import main
+    from neve.cli import main
 
     sites = tmp_path / "s.csv"
     sites_frame.to_csv(sites, index=False)

@@ -27,8 +27,8 @@ import pandas as pd
 import pytest
 from click.testing import CliRunner
 
-from engine.errors import InputError
-from geo.cli import main
+from neve.engine.errors import InputError
+from neve.cli import main
 
 SW = ("44.5", "-109.5")  # inside the fixture grid's SW zone (fixed, 25 psf)
 SE = ("44.5", "-108.5")  # SE zone (fixed, 40 psf)
@@ -200,7 +200,7 @@ def test_csv_cells_come_back_as_written(tmp_path, grid_layer, suffix):
 
 
 def test_csv_input_columns_are_all_text(tmp_path):
-    from geo.site_read import read_sites
+    from neve.geo.screen.read import read_sites
 
     frame, _ = read_sites(_as_given_csv(tmp_path))
     assert frame["code"].tolist() == AS_GIVEN
@@ -479,7 +479,7 @@ def test_an_output_on_the_input_is_refused_even_with_overwrite(tmp_path, grid_la
 
 
 def test_temporary_names_match_no_result_glob(tmp_path):
-    from geo.outputs import write_results
+    from neve.geo.screen.outputs import write_results
 
     seen = {}
 
@@ -506,7 +506,7 @@ def _dead_pid() -> int:
 
 
 def test_stale_temporary_files_of_killed_runs_are_removed(tmp_path, grid_layer):
-    from maps.target import _host_tag
+    from neve.maps.target import _host_tag
 
     host = _host_tag()
     dead = tmp_path / f".o.csv.neve-{host}-{_dead_pid()}-abc123.part"
@@ -535,7 +535,7 @@ def test_a_sigkilled_write_is_cleaned_up_by_the_next_run(tmp_path, grid_layer):
     target = tmp_path / "o.csv"
     code = (
         "import os, signal, sys\n"
-        "from geo.outputs import atomic_path\n"
+        "from neve.geo.screen.outputs import atomic_path\n"
         "with atomic_path(sys.argv[1]) as tmp:\n"
         "    tmp.write_text('half a table')\n"
         "    os.kill(os.getpid(), signal.SIGKILL)\n"
@@ -550,7 +550,7 @@ def test_a_sigkilled_write_is_cleaned_up_by_the_next_run(tmp_path, grid_layer):
 
 
 def test_an_output_that_appears_during_the_run_is_not_replaced(tmp_path):
-    from geo.outputs import write_results
+    from neve.geo.screen.outputs import write_results
 
     target = tmp_path / "o.csv"
 
@@ -565,7 +565,7 @@ def test_an_output_that_appears_during_the_run_is_not_replaced(tmp_path):
 
 
 def test_racing_package_folders_one_wins_the_other_is_refused(tmp_path):
-    from maps.target import MARKER, make_temp, publish
+    from neve.maps.target import MARKER, make_temp, publish
 
     dest = tmp_path / "calc"
     barrier = threading.Barrier(8)
@@ -594,8 +594,8 @@ def test_racing_package_folders_one_wins_the_other_is_refused(tmp_path):
 
 def test_second_package_run_never_replaces_the_first(tmp_path, monkeypatch):
     """Inject the race: another run finishes its package while this one builds."""
-    from maps import package
-    from maps.target import MARKER
+    from neve.maps import package
+    from neve.maps.target import MARKER
     from tests.maps.conftest import make_site_json, make_view
 
     dest = tmp_path / "calc"
@@ -615,7 +615,7 @@ def test_second_package_run_never_replaces_the_first(tmp_path, monkeypatch):
 
 
 def test_killed_overwrite_gives_the_previous_package_back(tmp_path):
-    from maps.target import MARKER, make_temp, remove_stale
+    from neve.maps.target import MARKER, make_temp, remove_stale
 
     dest = tmp_path / "calc"
     old = make_temp(dest, "old")
@@ -669,7 +669,7 @@ def test_dask_engine_gives_the_same_rows_for_a_messy_file(tmp_path, grid_layer):
 
 def test_numbers_in_text_cells_parse_like_numbers():
     """Regression guard: CSV cells are text now; coordinates still parse as before."""
-    from geo.sitefile import parse_sites
+    from neve.geo.screen.sitefile import parse_sites
 
     frame = pd.DataFrame(
         {"lat": pd.array(["44.5", " 44.5 ", "1e1", "nan", ""], dtype="str"),
@@ -693,7 +693,7 @@ def _reference(text: str) -> list[list[str]]:
 
 @pytest.mark.parametrize("seed", [1, 2, 3])
 def test_well_formed_csv_reads_as_pythons_csv_module_reads_it(tmp_path, seed):
-    from geo.site_csv import read_csv_records
+    from neve.geo.screen.csv_records import read_csv_records
 
     rng = np.random.default_rng(seed)
     words = ["a", "", "NA", "02134", "x,y", 'say "hi"', "two\nlines", "é ü", "=1+2", " 7 "]
@@ -717,7 +717,7 @@ def test_well_formed_csv_reads_as_pythons_csv_module_reads_it(tmp_path, seed):
 
 
 def test_bad_lines_anywhere_keep_the_order_of_every_record(tmp_path):
-    from geo.site_csv import read_csv_records
+    from neve.geo.screen.csv_records import read_csv_records
 
     rng = np.random.default_rng(4)
     lines, expected_bad = [], set()
@@ -771,7 +771,7 @@ def test_xlsx_value_outside_the_named_columns_is_an_error_row(tmp_path, grid_lay
 
 
 def test_a_killed_package_build_is_removed_by_the_next_build(tmp_path):
-    from maps.target import _host_tag, remove_stale
+    from neve.maps.target import _host_tag, remove_stale
 
     dest = tmp_path / "calc"
     dead = tmp_path / f".calc.neve-{_host_tag()}-{_dead_pid()}-k1ll3d.building"

@@ -1,4 +1,4 @@
-"""The local engine (geo.local_engine), layer pickling, and the names kept after the split."""
+"""The local engine (neve.geo.screen.local), layer pickling, and the names kept after the split."""
 
 from __future__ import annotations
 
@@ -9,16 +9,16 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from engine.errors import InputError
-from geo.layers import load_layer
-from geo.local_engine import (
+from neve.engine.errors import InputError
+from neve.geo.layers.model import load_layer
+from neve.geo.screen.local import (
     THREADED_FROM,
     portable_layer,
     progress_bar,
     resolve_local,
     worker_threads,
 )
-from geo.lookup import layer_hits
+from neve.geo.layers.vector import layer_hits
 from tests.screen.conftest import zone_of
 
 
@@ -109,7 +109,7 @@ def test_resolve_local_no_sites_gives_none(grid_layer):
 
 
 def test_resolve_local_threads_and_chunks_keep_input_order(grid_layer, monkeypatch):
-    import geo.local_engine as le
+    import neve.geo.screen.local as le
 
     layer = load_layer(grid_layer)
     lat, lon = _sites(1000, seed=11)
@@ -139,11 +139,11 @@ def test_progress_bar_counts_sites_and_is_silent_when_off(capsys):
 
 def test_names_stay_importable_from_their_old_modules():
     """After the split, the names README and callers use still import from where they were."""
-    import geo.local_engine as le
-    import geo.screen as gs
-    import geo.site_geocode as sg
-    import geo.site_read as sr
-    import geo.sitefile as sf
+    import neve.geo.screen.local as le
+    import neve.geo.screen.run as gs
+    import neve.geo.screen.geocode_rows as sg
+    import neve.geo.screen.read as sr
+    import neve.geo.screen.sitefile as sf
 
     for name in ("portable_layer", "worker_threads", "resolve_local", "CHUNK_SIZE",
                  "THREADS_ENV", "THREADED_FROM"):  # fmt: skip

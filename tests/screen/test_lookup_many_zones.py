@@ -1,4 +1,4 @@
-"""geo.lookup.layer_hits on a layer of many zones (the STRtree path) and the points it builds.
+"""neve.geo.layers.vector.layer_hits on a layer of many zones (the STRtree path) and the points it builds.
 
 The layer is an invented 12 x 12 grid of square zones with made-up values in
 an imaginary basin; none of it is any jurisdiction's map.  Answers are checked
@@ -13,8 +13,8 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from geo.layers import load_layer
-from geo.lookup import FEW_ZONES, PREFILTER_MIN_SITES, layer_hits
+from neve.geo.layers.model import load_layer
+from neve.geo.layers.vector import FEW_ZONES, PREFILTER_MIN_SITES, layer_hits
 
 #: the invented grid: lon -111..-108, lat 43..46 in 0.25 deg squares
 WEST, SOUTH, STEP, CELLS = -111.0, 43.0, 0.25, 12

@@ -1,4 +1,4 @@
-"""Result writers (geo.outputs): formats, atomic replacement, refusal to overwrite."""
+"""Result writers (neve.geo.screen.outputs): formats, atomic replacement, refusal to overwrite."""
 
 from __future__ import annotations
 
@@ -6,9 +6,9 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from engine.errors import InputError
-from geo.outputs import atomic_path, summary_rows, write_results
-from geo.sitefile import read_sites
+from neve.engine.errors import InputError
+from neve.geo.screen.outputs import atomic_path, summary_rows, write_results
+from neve.geo.screen.sitefile import read_sites
 
 
 def _results(n: int = 5) -> pd.DataFrame:
@@ -97,7 +97,7 @@ def test_unknown_suffix_and_missing_folder(tmp_path):
 
 
 def test_xlsx_row_limit_is_a_clear_error(tmp_path, monkeypatch):
-    import geo.outputs as outputs
+    import neve.geo.screen.outputs as outputs
 
     monkeypatch.setattr(outputs, "XLSX_MAX_ROWS", 3)
     with pytest.raises(InputError, match="do not fit in one XLSX sheet"):

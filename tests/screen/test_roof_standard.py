@@ -1,4 +1,4 @@
-"""Screening computes roof loads only from ASCE 7-16-compatible layers (geo.screen)."""
+"""Screening computes roof loads only from ASCE 7-16-compatible layers (neve.geo.screen.run)."""
 
 from __future__ import annotations
 
@@ -6,7 +6,7 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from geo.screen import screen
+from neve.geo.screen.run import screen
 from tests.geo.conftest import LAT0, LON0, D, fixture_rows, write_layer
 
 

@@ -1,4 +1,4 @@
-"""Portfolio screening (geo.screen) on the invented fixture grid of conftest.py."""
+"""Portfolio screening (neve.geo.screen.run) on the invented fixture grid of conftest.py."""
 
 from __future__ import annotations
 
@@ -6,12 +6,12 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from engine.errors import InputError
+from neve.engine.errors import InputError
 from tests.screen.conftest import GRID, malformed_portfolio, zone_of
 
-pytest.importorskip("geo.resolve")
+pytest.importorskip("neve.geo.site.resolve")
 
-from geo.screen import RESULT_COLUMNS, run_screen, screen  # noqa: E402
+from neve.geo.screen.run import RESULT_COLUMNS, run_screen, screen  # noqa: E402
 
 M_PER_FT = 0.3048  # exact (NIST SP 811, App. B)
 KPA_PER_PSF = 0.04788025898  # NIST SP 811, App. B (1 lbf/ft2 = 47.88026 Pa)
@@ -189,7 +189,7 @@ def test_summary_counts(grid_layer, sites_frame):
 
 
 def test_demo_layers_by_default_say_so():
-    from geo.layers import DEMO_DIR, DEMO_LAYER_FILES
+    from neve.geo.layers.model import DEMO_DIR, DEMO_LAYER_FILES
 
     if not all((DEMO_DIR / f).is_file() for f in DEMO_LAYER_FILES):
         pytest.skip("the embedded demo data is not built yet")
@@ -251,7 +251,7 @@ def test_geodataframe_in_a_projected_crs(grid_layer, sites_frame):
 
 
 def test_threaded_local_engine_gives_the_same_rows(grid_layer, monkeypatch):
-    import geo.local_engine as le
+    import neve.geo.screen.local as le
 
     df, _ = malformed_portfolio()
     monkeypatch.setenv("NEVE_THREADS", "1")

@@ -1,4 +1,4 @@
-"""Site files: column detection, per-row parsing and per-row errors (geo.sitefile)."""
+"""Site files: column detection, per-row parsing and per-row errors (neve.geo.screen.sitefile)."""
 
 from __future__ import annotations
 
@@ -6,8 +6,8 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from engine.errors import InputError
-from geo.sitefile import (
+from neve.engine.errors import InputError
+from neve.geo.screen.sitefile import (
     CachedGeocoder,
     geocode_rows,
     load_sites,

@@ -1,0 +1,1 @@
+"""Zone layers: sidecar, rules, formulas, vector and raster look-up, layer check."""

@@ -1,0 +1,387 @@
+"""Zone layers: a vector or raster file plus its validated sidecar.
+
+:func:`load_layer` reads a GeoPackage, GeoJSON, Shapefile or FlatGeobuf
+(through pyogrio) or a GeoTIFF (through rasterio) in any CRS, with the
+sidecar ``<layer file>.toml`` (:mod:`neve.geo.layers.sidecar`).  A :class:`Layer` keeps
+the zones in the layer's own CRS for point-in-zone tests and, lazily, in
+World Mercator (EPSG:3395) for boundary distances (see
+:mod:`neve.geo.layers.vector`).  :meth:`Layer.view` gives the maps what they draw.
+
+:func:`demo_layers` is the embedded, invented demo stack (most local first).
+"""
+
+from __future__ import annotations
+
+import functools
+import hashlib
+import math
+import warnings
+from pathlib import Path
+
+import numpy as np
+
+from neve.engine.errors import LayerError
+from neve.engine.units import FT_PER_M, KPA_PER_PSF
+from neve.geo.layers.rules import RULE_CODE, ZoneTable
+from neve.geo.layers.sidecar import read_sidecar, sidecar_path
+
+DEMO_DIR = Path(__file__).resolve().parent.parent / "demo"
+#: the embedded demo stack, most local first
+DEMO_LAYER_FILES = ("port_hallin_amendment.geojson", "skerrow_base.gpkg")
+DEMO_DEM_FILE = "skerrow_dem.tif"
+RASTER_SUFFIXES = (".tif", ".tiff", ".gtiff")
+VECTOR_SUFFIXES = (".gpkg", ".geojson", ".json", ".shp", ".fgb")
+_SHAPEFILE_PARTS = (".shp", ".shx", ".dbf", ".prj", ".cpg")
+
+
+def file_sha256(path: str | Path) -> str:
+    """SHA-256 of a layer's data (a Shapefile hashes its .shp/.shx/.dbf/.prj/.cpg)."""
+    p = Path(path)
+    parts = [p]
+    if p.suffix.lower() == ".shp":
+        parts = [q for q in (p.with_suffix(s) for s in _SHAPEFILE_PARTS) if q.is_file()]
+    h = hashlib.sha256()
+    for q in parts:
+        with open(q, "rb") as fh:
+            for chunk in iter(lambda: fh.read(1 << 20), b""):
+                h.update(chunk)
+    return h.hexdigest()
+
+
+def read_vector(path: str | Path):
+    """Read a vector layer file into a GeoDataFrame (LayerError when unreadable)."""
+    import geopandas as gpd
+
+    try:
+        with warnings.catch_warnings():
+            # geopandas warns when a column of JSON text does not parse; the
+            # table column is parsed, and its defects reported, by neve.geo.layers.rules
+            warnings.simplefilter("ignore", UserWarning)
+            gdf = gpd.read_file(path, engine="pyogrio")
+    except Exception as exc:  # pyogrio raises several types for unreadable data
+        raise LayerError(f"layer {str(path)!r} cannot be read as a vector file ({exc})") from None
+    if gdf.crs is None:
+        raise LayerError(
+            f"layer {str(path)!r} has no coordinate reference system; "
+            "accepted: a file that declares its CRS (e.g. EPSG:4326)"
+        )
+    return gdf
+
+
+class Layer:
+    """A zone layer ready for site look-ups.
+
+    Attributes
+    ----------
+    path : pathlib.Path
+    meta : dict
+        The validated sidecar (every key of :mod:`neve.geo.layers.sidecar`).
+    sha256 : str
+    is_raster : bool
+    demo : bool
+    """
+
+    def __init__(self, path: str | Path, meta: dict, *, frame=None, raster=None):
+        self.path = Path(path)
+        self.meta = meta
+        self.sha256 = file_sha256(self.path)
+        self.is_raster = raster is not None
+        self.demo = bool(meta["demo"])
+        self.frame = frame  # GeoDataFrame in the layer's CRS (vector layers)
+        self.raster = raster  # dict of raster properties (raster layers)
+        self.zones = (
+            ZoneTable.from_frame(frame, meta["quantity"], meta["value_units"])
+            if frame is not None
+            else None
+        )
+        self._cache: dict = {}
+
+    # --- naming -------------------------------------------------------------
+    @property
+    def name(self) -> str:
+        return self.meta["name"]
+
+    @property
+    def tolerance_m(self) -> float:
+        return float(self.meta["boundary_tolerance_m"])
+
+    @property
+    def to_psf(self) -> float:
+        """Factor from the layer's value units to psf."""
+        return 1.0 if self.meta["value_units"] == "psf" else 1.0 / KPA_PER_PSF
+
+    @property
+    def crs(self):
+        return self.frame.crs if self.frame is not None else self.raster["crs"]
+
+    def __repr__(self) -> str:
+        kind = "raster" if self.is_raster else f"{len(self.frame)} zones"
+        return f"Layer({self.name!r}, {kind}, demo={self.demo})"
+
+    def __getstate__(self) -> dict:
+        """The layer's attributes for pickling and copying, with the look-up caches emptied.
+
+        GEOS prepared geometries and trees do not survive pickling in a usable
+        state (and are not safe to share between threads), so a pickled or
+        copied layer builds its own on first use.  This also keeps what is
+        sent to a Dask worker small.
+        """
+        state = self.__dict__.copy()
+        state["_cache"] = {}
+        return state
+
+    def info(self) -> dict:
+        """The ``layer`` object of the JSON contract."""
+        m = self.meta
+        return {
+            "name": m["name"],
+            "jurisdiction": m["jurisdiction"],
+            "standard": m["standard"],
+            "source": m["source"],
+            "license": m["license"],
+            "date": m["date"],
+            "sha256": self.sha256,
+            "demo": self.demo,
+            "path": str(self.path),
+        }
+
+    def site_errors(self, hits, sites: np.ndarray, elev_ft: np.ndarray) -> np.ndarray:
+        """Why sites have status ``error`` in this layer, naming the zone and the value.
+
+        Parameters
+        ----------
+        hits : neve.geo.layers.vector.Hits
+            This layer's hits for all sites.
+        sites : numpy.ndarray of int
+            Indices of the sites in error (their governing zone is defective
+            or gave no plausible value).
+        elev_ft : numpy.ndarray of float
+            Their elevations [ft]; NaN where unknown.
+
+        Returns
+        -------
+        numpy.ndarray of object
+            One sentence per site ("" when there is nothing more to say).
+        """
+        sites = np.asarray(sites, dtype=np.intp)
+        if self.is_raster:
+            from neve.geo.layers.raster import cell_errors
+
+            return cell_errors(self, hits.zone_id[sites])
+        from neve.geo.layers.rule_checks import site_errors
+
+        zone = hits.zone_idx[sites]
+        out = np.full(sites.size, "", dtype=object)
+        known = zone >= 0
+        scale = 1.0 if self.meta["elevation_units"] == "ft" else 1.0 / FT_PER_M
+        out[known] = site_errors(
+            self.zones, zone[known], np.asarray(elev_ft, dtype=float)[known] * scale,
+            self.meta["value_units"], self.meta["elevation_units"],
+        )  # fmt: skip
+        return out
+
+    # --- geometry caches (vector) -----------------------------------------------
+    def tree(self):
+        """STRtree of the zones in the layer's CRS."""
+        if "tree" not in self._cache:
+            import shapely
+
+            self._cache["tree"] = shapely.STRtree(self.prepared())
+        return self._cache["tree"]
+
+    def tree_m(self):
+        """(geometries, STRtree) of the zones in World Mercator EPSG:3395 [m]."""
+        if "tree_m" not in self._cache:
+            import shapely
+
+            # coordinates that do not project (a layer outside its CRS's area of use, which
+            # `neve layer check` reports) become inf here: they match no site, quietly
+            with np.errstate(invalid="ignore", over="ignore"):
+                geoms = np.asarray(
+                    shapely.make_valid(np.asarray(self.frame.geometry.to_crs(3395).values))
+                )
+            self._cache["tree_m"] = (geoms, shapely.STRtree(geoms))
+        return self._cache["tree_m"]
+
+    def prepared(self) -> np.ndarray:
+        """The zone geometries (layer CRS), prepared for repeated point tests."""
+        if "prepared" not in self._cache:
+            import shapely
+
+            # invalid zones (reported by `neve layer check`) are repaired for the look-up
+            geoms = np.asarray(shapely.make_valid(np.asarray(self.frame.geometry.values)))
+            shapely.prepare(geoms)
+            self._cache["prepared"] = geoms
+        return self._cache["prepared"]
+
+    def shrunk_m(self, distance_m: float) -> np.ndarray:
+        """Zones in EPSG:3395 shrunk by ``distance_m`` on the ground (conservatively), prepared.
+
+        A site inside a shrunk zone is farther than ``distance_m`` from the
+        zone's boundary.  The shrink uses the largest Mercator scale factor
+        over the zone's latitudes, so it never shrinks too little.
+        """
+        key = ("shrunk", float(distance_m))
+        if key not in self._cache:
+            import shapely
+
+            from neve.geo.layers.vector import mercator_scale
+
+            geoms, _ = self.tree_m()
+            b = self.frame.geometry.to_crs(4326).bounds
+            lat_max = np.maximum(np.abs(b["miny"].to_numpy()), np.abs(b["maxy"].to_numpy()))
+            k = mercator_scale(np.nan_to_num(lat_max, nan=0.0))
+            with np.errstate(invalid="ignore", over="ignore"):
+                shrunk = shapely.buffer(geoms, -distance_m * k * 1.001)
+            shapely.prepare(shrunk)
+            self._cache[key] = shrunk
+        return self._cache[key]
+
+    def coverage_m(self, distance_m: float):
+        """Union of the zones in EPSG:3395 grown by ``distance_m`` on the ground, prepared."""
+        key = ("coverage", float(distance_m))
+        if key not in self._cache:
+            import shapely
+
+            from neve.geo.layers.vector import mercator_scale
+
+            geoms, _ = self.tree_m()
+            b = self.frame.geometry.to_crs(4326).total_bounds
+            k = float(mercator_scale(max(abs(b[1]), abs(b[3]))))
+            with np.errstate(invalid="ignore", over="ignore"):
+                cover = shapely.buffer(shapely.union_all(geoms), distance_m * k * 1.001 + 1.0)
+            shapely.prepare(cover)
+            self._cache[key] = cover
+        return self._cache[key]
+
+    # --- what maps need -------------------------------------------------------
+    def view(self, center: tuple[float, float] | None = None, radius_m: float = 5000) -> dict:
+        """The layer as maps draw it.
+
+        Parameters
+        ----------
+        center : (float, float) or None
+            (lat, lon) [degrees]; None gives every zone.
+        radius_m : float
+            Half-width of the window around ``center`` [m].
+
+        Returns
+        -------
+        dict
+            ``name``, ``meta``, ``sha256``, ``demo``, ``value_units`` and
+            ``zones``: a GeoDataFrame in EPSG:4326 with ``zone_id``, ``rule``,
+            ``pg`` [value_units, NaN where no single mapped value], ``pg_psf``,
+            ``elev_max``, ``note``, ``source``, ``study`` (bool) and geometry.
+        """
+        if self.is_raster:
+            from neve.geo.layers.raster import raster_view
+
+            zones = raster_view(self, center, radius_m)
+        else:
+            zones = self._vector_view(center, radius_m)
+        return {
+            "name": self.name,
+            "meta": dict(self.meta),
+            "sha256": self.sha256,
+            "demo": self.demo,
+            "value_units": self.meta["value_units"],
+            "zones": zones,
+        }
+
+    def _vector_view(self, center, radius_m):
+        import geopandas as gpd
+
+        zt = self.zones
+        pg = np.where(zt.rule == RULE_CODE["fixed"], zt.value, np.nan)
+        gdf = gpd.GeoDataFrame(
+            {
+                "zone_id": zt.zone_id.astype(str),
+                "rule": zt.rule_names().astype(str),
+                "pg": pg,
+                "pg_psf": pg * self.to_psf,
+                "elev_max": zt.elev_max,
+                "note": zt.note.astype(str),
+                "source": zt.source.astype(str),
+                "study": zt.rule == RULE_CODE["study"],
+            },
+            geometry=self.frame.geometry.values,
+            crs=self.frame.crs,
+        ).to_crs(4326)
+        if center is not None:
+            lat, lon = float(center[0]), float(center[1])
+            dlat = radius_m / 111_320.0
+            dlon = radius_m / (111_320.0 * max(math.cos(math.radians(lat)), 0.01))
+            gdf = gdf.cx[lon - dlon : lon + dlon, lat - dlat : lat + dlat]
+        return gdf.reset_index(drop=True)
+
+
+def load_layer(path: str | Path) -> Layer:
+    """Read a zone layer and its sidecar.
+
+    Parameters
+    ----------
+    path : str or pathlib.Path
+        GeoPackage, GeoJSON, Shapefile, FlatGeobuf or GeoTIFF; the sidecar is
+        ``<path>.toml``.
+
+    Raises
+    ------
+    LayerError
+        When the file or its sidecar is missing, unreadable or invalid.
+    """
+    if isinstance(path, Layer):
+        return path
+    p = Path(path)
+    if not p.is_file():
+        raise LayerError(f"layer file {str(p)!r} not found")
+    meta = read_sidecar(p)
+    if p.suffix.lower() in RASTER_SUFFIXES:
+        from neve.geo.layers.raster import open_raster_layer
+
+        return Layer(p, meta, raster=open_raster_layer(p, meta))
+    if meta["study_mask"]:
+        raise LayerError(
+            f"sidecar {sidecar_path(p).name!r} study_mask: only raster layers take a mask; "
+            "accepted: rule = study zones in a vector layer"
+        )
+    return Layer(p, meta, frame=read_vector(p))
+
+
+def as_layers(layers) -> list[Layer]:
+    """Layers from paths or Layer objects; None gives the demo stack."""
+    if layers is None:
+        return demo_layers()
+    if isinstance(layers, (str, Path, Layer)):
+        layers = [layers]
+    out = [x if isinstance(x, Layer) else load_layer(x) for x in layers]
+    if not out:
+        raise LayerError("no layer given; accepted: one or more layer files, most local first")
+    return out
+
+
+@functools.lru_cache(maxsize=1)
+def _demo_stack() -> tuple[Layer, ...]:
+    missing = [f for f in DEMO_LAYER_FILES if not (DEMO_DIR / f).is_file()]
+    if missing:
+        raise LayerError(
+            f"the embedded demo data is missing ({', '.join(missing)}); "
+            "rebuild it with: python data_recipes/build_demo.py"
+        )
+    return tuple(load_layer(DEMO_DIR / f) for f in DEMO_LAYER_FILES)
+
+
+def demo_layers() -> list[Layer]:
+    """The embedded, invented demo layer stack, most local first (``demo = true``)."""
+    return list(_demo_stack())
+
+
+def demo_dem_path() -> Path:
+    """Path of the embedded synthetic demo DEM (metres)."""
+    return DEMO_DIR / DEMO_DEM_FILE
+
+
+def dem_argument(dem):
+    """A ``--dem`` value: ``"demo"`` (with no file of that name) is the embedded DEM."""
+    if dem is not None and str(dem) == "demo" and not Path("demo").exists():
+        return demo_dem_path()
+    return dem

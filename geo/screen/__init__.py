@@ -1,0 +1,1 @@
+"""Portfolio screening: reading site files, the local and Dask runners, writing results."""

@@ -1,0 +1,305 @@
+"""Site files on disk into tables, for ``neve screen``.
+
+:func:`read_sites` reads a CSV, XLSX, GeoPackage or Parquet (GeoParquet too)
+site file into a DataFrame of its columns as written, plus its point
+geometry in WGS 84 when the file carries one (a GeoPackage or GeoParquet
+geometry, or WKT text in a ``geometry`` column of a CSV or XLSX file).  The
+column names neve looks for are defined here; turning the rows into arrays
+is :mod:`neve.geo.screen.sitefile`'s job.  A file that cannot be read as a table is an
+:class:`neve.engine.errors.InputError`.
+
+Cells come back as they are stored: every CSV cell is text, exactly as
+written (:mod:`neve.geo.screen.csv_records`; ``NA``, ``null``, ``02134`` and empty cells stay
+text); XLSX cells keep the value type of the sheet (text, number, date,
+boolean; empty cells are missing); Parquet and GeoPackage columns keep their
+own types (integer columns with missing values stay integers).  Problems of
+single records (a CSV row with a stray quote, an extra comma or a byte that is
+not UTF-8; an XLSX value outside the named columns) make those rows errors;
+they travel with the table as :class:`ReadNotes` in ``frame.attrs``.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+
+from neve.engine.errors import InputError
+
+#: accepted site-file suffixes -> format name
+SITE_FORMATS = {
+    ".csv": "csv",
+    ".txt": "csv",
+    ".xlsx": "xlsx",
+    ".xlsm": "xlsx",
+    ".gpkg": "gpkg",
+    ".parquet": "parquet",
+    ".geoparquet": "parquet",
+    ".pq": "parquet",
+}
+#: accepted latitude / longitude column names (matched case-blind)
+#: (site_lat/site_lon: the coordinates in neve's own results, used when no other is given)
+GIVEN_LAT_NAMES = ("lat", "latitude")
+GIVEN_LON_NAMES = ("lon", "longitude", "lng", "long")
+LAT_NAMES = (*GIVEN_LAT_NAMES, "site_lat")
+LON_NAMES = (*GIVEN_LON_NAMES, "site_lon")
+#: text columns of WKT points (EPSG:4326) accepted in CSV and XLSX files
+WKT_NAMES = ("geometry", "wkt")
+ADDRESS_NAMES = ("address",)
+SITE_ID_NAMES = ("site_id",)
+ROOF_NAMES = ("roof",)
+ACCEPTED_COORDS = (
+    "columns lat and lon (or latitude and longitude, lng), or an address column, "
+    "or a point geometry (GeoPackage, GeoParquet, or WKT text in a geometry column)"
+)
+
+
+def site_format(path: str | Path, field_name: str = "sites") -> str:
+    """The format name of a site or result file from its suffix."""
+    suffix = Path(path).suffix.lower()
+    if suffix not in SITE_FORMATS:
+        raise InputError(
+            field_name,
+            f"cannot tell the format of {str(path)!r} from its suffix {suffix or '(none)'!r}",
+            ", ".join(sorted(SITE_FORMATS)),
+        )
+    return SITE_FORMATS[suffix]
+
+
+def find_column(columns, names) -> str | None:
+    lower = {str(c).strip().lower(): c for c in columns}
+    for name in names:
+        if name in lower:
+            return lower[name]
+    return None
+
+
+#: key of :class:`ReadNotes` in a site table's ``attrs``
+READ_NOTES = "neve_read_notes"
+
+
+@dataclass
+class ReadNotes:
+    """What reading a site file found about single rows, and how the file was laid out.
+
+    Attributes
+    ----------
+    errors : dict
+        Row index -> why the row could not be read as written (an error row).
+    multiline : dict
+        Row index -> (first, last) physical line of a CSV record whose quoted
+        cells hold line breaks (flagged ``multiline_field``).
+    info : dict
+        How the file was laid out: ``format``, ``records`` and, for CSV,
+        ``lines``, ``header_line``, ``blank_lines``, ``multiline_records``,
+        ``records_with_read_errors`` (XLSX: ``sheet``, ``sheet_rows``,
+        ``header_row``, ``blank_rows``, ``records_with_read_errors``).
+    """
+
+    errors: dict = field(default_factory=dict)
+    multiline: dict = field(default_factory=dict)
+    info: dict = field(default_factory=dict)
+
+    def __deepcopy__(self, memo):  # pandas copies attrs on every operation: share instead
+        return self
+
+
+def read_notes(frame: pd.DataFrame) -> ReadNotes | None:
+    """The :class:`ReadNotes` a site table was read with, if any."""
+    notes = frame.attrs.get(READ_NOTES) if hasattr(frame, "attrs") else None
+    return notes if isinstance(notes, ReadNotes) else None
+
+
+def read_sites(path: str | Path) -> tuple[pd.DataFrame, object]:
+    """Read a site file into a DataFrame plus its point geometry (or None).
+
+    Parameters
+    ----------
+    path : str or Path
+        CSV, XLSX, GeoPackage or Parquet file.
+
+    Returns
+    -------
+    frame : pandas.DataFrame
+        Every input column; a geometry column is returned separately.
+    geometry : geopandas.GeoSeries or None
+        The rows' geometry in WGS 84 when the file carries one.
+    """
+    p = Path(path)
+    if not p.is_file():
+        raise InputError("sites", f"file {str(p)!r} not found", "a CSV, XLSX, GPKG or Parquet file")
+    fmt = site_format(p)
+    geometry = None
+    notes = ReadNotes()
+    try:
+        if fmt == "csv":
+            from neve.geo.screen.csv_records import read_csv_records
+
+            rec = read_csv_records(p)
+            frame = rec.frame
+            notes = ReadNotes(rec.errors, rec.multiline, rec.info)
+        elif fmt == "xlsx":
+            frame, notes = _read_xlsx(p)
+        elif fmt == "gpkg":
+            frame, geometry = split_geometry(_read_gpkg(p))
+        else:
+            frame, geometry = _read_parquet(p)
+    except InputError:
+        raise
+    except Exception as exc:  # a corrupt file, or not a table at all
+        raise InputError(
+            "sites",
+            f"{str(p)!r} is not a readable {fmt} table ({type(exc).__name__}: {str(exc).strip()})",
+            "a CSV, XLSX, GPKG or Parquet table with one row per site",
+        ) from None
+    frame.columns = [str(c) for c in frame.columns]
+    if geometry is None and fmt in ("csv", "xlsx"):
+        geometry = _wkt_geometry(frame)
+    if len(frame.columns) == 0:
+        raise InputError("sites", f"{str(p)!r} has no columns", ACCEPTED_COORDS)
+    if len(frame) == 0:
+        raise InputError("sites", f"{str(p)!r} has no rows", "a table with at least one site")
+    frame = frame.reset_index(drop=True)
+    notes.info.setdefault("format", fmt)
+    notes.info.setdefault("records", int(len(frame)))
+    frame.attrs[READ_NOTES] = notes
+    return frame, geometry
+
+
+def _wkt_geometry(frame: pd.DataFrame):
+    """Points from a WKT text column (WGS 84) when the table has no lat/lon columns."""
+    if find_column(frame.columns, LAT_NAMES) is not None:
+        return None
+    col = find_column(frame.columns, WKT_NAMES)
+    if col is None or len(frame) == 0:
+        return None
+    import geopandas as gpd
+    import shapely
+
+    text = frame[col].astype(object).where(frame[col].notna(), None).to_numpy()
+    text = np.array([t if isinstance(t, str) and t.strip() else None for t in text], dtype=object)
+    geoms = shapely.from_wkt(text, on_invalid="ignore")
+    return gpd.GeoSeries(geoms, crs="EPSG:4326")
+
+
+def _read_xlsx(p: Path) -> tuple[pd.DataFrame, ReadNotes]:
+    """The first sheet, each cell the value stored in it (openpyxl, values not formulas).
+
+    The first row that is not empty names the columns; empty rows are skipped
+    and counted.  A value in a column the header does not name makes its row an
+    error row (the value is quoted in the message).
+    """
+    import openpyxl
+
+    wb = openpyxl.load_workbook(p, read_only=True, data_only=True)
+    try:
+        ws = wb.worksheets[0]
+        ws.reset_dimensions()  # read every stored row, whatever the sheet claims its size is
+        header: list[str] | None = None
+        header_row = 0
+        blank = 0
+        last = 0
+        rows: list[tuple] = []
+        errors: dict[int, str] = {}
+        for number, values in enumerate(ws.iter_rows(values_only=True), start=1):
+            last = number
+            if all(v is None or (isinstance(v, str) and v == "") for v in values):
+                blank += 1
+                continue
+            if header is None:
+                cells = list(values)
+                while cells and cells[-1] is None:
+                    cells.pop()
+                header = ["" if v is None else str(v) for v in cells]
+                header_row = number
+                continue
+            width = len(header)
+            extra = [(k, v) for k, v in enumerate(values[width:], start=width) if v is not None]
+            if extra:
+                from openpyxl.utils import get_column_letter
+
+                k, v = extra[0]
+                errors[len(rows)] = (
+                    f"row {number}: a value in column {get_column_letter(k + 1)}, which the "
+                    f"header (row {header_row}) does not name: {v!r}"
+                )
+            cells = tuple(values[:width])
+            rows.append(cells + (None,) * (width - len(cells)))
+    finally:
+        wb.close()
+    if header is None:
+        return pd.DataFrame(), ReadNotes()
+    _refuse_repeated(p, header)
+    frame = pd.DataFrame(
+        {k: pd.Series([r[k] for r in rows], dtype=object) for k in range(len(header))}
+    )
+    frame.columns = header
+    info = {
+        "format": "xlsx",
+        "sheet": ws.title,
+        "sheet_rows": last,
+        "header_row": header_row,
+        "records": len(rows),
+        "blank_rows": blank - (header_row - 1 if header_row else 0),
+        "records_with_read_errors": len(errors),
+    }
+    return frame, ReadNotes(errors=errors, info=info)
+
+
+def _refuse_repeated(p: Path, names) -> None:
+    seen: dict[str, int] = {}
+    for name in names:
+        seen[str(name)] = seen.get(str(name), 0) + 1
+    twice = [n for n, c in seen.items() if c > 1]
+    if twice:
+        raise InputError(
+            "sites",
+            f"{str(p)!r}: the header names column(s) {', '.join(map(repr, twice))} more than once",
+            "a header row whose column names are all different",
+        )
+
+
+def _integers_stay_integers(pa_type):
+    """Arrow -> pandas: integer columns become nullable integers (a missing value keeps 7 as 7)."""
+    import pyarrow as pa
+
+    if pa.types.is_integer(pa_type):
+        return pd.api.types.pandas_dtype(str(pa_type).replace("uint", "UInt").replace("int", "Int"))
+    return None
+
+
+def _read_gpkg(p: Path):
+    import pyogrio
+
+    try:
+        return pyogrio.read_dataframe(
+            p, use_arrow=True, arrow_to_pandas_kwargs={"types_mapper": _integers_stay_integers}
+        )
+    except (ImportError, NotImplementedError, TypeError):  # a GDAL without Arrow support
+        return pyogrio.read_dataframe(p)
+
+
+def split_geometry(gdf) -> tuple[pd.DataFrame, object]:
+    import geopandas as gpd
+
+    if not isinstance(gdf, gpd.GeoDataFrame) or gdf.geometry.name not in gdf.columns:
+        return pd.DataFrame(gdf), None
+    geom = gdf.geometry
+    if geom.crs is not None and not geom.crs.equals("EPSG:4326"):
+        geom = geom.to_crs("EPSG:4326")
+    frame = pd.DataFrame(gdf.drop(columns=[gdf.geometry.name]))
+    return frame, geom.reset_index(drop=True)
+
+
+def _read_parquet(p: Path) -> tuple[pd.DataFrame, object]:
+    import pyarrow.parquet as pq
+
+    meta = pq.read_schema(p).metadata or {}
+    keep = {"types_mapper": _integers_stay_integers}
+    if b"geo" in meta:
+        import geopandas as gpd
+
+        return split_geometry(gpd.read_parquet(p, to_pandas_kwargs=keep))
+    return pq.read_table(p).to_pandas(**keep), None

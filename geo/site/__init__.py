@@ -1,0 +1,1 @@
+"""One site: coordinates, elevation, geocoding, resolution against the layers."""

@@ -1,0 +1,399 @@
+"""One site, end to end: coordinates -> ground snow load -> roof snow loads.
+
+:func:`resolve_site` runs the vectorized resolver (:mod:`neve.geo.site.resolve`) on a
+single site, adds the detail a calculation package needs (step records for
+the ground value, neighbouring zones, the other stacked layers) and, when a
+roof is given and the ground value is usable, runs the roof engine on it.
+:meth:`SiteResult.to_json` is the ``{site, ground, roof}`` object of
+``neve site --format json`` (DESIGN.md, "CLI contract").
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from neve.engine.errors import InputError
+from neve.engine.roof import CAUTIONS
+from neve.engine.steps import Step, fmt
+from neve.engine.units import FT_PER_M, KPA_PER_PSF, M_PER_FT, length_json, load_json
+from neve.geo.layers import rules as R
+from neve.geo.site.coords import check_range
+from neve.geo.site.elevation import MISMATCH_M, check_dem_options, parse_elevation
+from neve.geo.layers.explain import explain
+from neve.geo.layers.model import as_layers, dem_argument
+from neve.geo.site.resolve import ELEVATION_SOURCES, STATUSES, resolve_detail
+
+#: radius within which neighbouring zones are listed for one site [m]
+SEARCH_M = 1000.0
+DEMO_CAUTION = "DEMO DATA: the layer is invented (demo = true); its values are never for design."
+
+
+def _num(x) -> float | None:
+    return None if x is None or not math.isfinite(float(x)) else float(x)
+
+
+@dataclass
+class SiteResult:
+    """The resolved site; :meth:`to_json` gives DESIGN's ``{site, ground, roof}``."""
+
+    site: dict
+    ground: dict
+    roof: dict | None
+    layers: list = field(default_factory=list)
+    row: dict = field(default_factory=dict)
+    roof_result: object = None
+
+    @property
+    def demo(self) -> bool:
+        return "demo_data" in self.ground["flags"]
+
+    def to_json(self) -> dict:
+        return {"site": self.site, "ground": self.ground, "roof": self.roof}
+
+    def views(self, radius_m: float = 5000) -> list[dict]:
+        """``layer.view(center)`` of every layer used, for the maps."""
+        center = (self.site["lat"], self.site["lon"])
+        return [layer.view(center=center, radius_m=radius_m) for layer in self.layers]
+
+    def to_text(self) -> str:
+        """A readable summary for ``--format text``."""
+        from neve.geo.site.text import site_text
+
+        return site_text(self)
+
+
+def _steps(layer, hits, row, elev_ft: float, source: str) -> list[dict]:
+    steps: list[Step] = []
+    if np.isfinite(elev_ft):
+        steps.append(
+            Step("A", f"site elevation ({source})", "A", f"{fmt(elev_ft / FT_PER_M)} m",
+                 elev_ft, "ft", f"site elevation from {source}")
+        )  # fmt: skip
+    zid = hits.zone_id[0]
+    j = int(hits.zone_idx[0])
+    meta = layer.meta
+    zsrc = ""
+    if not layer.is_raster and j >= 0 and layer.zones.source[j]:
+        zsrc = f"; {layer.zones.source[j]}"
+    ref = f"{layer.name}, zone {zid} ({meta['source']}{zsrc})"
+    if layer.is_raster:
+        base = hits.base_psf[0]
+        if np.isfinite(base):
+            raw = base / layer.to_psf
+            steps.append(Step("pg", f"grid cell value of {layer.name}", "pg = cell value",
+                              f"pg = {fmt(raw)} {meta['value_units']}", raw,
+                              meta["value_units"], ref))  # fmt: skip
+    elif j >= 0:
+        scale = 1.0 if meta["elevation_units"] == "ft" else 1.0 / FT_PER_M
+        steps.extend(explain(layer.zones, j, elev_ft * scale, meta, ref))
+    base = hits.base_psf[0]
+    if meta["value_units"] == "kPa" and np.isfinite(base):
+        steps.append(Step("pg", "converted to psf", "pg [psf] = pg [kPa] / 0.04788",
+                          f"{fmt(base * KPA_PER_PSF)} / {fmt(KPA_PER_PSF, 5)}", base, "psf",
+                          "NIST SP 811 Appendix B (1 psf = 0.0478803 kPa)"))  # fmt: skip
+    valued = int(hits.state[0]) in (R.OK, R.UNCHECKED) and np.isfinite(base)
+    if hits.zone_ids[0] != zid and not valued and int(hits.state[0]) in (R.STUDY, R.ABOVE):
+        where = "overlapping zones" if hits.overlap[0] else "a shared edge of zones"
+        steps.append(Step("pg", f"{where}: a zone that requires a site-specific case study "
+                          "precedes the mapped values of the others",
+                          "study required where any zone of the site requires one",
+                          hits.zone_ids[0].replace(";", ", "), None, "psf",
+                          f"{layer.name} ({where}; README, site resolution)"))  # fmt: skip
+    elif hits.overlap[0] and valued:
+        steps.append(Step("pg", "overlapping zones: the larger value governs",
+                          "pg = max(pg of each zone)", hits.zone_ids[0], base, "psf",
+                          f"{layer.name} (overlapping zones)"))  # fmt: skip
+    if hits.raised[0] and valued:
+        steps.append(Step("pg", f"zone with a larger value within {layer.tolerance_m:g} m "
+                          "of the site: the larger value governs",
+                          "pg = max(pg, neighbouring values)",
+                          f"max({fmt(base)}; {hits.neigh_vals[0]})", row["pg_psf"], "psf",
+                          f"{layer.name} (boundary tolerance)"))  # fmt: skip
+    return [s.to_dict() for s in steps]
+
+
+def _elevation_step(row, rule: str) -> dict:
+    """The step that records a given elevation and the DEM disagreeing, and what governs."""
+    alt_src = row["alt_elevation_source"]
+    gov_src = "dem" if alt_src == "input" else "input"
+    here = _outcome_text(row["status"], row["pg_psf"])
+    there = _outcome_text(row["alt_status"], row["alt_pg_psf"])
+    at = {gov_src: (row["elevation_ft"], here), alt_src: (row["alt_elevation_ft"], there)}
+    sub = "; ".join(
+        f"{'given' if src == 'input' else 'DEM'} A = {fmt(at[src][0] * M_PER_FT)} m: {at[src][1]}"
+        for src in ("input", "dem")
+    )
+    if rule == "input":
+        eq, ref = "A = given elevation", "elevation source: input (given by the user)"
+    else:
+        eq = "A = the elevation with the more demanding ground load"
+        ref = "neve: the larger ground load governs (README, site resolution)"
+    return Step(
+        "A",
+        f"given elevation and DEM differ by more than {MISMATCH_M:g} m: "
+        f"ground load worked at both; the {'DEM' if gov_src == 'dem' else 'given'} "
+        "elevation governs",
+        eq, sub, row["elevation_ft"], "ft", ref,
+    ).to_dict()  # fmt: skip
+
+
+def _outcome_text(status: str, psf) -> str:
+    if status in ("ok", "provisional") and _num(psf) is not None:
+        return f"pg = {fmt(float(psf))} psf ({status})"
+    return status
+
+
+def _alternatives(row) -> list[dict]:
+    """Both elevations of a site whose given elevation and DEM disagree, with their results."""
+    alt_src = row["alt_elevation_source"]
+    if not alt_src:
+        return []
+    gov_src = "dem" if alt_src == "input" else "input"
+
+    def entry(src, ft, status, psf, zone, governs):
+        usable = status in ("ok", "provisional") and _num(psf) is not None
+        return {
+            "source": src,
+            "elevation": length_json(_num(ft)),
+            "status": status,
+            "pg": load_json(float(psf)) if usable else None,
+            "zone_id": zone or None,
+            "governs": governs,
+        }
+
+    both = [
+        entry(gov_src, row["elevation_ft"], row["status"], row["pg_psf"], row["zone_id"], True),
+        entry(alt_src, row["alt_elevation_ft"], row["alt_status"], row["alt_pg_psf"],
+              row["alt_zone_id"], False),
+    ]  # fmt: skip
+    return sorted(both, key=lambda e: e["source"] != "input")
+
+
+def _finite(obj):
+    """``obj`` with every non-finite float replaced by None, and whether any was."""
+    if isinstance(obj, dict):
+        pairs = [(k, _finite(v)) for k, v in obj.items()]
+        return {k: v for k, (v, _) in pairs}, any(b for _, (_, b) in pairs)
+    if isinstance(obj, list):
+        pairs = [_finite(v) for v in obj]
+        return [v for v, _ in pairs], any(b for _, b in pairs)
+    if isinstance(obj, (float, np.floating)) and not math.isfinite(float(obj)):
+        return None, True
+    return obj, False
+
+
+def _neighbours(hits, tol_m: float) -> list[dict]:
+    p = hits.pairs
+    if not p:
+        return []
+    sel = np.flatnonzero(p["site"] == 0)
+    best: dict[str, tuple] = {}
+    for k in sel:
+        zid = str(p["zone_id"][k])
+        d = float(p["m"][k])
+        if zid not in best or d < best[zid][0]:
+            best[zid] = (d, float(p["psf"][k]), int(p["state"][k]))
+    out = []
+    for zid, (d, psf, st) in sorted(best.items(), key=lambda kv: kv[1][0]):
+        out.append(
+            {
+                "zone_id": zid,
+                "pg": load_json(psf) if math.isfinite(psf) else None,
+                "state": "value" if st in (R.OK, R.UNCHECKED) else "no value",
+                "distance": length_json(d * FT_PER_M),
+                "within_tolerance": d <= tol_m,
+            }
+        )
+    return out
+
+
+#: layer standards whose ground snow loads the ASCE 7-16 roof engine may take
+#: (ASCE 7-05 and 7-10 map the same 50-year ground snow load as ASCE 7-16;
+#: ASCE 7-22 maps strength-level loads and EN 1991-1-3 a different quantity).
+ROOF_ENGINE_STANDARDS = ("ASCE 7-16", "ASCE 7-10", "ASCE 7-05")
+
+
+def roof_engine_accepts(standard: str) -> bool:
+    """Whether a layer's ground loads may feed the ASCE 7-16 roof engine."""
+    norm = standard.upper().replace(" ", "").replace("/SEI", "")
+    return any(norm == s.replace(" ", "") for s in ROOF_ENGINE_STANDARDS)
+
+
+def resolve_site(
+    lat: float,
+    lon: float,
+    *,
+    elevation: str | None = None,
+    dem=None,
+    dem_units: str | None = None,
+    layers=None,
+    roof=None,
+    name: str | None = None,
+    project: str | None = None,
+    address: str | None = None,
+    given: str | None = None,
+    elevation_source: str = "larger",
+) -> SiteResult:
+    """Resolve one site to its ground snow load and, given a roof, its roof loads.
+
+    Parameters
+    ----------
+    lat, lon : float
+        Site coordinates [degrees, EPSG:4326].
+    elevation : str, optional
+        Site elevation with its unit (``"412m"``, ``"1350ft"``).
+    dem : path, optional
+        DEM to sample (``"demo"`` is the embedded synthetic DEM).
+    dem_units : str, optional
+        Vertical unit of a DEM that states none; never overrides the unit
+        the DEM states (a contradiction is refused), refused without ``dem``.
+    layers : list of paths or Layer, optional
+        Most local first; None gives the embedded demo stack.
+    roof : engine.Roof, optional
+        When given and the ground value is usable (``ok`` or
+        ``provisional``), the roof engine runs on the ground value.
+    name, project, address, given : str, optional
+        Reported in ``site`` (``given`` is the input as the user wrote it).
+    elevation_source : {"larger", "input"}
+        Where ``elevation`` and the DEM differ by more than 15 m
+        (``elevation_mismatch``), the ground load is worked at both and
+        reported in ``ground.elevation_alternatives``; ``"larger"`` (default)
+        lets the more demanding result govern, ``"input"`` the given
+        elevation (:func:`neve.geo.site.resolve.more_demanding`).
+    """
+    lat, lon = float(lat), float(lon)
+    check_range(lat, lon)
+    if roof is not None:
+        from neve.engine.roof_spec import as_roof
+
+        roof = as_roof(roof)
+    from neve.engine.choices import choose_key
+
+    elevation_source = choose_key("elevation-source", elevation_source, ELEVATION_SOURCES)
+    if elevation_source == "input" and elevation is None:
+        raise InputError(
+            "elevation-source",
+            "'input' given without --elevation",
+            "--elevation-source input together with --elevation (e.g. 412m)",
+        )
+    dem_path = dem_argument(dem)
+    check_dem_options(dem_path, dem_units)
+    layers = as_layers(layers)
+    elev_in = parse_elevation(elevation)
+    df, ctx = resolve_detail(
+        [lat], [lon], layers=layers, elevation_ft=[elev_in], dem=dem_path,
+        dem_units=dem_units, search_m=SEARCH_M, elevation_source=elevation_source,
+    )  # fmt: skip
+    row = df.iloc[0].to_dict()
+    alt = ctx["alt"]
+    if alt is not None and bool(alt["governs"][0]):  # the DEM elevation governs this site
+        ctx = dict(ctx, hits=alt["hits"], gov=alt["gov"], per_layer=alt["per_layer"])
+    g = int(ctx["gov"][0])
+    flags = [f for f in row["flags"].split(";") if f]
+    status = row["status"]
+    message = row["message"]
+    gov_layer = layers[g] if g >= 0 else None
+    steps: list[dict] = []
+    neighbours: list[dict] = []
+    if gov_layer is not None:
+        hits = ctx["hits"][g]
+        steps = _steps(gov_layer, hits, row, row["elevation_ft"], row["elevation_source"])
+        if row["alt_elevation_source"]:
+            steps.insert(0, _elevation_step(row, elevation_source))
+        neighbours = _neighbours(hits, gov_layer.tolerance_m)
+        zone = f"Zone {row['zone_id']} ({row['rule']})"
+        if row["zone_ids"] != row["zone_id"]:
+            zone += f", of overlapping zones {row['zone_ids'].replace(';', ', ')}"
+        message = f"{zone}. {message}"
+    else:
+        near = [n for h in ctx["hits"] for n in _neighbours(h, math.inf)]
+        if near:
+            n0 = min(near, key=lambda n: n["distance"]["m"])
+            message += f" The nearest zone is {n0['zone_id']}, {n0['distance']['m']:.0f} m away."
+    if "coordinates_suspect" in flags and g < 0 and abs(lon) <= 90 and lat != lon:
+        message += f" Did you mean {lon:g},{lat:g} (latitude and longitude swapped)?"
+    others = []
+    for k, layer in enumerate(layers):
+        if k == g:
+            continue
+        st, _ = ctx["per_layer"][k]
+        h = ctx["hits"][k]
+        psf = h.value_psf[0] if st[0] == 0 else math.nan
+        others.append(
+            {
+                "name": layer.name,
+                "status": STATUSES[int(st[0])] if h.covered[0] else "no_data",
+                "pg": load_json(psf) if math.isfinite(psf) else None,
+                "zone_id": h.zone_id[0] or None,
+                "sha256": layer.sha256,
+            }
+        )
+    usable = status in ("ok", "provisional")
+    roof_json = None
+    roof_result = None
+    std = str(gov_layer.meta.get("standard", "")) if gov_layer is not None else ""
+    if roof is not None and usable and not roof_engine_accepts(std):
+        flags = sorted(set(flags) | {"roof_standard_unsupported"})
+        message += (
+            f" No roof snow loads were computed: the layer maps ground loads for {std},"
+            f" and neve's roof engine covers {', '.join(ROOF_ENGINE_STANDARDS)} ground loads only."
+        )
+    elif roof is not None:
+        if usable:
+            from neve.engine import analyze_roof
+
+            roof_result = analyze_roof(float(row["pg_psf"]), roof)
+            roof_json = roof_result.to_json()
+            if status == "provisional":
+                limiting = ", ".join(f for f in flags if f != "demo_data")
+                roof_json["flags"] = sorted(set(roof_json["flags"]) | {"ground_provisional"})
+                roof_json["cautions"].insert(
+                    0,
+                    f"These roof loads follow from a provisional ground snow load ({limiting});"
+                    " resolve those flags before design.",
+                )
+        else:
+            message += f" No roof snow loads were computed: the ground status is {status}."
+    cautions = list(CAUTIONS)
+    if any(layer.demo for layer in layers):
+        cautions.insert(0, DEMO_CAUTION)
+    elev_ft = _num(row["elevation_ft"])
+    dist = _num(row["distance_to_other_m"])
+    ground = {
+        "status": status,
+        "pg": load_json(row["pg_psf"]) if usable else None,
+        "zone_id": row["zone_id"] or None,
+        "zone_ids": [z for z in row["zone_ids"].split(";") if z],
+        "rule": row["rule"] or None,
+        "flags": flags,
+        "message": message,
+        "elevation": length_json(elev_ft),
+        "elevation_source": row["elevation_source"],
+        "dem_elevation": length_json(_num(row["dem_elevation_ft"])),
+        "elevation_rule": elevation_source,
+        "elevation_alternatives": _alternatives(row),
+        "distance_to_other": None if dist is None else length_json(dist * FT_PER_M),
+        "neighbours": neighbours,
+        "layer": gov_layer.info() if gov_layer is not None else None,
+        "layers": [layer.info() for layer in layers],
+        "other_layers": others,
+        "steps": steps,
+        "cautions": cautions,
+    }
+    site = {
+        "lat": lat,
+        "lon": lon,
+        "name": name,
+        "project": project,
+        "input": given if given is not None else f"{lat:g},{lon:g}",
+    }
+    if address is not None:
+        site["address"] = address
+    ground, nonfinite = _finite(ground)
+    if nonfinite:  # never NaN or infinity in an output: null, and said so
+        ground["flags"] = sorted(set(ground["flags"]) | {"non_finite_value"})
+        ground["message"] += " A value that is not a finite number was reported as null."
+    return SiteResult(site, ground, roof_json, list(layers), row, roof_result)

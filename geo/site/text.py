@@ -1,0 +1,88 @@
+"""The readable ``--format text`` summary of a resolved site."""
+
+from __future__ import annotations
+
+from neve.engine.printable import printable
+
+DEMO_BANNER = "*** DEMO DATA — invented values, never for design ***"
+
+
+def _num(x, spec: str) -> str:
+    return "—" if x is None else format(x, spec)
+
+
+def _load(x: dict | None) -> str:
+    """A load as ``35 psf (1.676 kPa)``: psf first, its kPa twin in brackets."""
+    return "—" if x is None else f"{_num(x['psf'], 'g')} psf ({_num(x['kPa'], 'g')} kPa)"
+
+
+def _length(x: dict | None) -> str:
+    return "—" if x is None else f"{_num(x['ft'], '.0f')} ft ({_num(x['m'], '.1f')} m)"
+
+
+def site_text(result, show_steps: bool = True) -> str:
+    """Summary lines: site, ground status and value, zone, flags, elevation, layer, roof."""
+    s, g, roof = result.site, result.ground, result.roof
+    lines: list[str] = []
+    if result.demo:
+        lines += [DEMO_BANNER, ""]
+    where = f"{s['lat']:.6f}, {s['lon']:.6f}"
+    if s.get("address"):
+        where = f"{s['address']}  ({where})"
+    lines.append(f"Site:        {where}")
+    if s.get("name") or s.get("project"):
+        lines.append(f"Name:        {s.get('name') or '—'}    Project: {s.get('project') or '—'}")
+    lines.append(f"Status:      {g['status']}")
+    lines.append(f"Ground pg:   {_load(g['pg'])}")
+    zone = g["zone_id"] or "—"
+    if len(g["zone_ids"]) > 1:
+        zone += f"  (overlapping: {', '.join(g['zone_ids'])})"
+    lines.append(f"Zone:        {zone}    rule: {g['rule'] or '—'}")
+    lines.append(f"Flags:       {', '.join(g['flags']) if g['flags'] else 'none'}")
+    lines.append(f"Elevation:   {_length(g['elevation'])}  source: {g['elevation_source']}")
+    if g["dem_elevation"] is not None and g["elevation_source"] != "dem":
+        lines.append(f"DEM:         {_length(g['dem_elevation'])}")
+    for alt in g.get("elevation_alternatives") or []:  # given elevation and DEM disagree
+        where = "given" if alt["source"] == "input" else "DEM"
+        role = "governs" if alt["governs"] else "does not govern"
+        lines.append(
+            f"  at {where:5} {_length(alt['elevation'])}: {alt['status']}, "
+            f"pg {_load(alt['pg'])} ({role})"
+        )
+    if g["distance_to_other"] is not None:
+        lines.append(
+            f"Other value: nearest zone with another value {_length(g['distance_to_other'])}"
+        )
+    layer = g["layer"]
+    if layer is not None:
+        lines.append(f"Layer:       {layer['name']} ({layer['jurisdiction']})")
+        lines.append(f"             {layer['standard']}; source: {layer['source']}")
+        lines.append(f"             SHA-256 {layer['sha256']}")
+    for other in g["other_layers"]:
+        lines.append(
+            f"Also:        {other['name']}: {other['status']}, pg {_load(other['pg'])}, "
+            f"zone {other['zone_id'] or '—'}"
+        )
+    lines.append("")
+    lines.append(g["message"])
+    if g["steps"]:
+        lines.append("")
+        lines.append("Ground value steps:")
+        for st in g["steps"]:
+            value = "" if st["value"] is None else f" = {st['value']:g} {st['unit']}"
+            lines.append(f"  {st['symbol']}: {st['description']}: {st['substituted']}{value}")
+    if roof is not None:
+        lines.append("")
+        from neve.cli.roof import roof_text
+
+        lines.append(f"Roof ({roof['standard']}):")
+        body = roof_text(roof, show_steps=show_steps, show_cautions=False)
+        lines += ["  " + line if line else "" for line in body.splitlines()]
+        if "ground_provisional" in roof.get("flags", []):
+            lines.append(f"  ! {roof['cautions'][0]}")
+    lines.append("")
+    lines.append("Cautions:")
+    lines += [f"  - {c}" for c in g["cautions"]]
+    if result.demo:
+        lines += ["", DEMO_BANNER]
+    return printable("\n".join(lines))

@@ -1,0 +1,55 @@
+"""``neve layer``: check a zone layer, or draw it on a map."""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import click
+
+from neve.engine.errors import InputError
+from neve.engine.printable import printable
+
+
+@click.group("layer")
+def layer() -> None:
+    """Check or show a zone layer (vector or raster, with its .toml sidecar)."""
+
+
+@layer.command("check")
+@click.argument("layer_path", metavar="LAYER", type=click.Path(dir_okay=False))
+@click.option("--format", "fmt", type=click.Choice(["text", "json"]), default="text",
+              show_default=True)  # fmt: skip
+def check(layer_path: str, fmt: str) -> None:
+    """Report the defects of LAYER; exit 0 when clean, 1 when problems are found, 2 unreadable."""
+    from neve.geo.layers.check import check_layer, check_text
+
+    report = check_layer(layer_path)
+    if fmt == "json":
+        click.echo(json.dumps(report, indent=2, ensure_ascii=False))
+    else:
+        click.echo(printable(check_text(report)))
+    if not report["ok"]:
+        raise click.exceptions.Exit(1)
+
+
+@layer.command("show")
+@click.argument("layer_path", metavar="LAYER", type=click.Path(dir_okay=False))
+@click.option("--map", "map_path", required=True, type=click.Path(dir_okay=False),
+              help="HTML map to write.")  # fmt: skip
+@click.option("--tiles", type=click.Choice(["none", "osm"]), default="none", show_default=True)
+@click.option("--self-contained", is_flag=True, help="Inline the map's scripts and styles.")
+@click.option("--overwrite", is_flag=True, help="Replace an existing map.")
+def show(layer_path: str, map_path: str, tiles: str, self_contained: bool, overwrite: bool) -> None:
+    """Draw LAYER and the problems `neve layer check` finds on an HTML map."""
+    from neve.geo.layers.check import check_layer
+    from neve.geo.layers.model import load_layer
+
+    if Path(map_path).exists() and not overwrite:
+        raise InputError("map", f"{map_path!r} exists", "a new path, or --overwrite")
+    report = check_layer(layer_path)
+    view = load_layer(layer_path).view(center=None)
+    from neve.maps.layer_map import write_layer_map
+
+    write_layer_map(view, report["problems"], map_path, tiles=tiles, self_contained=self_contained)
+    click.echo(f"Wrote map: {map_path} ({len(report['problems'])} problem(s) marked)")

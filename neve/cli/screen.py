@@ -1,0 +1,257 @@
+"""``neve screen``: screen a portfolio of sites (a thin shell over :mod:`neve.geo.screen.run`)."""
+
+from __future__ import annotations
+
+import signal
+import sys
+from pathlib import Path
+
+import click
+
+from neve.engine.errors import InputError
+from neve.cli.options import (
+    ROOF_OPTION_KEYS,
+    dem_units_option,
+    elevation_source_option,
+    read_toml,
+    roof_options,
+)
+
+
+def _roof(kwargs: dict):
+    """One Roof, a dict of profiles, or None, from --roof and the roof options."""
+    from neve.engine.roof_spec import Roof
+    from neve.geo.screen.run import roofs_from_mapping
+
+    given = {k: kwargs.get(k) for k in ROOF_OPTION_KEYS if kwargs.get(k) is not None}
+    if kwargs.get("roof_file"):
+        return roofs_from_mapping(read_toml(kwargs["roof_file"], "roof"), given)
+    return Roof.from_mapping(given) if given else None
+
+
+def _terminate(signum, frame):  # pragma: no cover - exercised through a subprocess test
+    raise KeyboardInterrupt(f"signal {signum}")
+
+
+@click.command("screen")
+@click.argument("sites", type=click.Path(dir_okay=False))
+@click.option(
+    "-o",
+    "--output",
+    "output",
+    required=True,
+    type=click.Path(dir_okay=False),
+    help="Results file: .csv, .xlsx (with a summary sheet), .gpkg or .parquet.",
+)
+@click.option(
+    "--layer",
+    "layers",
+    multiple=True,
+    type=click.Path(dir_okay=False),
+    help="Zone layer (repeat, most local first). Default: the embedded demo layer.",
+)
+@click.option(
+    "--dem",
+    type=click.Path(dir_okay=False),
+    help="Elevation raster (GeoTIFF); 'demo' = the embedded demo DEM.",
+)
+@dem_units_option
+@elevation_source_option
+@roof_options
+@click.option("--map", "map_path", type=click.Path(dir_okay=False), help="Portfolio map (.html).")
+@click.option(
+    "--tiles",
+    type=click.Choice(["none", "osm"], case_sensitive=False),
+    default="none",
+    show_default=True,
+    help="Base tiles under the portfolio map (none works offline).",
+)
+@click.option(
+    "--self-contained",
+    "self_contained",
+    is_flag=True,
+    help="Embed the map's scripts and styles so it opens with no internet.",
+)
+@click.option(
+    "--engine",
+    type=click.Choice(["local", "dask"], case_sensitive=False),
+    default="local",
+    show_default=True,
+    help="Resolve on this machine, or on a Dask cluster.",
+)
+@click.option(
+    "--scheduler",
+    help="Dask scheduler address (tcp://host:8786); a local cluster is started without it.",
+)
+@click.option(
+    "--staging",
+    type=click.Path(file_okay=False),
+    help="Folder shared with the Dask workers for the staged sites (remote clusters).",
+)
+@click.option(
+    "--partitions", type=click.IntRange(min=1), help="Dask partitions (default: automatic)."
+)
+@click.option(
+    "--gazetteer",
+    type=click.Path(dir_okay=False),
+    help="CSV of address,lat,lon used first for address rows.",
+)
+@click.option(
+    "--geocoder-url",
+    "geocoder_url",
+    help="Nominatim-compatible server for address rows (one request per second at most).",
+)
+@click.option(
+    "--geocode-cache",
+    "geocode_cache",
+    type=click.Path(dir_okay=False),
+    help="JSON file keeping found addresses between runs (read, then updated).",
+)
+@click.option("--quiet", is_flag=True, help="No progress bar.")
+@click.option("--overwrite", is_flag=True, help="Replace existing output files.")
+@click.option(
+    "--csv-raw",
+    "csv_raw",
+    is_flag=True,
+    help="CSV output: write text cells as they are. By default a text cell starting with "
+    "=, +, -, @, tab or CR that is not a plain number gets a leading ' so that spreadsheets "
+    "show it as text.",
+)
+@click.option(
+    "--summary-json",
+    "summary_json",
+    type=click.Path(dir_okay=False),
+    help="Also write the run summary as JSON to this file.",
+)
+def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, tiles, self_contained, engine, scheduler, staging, partitions,
+           gazetteer, geocoder_url, geocode_cache, quiet, overwrite, csv_raw, summary_json, **roof_kw):  # fmt: skip
+    """Screen a portfolio: ground snow load (and roof loads) for every site in SITES.
+
+    SITES is a CSV, XLSX, GeoPackage or Parquet file with lat/lon (or
+    latitude/longitude), an address, or point geometry; an optional
+    elevation carries its unit in the cell (1200ft, 412m) or in the column
+    name (elevation_ft, elevation_m).  Every row comes back in order with
+    status, flags and message.
+
+    Results are an aid to, not a substitute for, a licensed design
+    professional. Confirm ground snow loads with the authority having
+    jurisdiction; flagged sites need a site-specific case study.
+    """
+    import json
+
+    from neve.geo.screen.outputs import (
+        XLSX_MAX_ROWS,
+        check_distinct,
+        check_target,
+        result_format,
+        write_results,
+    )
+    from neve.geo.screen.run import format_summary, run_screen
+
+    # check every target before any work, so a refusal costs nothing
+    fmt = result_format(output)
+    check_distinct(
+        {"output": output, "summary-json": summary_json, "map": map_path,
+         "geocode-cache": geocode_cache},
+        {"sites": sites, "gazetteer": gazetteer, "layer": list(layers), "dem": dem,
+         "roof": roof_kw.get("roof_file")},
+    )  # fmt: skip
+    if csv_raw and fmt != "csv":
+        raise InputError("csv-raw", f"given for a .{fmt} output", "--csv-raw with a .csv output")
+    check_target(output, overwrite)
+    if map_path:
+        if Path(map_path).suffix.lower() not in (".html", ".htm"):
+            raise InputError("map", f"{map_path!r} is not an .html path", "a path ending in .html")
+        check_target(map_path, overwrite, "map")
+    if summary_json:
+        check_target(summary_json, overwrite, "summary-json")
+    if scheduler and engine.lower() != "dask":
+        raise InputError(
+            "scheduler", "given without --engine dask", "--engine dask --scheduler ADDRESS"
+        )
+    if staging and engine.lower() != "dask":
+        raise InputError("staging", "given without --engine dask", "--engine dask --staging DIR")
+    if partitions and engine.lower() != "dask":
+        raise InputError(
+            "partitions", "given without --engine dask", "--engine dask --partitions N"
+        )
+    roof = _roof(roof_kw)
+    progress = not quiet and sys.stderr.isatty()
+    try:  # a terminated run cleans up its temporary files like an interrupted one
+        previous = signal.signal(signal.SIGTERM, _terminate)
+    except ValueError:  # not the main thread: leave signals alone
+        previous = None
+    try:
+        run = run_screen(
+            sites,
+            layers=list(layers) or None,
+            dem=dem,
+            dem_units=dem_units,
+            elevation_source=elevation_source,
+            roof=roof,
+            engine=engine.lower(),
+            scheduler=scheduler,
+            partitions=partitions,
+            staging=staging,
+            gazetteer=gazetteer,
+            geocoder_url=geocoder_url,
+            geocode_cache=geocode_cache,
+            max_rows=XLSX_MAX_ROWS if fmt == "xlsx" else None,
+            progress=progress,
+        )
+        write_results(
+            run.results,
+            output,
+            overwrite=overwrite,
+            summary=run.summary,
+            geometry=run.geometry,
+            csv_raw=csv_raw,
+        )
+        if map_path:
+            _write_map(run, map_path, overwrite, tiles=tiles, self_contained=self_contained)
+        if summary_json:
+            from neve.geo.screen.outputs import atomic_path
+
+            with atomic_path(summary_json, overwrite=overwrite, field="summary-json") as tmp:
+                tmp.write_text(json.dumps(run.summary, indent=2), encoding="utf-8")
+    finally:
+        if previous is not None:
+            signal.signal(signal.SIGTERM, previous)
+    click.echo(format_summary(run.summary))
+    click.echo(f"results: {output}")
+    if map_path:
+        click.echo(f"map: {map_path}")
+
+
+def map_frame(results):
+    """The results as the portfolio map reads them: ``lat``/``lon`` are the coordinates used."""
+    view = results.copy(deep=False)
+    for col in ("lat", "lon", "site_id"):
+        if col in view.columns:
+            view = view.rename(columns={col: f"input_{col}"})
+    view["lat"] = results["site_lat"]
+    view["lon"] = results["site_lon"]
+    if "site_id" in results.columns:
+        view["site_id"] = results["site_id"].astype(str)
+    else:  # row numbers as in the site file (1 = first data row)
+        view["site_id"] = [f"row {i + 1}" for i in range(len(results))]
+    return view
+
+
+def _write_map(
+    run, map_path: str, overwrite: bool, *, tiles: str = "none", self_contained: bool = False
+) -> None:
+    try:
+        from neve.maps.portfolio import write_portfolio_map
+    except ImportError as exc:  # pragma: no cover - until the maps package lands
+        raise InputError("map", f"the portfolio map is not available ({exc})", "no --map") from None
+    from neve.geo.screen.outputs import atomic_path
+
+    with atomic_path(map_path, overwrite=overwrite, field="map") as tmp:
+        write_portfolio_map(
+            map_frame(run.results),
+            tmp,
+            demo=bool(run.summary.get("demo")),
+            tiles=tiles,
+            self_contained=self_contained,
+        )

@@ -1,0 +1,142 @@
+"""``neve site``: ground and roof snow loads for one site (a thin shell over neve.geo.site.one)."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import click
+
+from neve.engine.errors import InputError
+from neve.engine.jsonsafe import dumps, finite_copy
+from neve.cli.options import (
+    dem_units_option,
+    elevation_source_option,
+    roof_from_options,
+    roof_options,
+)
+
+
+def _check_output(path: str | None, field: str, overwrite: bool, is_dir: bool = False) -> None:
+    if path is not None and is_dir:
+        from neve.maps.target import check_package_target
+
+        check_package_target(path, overwrite)
+        return
+    if path is None or overwrite:
+        return
+    p = Path(path)
+    if is_dir and p.is_dir() and not any(p.iterdir()):
+        return
+    if p.exists():
+        raise InputError(field, f"{str(p)!r} exists", "a new path, or --overwrite")
+
+
+@click.command("site")
+@click.option("--at", "at", metavar="LAT,LON", help="Site coordinates, decimal or DMS.")
+@click.option("--address", help="Site address (needs --gazetteer or --geocoder-url).")
+@click.option("--elevation", help="Site elevation with its unit, e.g. 412m or 1350ft.")
+@click.option(
+    "--dem",
+    help="DEM GeoTIFF to sample the elevation from (any CRS); 'demo' = the embedded demo DEM.",
+)
+@dem_units_option
+@elevation_source_option
+@click.option(
+    "--layer",
+    "layers",
+    multiple=True,
+    type=click.Path(dir_okay=False),
+    help="Zone layer (repeat, most local first). Default: the embedded DEMO layers.",
+)
+@roof_options
+@click.option("--site-name", help="Name of the site for reports.")
+@click.option("--project", help="Project name for reports.")
+@click.option("--map", "map_path", type=click.Path(dir_okay=False), help="Write a site map (HTML).")
+@click.option("--package", "package_dir", type=click.Path(file_okay=False),
+              help="Write a calculation package into this folder.")  # fmt: skip
+@click.option("--tiles", type=click.Choice(["none", "osm"]), default="none", show_default=True,
+              help="Background tiles of the map (osm needs internet).")  # fmt: skip
+@click.option("--self-contained", is_flag=True, help="Inline the map's scripts and styles.")
+@click.option("--overwrite", is_flag=True, help="Replace existing --map/--package outputs.")
+@click.option("--format", "fmt", type=click.Choice(["text", "json"]), default="text",
+              show_default=True)  # fmt: skip
+@click.option("--gazetteer", type=click.Path(dir_okay=False),
+              help="Offline address list: CSV with address,lat,lon.")  # fmt: skip
+@click.option("--geocoder-url",
+              help="Nominatim-compatible geocoding server, e.g. http://localhost:8080.")  # fmt: skip
+@click.option("--user-agent", help="User agent sent to the geocoding server.")
+@click.option("--geocoder-timeout", type=float, default=10.0, show_default=True,
+              help="Seconds to wait for the geocoding server.")  # fmt: skip
+def site(**kw) -> None:
+    """Ground snow load of a site from zone layers, and roof snow loads when a roof is given.
+
+    Without --layer the embedded, invented DEMO layers are used: never for design.
+    Results are an aid to a licensed design professional; confirm ground snow loads
+    with the authority having jurisdiction; flagged sites need a site-specific study.
+    """
+    from neve.geo.site.coords import parse_latlon
+    from neve.geo.site.one import resolve_site
+
+    if bool(kw["at"]) == bool(kw["address"]):
+        raise InputError(
+            "at", "give exactly one of --at LAT,LON or --address TEXT", "--at 47.5,-140"
+        )
+    roof = roof_from_options(kw)
+    _check_output(kw["map_path"], "map", kw["overwrite"])
+    _check_output(kw["package_dir"], "package", kw["overwrite"], is_dir=True)
+    address = None
+    if kw["at"]:
+        lat, lon = parse_latlon(kw["at"])
+        given = kw["at"]
+    else:
+        from neve.geo.site.geocode import geocode
+
+        hit = geocode(
+            kw["address"],
+            gazetteer=kw["gazetteer"],
+            url=kw["geocoder_url"],
+            user_agent=kw["user_agent"],
+            timeout=kw["geocoder_timeout"],
+        )
+        lat, lon, address, given = hit.lat, hit.lon, hit.address, kw["address"]
+    result = resolve_site(
+        lat,
+        lon,
+        elevation=kw["elevation"],
+        dem=kw["dem"],
+        dem_units=kw["dem_units"],
+        layers=list(kw["layers"]) or None,
+        roof=roof,
+        name=kw["site_name"],
+        project=kw["project"],
+        address=address,
+        given=given,
+        elevation_source=kw["elevation_source"],
+    )
+    data = finite_copy(result.to_json())  # no NaN or infinity in any output: null + a flag
+    if kw["map_path"] or kw["package_dir"]:
+        views = result.views()
+        if kw["map_path"]:
+            from neve.maps.site_map import write_site_map
+
+            write_site_map(
+                data, views, kw["map_path"], tiles=kw["tiles"], self_contained=kw["self_contained"]
+            )
+        if kw["package_dir"]:
+            from neve.maps.package import write_package
+
+            write_package(
+                data,
+                views,
+                kw["package_dir"],
+                project=kw["project"],
+                site_name=kw["site_name"],
+                overwrite=kw["overwrite"],
+            )
+    if kw["fmt"] == "json":
+        click.echo(dumps(data, indent=2, ensure_ascii=False))
+    else:
+        click.echo(result.to_text())
+        for what, path in (("map", kw["map_path"]), ("package", kw["package_dir"])):
+            if path:
+                click.echo(f"Wrote {what}: {path}")
