@@ -16,9 +16,9 @@ import numpy as np
 import pandas as pd
 
 from neve.engine.errors import InputError
+from neve.engine.printable import printable
 from neve.engine.roof import CAUTIONS
 from neve.engine.units import KPA_PER_PSF
-from neve.engine.printable import printable
 
 #: accepted result suffixes -> format name
 RESULT_FORMATS = {

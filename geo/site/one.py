@@ -20,10 +20,10 @@ from neve.engine.roof import CAUTIONS
 from neve.engine.steps import Step, fmt
 from neve.engine.units import FT_PER_M, KPA_PER_PSF, M_PER_FT, length_json, load_json
 from neve.geo.layers import rules as R
-from neve.geo.site.coords import check_range
-from neve.geo.site.elevation import MISMATCH_M, check_dem_options, parse_elevation
 from neve.geo.layers.explain import explain
 from neve.geo.layers.model import as_layers, dem_argument
+from neve.geo.site.coords import check_range
+from neve.geo.site.elevation import MISMATCH_M, check_dem_options, parse_elevation
 from neve.geo.site.resolve import ELEVATION_SOURCES, STATUSES, resolve_detail
 
 #: radius within which neighbouring zones are listed for one site [m]

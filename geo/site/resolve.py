@@ -39,6 +39,8 @@ import pandas as pd
 from neve.engine.errors import InputError
 from neve.engine.units import KPA_PER_PSF, M_PER_FT
 from neve.geo.layers import rules as R
+from neve.geo.layers.model import as_layers
+from neve.geo.layers.vector import NONE, Hits, layer_hits
 from neve.geo.site.coords import suspect_mask, valid_mask
 from neve.geo.site.elevation import (
     DEM_MAX_M,
@@ -48,8 +50,6 @@ from neve.geo.site.elevation import (
     plausible_dem,
     sample_dem,
 )
-from neve.geo.layers.model import as_layers
-from neve.geo.layers.vector import NONE, Hits, layer_hits
 
 STATUSES = ("ok", "provisional", "study_required", "no_data", "error")
 OK, PROVISIONAL, STUDY, NO_DATA, ERROR = range(5)

@@ -4,11 +4,11 @@ from __future__ import annotations
 
 import click
 
+from neve.cli.options import roof_mapping, roof_options
 from neve.engine.errors import InputError
 from neve.engine.jsonsafe import dumps
-from neve.engine.roof_spec import Roof, parse_pg
-from neve.cli.options import roof_mapping, roof_options
 from neve.engine.printable import printable
+from neve.engine.roof_spec import Roof, parse_pg
 
 
 def _once(field: str, values: tuple):

@@ -8,7 +8,6 @@ from pathlib import Path
 
 import click
 
-from neve.engine.errors import InputError
 from neve.cli.options import (
     ROOF_OPTION_KEYS,
     dem_units_option,
@@ -16,6 +15,7 @@ from neve.cli.options import (
     read_toml,
     roof_options,
 )
+from neve.engine.errors import InputError
 
 
 def _roof(kwargs: dict):

@@ -6,14 +6,14 @@ from pathlib import Path
 
 import click
 
-from neve.engine.errors import InputError
-from neve.engine.jsonsafe import dumps, finite_copy
 from neve.cli.options import (
     dem_units_option,
     elevation_source_option,
     roof_from_options,
     roof_options,
 )
+from neve.engine.errors import InputError
+from neve.engine.jsonsafe import dumps, finite_copy
 
 
 def _check_output(path: str | None, field: str, overwrite: bool, is_dir: bool = False) -> None:

@@ -9,9 +9,9 @@ import pytest
 from click.testing import CliRunner
 from shapely.geometry import Polygon, box
 
+from neve.cli import main
 from neve.engine.errors import LayerError
 from neve.geo.layers.check import check_layer, geodesic_area_m2
-from neve.cli import main
 
 from .conftest import FIXTURE_META, LAT0, LON0, fixture_rows, toml_text, write_layer
 

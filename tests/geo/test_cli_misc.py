@@ -10,8 +10,8 @@ import sys
 import pytest
 from click.testing import CliRunner
 
-import neve.geo.site.coords
 import neve.geo.layers.formula
+import neve.geo.site.coords
 from neve.cli import main
 
 from .test_cli_site import DEMO_AT, ROOF

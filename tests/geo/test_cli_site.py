@@ -11,8 +11,8 @@ import sys
 import pytest
 from click.testing import CliRunner
 
-from neve.engine.units import KPA_PER_PSF
 from neve.cli import main
+from neve.engine.units import KPA_PER_PSF
 from neve.geo.site.one import resolve_site
 
 from .conftest import LAT0, LON0, D, centre, fixture_rows, write_layer

@@ -16,8 +16,8 @@ from urllib.parse import parse_qs, urlsplit
 import pytest
 from click.testing import CliRunner
 
-from neve.engine.errors import InputError
 from neve.cli import main
+from neve.engine.errors import InputError
 from neve.geo.site.geocode import GeocodeError, geocode, normalise
 
 PLACES = {

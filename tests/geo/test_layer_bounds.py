@@ -26,9 +26,9 @@ import pytest
 from click.testing import CliRunner
 from shapely.geometry import Polygon, box
 
+from neve.cli import main
 from neve.geo.layers import rules as R
 from neve.geo.layers.check import check_layer
-from neve.cli import main
 from neve.geo.layers.formula import ExpressionError, compile_expr
 from neve.geo.layers.model import load_layer
 from neve.geo.site.resolve import resolve_points

@@ -16,12 +16,12 @@ import numpy as np
 import pytest
 from click.testing import CliRunner
 
+from neve.cli import main
 from neve.engine.errors import InputError
 from neve.engine.units import FT_PER_M, M_PER_FT
-from neve.cli import main
 from neve.geo.site.elevation import DEM_MAX_M, DEM_MIN_M, MISMATCH_M, plausible_dem, stated_unit
-from neve.geo.site.resolve import more_demanding, resolve_points
 from neve.geo.site.one import resolve_site
+from neve.geo.site.resolve import more_demanding, resolve_points
 
 from .conftest import LAT0, LON0, D, write_dem, write_layer
 

@@ -27,8 +27,8 @@ import pandas as pd
 import pytest
 from click.testing import CliRunner
 
-from neve.engine.errors import InputError
 from neve.cli import main
+from neve.engine.errors import InputError
 
 SW = ("44.5", "-109.5")  # inside the fixture grid's SW zone (fixed, 25 psf)
 SE = ("44.5", "-108.5")  # SE zone (fixed, 40 psf)

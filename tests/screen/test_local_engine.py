@@ -11,6 +11,7 @@ import pytest
 
 from neve.engine.errors import InputError
 from neve.geo.layers.model import load_layer
+from neve.geo.layers.vector import layer_hits
 from neve.geo.screen.local import (
     THREADED_FROM,
     portable_layer,
@@ -18,7 +19,6 @@ from neve.geo.screen.local import (
     resolve_local,
     worker_threads,
 )
-from neve.geo.layers.vector import layer_hits
 from tests.screen.conftest import zone_of
 
 
@@ -139,10 +139,10 @@ def test_progress_bar_counts_sites_and_is_silent_when_off(capsys):
 
 def test_names_stay_importable_from_their_old_modules():
     """After the split, the names README and callers use still import from where they were."""
-    import neve.geo.screen.local as le
-    import neve.geo.screen.run as gs
     import neve.geo.screen.geocode_rows as sg
+    import neve.geo.screen.local as le
     import neve.geo.screen.read as sr
+    import neve.geo.screen.run as gs
     import neve.geo.screen.sitefile as sf
 
     for name in ("portable_layer", "worker_threads", "resolve_local", "CHUNK_SIZE",
