@@ -1,0 +1,444 @@
+"""The shape of the house (issue 9): import directions, no circles, one CLI, one exception root.
+
+Source of every check: issue 9 ("no import circle and no library -> CLI import
+remains"; "every option defined once and shared"; "one exception root") and
+DEVELOPERS.md, "Layout and dependency direction" (engine imports nothing of the
+others, reads no file, imports no GIS library). These are structural
+regression guards: they read the source with :mod:`ast`, nothing is imported
+to build the graph, so a module that fails to import still shows its edges.
+
+The graph has one node per module of the ``neve`` import package (the folders
+mapped into it by ``[tool.setuptools] package-dir`` in pyproject.toml) and one
+edge per ``import``/``from ... import`` statement, wherever it stands (module
+level or inside a function), resolved relative imports included. Imports under
+``if TYPE_CHECKING:`` never run and are left out. ``from pkg import name`` is an
+edge to ``pkg.name`` when that is a module, else to ``pkg``. Implicit imports
+of parent packages are not edges (every module would otherwise reach its own
+``__init__``).
+"""
+
+from __future__ import annotations
+
+import ast
+import sys
+import tomllib
+from functools import cache
+from pathlib import Path
+
+import click
+import pytest
+
+ROOT = Path(__file__).resolve().parents[2]
+
+#: the stdlib and numpy: all the engine may import (DEVELOPERS.md: "numpy only")
+ENGINE_THIRD_PARTY_ALLOWED = {"numpy"}
+
+#: modules outside neve.cli allowed to import it: the ``python -m neve`` entry point
+CLI_ENTRY_POINTS = {"neve.__main__"}
+
+
+def _package_dirs() -> dict[str, Path]:
+    conf = tomllib.loads((ROOT / "pyproject.toml").read_text(encoding="utf-8"))
+    return {pkg: ROOT / folder for pkg, folder in conf["tool"]["setuptools"]["package-dir"].items()}
+
+
+@cache
+def modules() -> dict[str, Path]:
+    """Every module of the neve package: dotted name -> file."""
+    dirs = _package_dirs()
+    out: dict[str, Path] = {}
+    for pkg, folder in dirs.items():
+        for path in folder.rglob("*.py"):
+            rel = path.relative_to(folder).with_suffix("")
+            parts = [p for p in rel.parts if p != "__init__"]
+            name = ".".join([pkg, *parts])
+            # a sub-folder mapped to its own package is listed under that package
+            owner = max((p for p in dirs if name == p or name.startswith(p + ".")), key=len)
+            if owner == pkg:
+                out[name] = path
+    return out
+
+
+def _is_package(name: str) -> bool:
+    return modules()[name].name == "__init__.py"
+
+
+def _type_checking_blocks(tree: ast.AST) -> set[int]:
+    """ids of the nodes inside ``if TYPE_CHECKING:`` (or ``typing.TYPE_CHECKING``)."""
+    skip: set[int] = set()
+    for node in ast.walk(tree):
+        if isinstance(node, ast.If):
+            test = node.test
+            name = getattr(test, "id", None) or getattr(test, "attr", None)
+            if name == "TYPE_CHECKING":
+                for child in node.body:
+                    skip.update(id(n) for n in ast.walk(child))
+    return skip
+
+
+def imports_of(name: str) -> list[tuple[str, int]]:
+    """Every absolute module name ``name`` imports (with the line), as written and resolved."""
+    path = modules()[name]
+    tree = ast.parse(path.read_text(encoding="utf-8"), filename=str(path))
+    skip = _type_checking_blocks(tree)
+    package = name if _is_package(name) else name.rpartition(".")[0]
+    out: list[tuple[str, int]] = []
+    for node in ast.walk(tree):
+        if id(node) in skip:
+            continue
+        if isinstance(node, ast.Import):
+            out += [(alias.name, node.lineno) for alias in node.names]
+        elif isinstance(node, ast.ImportFrom):
+            if node.level:
+                base_parts = package.split(".")
+                base_parts = base_parts[: len(base_parts) - (node.level - 1)]
+                base = ".".join(base_parts + ([node.module] if node.module else []))
+            else:
+                base = node.module or ""
+            for alias in node.names:
+                out.append((f"{base}.{alias.name}", node.lineno))
+                out.append((base, node.lineno))
+    return out
+
+
+def _resolve(target: str) -> str | None:
+    """The module of the package a dotted import target names, or None if outside neve."""
+    mods = modules()
+    while target:
+        if target in mods:
+            return target
+        target = target.rpartition(".")[0]
+    return None
+
+
+@cache
+def graph() -> dict[str, set[str]]:
+    out: dict[str, set[str]] = {}
+    for name in modules():
+        edges = set()
+        for target, _ in imports_of(name):
+            mod = _resolve(target)
+            if mod is not None and mod != name:
+                edges.add(mod)
+        out[name] = edges
+    return out
+
+
+def _cycles(g: dict[str, set[str]]) -> list[list[str]]:
+    """Strongly connected components with more than one module (Tarjan)."""
+    index: dict[str, int] = {}
+    low: dict[str, int] = {}
+    stack: list[str] = []
+    on: set[str] = set()
+    found: list[list[str]] = []
+    counter = [0]
+    sys.setrecursionlimit(max(sys.getrecursionlimit(), 10_000))
+
+    def visit(v: str) -> None:
+        index[v] = low[v] = counter[0]
+        counter[0] += 1
+        stack.append(v)
+        on.add(v)
+        for w in g.get(v, ()):
+            if w not in index:
+                visit(w)
+                low[v] = min(low[v], low[w])
+            elif w in on:
+                low[v] = min(low[v], index[w])
+        if low[v] == index[v]:
+            comp = []
+            while True:
+                w = stack.pop()
+                on.discard(w)
+                comp.append(w)
+                if w == v:
+                    break
+            if len(comp) > 1:
+                found.append(sorted(comp))
+
+    for v in sorted(g):
+        if v not in index:
+            visit(v)
+    return found
+
+
+def test_the_graph_sees_the_whole_package():
+    """The graph is not empty by accident: each room is there, with its edges."""
+    mods = modules()
+    for name in ("neve", "neve.cli", "neve.engine.roof", "neve.geo.layers.vector",
+                 "neve.geo.site.one", "neve.geo.screen.run", "neve.maps.package"):  # fmt: skip
+        assert name in mods, name
+    assert "neve.engine.units" in graph()["neve.engine.roof_spec"]
+
+
+def test_the_checker_finds_a_circle_and_skips_type_checking():
+    """The cycle finder itself, on a hand-made graph (a check that can fail)."""
+    assert _cycles({"a": {"b"}, "b": {"c"}, "c": {"a"}, "d": {"a"}}) == [["a", "b", "c"]]
+    assert _cycles({"a": {"b"}, "b": set()}) == []
+    tree = ast.parse("from typing import TYPE_CHECKING\nif TYPE_CHECKING:\n    import x\nimport y\n")
+    skipped = _type_checking_blocks(tree)
+    names = [a.name for n in ast.walk(tree) if isinstance(n, ast.Import) and id(n) not in skipped
+             for a in n.names]  # fmt: skip
+    assert names == ["y"]
+
+
+def test_no_import_circles():
+    """No module reaches itself through imports, function-level imports included."""
+    assert _cycles(graph()) == []
+
+
+def test_no_library_module_imports_the_cli():
+    offenders = [
+        f"{name}:{line} imports {target}"
+        for name in modules()
+        if not (name == "neve.cli" or name.startswith("neve.cli.")) and name not in CLI_ENTRY_POINTS
+        for target, line in imports_of(name)
+        if target == "neve.cli" or target.startswith("neve.cli.")
+    ]
+    assert offenders == []
+
+
+def test_the_engine_imports_none_of_the_other_rooms_and_no_io_library():
+    stdlib = set(sys.stdlib_module_names)
+    offenders = []
+    for name in modules():
+        if not name.startswith("neve.engine"):
+            continue
+        for target, line in imports_of(name):
+            top = target.split(".")[0]
+            if target.startswith("neve."):
+                if not (target == "neve.engine" or target.startswith("neve.engine.")):
+                    offenders.append(f"{name}:{line} imports {target}")
+            elif top not in stdlib and top not in ENGINE_THIRD_PARTY_ALLOWED and top != "__future__":
+                offenders.append(f"{name}:{line} imports {target}")
+    assert offenders == []
+
+
+def test_the_engine_reads_no_file():
+    """No ``open``/``Path.read_*``/``tomllib.load`` in the engine (it never reads a file)."""
+    offenders = []
+    for name, path in modules().items():
+        if not name.startswith("neve.engine"):
+            continue
+        for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):
+            if isinstance(node, ast.Call):
+                f = node.func
+                called = getattr(f, "id", None) or getattr(f, "attr", None)
+                if called in {"open", "read_text", "read_bytes", "write_text", "write_bytes",
+                              "load", "print"}:  # fmt: skip
+                    offenders.append(f"{name}:{node.lineno} calls {called}")
+    assert offenders == []
+
+
+def _all_python_files():
+    skip = {".venv", "build", "dist", ".git", "node_modules"}
+    for path in ROOT.rglob("*.py"):
+        if not skip.intersection(path.relative_to(ROOT).parts):
+            yield path
+
+
+def test_nothing_imports_the_old_top_level_names():
+    """engine, geo and maps exist only as neve.engine, neve.geo, neve.maps (code and tests)."""
+    offenders = []
+    for path in _all_python_files():
+        tree = ast.parse(path.read_text(encoding="utf-8"), filename=str(path))
+        for node in ast.walk(tree):
+            names = []
+            if isinstance(node, ast.Import):
+                names = [a.name for a in node.names]
+            elif isinstance(node, ast.ImportFrom) and not node.level and node.module:
+                names = [node.module]
+            for n in names:
+                if n.split(".")[0] in {"engine", "geo", "maps"}:
+                    offenders.append(f"{path.relative_to(ROOT)}:{node.lineno} imports {n}")
+    assert offenders == []
+
+
+# --- one exception root ------------------------------------------------------------
+
+#: exception classes a library module may raise directly: the neve hierarchy, plus
+#: the protocol exceptions Python itself requires of some methods
+ALLOWED_RAISES = {"AttributeError", "StopIteration", "NotImplementedError", "KeyboardInterrupt"}
+
+
+def _neve_error_names() -> set[str]:
+    """Names of the NeveError classes (defined in neve.engine.errors or subclassing them)."""
+    names = {"NeveError"}
+    trees = {n: ast.parse(p.read_text(encoding="utf-8")) for n, p in modules().items()}
+    grew = True
+    while grew:
+        grew = False
+        for tree in trees.values():
+            for node in ast.walk(tree):
+                if isinstance(node, ast.ClassDef) and node.name not in names:
+                    bases = {getattr(b, "id", None) or getattr(b, "attr", None) for b in node.bases}
+                    if bases & names:
+                        names.add(node.name)
+                        grew = True
+    return names
+
+
+def test_library_raises_only_neve_errors():
+    """A bare ValueError, RuntimeError, LookupError, KeyError or TypeError raised on purpose by
+    the library would escape the CLI as a traceback: every one is a NeveError subclass."""
+    allowed = _neve_error_names() | ALLOWED_RAISES
+    offenders = []
+    for name, path in modules().items():
+        if name.startswith("neve.cli"):
+            continue
+        for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):
+            if isinstance(node, ast.Raise) and node.exc is not None:
+                exc = node.exc.func if isinstance(node.exc, ast.Call) else node.exc
+                called = getattr(exc, "id", None) or getattr(exc, "attr", None)
+                if called and called[0].isupper() and called not in allowed:
+                    offenders.append(f"{name}:{node.lineno} raises {called}")
+    assert offenders == []
+
+
+# --- every option defined once -----------------------------------------------------
+
+
+def _option_decls(path: Path) -> list[tuple[str, int]]:
+    """Every option spelling passed to ``click.option(...)`` in a file, with its line."""
+    out = []
+    for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):
+        if (isinstance(node, ast.Call) and getattr(node.func, "attr", None) == "option"
+                and getattr(node.func.value, "id", None) == "click"):  # fmt: skip
+            for arg in node.args:
+                if isinstance(arg, ast.Constant) and str(arg.value).startswith("-"):
+                    for spelling in str(arg.value).split("/"):
+                        out.append((spelling, node.lineno))
+    return out
+
+
+def test_every_option_is_defined_once():
+    """An option spelling appears in one ``click.option`` call in all of neve/cli."""
+    seen: dict[str, list[str]] = {}
+    for path in sorted((ROOT / "neve" / "cli").glob("*.py")):
+        for spelling, line in _option_decls(path):
+            seen.setdefault(spelling, []).append(f"{path.name}:{line}")
+    assert {k: v for k, v in seen.items() if len(v) > 1} == {}
+
+
+def test_shared_options_live_in_options_py():
+    """Options used by more than one command are defined in neve/cli/options.py only."""
+    here = {s for s, _ in _option_decls(ROOT / "neve" / "cli" / "options.py")}
+    for shared in ("--layer", "--dem", "--dem-units", "--elevation-source", "--format",
+                   "--overwrite", "--tiles", "--self-contained", "--map", "--gazetteer",
+                   "--geocoder-url", "--roof", "--shape", "--slope"):  # fmt: skip
+        assert shared in here, shared
+
+
+def _params(cmd: click.Command) -> list[tuple]:
+    ctx = click.Context(cmd)
+    out = []
+    for p in cmd.params:
+        t = p.type
+        kind = type(t).__name__
+        if isinstance(t, click.Choice):
+            kind = f"Choice{tuple(t.choices)}"
+        default = p.get_default(ctx, call=False)
+        if default == () or "UNSET" in repr(default):  # not given (click 8.2+: a sentinel)
+            default = None
+        spellings = tuple(p.opts) + tuple(getattr(p, "secondary_opts", ()))
+        out.append((p.name, spellings, kind, default, p.multiple, p.required))
+    return sorted(out, key=lambda x: x[0] or "")
+
+
+def _command(*path: str) -> click.Command:
+    from neve.cli import main
+
+    ctx = click.Context(main)
+    cmd = main
+    for name in path:
+        cmd = cmd.get_command(ctx, name)
+    return cmd
+
+
+#: the options of each command before and after the CLI was taken apart (issue 9),
+#: recorded from ``neve <command> --help`` / click's parameters: (name, spellings,
+#: type, default, multiple, required). ``--standard`` is issue 9's one new option.
+_PATH = "Path"
+_ROOF_OPTS = [
+    ("ce", ("--ce",), "StringParamType", None, False, False),
+    ("ct", ("--ct",), "StringParamType", None, False, False),
+    ("eave_to_ridge", ("--eave-to-ridge",), "StringParamType", None, False, False),
+    ("exposure", ("--exposure",), "StringParamType", None, False, False),
+    ("prismatic", ("--prismatic", "--non-prismatic"), "BoolParamType", None, True, False),
+    ("r_value", ("--r-value",), "StringParamType", None, False, False),
+    ("risk", ("--risk",), "StringParamType", None, False, False),
+    ("roof_file", ("--roof",), _PATH, None, False, False),
+    ("shape", ("--shape",), "StringParamType", None, False, False),
+    ("slope", ("--slope",), "StringParamType", None, False, False),
+    ("surface", ("--surface",), "StringParamType", None, False, False),
+    ("terrain", ("--terrain",), "StringParamType", None, False, False),
+    ("thermal", ("--thermal",), "StringParamType", None, False, False),
+    ("unobstructed", ("--unobstructed", "--obstructed"), "BoolParamType", None, True, False),
+    ("ventilated", ("--ventilated", "--unventilated"), "BoolParamType", None, True, False),
+]
+_FORMAT = ("fmt", ("--format",), "Choice('text', 'json')", "text", False, False)
+_DEM = ("dem", ("--dem",), "DemPath", None, False, False)
+_DEM_UNITS = ("dem_units", ("--dem-units",), "DemUnitType", None, False, False)
+_ELEV_SOURCE = ("elevation_source", ("--elevation-source",), "Choice('larger', 'input')",
+                "larger", False, False)  # fmt: skip
+_LAYERS = ("layers", ("--layer",), _PATH, None, True, False)
+_TILES = ("tiles", ("--tiles",), "Choice('none', 'osm')", "none", False, False)
+_SELF_CONTAINED = ("self_contained", ("--self-contained",), "BoolParamType", False, False, False)
+_OVERWRITE = ("overwrite", ("--overwrite",), "BoolParamType", False, False, False)
+_MAP = ("map_path", ("--map",), _PATH, None, False, False)
+_GAZETTEER = ("gazetteer", ("--gazetteer",), _PATH, None, False, False)
+_GEOCODER_URL = ("geocoder_url", ("--geocoder-url",), "StringParamType", None, False, False)
+
+EXPECTED_OPTIONS = {
+    ("roof",): sorted(
+        [*_ROOF_OPTS, _FORMAT,
+         ("pg", ("--pg",), "StringParamType", None, True, True),
+         ("no_steps", ("--no-steps",), "BoolParamType", False, False, False)]
+    ),  # fmt: skip
+    ("site",): sorted(
+        [*_ROOF_OPTS, _FORMAT, _DEM, _DEM_UNITS, _ELEV_SOURCE, _LAYERS, _TILES, _SELF_CONTAINED,
+         _OVERWRITE, _MAP, _GAZETTEER, _GEOCODER_URL,
+         ("address", ("--address",), "StringParamType", None, False, False),
+         ("at", ("--at",), "StringParamType", None, False, False),
+         ("elevation", ("--elevation",), "StringParamType", None, False, False),
+         ("geocoder_timeout", ("--geocoder-timeout",), "FloatParamType", 10.0, False, False),
+         ("package_dir", ("--package",), _PATH, None, False, False),
+         ("project", ("--project",), "StringParamType", None, False, False),
+         ("site_name", ("--site-name",), "StringParamType", None, False, False),
+         ("user_agent", ("--user-agent",), "StringParamType", None, False, False)]
+    ),  # fmt: skip
+    ("screen",): sorted(
+        [*_ROOF_OPTS, _DEM, _DEM_UNITS, _ELEV_SOURCE, _LAYERS, _TILES, _SELF_CONTAINED,
+         _OVERWRITE, _MAP, _GAZETTEER, _GEOCODER_URL,
+         ("sites", ("sites",), _PATH, None, False, True),
+         ("output", ("-o", "--output"), _PATH, None, False, True),
+         ("engine", ("--engine",), "Choice('local', 'dask')", "local", False, False),
+         ("scheduler", ("--scheduler",), "StringParamType", None, False, False),
+         ("staging", ("--staging",), _PATH, None, False, False),
+         ("partitions", ("--partitions",), "IntRange", None, False, False),
+         ("geocode_cache", ("--geocode-cache",), _PATH, None, False, False),
+         ("quiet", ("--quiet",), "BoolParamType", False, False, False),
+         ("csv_raw", ("--csv-raw",), "BoolParamType", False, False, False),
+         ("summary_json", ("--summary-json",), _PATH, None, False, False)]
+    ),  # fmt: skip
+    ("layer", "check"): sorted(
+        [_FORMAT, ("layer_path", ("layer_path",), _PATH, None, False, True)]
+    ),  # fmt: skip
+    ("layer", "show"): sorted(
+        [_TILES, _SELF_CONTAINED, _OVERWRITE,
+         ("map_path", ("--map",), _PATH, None, False, True),
+         ("layer_path", ("layer_path",), _PATH, None, False, True)]
+    ),  # fmt: skip
+}
+STANDARD_OPTION = ("standard", ("--standard",))
+
+
+@pytest.mark.parametrize("path", sorted(EXPECTED_OPTIONS), ids=" ".join)
+def test_each_command_keeps_its_options(path):
+    """Names, spellings, types, defaults, multiplicity and required-ness, as recorded.
+
+    Regression guard of the CLI contract (issue 9: "keeping every CLI command, option,
+    JSON key and exit code exactly"); ``--standard`` is issue 9's addition."""
+    got = [p for p in _params(_command(*path)) if p[:2] != STANDARD_OPTION]
+    expected = sorted(EXPECTED_OPTIONS[path], key=lambda x: x[0])
+    assert got == expected
