@@ -1,4 +1,4 @@
-"""Offline web assets and atomic file writing for neve's HTML maps.
+"""Offline web assets for neve's HTML maps.
 
 A self-contained map must still open in ten years with no internet, so the
 JavaScript and CSS the page needs are read from the XStatic Python packages
@@ -198,29 +198,29 @@ def remote_references(html: str) -> list[str]:
 
 
 def atomic_write_text(path: str | os.PathLike, text: str) -> Path:
-    """Write ``text`` (UTF-8) to ``path`` through a temp file in the same folder."""
+    """Replace ``path`` with ``text`` (UTF-8) atomically: :func:`neve.safe_write.write_text`.
+
+    Kept for code written before :mod:`neve.safe_write`: like it did, it replaces an
+    existing file (the caller decides) and creates missing folders.  neve's own
+    writers call :mod:`neve.safe_write` with their ``overwrite`` instead.
+    """
     return atomic_write_bytes(path, text.encode("utf-8"))
 
 
 def atomic_write_bytes(path: str | os.PathLike, data: bytes) -> Path:
-    """Write ``data`` to ``path`` through a temp file in the same folder, then rename.
+    """Replace ``path`` with ``data`` atomically: :func:`neve.safe_write.write_bytes`.
 
-    The temp file is named as :mod:`neve.maps.target` names them (hidden, ending in
-    ``.part``, never in the target's suffix); ones that killed runs left for this
-    target are removed first.  The caller decides whether ``path`` may be replaced.
+    See :func:`atomic_write_text`.  As before, a folder in the way is an ``OSError``
+    (``IsADirectoryError``).
     """
-    from neve.maps.target import make_temp, remove_stale
+    import errno
 
-    target = Path(path)
-    target.parent.mkdir(parents=True, exist_ok=True)
-    remove_stale(target)
-    tmp = make_temp(target, "part", folder=False)
+    from neve.engine.errors import InputError
+    from neve.safe_write import write_bytes
+
     try:
-        with open(tmp, "wb") as fh:
-            fh.write(data)
-        os.chmod(tmp, 0o644)
-        os.replace(tmp, target)
-    except BaseException:
-        Path(tmp).unlink(missing_ok=True)
+        return write_bytes(path, data, overwrite=True, field="path", parents=True)
+    except InputError as exc:
+        if Path(path).is_dir():
+            raise IsADirectoryError(errno.EISDIR, str(exc), str(path)) from None
         raise
-    return target

@@ -16,7 +16,7 @@ import textwrap
 from pathlib import Path
 
 from neve.maps import style
-from neve.maps.assets import atomic_write_bytes
+from neve.safe_write import write_bytes
 
 #: case kinds that get a diagram
 DIAGRAM_CASES = ("unbalanced", "drift", "sliding")
@@ -146,7 +146,9 @@ def _slug(text: str) -> str:
 
 
 @style.plain_figure_text
-def write_case_diagrams(roof_json: dict | None, outdir: str | os.PathLike) -> dict[str, Path]:
+def write_case_diagrams(
+    roof_json: dict | None, outdir: str | os.PathLike, *, overwrite: bool = False
+) -> dict[str, Path]:
     """Draw a PNG load diagram for each unbalanced, drift and sliding case.
 
     Parameters
@@ -156,6 +158,8 @@ def write_case_diagrams(roof_json: dict | None, outdir: str | os.PathLike) -> di
         lengths [ft] in the contract's ``{"psf","kPa"}``/``{"ft","m"}`` form).
     outdir : path-like
         Folder for the PNG files (created if needed).
+    overwrite : bool
+        Replace diagram files that exist already (otherwise an ``InputError``).
 
     Returns
     -------
@@ -210,7 +214,8 @@ def write_case_diagrams(roof_json: dict | None, outdir: str | os.PathLike) -> di
         fig.savefig(buf, format="png")
         plt.close(fig)
         key = name if name not in out else f"{name} ({i})"
-        out[key] = atomic_write_bytes(
-            folder / f"diagram_{i:02d}_{_slug(kind + '_' + name)}.png", buf.getvalue()
-        )
+        out[key] = write_bytes(
+            folder / f"diagram_{i:02d}_{_slug(kind + '_' + name)}.png", buf.getvalue(),
+            overwrite=overwrite, field="diagrams", parents=True,
+        )  # fmt: skip
     return out

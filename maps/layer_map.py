@@ -61,6 +61,7 @@ def write_layer_map(
     *,
     tiles: str = "none",
     self_contained: bool = False,
+    overwrite: bool = False,
 ) -> Path:
     """Write a review map of one zone layer.
 
@@ -78,6 +79,8 @@ def write_layer_map(
         Base tiles.
     self_contained : bool
         Inline every script and stylesheet so the page works offline.
+    overwrite : bool
+        Replace an existing file (otherwise an ``InputError``, before any work).
 
     Returns
     -------
@@ -85,7 +88,7 @@ def write_layer_map(
     """
     import folium
 
-    out = leaflet.check_path(path, "map")
+    out = leaflet.check_path(path, "map", overwrite=overwrite)
     probs = _check_problems(problems)
     zones = check_zones(view)
     meta = view.get("meta") or {}
@@ -168,4 +171,4 @@ def write_layer_map(
         ),
         "neve_legend",
     )
-    return leaflet.finish(m, out, self_contained=self_contained)
+    return leaflet.finish(m, out, overwrite=overwrite, self_contained=self_contained)

@@ -311,25 +311,31 @@ def add_defs(m, *, demo: bool) -> None:
     )
 
 
-def finish(m, path, *, self_contained: bool, elements=(), cluster: bool = False) -> Path:
-    """Set assets, render, check self-containment and write the page atomically."""
+def finish(
+    m, path, *, self_contained: bool, elements=(), cluster: bool = False, overwrite: bool = False
+) -> Path:
+    """Set assets, render, check self-containment and write the page (:mod:`neve.safe_write`)."""
+    from neve.safe_write import write_text
+
     assets.prepare_assets(m, elements, self_contained=self_contained, cluster=cluster)
     html = m.get_root().render()
     if self_contained:
         remote = assets.remote_references(html)
         if remote:
             raise RuntimeError(f"self-contained map still references remote assets: {remote[:3]}")
-    return assets.atomic_write_text(path, html)
+    return write_text(path, html, overwrite=overwrite, field="map", parents=True)
 
 
-def check_path(path, field: str, suffixes=(".html", ".htm")) -> Path:
-    """An output path with an HTML suffix."""
+def check_path(path, field: str, suffixes=(".html", ".htm"), *, overwrite: bool = False) -> Path:
+    """An output path with an HTML suffix; an existing file is refused unless ``overwrite``."""
+    from neve.safe_write import check_target
+
     p = Path(path)
     if p.suffix.lower() not in suffixes:
         raise InputError(
             field, f"{str(p)!r} does not end in {' or '.join(suffixes)}", "an .html path"
         )
-    return p
+    return check_target(p, overwrite=overwrite, field=field, parents=True)
 
 
 def refit_on_load(m, bounds) -> None:

@@ -4,8 +4,8 @@ The package is one folder that must still open in ten years: the HTML report
 embeds its CSS, its images (data URIs) and the interactive site map with all
 of the map's scripts; the PDF is made from the same HTML with WeasyPrint
 (letter pages, page numbers, a running header with project and site on every
-page).  The folder is built next to its destination and renamed into place,
-so it is written whole or not at all.
+page).  The folder is built next to its destination and renamed into place
+(:func:`neve.safe_write.atomic_folder`), so it is written whole or not at all.
 """
 
 from __future__ import annotations
@@ -15,14 +15,13 @@ import copy
 import datetime as _dt
 import json
 import os
-import shutil
 from pathlib import Path
 
 from neve.maps import assets, style
 from neve.maps.diagrams import write_case_diagrams
 from neve.maps.site_map import cautions_of, is_demo, summary_context, write_site_map
 from neve.maps.static import write_static_map
-from neve.maps.target import MARKER, check_package_target, make_temp, publish, remove_stale
+from neve.maps.target import MARKER, package_replaceable
 from neve.maps.templating import render
 
 #: keys of a case that are not values to tabulate
@@ -251,24 +250,25 @@ def write_package(
     """
     from weasyprint import HTML
 
+    from neve import safe_write
+
     dest = Path(outdir)
-    check_package_target(dest, overwrite)
     data = copy.deepcopy(site_json)
     data.setdefault("site", {})
     if project is not None:
         data["site"]["project"] = project
     if site_name is not None:
         data["site"]["name"] = site_name
-    dest.parent.mkdir(parents=True, exist_ok=True)
-    remove_stale(dest)  # what killed runs left beside this package
-    tmp = make_temp(dest, "building")
-    os.chmod(tmp, 0o755)
-    try:
+    # checked before any work; built beside dest and renamed into place whole; an
+    # earlier package (and only a package) is replaced with overwrite, checked again
+    with safe_write.atomic_folder(
+        dest, overwrite=overwrite, field="package", replaceable=package_replaceable, parents=True
+    ) as tmp:
         files: dict[str, Path] = {}
-        (tmp / MARKER).write_text(
-            "written by neve; this folder may be replaced by neve --overwrite\n"
+        safe_write.write_text(
+            tmp / MARKER, "written by neve; this folder may be replaced by neve --overwrite\n"
         )
-        files["site_json"] = assets.atomic_write_text(
+        files["site_json"] = safe_write.write_text(
             tmp / "site.json", json.dumps(data, indent=2, ensure_ascii=False) + "\n"
         )
         files["site_map"] = write_site_map(data, views, tmp / "site_map.html", self_contained=True)
@@ -300,36 +300,7 @@ def write_package(
             "cases": _cases(data.get("roof"), diagrams),
         }
         html = render("report.html.j2", **ctx)
-        files["report_html"] = assets.atomic_write_text(tmp / "report.html", html)
+        files["report_html"] = safe_write.write_text(tmp / "report.html", html)
         pdf = HTML(string=html, url_fetcher=_offline_fetcher(), base_url=str(tmp)).write_pdf()
-        files["report_pdf"] = assets.atomic_write_bytes(tmp / "report.pdf", pdf)
-        _put_in_place(tmp, dest, overwrite)
-    except BaseException:
-        shutil.rmtree(tmp, ignore_errors=True)
-        raise
+        files["report_pdf"] = safe_write.write_bytes(tmp / "report.pdf", pdf)
     return {k: dest / p.relative_to(tmp) for k, p in files.items()}
-
-
-def _put_in_place(tmp: Path, dest: Path, overwrite: bool) -> None:
-    """Rename the finished package folder ``tmp`` to ``dest``.
-
-    Without ``overwrite`` the rename never replaces a package: a folder that
-    another run (or program) put at ``dest`` while this one was building is
-    left as it is and the run fails with an :class:`InputError`.  With
-    ``overwrite`` the previous package is checked again (it must still be a
-    neve package), put aside, and put back if the rename fails; the folder it
-    is put aside in is one that :func:`neve.maps.target.remove_stale` restores if
-    the run is killed in between.
-    """
-    if not overwrite or not dest.exists():
-        publish(tmp, dest, overwrite=False, field="package")
-        return
-    check_package_target(dest, overwrite=True)  # what is there now may not be what was checked
-    old = make_temp(dest, "old")
-    os.rename(dest, old / "package")
-    try:
-        os.rename(tmp, dest)
-    except OSError:
-        os.rename(old / "package", dest)  # put the previous package back
-        raise
-    shutil.rmtree(old, ignore_errors=True)

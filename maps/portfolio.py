@@ -164,6 +164,7 @@ def write_portfolio_map(
     demo: bool = False,
     tiles: str = "none",
     self_contained: bool = False,
+    overwrite: bool = False,
 ) -> Path:
     """Write the clustered portfolio map of screening results.
 
@@ -182,6 +183,8 @@ def write_portfolio_map(
         Base tiles.
     self_contained : bool
         Inline every script and stylesheet so the page works offline.
+    overwrite : bool
+        Replace an existing file (otherwise an ``InputError``, before any work).
 
     Returns
     -------
@@ -190,7 +193,7 @@ def write_portfolio_map(
     import numpy as np
     import pandas as pd
 
-    out = leaflet.check_path(path, "map")
+    out = leaflet.check_path(path, "map", overwrite=overwrite)
     if not isinstance(results, pd.DataFrame):
         raise InputError("results", f"got {type(results).__name__}", "a pandas DataFrame")
     if "site_id" not in results.columns:  # optional in site files: number the rows
@@ -306,7 +309,9 @@ def write_portfolio_map(
     layer = _layer_class()(payload)
     layer.add_to(m)
     leaflet.add_html(m, _legend_html(counts, n_total, len(rows), notes), "neve_legend")
-    return leaflet.finish(m, out, self_contained=self_contained, elements=[layer], cluster=True)
+    return leaflet.finish(
+        m, out, overwrite=overwrite, self_contained=self_contained, elements=[layer], cluster=True
+    )
 
 
 def _legend_html(counts: Counter, n_total: int, n_drawn: int, notes: list[str]) -> str:

@@ -155,6 +155,7 @@ def write_site_map(
     *,
     tiles: str = "none",
     self_contained: bool = False,
+    overwrite: bool = False,
 ) -> Path:
     """Write the interactive site map as one HTML file.
 
@@ -172,6 +173,8 @@ def write_site_map(
         Base tiles; ``none`` gives a plain background.
     self_contained : bool
         Inline every script and stylesheet so the page works offline.
+    overwrite : bool
+        Replace an existing file (otherwise an ``InputError``, before any work).
 
     Returns
     -------
@@ -180,7 +183,7 @@ def write_site_map(
     """
     import folium
 
-    out = leaflet.check_path(path, "map")
+    out = leaflet.check_path(path, "map", overwrite=overwrite)
     lat, lon = site_lat_lon(site_json)
     ctx = summary_context(site_json)
     m = leaflet.new_map(lat, lon, tiles, zoom=13)
@@ -254,4 +257,4 @@ def write_site_map(
     )
     if len(layer_groups) > 1:
         leaflet.add_layer_control(m, collapsed=False, position="topleft")
-    return leaflet.finish(m, out, self_contained=self_contained)
+    return leaflet.finish(m, out, overwrite=overwrite, self_contained=self_contained)

@@ -14,9 +14,9 @@ import textwrap
 from pathlib import Path
 
 from neve.maps import style
-from neve.maps.assets import atomic_write_bytes
 from neve.maps.geom import check_zones, local_crs, site_lat_lon, zones_near
 from neve.maps.site_map import governing_ids, governing_index, is_demo
+from neve.safe_write import check_target, write_bytes
 
 #: half-width of the mapped window around the site [m]
 WINDOW_M = 5000.0
@@ -99,6 +99,8 @@ def write_static_map(
     views: list[dict],
     png_path: str | os.PathLike,
     svg_path: str | os.PathLike | None = None,
+    *,
+    overwrite: bool = False,
 ) -> list[Path]:
     """Draw the zones around the site to PNG (and SVG).
 
@@ -112,6 +114,8 @@ def write_static_map(
         Output PNG [150 dpi].
     svg_path : path-like, optional
         Output SVG as well.
+    overwrite : bool
+        Replace files that exist already (otherwise an ``InputError``, before drawing).
 
     Returns
     -------
@@ -129,6 +133,9 @@ def write_static_map(
     from matplotlib.patches import Patch
     from shapely.geometry import Point
 
+    for path in (png_path, svg_path):  # both refused before any drawing, or neither
+        if path is not None:
+            check_target(path, overwrite=overwrite, field="static map", parents=True)
     lat, lon = site_lat_lon(site_json)
     crs = local_crs(lat, lon)
     site_xy = gpd.GeoSeries([Point(lon, lat)], crs=4326).to_crs(crs).iloc[0]
@@ -238,7 +245,9 @@ def write_static_map(
             # "tight": the legend beside the axes is never clipped
             fig.savefig(buf, format=fmt, bbox_inches="tight", pad_inches=0.12,
                         metadata={"Date": None} if fmt == "svg" else None)  # fmt: skip
-        written.append(atomic_write_bytes(path, buf.getvalue()))
+        written.append(
+            write_bytes(path, buf.getvalue(), overwrite=overwrite, field="static map", parents=True)
+        )
     plt.close(fig)
     return written
 

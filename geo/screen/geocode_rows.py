@@ -120,14 +120,22 @@ def load_geocode_cache(path: str | Path) -> dict:
 
 
 def save_geocode_cache(path: str | Path, cache: dict) -> None:
-    """Write the found addresses (not the misses) atomically as JSON."""
+    """Write the found addresses (not the misses) atomically as JSON.
+
+    The cache is read at the start of a run and updated at its end, so it is
+    replaced without ``--overwrite`` (it is the run's own state, not a result);
+    what another run added to the file meanwhile is kept (read again and merged;
+    this run's answers win).  A file that is no longer a geocode cache is refused
+    rather than replaced.
+    """
     import json
 
-    from neve.geo.screen.outputs import atomic_path
+    from neve.safe_write import write_text
 
-    found = {k: [v[0], v[1]] for k, v in sorted(cache.items()) if v is not None}
-    with atomic_path(path, overwrite=True) as tmp:
-        tmp.write_text(json.dumps(found, indent=1), encoding="utf-8")
+    found = {k: (v[0], v[1]) for k, v in cache.items() if v is not None}
+    merged = {**load_geocode_cache(path), **found}
+    data = {k: [v[0], v[1]] for k, v in sorted(merged.items())}
+    write_text(path, json.dumps(data, indent=1), overwrite=True, field="geocode-cache")
 
 
 def make_geocoder(

@@ -1,15 +1,14 @@
 """Writing screening results (CSV, XLSX with a summary sheet, GeoPackage, Parquet) and the summary.
 
-Every writer is atomic: the table goes to a temporary file in the target's
-folder, which is renamed over the target only once it is complete, so an
-interrupted or failed run never leaves a partial output behind.  An existing
-output is replaced only when ``overwrite=True``.
+Every writer goes through :mod:`neve.safe_write`: the table goes to a
+temporary file beside the target, which is renamed into place only once it is
+complete, so an interrupted or failed run never leaves a partial output
+behind.  An existing output is replaced only when ``overwrite=True``.
 """
 
 from __future__ import annotations
 
-from collections.abc import Callable, Iterator
-from contextlib import contextmanager
+from collections.abc import Callable
 from pathlib import Path
 
 import numpy as np
@@ -52,23 +51,12 @@ def result_format(path: str | Path, field: str = "output") -> str:
 def check_target(path: str | Path, overwrite: bool, field: str = "output") -> Path:
     """Refuse an existing target unless ``overwrite``; check its folder exists.
 
-    Temporary files that killed runs left for this target are removed on the way
-    (:func:`neve.maps.target.remove_stale`).
+    :func:`neve.safe_write.check_target` for a file (stale temporary names of
+    killed runs are removed on the way).
     """
-    from neve.maps.target import remove_stale
+    from neve.safe_write import check_target as check
 
-    p = Path(path)
-    if p.parent.is_dir():
-        remove_stale(p)
-    if p.exists() and not overwrite:
-        raise InputError(field, f"{str(p)!r} already exists", "a new path, or --overwrite")
-    if p.exists() and p.is_dir():
-        raise InputError(field, f"{str(p)!r} is a folder", "a file path")
-    if not p.parent.exists():
-        raise InputError(
-            field, f"folder {str(p.parent)!r} does not exist", "a path in an existing folder"
-        )
-    return p
+    return check(path, overwrite=overwrite, field=field)
 
 
 def _same_file(a: Path, b: Path) -> bool:
@@ -120,36 +108,17 @@ def check_distinct(outputs: dict, inputs: dict | None = None) -> None:
                 )
 
 
-@contextmanager
-def atomic_path(
-    path: str | Path, *, overwrite: bool = False, field: str = "output"
-) -> Iterator[Path]:
+def atomic_path(path: str | Path, *, overwrite: bool = False, field: str = "output"):
     """Yield a temporary path for ``path``; move it into place on success.
 
-    The temporary path is ``path``'s own name inside a hidden folder beside it
-    (``.NAME.neve-HOST-PID-RANDOM.part/NAME``), so every writer sees the real
-    suffix while no glob of the results' folder (``*.csv``, ``results*.parquet``)
-    can pick up a partial file.  On success the file is moved into place without
-    replacing anything unless ``overwrite`` (see :func:`neve.maps.target.publish`); on
-    any exception (including KeyboardInterrupt) the folder and everything a driver
-    left in it (``-wal``, ``-shm``, ``-journal``) is removed.  Folders of runs that
-    were killed are removed by the next run to the same target
-    (:func:`neve.maps.target.remove_stale`).
+    :func:`neve.safe_write.atomic_file`: the temporary path is ``path``'s own name
+    inside a hidden folder beside it (``.NAME.neve-HOST-PID-RANDOM.part/NAME``);
+    on success the file is moved into place without replacing anything unless
+    ``overwrite``; on any exception everything is removed.
     """
-    import shutil
+    from neve.safe_write import atomic_file
 
-    from neve.maps.target import make_temp, publish
-
-    target = check_target(path, overwrite, field)
-    folder = make_temp(target, "part")
-    tmp = folder / target.name
-    try:
-        yield tmp
-        if not tmp.exists():
-            raise OSError(f"the writer produced no file for {target}")
-        publish(tmp, target, overwrite=overwrite, field=field)
-    finally:
-        shutil.rmtree(folder, ignore_errors=True)
+    return atomic_file(path, overwrite=overwrite, field=field)
 
 
 def _points(df: pd.DataFrame, geometry=None):
@@ -558,9 +527,11 @@ def write_results(
     Path
         The written file.
     """
+    from neve.safe_write import atomic_file
+
     fmt = result_format(path)
     target = Path(path)
-    with atomic_path(target, overwrite=overwrite) as tmp:
+    with atomic_file(target, overwrite=overwrite, field="output") as tmp:
         if fmt == "csv":
             changed = _write_csv(_for_text(df, geometry), tmp, raw=csv_raw)
             if summary is not None:

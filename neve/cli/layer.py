@@ -3,11 +3,9 @@
 from __future__ import annotations
 
 import json
-from pathlib import Path
 
 import click
 
-from neve.engine.errors import InputError
 from neve.engine.printable import printable
 
 
@@ -44,12 +42,13 @@ def show(layer_path: str, map_path: str, tiles: str, self_contained: bool, overw
     """Draw LAYER and the problems `neve layer check` finds on an HTML map."""
     from neve.geo.layers.check import check_layer
     from neve.geo.layers.model import load_layer
+    from neve.safe_write import check_target
 
-    if Path(map_path).exists() and not overwrite:
-        raise InputError("map", f"{map_path!r} exists", "a new path, or --overwrite")
+    check_target(map_path, overwrite=overwrite, field="map", parents=True)  # before any work
     report = check_layer(layer_path)
     view = load_layer(layer_path).view(center=None)
     from neve.maps.layer_map import write_layer_map
 
-    write_layer_map(view, report["problems"], map_path, tiles=tiles, self_contained=self_contained)
+    write_layer_map(view, report["problems"], map_path, tiles=tiles,
+                    self_contained=self_contained, overwrite=overwrite)  # fmt: skip
     click.echo(f"Wrote map: {map_path} ({len(report['problems'])} problem(s) marked)")

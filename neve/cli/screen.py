@@ -139,14 +139,9 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
     """
     import json
 
-    from neve.geo.screen.outputs import (
-        XLSX_MAX_ROWS,
-        check_distinct,
-        check_target,
-        result_format,
-        write_results,
-    )
+    from neve.geo.screen.outputs import XLSX_MAX_ROWS, check_distinct, result_format, write_results
     from neve.geo.screen.run import format_summary, run_screen
+    from neve.safe_write import check_target, write_text
 
     # check every target before any work, so a refusal costs nothing
     fmt = result_format(output)
@@ -158,13 +153,13 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
     )  # fmt: skip
     if csv_raw and fmt != "csv":
         raise InputError("csv-raw", f"given for a .{fmt} output", "--csv-raw with a .csv output")
-    check_target(output, overwrite)
+    check_target(output, overwrite=overwrite, field="output")
     if map_path:
         if Path(map_path).suffix.lower() not in (".html", ".htm"):
             raise InputError("map", f"{map_path!r} is not an .html path", "a path ending in .html")
-        check_target(map_path, overwrite, "map")
+        check_target(map_path, overwrite=overwrite, field="map")
     if summary_json:
-        check_target(summary_json, overwrite, "summary-json")
+        check_target(summary_json, overwrite=overwrite, field="summary-json")
     if scheduler and engine.lower() != "dask":
         raise InputError(
             "scheduler", "given without --engine dask", "--engine dask --scheduler ADDRESS"
@@ -210,10 +205,8 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
         if map_path:
             _write_map(run, map_path, overwrite, tiles=tiles, self_contained=self_contained)
         if summary_json:
-            from neve.geo.screen.outputs import atomic_path
-
-            with atomic_path(summary_json, overwrite=overwrite, field="summary-json") as tmp:
-                tmp.write_text(json.dumps(run.summary, indent=2), encoding="utf-8")
+            text = json.dumps(run.summary, indent=2)
+            write_text(summary_json, text, overwrite=overwrite, field="summary-json")
     finally:
         if previous is not None:
             signal.signal(signal.SIGTERM, previous)
@@ -245,13 +238,11 @@ def _write_map(
         from neve.maps.portfolio import write_portfolio_map
     except ImportError as exc:  # pragma: no cover - until the maps package lands
         raise InputError("map", f"the portfolio map is not available ({exc})", "no --map") from None
-    from neve.geo.screen.outputs import atomic_path
-
-    with atomic_path(map_path, overwrite=overwrite, field="map") as tmp:
-        write_portfolio_map(
-            map_frame(run.results),
-            tmp,
-            demo=bool(run.summary.get("demo")),
-            tiles=tiles,
-            self_contained=self_contained,
-        )
+    write_portfolio_map(
+        map_frame(run.results),
+        map_path,
+        demo=bool(run.summary.get("demo")),
+        tiles=tiles,
+        self_contained=self_contained,
+        overwrite=overwrite,
+    )

@@ -2,8 +2,6 @@
 
 from __future__ import annotations
 
-from pathlib import Path
-
 import click
 
 from neve.cli.options import (
@@ -17,18 +15,17 @@ from neve.engine.jsonsafe import dumps, finite_copy
 
 
 def _check_output(path: str | None, field: str, overwrite: bool, is_dir: bool = False) -> None:
-    if path is not None and is_dir:
+    """Refuse an output before any work (:mod:`neve.safe_write`; the writer checks again)."""
+    if path is None:
+        return
+    if is_dir:
         from neve.maps.target import check_package_target
 
         check_package_target(path, overwrite)
         return
-    if path is None or overwrite:
-        return
-    p = Path(path)
-    if is_dir and p.is_dir() and not any(p.iterdir()):
-        return
-    if p.exists():
-        raise InputError(field, f"{str(p)!r} exists", "a new path, or --overwrite")
+    from neve.safe_write import check_target
+
+    check_target(path, overwrite=overwrite, field=field, parents=True)
 
 
 @click.command("site")
@@ -120,7 +117,12 @@ def site(**kw) -> None:
             from neve.maps.site_map import write_site_map
 
             write_site_map(
-                data, views, kw["map_path"], tiles=kw["tiles"], self_contained=kw["self_contained"]
+                data,
+                views,
+                kw["map_path"],
+                tiles=kw["tiles"],
+                self_contained=kw["self_contained"],
+                overwrite=kw["overwrite"],
             )
         if kw["package_dir"]:
             from neve.maps.package import write_package
