@@ -1,6 +1,6 @@
 """Zone rules: how a zone's row gives a ground snow load at a site elevation.
 
-The rules (DESIGN.md, "Zone layers"):
+The rules (docs/contract.md, "Vector columns and rules"):
 
 ``fixed``
     The mapped value in the layer's value column (``pg``).

@@ -8,7 +8,7 @@ an unknown unit or an unreasonable tolerance is a :class:`SidecarError` (a
 nothing is guessed.  The file is read as UTF-8, with or without a byte-order
 mark.
 
-Keys (DESIGN.md, "Zone layers"):
+Keys (docs/contract.md, "Sidecar"):
 
 ========================  ========  ==============================================
 key                       required  meaning

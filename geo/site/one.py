@@ -5,7 +5,7 @@ single site, adds the detail a calculation package needs (step records for
 the ground value, neighbouring zones, the other stacked layers) and, when a
 roof is given and the ground value is usable, runs the roof engine on it.
 :meth:`SiteResult.to_json` is the ``{site, ground, roof}`` object of
-``neve site --format json`` (DESIGN.md, "CLI contract").
+``neve site --format json`` (docs/contract.md, "JSON output").
 """
 
 from __future__ import annotations
@@ -37,7 +37,7 @@ def _num(x) -> float | None:
 
 @dataclass
 class SiteResult:
-    """The resolved site; :meth:`to_json` gives DESIGN's ``{site, ground, roof}``."""
+    """The resolved site; :meth:`to_json` gives ``{site, ground, roof}`` (docs/contract.md, "JSON output")."""
 
     site: dict
     ground: dict

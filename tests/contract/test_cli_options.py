@@ -1,6 +1,6 @@
-"""Every command and option that DESIGN.md's CLI contract names exists, spelt exactly.
+"""Every command and option that docs/contract.md ("Commands and exit codes") names exists, spelt exactly.
 
-Source of every check: /work/shared/DESIGN.md, "CLI contract" (regression guard
+Source of every check: docs/contract.md, "Commands and exit codes" (regression guard
 of the contract's spelling).
 """
 

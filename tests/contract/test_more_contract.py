@@ -2,7 +2,7 @@
 addresses, and hostile text in spreadsheet outputs.
 
 Unit conversions: 1 psf = 0.04788026 kPa (NIST SP 811 App. B.9, from memory).
-Everything else is the contract of DESIGN.md / the issues (regression guard).
+Everything else is the contract of docs/contract.md / the issues (regression guard).
 """
 
 from __future__ import annotations
@@ -154,7 +154,7 @@ def test_failed_package_leaves_nothing(tmp_path, grid, monkeypatch):
     monkeypatch.setattr(neve.maps.package, "write_static_map", broken)
     pkg = tmp_path / "pkg"
     res = run("site", "--layer", grid, "--at", "30.005,-39.995", "--package", str(pkg))
-    assert res.exit_code == 1  # unexpected failure (DESIGN.md exit codes)
+    assert res.exit_code == 1  # unexpected failure (docs/contract.md, "Exit codes")
     assert not pkg.exists()
     assert [p.name for p in tmp_path.iterdir()] == []
 
@@ -237,7 +237,7 @@ def test_text_output_has_no_terminal_escapes(tmp_path, grid):
     ],
 )
 def test_metric_layer_rules(tmp_path_factory, at, elev, status, kpa):
-    # 1 ft = 0.3048 m exactly (international foot, common practice); rules per DESIGN.md
+    # 1 ft = 0.3048 m exactly (international foot, common practice); rules per docs/contract.md, "Vector columns and rules"
     d = tmp_path_factory.getbasetemp() / "metric_layer"
     d.mkdir(exist_ok=True)
     p = d / "metric.geojson"

@@ -1,7 +1,7 @@
-"""`neve roof` against DESIGN.md's JSON contract, unit inputs and exit codes.
+"""`neve roof` against the JSON contract of docs/contract.md, unit inputs and exit codes.
 
 Numeric spot checks name their source beside the value; key checks are the
-contract itself (/work/shared/DESIGN.md, "CLI contract").
+contract itself (docs/contract.md, "JSON output").
 """
 
 from __future__ import annotations
@@ -259,7 +259,7 @@ def _unit_shapes(obj, path="$"):
 
 
 def test_every_load_and_length_has_both_units(tmp_path):
-    # DESIGN.md "Units": loads always {"psf","kPa"}, lengths always {"ft","m"}
+    # docs/contract.md, "Units": loads always {"psf","kPa"}, lengths always {"ft","m"}
     roof = tmp_path / "roof.toml"
     roof.write_text(ROOF_TOML, encoding="utf-8")
     d = run_json("roof", "--pg", "35psf", "--roof", str(roof))

@@ -1,6 +1,6 @@
-"""`neve screen` against DESIGN.md and issue 5: no row lost, order kept, flags, exit codes.
+"""`neve screen` against docs/contract.md and issue 5: no row lost, order kept, flags, exit codes.
 
-Expected statuses/flags follow DESIGN.md's flag table (regression guard of the
+Expected statuses/flags follow the flag tables of docs/contract.md (regression guard of the
 contract); layers are invented fixtures.
 """
 
@@ -28,7 +28,7 @@ ok,30.015,-39.995,412 m
 ok,30.005,-39.995,1350ft
 nolon,30.005,,
 """
-EXPECT = {  # site_id -> (status, flags that must be present); DESIGN.md flag table
+EXPECT = {  # site_id -> (status, flags that must be present); docs/contract.md, "Flags"
     "study": ("study_required", {"study_required"}),
     "above": ("study_required", {"above_elevation_limit", "study_required"}),
     "need": ("provisional", {"elevation_needed"}),
@@ -86,7 +86,7 @@ def test_overlap_dem_nodata_and_mismatch_through_screen(tmp_path, overlap, big, 
     assert screen(str(p), "-o", str(out), "--layer", overlap).exit_code == 0
     row = pd.read_csv(out).iloc[0]
     assert row["status"] == "provisional" and "overlapping_zones" in _flags(row["flags"])
-    assert row["pg_psf"] == pytest.approx(40.0)  # the larger value governs (DESIGN.md)
+    assert row["pg_psf"] == pytest.approx(40.0)  # the larger value governs (docs/contract.md, "Site flags")
     p.write_text("site_id,lat,lon,elevation_m\nn,30.034,-40.003,\nm,30.015,-39.995,2000\n",
                  encoding="utf-8")  # fmt: skip
     out2 = tmp_path / "o2.csv"
@@ -158,7 +158,7 @@ def test_interrupted_write_leaves_no_file(tmp_path, sites, grid, monkeypatch):
     monkeypatch.setattr(neve.geo.screen.outputs, "_write_csv", broken)
     out = tmp_path / "o.csv"
     res = screen(str(sites), "-o", str(out), "--layer", grid)
-    assert res.exit_code == 1  # unexpected failure (DESIGN.md exit codes)
+    assert res.exit_code == 1  # unexpected failure (docs/contract.md, "Exit codes")
     assert not out.exists()
     assert [p.name for p in tmp_path.iterdir() if p.name.startswith(".o.csv")] == []
 
@@ -262,7 +262,7 @@ def test_input_formats_give_the_same_rows(tmp_path, sites, grid, suffix):
 
 
 def test_screen_and_site_agree_row_for_row(tmp_path, grid, overlap, dem):
-    # the two commands are one pipeline (DESIGN.md); invented random sites over the grid
+    # the two commands are one pipeline (docs/contract.md, "Site resolution result"); invented random sites over the grid
     import numpy as np
 
     rng = np.random.default_rng(3)

@@ -1,8 +1,8 @@
-"""`neve site` against DESIGN.md: every status and flag, JSON keys, exit codes.
+"""`neve site` against docs/contract.md: every status and flag, JSON keys, exit codes.
 
 Layers are the invented fixture grid (tests/geo/conftest.py) plus the small
 layers of this folder's conftest. Expected statuses and flags come from
-DESIGN.md's "Site resolution result" table (regression guard of the contract).
+docs/contract.md, "Site resolution result" and "Flags" (regression guard of the contract).
 """
 
 from __future__ import annotations
@@ -113,7 +113,7 @@ def test_status_and_flags(request, name, layer, at, extra, status, flags):
 
 
 def test_larger_value_governs_overlap_and_boundary(grid, overlap):
-    # DESIGN.md: near_boundary / overlapping_zones -> the larger value governs
+    # docs/contract.md, "Site flags": near_boundary / overlapping_zones -> the larger value governs
     g = run_json("site", "--layer", overlap, "--at", "30.01,-39.985")["ground"]
     assert g["pg"]["psf"] == pytest.approx(40.0)
     g = run_json("site", "--layer", grid, "--at", "30.005,-39.9901", "--elevation", "100ft")

@@ -1,7 +1,7 @@
 """``neve roof`` from the command line: exit codes, JSON contract, bad input.
 
-The JSON keys are those of the shared design card (DESIGN.md, "CLI
-contract"); the numbers are hand calculations from ASCE 7-16 (from memory).
+The JSON keys are those of the contract (docs/contract.md, "JSON
+output"); the numbers are hand calculations from ASCE 7-16 (from memory).
 """
 
 from __future__ import annotations
@@ -225,7 +225,7 @@ def test_malformed_roof_toml_exits_2(tmp_path, content, field, accepted):
     ],
 )
 def test_design_card_option_values_are_accepted(args):
-    # DESIGN.md roof options: every listed value runs with exit code 0
+    # docs/contract.md, "Roof options and ROOF.toml": every listed value runs with exit code 0
     out = as_json(invoke("--pg", "40psf", *args, "--format", "json"))
     assert out["loads"]["pf"]["psf"] > 0
 
@@ -244,7 +244,7 @@ def test_warm_roof_condition_options_reach_the_slope_factor():
 
 
 def test_flags_do_not_fail_the_run():
-    # DESIGN.md: exit code 0 with flags present
+    # docs/contract.md, "Exit codes": exit code 0 with flags present
     out = as_json(invoke("--pg", "35psf", "--surface", "slippery", *GABLE, "--format", "json"))
     assert "slippery_line_not_used" in out["flags"]
 
@@ -329,7 +329,7 @@ def test_readme_example_roof_file_by_hand():
 
 
 def test_help_lists_the_design_card_options():
-    # DESIGN.md "CLI contract": the roof option names, exactly
+    # docs/contract.md, "Roof options and ROOF.toml": the roof option names, exactly
     r = invoke("--help")
     assert r.exit_code == 0
     for name in ("--pg", "--roof", "--shape", "--slope", "--surface", "--ct", "--thermal",

@@ -109,7 +109,7 @@ def test_factors_given_directly_override_tables():
 
 
 def test_unstated_factors_are_flagged_not_silent():
-    # common practice (DESIGN.md: nothing is silently defaulted)
+    # common practice (docs/contract.md, "Roof options and ROOF.toml": nothing is silently defaulted)
     from neve.engine import Roof, analyze_roof
 
     out = analyze_roof(30.0, Roof.from_mapping({"shape": "flat"})).to_json()

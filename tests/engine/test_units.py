@@ -126,7 +126,7 @@ def test_bad_quantity_names_field_and_accepted(parser, text, field, hint):
 
 
 def test_json_forms_carry_both_units():
-    # DESIGN.md contract: loads {"psf", "kPa"}, lengths {"ft", "m"}
+    # docs/contract.md, "Units": loads {"psf", "kPa"}, lengths {"ft", "m"}
     # 20 psf = 0.957605 kPa; 10 ft = 3.048 m
     assert load_json(20.0) == {"psf": 20.0, "kPa": pytest.approx(0.9576, abs=1e-4)}
     assert length_json(10.0) == {"ft": 10.0, "m": pytest.approx(3.048, abs=1e-4)}

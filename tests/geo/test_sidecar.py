@@ -20,7 +20,7 @@ def test_complete_sidecar_is_filled_in():
 def test_default_tolerance_and_demo():
     raw = {k: v for k, v in FIXTURE_META.items() if k not in ("boundary_tolerance_m", "demo")}
     meta = validate_meta(raw)
-    assert meta["boundary_tolerance_m"] == 100.0  # DESIGN.md default
+    assert meta["boundary_tolerance_m"] == 100.0  # docs/contract.md, "Sidecar": the default
     assert meta["demo"] is False
 
 

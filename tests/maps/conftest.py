@@ -2,7 +2,7 @@
 
 Everything here is INVENTED test data: an imaginary valley ("Varda Basin")
 with made-up zone values, made-up sites and a made-up roof result that
-follows the JSON contract of DESIGN.md. None of it is any jurisdiction's
+follows the JSON contract of docs/contract.md. None of it is any jurisdiction's
 map and none of it may be used for design.
 """
 

@@ -18,7 +18,7 @@ KPA_PER_PSF = 0.04788025898  # NIST SP 811, App. B (1 lbf/ft2 = 47.88026 Pa)
 
 
 def _table_pg(elev_ft):
-    """NE zone of the fixture: linear interpolation in [[0, 20], [5000, 60]] (DESIGN.md rule)."""
+    """NE zone of the fixture: linear interpolation in [[0, 20], [5000, 60]] (docs/contract.md, "Vector columns and rules")."""
     return np.interp(elev_ft, [0.0, 5000.0], [20.0, 60.0])
 
 
@@ -231,7 +231,7 @@ def test_given_elevation_wins_and_is_checked_against_the_dem(grid_layer, tmp_pat
     res = screen(df, layers=[grid_layer], dem=dem_path, dem_units="m")
     assert (res["site_elevation_source"] == "input").all()
     np.testing.assert_allclose(res["site_elevation_m"], [1005, 1400], rtol=1e-12)
-    # DESIGN.md: given and DEM elevations more than 15 m apart are flagged
+    # docs/contract.md, "Site flags": given and DEM elevations more than 15 m apart are flagged
     assert "elevation_mismatch" not in res["flags"][0]
     assert "elevation_mismatch" in res["flags"][1]
 
