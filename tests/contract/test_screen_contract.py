@@ -86,7 +86,7 @@ def test_overlap_dem_nodata_and_mismatch_through_screen(tmp_path, overlap, big, 
     assert screen(str(p), "-o", str(out), "--layer", overlap).exit_code == 0
     row = pd.read_csv(out).iloc[0]
     assert row["status"] == "provisional" and "overlapping_zones" in _flags(row["flags"])
-    assert row["pg_psf"] == pytest.approx(40.0)  # the larger value governs (docs/contract.md, "Site flags")
+    assert row["pg_psf"] == pytest.approx(40.0)  # larger value governs (docs/contract.md)
     p.write_text("site_id,lat,lon,elevation_m\nn,30.034,-40.003,\nm,30.015,-39.995,2000\n",
                  encoding="utf-8")  # fmt: skip
     out2 = tmp_path / "o2.csv"
