@@ -52,7 +52,7 @@ def test_fixed_value_needs_no_elevation():
 
 
 def test_elev_max_limits_a_fixed_value():
-    assert ev(1, 1000.0) == (30.0, R.OK)  # at the limit: still mapped (contract: "above it")
+    assert ev(1, 1000.0) == (30.0, R.OK)  # at the limit: mapped (docs/contract.md, elev_max)
     v, s = ev(1, 1000.1)
     assert math.isnan(v) and s == R.ABOVE
     assert ev(1, NAN) == (30.0, R.UNCHECKED)
