@@ -27,7 +27,7 @@ import numpy as np
 import pandas as pd
 
 from neve.engine.errors import InputError
-from neve.engine.roof_spec import Roof, merge_roof_levels
+from neve.engine.roof_spec import Roof
 from neve.engine.units import KPA_PER_PSF, M_PER_FT
 from neve.geo.screen.local import (  # noqa: F401  (the local engine's names re-exported)
     CHUNK_SIZE,
@@ -47,6 +47,7 @@ from neve.geo.screen.outputs import (  # noqa: F401  (summary names re-exported)
     summarize,
 )
 from neve.geo.screen.sitefile import SiteArrays, load_sites
+from neve.roof_file import read_toml, roofs_from_mapping  # noqa: F401  (moved; re-exported)
 
 #: the result columns neve adds (before the roof columns), in order
 RESULT_COLUMNS = (
@@ -92,40 +93,10 @@ def _layers(layers) -> list:
     return as_layers(layers)
 
 
-def roofs_from_mapping(data: Mapping, overrides: Mapping | None = None) -> Roof | dict[str, Roof]:
-    """One roof, or a dict of named profiles, from a ROOF.toml mapping.
-
-    A file with ``[profile.NAME]`` tables gives one roof per profile; keys at
-    the top of the file are shared defaults that each profile may override.
-    ``overrides`` (command-line roof options) win over both, also across
-    spellings (a profile's ``ct`` replaces a shared ``thermal``; see
-    :func:`neve.engine.roof_spec.merge_roof_levels`).
-    """
-    data = dict(data)
-    overrides = {k: v for k, v in dict(overrides or {}).items() if v is not None}
-    profiles = data.pop("profile", None)
-    if profiles is None:
-        return Roof.from_mapping(merge_roof_levels(data, overrides))
-    if not isinstance(profiles, Mapping) or not profiles:
-        raise InputError("roof", "[profile] must hold named tables", "[profile.NAME] tables")
-    out = {}
-    for name, table in profiles.items():
-        if not isinstance(table, Mapping):
-            raise InputError(f"profile.{name}", "is not a table", "[profile.NAME] with roof keys")
-        try:
-            levels = merge_roof_levels({"name": str(name)}, data, table, overrides)
-            out[str(name)] = Roof.from_mapping(levels)
-        except InputError as exc:
-            raise InputError(f"profile.{name}.{exc.field}", exc.problem, exc.accepted) from None
-    return out
-
-
 def _roofs(roof) -> Roof | dict[str, Roof] | None:
     if roof is None or isinstance(roof, Roof):
         return roof
     if isinstance(roof, (str, Path)):
-        from neve.cli.options import read_toml
-
         return roofs_from_mapping(read_toml(roof, "roof"))
     if isinstance(roof, Mapping):
         if roof and all(isinstance(v, Roof) for v in roof.values()):

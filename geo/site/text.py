@@ -2,22 +2,24 @@
 
 from __future__ import annotations
 
+from neve.engine.format import elevation_text, load_text
 from neve.engine.printable import printable
+from neve.engine.roof_text import roof_text
 
 DEMO_BANNER = "*** DEMO DATA — invented values, never for design ***"
 
-
-def _num(x, spec: str) -> str:
-    return "—" if x is None else format(x, spec)
+#: what a missing value prints as in the site summary
+NONE = "—"
 
 
 def _load(x: dict | None) -> str:
-    """A load as ``35 psf (1.676 kPa)``: psf first, its kPa twin in brackets."""
-    return "—" if x is None else f"{_num(x['psf'], 'g')} psf ({_num(x['kPa'], 'g')} kPa)"
+    """A ground load as the map gives it: ``35.0875 psf (1.68 kPa)`` (psf first)."""
+    return load_text(x, exact=True, missing=NONE)
 
 
 def _length(x: dict | None) -> str:
-    return "—" if x is None else f"{_num(x['ft'], '.0f')} ft ({_num(x['m'], '.1f')} m)"
+    """An elevation or a distance on the ground: ``1350 ft (411.5 m)``."""
+    return elevation_text(x, missing=NONE)
 
 
 def site_text(result, show_steps: bool = True) -> str:
@@ -73,8 +75,6 @@ def site_text(result, show_steps: bool = True) -> str:
             lines.append(f"  {st['symbol']}: {st['description']}: {st['substituted']}{value}")
     if roof is not None:
         lines.append("")
-        from neve.cli.roof import roof_text
-
         lines.append(f"Roof ({roof['standard']}):")
         body = roof_text(roof, show_steps=show_steps, show_cautions=False)
         lines += ["  " + line if line else "" for line in body.splitlines()]

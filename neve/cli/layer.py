@@ -6,6 +6,7 @@ import json
 
 import click
 
+from neve.cli.options import format_option, map_look_options, map_option, overwrite_option
 from neve.engine.printable import printable
 
 
@@ -16,8 +17,7 @@ def layer() -> None:
 
 @layer.command("check")
 @click.argument("layer_path", metavar="LAYER", type=click.Path(dir_okay=False))
-@click.option("--format", "fmt", type=click.Choice(["text", "json"]), default="text",
-              show_default=True)  # fmt: skip
+@format_option
 def check(layer_path: str, fmt: str) -> None:
     """Report the defects of LAYER; exit 0 when clean, 1 when problems are found, 2 unreadable."""
     from neve.geo.layers.check import check_layer, check_text
@@ -33,11 +33,9 @@ def check(layer_path: str, fmt: str) -> None:
 
 @layer.command("show")
 @click.argument("layer_path", metavar="LAYER", type=click.Path(dir_okay=False))
-@click.option("--map", "map_path", required=True, type=click.Path(dir_okay=False),
-              help="HTML map to write.")  # fmt: skip
-@click.option("--tiles", type=click.Choice(["none", "osm"]), default="none", show_default=True)
-@click.option("--self-contained", is_flag=True, help="Inline the map's scripts and styles.")
-@click.option("--overwrite", is_flag=True, help="Replace an existing map.")
+@map_option("HTML map to write.", required=True)
+@map_look_options
+@overwrite_option("Replace an existing map.")
 def show(layer_path: str, map_path: str, tiles: str, self_contained: bool, overwrite: bool) -> None:
     """Draw LAYER and the problems `neve layer check` finds on an HTML map."""
     from neve.geo.layers.check import check_layer

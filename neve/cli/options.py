@@ -1,26 +1,67 @@
-"""Option definitions shared by the CLI commands (one place, as in rasterio).
+"""Every option of the ``neve`` commands, defined once and shared (as in rasterio).
 
-``roof_options`` adds the ASCE 7-16 roof options of DESIGN.md to a command;
-:func:`roof_from_options` turns the parsed values plus an optional ROOF.toml
-into an :class:`neve.engine.roof_spec.Roof` (command-line options override the
-file), or ``None`` when no roof was described.
+Each option is a decorator here; a command stacks the ones it takes, so an
+option has one spelling, one type, one default and one behaviour in every
+command that offers it. Where commands describe an option's object
+differently (``--map`` is a site map in ``neve site`` and a portfolio map in
+``neve screen``), the decorator takes that command's ``help`` and nothing else.
+
+``roof_options`` adds the roof options and ``--roof ROOF.toml``;
+:func:`roof_from_options` hands the parsed values to the library's
+:mod:`neve.roof_file` (command-line options override the file).
 """
 
 from __future__ import annotations
 
-import tomllib
-from pathlib import Path
-
 import click
 
 from neve.engine.errors import InputError
-from neve.engine.roof_spec import Roof, merge_roof_levels
+from neve.engine.roof_spec import Roof
+from neve.roof_file import ROOF_KEYS, read_toml, roof_mapping  # noqa: F401  (re-exported)
 
 #: roof option names as they appear in kwargs (and ROOF.toml keys)
-ROOF_OPTION_KEYS = (
-    "shape", "slope", "surface", "ct", "thermal", "ce", "terrain", "exposure", "risk",
-    "eave_to_ridge", "r_value", "ventilated", "unobstructed", "prismatic",
-)  # fmt: skip
+ROOF_OPTION_KEYS = ROOF_KEYS
+
+
+def _stack(*options):
+    """One decorator applying ``options`` in the order listed (as in ``--help``)."""
+
+    def decorate(f):
+        for opt in reversed(options):
+            f = opt(f)
+        return f
+
+    return decorate
+
+
+# --- values given once -------------------------------------------------------------
+
+
+def once(field: str):
+    """A callback for a ``multiple=True`` option that must be given exactly once."""
+
+    def callback(ctx, param, values: tuple):
+        if not values:
+            return None
+        if len(values) > 1:
+            raise InputError(field, f"given {len(values)} times ({', '.join(values)})", "one value")
+        return values[0]
+
+    return callback
+
+
+def pg_option(f):
+    """``--pg``: the ground snow load with its unit, given once."""
+    return click.option(
+        "--pg",
+        required=True,
+        multiple=True,
+        callback=once("pg"),
+        help="Ground snow load with its unit, e.g. 35psf or 1.68kPa.",
+    )(f)
+
+
+# --- roof --------------------------------------------------------------------------
 
 
 def _one_answer(ctx, param, values: tuple):
@@ -38,97 +79,94 @@ def _pair(decl: str, name: str, help_: str):
     return click.option(decl, name, default=None, multiple=True, callback=_one_answer, help=help_)
 
 
-def roof_options(f):
-    """Decorate a click command with the roof options and ``--roof ROOF.toml``."""
-    opts = [
-        click.option(
-            "--roof",
-            "roof_file",
-            type=click.Path(dir_okay=False),
-            help="ROOF.toml describing the roof (options below override it).",
-        ),
-        click.option("--shape", help="Roof shape: flat, monoslope, gable, hip."),
-        click.option("--slope", help="Roof slope, e.g. 6:12 or 26.6deg."),
-        click.option("--surface", help="Roof surface: slippery or other."),
-        click.option("--ct", help="Thermal factor Ct given directly (ASCE 7-16 Table 7.3-2)."),
-        click.option(
-            "--thermal",
-            help="Thermal condition: heated, cold-ventilated, unheated, below-freezing, greenhouse.",
-        ),
-        click.option("--ce", help="Exposure factor Ce given directly (ASCE 7-16 Table 7.3-1)."),
-        click.option("--terrain", help="Surface roughness: B, C, D, above-treeline, treeless."),
-        click.option("--exposure", help="Roof exposure: fully, partially, sheltered."),
-        click.option("--risk", help="Risk category: I, II, III, IV."),
-        click.option(
-            "--eave-to-ridge",
-            "eave_to_ridge",
-            help="Horizontal eave-to-ridge distance W, e.g. 30ft.",
-        ),
-        click.option(
-            "--r-value", "r_value", help="Roof thermal resistance R [ft2.h.F/Btu], e.g. 30."
-        ),
-        _pair("--ventilated/--unventilated", "ventilated", "Whether the roof is ventilated."),
-        _pair(
-            "--unobstructed/--obstructed",
-            "unobstructed",
-            "Whether snow can slide off the eaves unobstructed.",
-        ),
-        _pair(
-            "--prismatic/--non-prismatic",
-            "prismatic",
-            "Simply supported prismatic members from ridge to eave (Sec. 7.6.1).",
-        ),
-    ]
-    for opt in reversed(opts):
-        f = opt(f)
-    return f
-
-
-def read_toml(path: str | Path, field: str) -> dict:
-    """Read a TOML file; a missing or malformed file is an InputError naming ``field``.
-
-    The text is UTF-8; a byte-order mark at its start (as some Windows editors
-    write) is dropped, since TOML itself does not allow one.
-    """
-    p = Path(path)
-    if not p.is_file():
-        raise InputError(field, f"file {str(p)!r} not found", "a path to a TOML file")
-    try:
-        return tomllib.loads(p.read_text(encoding="utf-8-sig"))
-    except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
-        raise InputError(field, f"{str(p)!r} is not valid TOML ({exc})", "a TOML file") from None
-    except OSError as exc:
-        raise InputError(
-            field, f"{str(p)!r} cannot be read ({exc.strerror})", "a readable TOML file"
-        ) from None
-
-
-def roof_mapping(kwargs: dict) -> dict | None:
-    """Merge ``--roof`` file content and the roof options into one mapping.
-
-    The options override the file (:func:`neve.engine.roof_spec.merge_roof_levels`):
-    ``--ct`` replaces the file's ``thermal``, ``--unventilated`` its
-    ``ventilated = true``, and so on.
-    """
-    data: dict = {}
-    if kwargs.get("roof_file"):
-        data = read_toml(kwargs["roof_file"], "roof")
-        if "profile" in data:
-            raise InputError(
-                "roof",
-                "this file defines profiles; name one in the site file's 'roof' column",
-                "a ROOF.toml without [profile.*] tables",
-            )
-    given = {k: kwargs.get(k) for k in ROOF_OPTION_KEYS if kwargs.get(k) is not None}
-    if not data and not given:
-        return None
-    return merge_roof_levels(data, given)
+roof_options = _stack(
+    click.option(
+        "--roof",
+        "roof_file",
+        type=click.Path(dir_okay=False),
+        help="ROOF.toml describing the roof (options below override it).",
+    ),
+    click.option("--shape", help="Roof shape: flat, monoslope, gable, hip."),
+    click.option("--slope", help="Roof slope, e.g. 6:12 or 26.6deg."),
+    click.option("--surface", help="Roof surface: slippery or other."),
+    click.option("--ct", help="Thermal factor Ct given directly (ASCE 7-16 Table 7.3-2)."),
+    click.option(
+        "--thermal",
+        help="Thermal condition: heated, cold-ventilated, unheated, below-freezing, greenhouse.",
+    ),
+    click.option("--ce", help="Exposure factor Ce given directly (ASCE 7-16 Table 7.3-1)."),
+    click.option("--terrain", help="Surface roughness: B, C, D, above-treeline, treeless."),
+    click.option("--exposure", help="Roof exposure: fully, partially, sheltered."),
+    click.option("--risk", help="Risk category: I, II, III, IV."),
+    click.option(
+        "--eave-to-ridge",
+        "eave_to_ridge",
+        help="Horizontal eave-to-ridge distance W, e.g. 30ft.",
+    ),
+    click.option("--r-value", "r_value", help="Roof thermal resistance R [ft2.h.F/Btu], e.g. 30."),
+    _pair("--ventilated/--unventilated", "ventilated", "Whether the roof is ventilated."),
+    _pair(
+        "--unobstructed/--obstructed",
+        "unobstructed",
+        "Whether snow can slide off the eaves unobstructed.",
+    ),
+    _pair(
+        "--prismatic/--non-prismatic",
+        "prismatic",
+        "Simply supported prismatic members from ridge to eave (Sec. 7.6.1).",
+    ),
+)
+roof_options.__doc__ = "Decorate a click command with the roof options and ``--roof ROOF.toml``."
 
 
 def roof_from_options(kwargs: dict) -> Roof | None:
     """The roof described by the options and ``--roof`` file, or None if none was."""
-    data = roof_mapping(kwargs)
-    return None if data is None else Roof.from_mapping(data)
+    from neve.roof_file import read_roof
+
+    return read_roof(kwargs.get("roof_file"), kwargs)
+
+
+def roofs_from_options(kwargs: dict):
+    """A screening roof (one Roof, named profiles, or None) from ``--roof`` and the options."""
+    from neve.roof_file import read_roofs
+
+    return read_roofs(kwargs.get("roof_file"), kwargs)
+
+
+# --- zone layers and elevation -----------------------------------------------------
+
+
+def layers_option(f):
+    """``--layer`` (repeatable): the zone layers, most local first."""
+    return click.option(
+        "--layer",
+        "layers",
+        multiple=True,
+        type=click.Path(dir_okay=False),
+        help="Zone layer (repeat, most local first). Default: the embedded, invented DEMO "
+        "layers (never for design).",
+    )(f)
+
+
+class DemPath(click.Path):
+    """``--dem``: a GeoTIFF path (not a folder), or ``demo`` for the embedded demo DEM."""
+
+    def __init__(self):
+        super().__init__(dir_okay=False)
+
+    def convert(self, value, param, ctx):
+        if value == "demo":  # the library decides between a file so named and the demo
+            return value
+        return super().convert(value, param, ctx)
+
+
+def dem_option(f):
+    """``--dem``: the DEM the site elevations are sampled from."""
+    return click.option(
+        "--dem",
+        type=DemPath(),
+        help="DEM GeoTIFF to sample the elevation from (any CRS); 'demo' = the embedded demo DEM.",
+    )(f)
 
 
 class DemUnitType(click.ParamType):
@@ -171,3 +209,87 @@ def elevation_source_option(f):
         help="Where a given elevation and the DEM differ by more than 15 m: 'larger' lets "
         "the more demanding ground load govern, 'input' the given elevation.",
     )(f)
+
+
+#: ``--dem``, ``--dem-units`` and ``--elevation-source``, in that order
+dem_options = _stack(dem_option, dem_units_option, elevation_source_option)
+
+
+# --- geocoding ---------------------------------------------------------------------
+
+
+def gazetteer_option(f):
+    """``--gazetteer``: an offline address list, looked at before any server."""
+    return click.option(
+        "--gazetteer",
+        type=click.Path(dir_okay=False),
+        help="Offline address list: CSV with address,lat,lon (looked at before --geocoder-url).",
+    )(f)
+
+
+def geocoder_url_option(f):
+    """``--geocoder-url``: a geocoding server for addresses the gazetteer does not hold."""
+    return click.option(
+        "--geocoder-url",
+        "geocoder_url",
+        help="Nominatim-compatible geocoding server, e.g. http://localhost:8080 (one request "
+        "per second at most).",
+    )(f)
+
+
+# --- outputs -----------------------------------------------------------------------
+
+
+def format_option(f):
+    """``--format text|json``: what the command prints."""
+    return click.option(
+        "--format",
+        "fmt",
+        type=click.Choice(["text", "json"]),
+        default="text",
+        show_default=True,
+        help="Output: readable text, or one JSON object.",
+    )(f)
+
+
+def map_option(help: str, *, required: bool = False):
+    """``--map FILE.html``: an HTML map to write; ``help`` says which map."""
+    return click.option(
+        "--map", "map_path", required=required, type=click.Path(dir_okay=False), help=help
+    )
+
+
+def tiles_option(f):
+    """``--tiles none|osm``: background tiles of a map."""
+    return click.option(
+        "--tiles",
+        type=click.Choice(["none", "osm"], case_sensitive=False),
+        default="none",
+        show_default=True,
+        help="Background tiles of the map: none works offline, osm needs internet.",
+    )(f)
+
+
+def self_contained_option(f):
+    """``--self-contained``: one HTML file holding the map's scripts and styles."""
+    return click.option(
+        "--self-contained",
+        "self_contained",
+        is_flag=True,
+        help="Inline the map's scripts and styles, so that the map opens with no internet "
+        "(with --tiles none).",
+    )(f)
+
+
+#: ``--tiles`` and ``--self-contained``, in that order
+map_look_options = _stack(tiles_option, self_contained_option)
+
+
+def overwrite_option(help: str):
+    """``--overwrite``: replace existing outputs; ``help`` names the command's outputs."""
+    return click.option("--overwrite", is_flag=True, help=help)
+
+
+def quiet_option(f):
+    """``--quiet``: no progress bar."""
+    return click.option("--quiet", is_flag=True, help="No progress bar.")(f)

@@ -9,24 +9,18 @@ from pathlib import Path
 import click
 
 from neve.cli.options import (
-    ROOF_OPTION_KEYS,
-    dem_units_option,
-    elevation_source_option,
-    read_toml,
+    dem_options,
+    gazetteer_option,
+    geocoder_url_option,
+    layers_option,
+    map_look_options,
+    map_option,
+    overwrite_option,
+    quiet_option,
     roof_options,
+    roofs_from_options,
 )
 from neve.engine.errors import InputError
-
-
-def _roof(kwargs: dict):
-    """One Roof, a dict of profiles, or None, from --roof and the roof options."""
-    from neve.engine.roof_spec import Roof
-    from neve.geo.screen.run import roofs_from_mapping
-
-    given = {k: kwargs.get(k) for k in ROOF_OPTION_KEYS if kwargs.get(k) is not None}
-    if kwargs.get("roof_file"):
-        return roofs_from_mapping(read_toml(kwargs["roof_file"], "roof"), given)
-    return Roof.from_mapping(given) if given else None
 
 
 def _terminate(signum, frame):  # pragma: no cover - exercised through a subprocess test
@@ -43,35 +37,11 @@ def _terminate(signum, frame):  # pragma: no cover - exercised through a subproc
     type=click.Path(dir_okay=False),
     help="Results file: .csv, .xlsx (with a summary sheet), .gpkg or .parquet.",
 )
-@click.option(
-    "--layer",
-    "layers",
-    multiple=True,
-    type=click.Path(dir_okay=False),
-    help="Zone layer (repeat, most local first). Default: the embedded demo layer.",
-)
-@click.option(
-    "--dem",
-    type=click.Path(dir_okay=False),
-    help="Elevation raster (GeoTIFF); 'demo' = the embedded demo DEM.",
-)
-@dem_units_option
-@elevation_source_option
+@layers_option
+@dem_options
 @roof_options
-@click.option("--map", "map_path", type=click.Path(dir_okay=False), help="Portfolio map (.html).")
-@click.option(
-    "--tiles",
-    type=click.Choice(["none", "osm"], case_sensitive=False),
-    default="none",
-    show_default=True,
-    help="Base tiles under the portfolio map (none works offline).",
-)
-@click.option(
-    "--self-contained",
-    "self_contained",
-    is_flag=True,
-    help="Embed the map's scripts and styles so it opens with no internet.",
-)
+@map_option("Portfolio map (.html).")
+@map_look_options
 @click.option(
     "--engine",
     type=click.Choice(["local", "dask"], case_sensitive=False),
@@ -91,24 +61,16 @@ def _terminate(signum, frame):  # pragma: no cover - exercised through a subproc
 @click.option(
     "--partitions", type=click.IntRange(min=1), help="Dask partitions (default: automatic)."
 )
-@click.option(
-    "--gazetteer",
-    type=click.Path(dir_okay=False),
-    help="CSV of address,lat,lon used first for address rows.",
-)
-@click.option(
-    "--geocoder-url",
-    "geocoder_url",
-    help="Nominatim-compatible server for address rows (one request per second at most).",
-)
+@gazetteer_option
+@geocoder_url_option
 @click.option(
     "--geocode-cache",
     "geocode_cache",
     type=click.Path(dir_okay=False),
     help="JSON file keeping found addresses between runs (read, then updated).",
 )
-@click.option("--quiet", is_flag=True, help="No progress bar.")
-@click.option("--overwrite", is_flag=True, help="Replace existing output files.")
+@quiet_option
+@overwrite_option("Replace existing output files.")
 @click.option(
     "--csv-raw",
     "csv_raw",
@@ -170,7 +132,7 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
         raise InputError(
             "partitions", "given without --engine dask", "--engine dask --partitions N"
         )
-    roof = _roof(roof_kw)
+    roof = roofs_from_options(roof_kw)
     progress = not quiet and sys.stderr.isatty()
     try:  # a terminated run cleans up its temporary files like an interrupted one
         previous = signal.signal(signal.SIGTERM, _terminate)

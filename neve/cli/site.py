@@ -5,8 +5,14 @@ from __future__ import annotations
 import click
 
 from neve.cli.options import (
-    dem_units_option,
-    elevation_source_option,
+    dem_options,
+    format_option,
+    gazetteer_option,
+    geocoder_url_option,
+    layers_option,
+    map_look_options,
+    map_option,
+    overwrite_option,
     roof_from_options,
     roof_options,
 )
@@ -32,35 +38,19 @@ def _check_output(path: str | None, field: str, overwrite: bool, is_dir: bool = 
 @click.option("--at", "at", metavar="LAT,LON", help="Site coordinates, decimal or DMS.")
 @click.option("--address", help="Site address (needs --gazetteer or --geocoder-url).")
 @click.option("--elevation", help="Site elevation with its unit, e.g. 412m or 1350ft.")
-@click.option(
-    "--dem",
-    help="DEM GeoTIFF to sample the elevation from (any CRS); 'demo' = the embedded demo DEM.",
-)
-@dem_units_option
-@elevation_source_option
-@click.option(
-    "--layer",
-    "layers",
-    multiple=True,
-    type=click.Path(dir_okay=False),
-    help="Zone layer (repeat, most local first). Default: the embedded DEMO layers.",
-)
+@dem_options
+@layers_option
 @roof_options
 @click.option("--site-name", help="Name of the site for reports.")
 @click.option("--project", help="Project name for reports.")
-@click.option("--map", "map_path", type=click.Path(dir_okay=False), help="Write a site map (HTML).")
+@map_option("Write a site map (HTML).")
 @click.option("--package", "package_dir", type=click.Path(file_okay=False),
               help="Write a calculation package into this folder.")  # fmt: skip
-@click.option("--tiles", type=click.Choice(["none", "osm"]), default="none", show_default=True,
-              help="Background tiles of the map (osm needs internet).")  # fmt: skip
-@click.option("--self-contained", is_flag=True, help="Inline the map's scripts and styles.")
-@click.option("--overwrite", is_flag=True, help="Replace existing --map/--package outputs.")
-@click.option("--format", "fmt", type=click.Choice(["text", "json"]), default="text",
-              show_default=True)  # fmt: skip
-@click.option("--gazetteer", type=click.Path(dir_okay=False),
-              help="Offline address list: CSV with address,lat,lon.")  # fmt: skip
-@click.option("--geocoder-url",
-              help="Nominatim-compatible geocoding server, e.g. http://localhost:8080.")  # fmt: skip
+@map_look_options
+@overwrite_option("Replace existing --map/--package outputs.")
+@format_option
+@gazetteer_option
+@geocoder_url_option
 @click.option("--user-agent", help="User agent sent to the geocoding server.")
 @click.option("--geocoder-timeout", type=float, default=10.0, show_default=True,
               help="Seconds to wait for the geocoding server.")  # fmt: skip

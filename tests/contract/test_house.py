@@ -175,7 +175,9 @@ def test_the_checker_finds_a_circle_and_skips_type_checking():
     """The cycle finder itself, on a hand-made graph (a check that can fail)."""
     assert _cycles({"a": {"b"}, "b": {"c"}, "c": {"a"}, "d": {"a"}}) == [["a", "b", "c"]]
     assert _cycles({"a": {"b"}, "b": set()}) == []
-    tree = ast.parse("from typing import TYPE_CHECKING\nif TYPE_CHECKING:\n    import x\nimport y\n")
+    tree = ast.parse(
+        "from typing import TYPE_CHECKING\nif TYPE_CHECKING:\n    import x\nimport y\n"
+    )
     skipped = _type_checking_blocks(tree)
     names = [a.name for n in ast.walk(tree) if isinstance(n, ast.Import) and id(n) not in skipped
              for a in n.names]  # fmt: skip
@@ -209,7 +211,9 @@ def test_the_engine_imports_none_of_the_other_rooms_and_no_io_library():
             if target.startswith("neve."):
                 if not (target == "neve.engine" or target.startswith("neve.engine.")):
                     offenders.append(f"{name}:{line} imports {target}")
-            elif top not in stdlib and top not in ENGINE_THIRD_PARTY_ALLOWED and top != "__future__":
+            elif (
+                top not in stdlib and top not in ENGINE_THIRD_PARTY_ALLOWED and top != "__future__"
+            ):
                 offenders.append(f"{name}:{line} imports {target}")
     assert offenders == []
 
@@ -391,43 +395,73 @@ _GEOCODER_URL = ("geocoder_url", ("--geocoder-url",), "StringParamType", None, F
 
 EXPECTED_OPTIONS = {
     ("roof",): sorted(
-        [*_ROOF_OPTS, _FORMAT,
-         ("pg", ("--pg",), "StringParamType", None, True, True),
-         ("no_steps", ("--no-steps",), "BoolParamType", False, False, False)]
+        [
+            *_ROOF_OPTS,
+            _FORMAT,
+            ("pg", ("--pg",), "StringParamType", None, True, True),
+            ("no_steps", ("--no-steps",), "BoolParamType", False, False, False),
+        ]
     ),  # fmt: skip
     ("site",): sorted(
-        [*_ROOF_OPTS, _FORMAT, _DEM, _DEM_UNITS, _ELEV_SOURCE, _LAYERS, _TILES, _SELF_CONTAINED,
-         _OVERWRITE, _MAP, _GAZETTEER, _GEOCODER_URL,
-         ("address", ("--address",), "StringParamType", None, False, False),
-         ("at", ("--at",), "StringParamType", None, False, False),
-         ("elevation", ("--elevation",), "StringParamType", None, False, False),
-         ("geocoder_timeout", ("--geocoder-timeout",), "FloatParamType", 10.0, False, False),
-         ("package_dir", ("--package",), _PATH, None, False, False),
-         ("project", ("--project",), "StringParamType", None, False, False),
-         ("site_name", ("--site-name",), "StringParamType", None, False, False),
-         ("user_agent", ("--user-agent",), "StringParamType", None, False, False)]
+        [
+            *_ROOF_OPTS,
+            _FORMAT,
+            _DEM,
+            _DEM_UNITS,
+            _ELEV_SOURCE,
+            _LAYERS,
+            _TILES,
+            _SELF_CONTAINED,
+            _OVERWRITE,
+            _MAP,
+            _GAZETTEER,
+            _GEOCODER_URL,
+            ("address", ("--address",), "StringParamType", None, False, False),
+            ("at", ("--at",), "StringParamType", None, False, False),
+            ("elevation", ("--elevation",), "StringParamType", None, False, False),
+            ("geocoder_timeout", ("--geocoder-timeout",), "FloatParamType", 10.0, False, False),
+            ("package_dir", ("--package",), _PATH, None, False, False),
+            ("project", ("--project",), "StringParamType", None, False, False),
+            ("site_name", ("--site-name",), "StringParamType", None, False, False),
+            ("user_agent", ("--user-agent",), "StringParamType", None, False, False),
+        ]
     ),  # fmt: skip
     ("screen",): sorted(
-        [*_ROOF_OPTS, _DEM, _DEM_UNITS, _ELEV_SOURCE, _LAYERS, _TILES, _SELF_CONTAINED,
-         _OVERWRITE, _MAP, _GAZETTEER, _GEOCODER_URL,
-         ("sites", ("sites",), _PATH, None, False, True),
-         ("output", ("-o", "--output"), _PATH, None, False, True),
-         ("engine", ("--engine",), "Choice('local', 'dask')", "local", False, False),
-         ("scheduler", ("--scheduler",), "StringParamType", None, False, False),
-         ("staging", ("--staging",), _PATH, None, False, False),
-         ("partitions", ("--partitions",), "IntRange", None, False, False),
-         ("geocode_cache", ("--geocode-cache",), _PATH, None, False, False),
-         ("quiet", ("--quiet",), "BoolParamType", False, False, False),
-         ("csv_raw", ("--csv-raw",), "BoolParamType", False, False, False),
-         ("summary_json", ("--summary-json",), _PATH, None, False, False)]
+        [
+            *_ROOF_OPTS,
+            _DEM,
+            _DEM_UNITS,
+            _ELEV_SOURCE,
+            _LAYERS,
+            _TILES,
+            _SELF_CONTAINED,
+            _OVERWRITE,
+            _MAP,
+            _GAZETTEER,
+            _GEOCODER_URL,
+            ("sites", ("sites",), _PATH, None, False, True),
+            ("output", ("-o", "--output"), _PATH, None, False, True),
+            ("engine", ("--engine",), "Choice('local', 'dask')", "local", False, False),
+            ("scheduler", ("--scheduler",), "StringParamType", None, False, False),
+            ("staging", ("--staging",), _PATH, None, False, False),
+            ("partitions", ("--partitions",), "IntRange", None, False, False),
+            ("geocode_cache", ("--geocode-cache",), _PATH, None, False, False),
+            ("quiet", ("--quiet",), "BoolParamType", False, False, False),
+            ("csv_raw", ("--csv-raw",), "BoolParamType", False, False, False),
+            ("summary_json", ("--summary-json",), _PATH, None, False, False),
+        ]
     ),  # fmt: skip
     ("layer", "check"): sorted(
         [_FORMAT, ("layer_path", ("layer_path",), _PATH, None, False, True)]
     ),  # fmt: skip
     ("layer", "show"): sorted(
-        [_TILES, _SELF_CONTAINED, _OVERWRITE,
-         ("map_path", ("--map",), _PATH, None, False, True),
-         ("layer_path", ("layer_path",), _PATH, None, False, True)]
+        [
+            _TILES,
+            _SELF_CONTAINED,
+            _OVERWRITE,
+            ("map_path", ("--map",), _PATH, None, False, True),
+            ("layer_path", ("layer_path",), _PATH, None, False, True),
+        ]
     ),  # fmt: skip
 }
 STANDARD_OPTION = ("standard", ("--standard",))

@@ -1,0 +1,196 @@
+"""The one formatter of quantities for people: loads, lengths, line loads, densities, slopes.
+
+Every text neve shows (the terminal summaries of ``neve roof`` and ``neve
+site``, the site and portfolio maps, the diagrams and the calculation package)
+prints a quantity through this module, so that a value reads the same
+everywhere. A quantity crosses the library as a mapping of its two units (the
+JSON shape: ``{"psf": 35.0, "kPa": 1.676}``); it is shown with the first unit
+first and its twin in brackets: ``35.0 psf (1.68 kPa)``.
+
+The decimals of each unit are set once, in :data:`DECIMALS`. Two presentations
+share them:
+
+- ``trim=False`` (terminal text): trailing zeros kept, so that the decimals
+  shown say the precision and columns line up: ``35.0 psf (1.68 kPa)``;
+- ``trim=True`` (maps, diagrams, the package): trailing zeros dropped:
+  ``35 psf (1.68 kPa)``.
+
+Two scales differ from the table on purpose: elevations and distances on the
+ground (:func:`elevation_text`, whole feet and tenths of a metre) and a ground
+snow load quoted as the map gives it (``exact=True``: up to six significant
+digits, so that a reader can trace it to the layer's own value).
+
+A missing value (None, NaN, infinity: JSON ``null``) prints as ``missing``
+(``"n/a"`` unless the caller names its own word).
+
+>>> load_text({"psf": 35.0, "kPa": 1.6758})
+'35.0 psf (1.68 kPa)'
+>>> load_text({"psf": 35.0, "kPa": 1.6758}, trim=True)
+'35 psf (1.68 kPa)'
+>>> length_text({"ft": 40.0, "m": 12.192}, trim=True)
+'40 ft (12.19 m)'
+>>> elevation_text({"ft": 164.04, "m": 50.0})
+'164 ft (50.0 m)'
+>>> load_text({"psf": 35.0875, "kPa": 1.68}, exact=True)
+'35.0875 psf (1.68 kPa)'
+>>> quantity_text({"plf": 294.0, "kN/m": 4.29})
+'294 plf (4.29 kN/m)'
+>>> load_text(None)
+'n/a'
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Mapping
+
+#: decimals shown for each unit, everywhere (terminal, maps, package)
+DECIMALS: dict[str, int] = {
+    "psf": 1,
+    "kPa": 2,
+    "ft": 2,
+    "m": 2,
+    "plf": 0,
+    "kN/m": 2,
+    "pcf": 1,
+    "kN/m3": 2,
+    "deg": 2,
+}
+
+#: elevations and distances on the ground: whole feet, tenths of a metre
+GROUND_DECIMALS: dict[str, int] = {"ft": 0, "m": 1}
+
+#: the unit pairs of the JSON contract: (shown first, its twin in brackets)
+PAIRS: tuple[tuple[str, str], ...] = (
+    ("psf", "kPa"),
+    ("ft", "m"),
+    ("plf", "kN/m"),
+    ("pcf", "kN/m3"),
+)
+
+#: what a missing value prints as unless the caller says otherwise
+MISSING = "n/a"
+
+#: significant digits of a value quoted exactly (``exact=True``)
+EXACT_DIGITS = 6
+
+
+def _finite(x: object) -> float | None:
+    if x is None or isinstance(x, bool):
+        return None
+    try:
+        v = float(x)  # type: ignore[arg-type]
+    except (TypeError, ValueError):
+        return None
+    return v if math.isfinite(v) else None
+
+
+def number(
+    x: object, decimals: int | None = 1, *, trim: bool = False, missing: str = MISSING
+) -> str:
+    """A number with ``decimals`` decimals; ``decimals=None`` quotes it exactly.
+
+    Parameters
+    ----------
+    x : float, int or None
+        The value; None, NaN, infinity or a non-number prints as ``missing``.
+    decimals : int or None
+        Decimals shown; None: as given, up to :data:`EXACT_DIGITS` significant digits.
+    trim : bool
+        Drop trailing zeros (and a trailing decimal point).
+    missing : str
+        Text for a missing value.
+
+    >>> number(24.5, 2), number(24.5, 2, trim=True), number(float("nan"))
+    ('24.50', '24.5', 'n/a')
+    """
+    v = _finite(x)
+    if v is None:
+        return missing
+    if decimals is None:
+        return format(v, f".{EXACT_DIGITS}g")
+    text = format(v, f".{decimals}f")
+    if trim and "." in text:
+        text = text.rstrip("0").rstrip(".")
+    if text in ("-0", "-0." + "0" * decimals):  # -0.001 rounds to -0: no sign
+        text = text[1:]
+    return text
+
+
+def _pair_of(value: Mapping) -> tuple[str, str] | None:
+    for first, second in PAIRS:
+        if first in value:
+            return first, second
+    return None
+
+
+def quantity_text(
+    value: Mapping | None,
+    *,
+    trim: bool = False,
+    exact: bool = False,
+    decimals: Mapping[str, int] | None = None,
+    missing: str = MISSING,
+) -> str:
+    """A two-unit quantity as ``x unit (y twin)``; the units are read from its keys.
+
+    Parameters
+    ----------
+    value : mapping or None
+        ``{"psf": .., "kPa": ..}``, ``{"ft": .., "m": ..}``, ``{"plf": .., "kN/m": ..}``
+        or ``{"pcf": .., "kN/m3": ..}``; None (or an empty mapping) is missing.
+    trim : bool
+        Drop trailing zeros (maps and documents) or keep them (terminal text).
+    exact : bool
+        Quote both numbers as given (up to six significant digits).
+    decimals : mapping, optional
+        Decimals per unit overriding :data:`DECIMALS` (e.g. :data:`GROUND_DECIMALS`).
+    missing : str
+        Text for a missing quantity, or for a missing number within it.
+    """
+    if not value:
+        return missing
+    units = _pair_of(value)
+    if units is None:  # not a unit pair: each entry as it is
+        return ", ".join(
+            f"{k}: {number(v, None, missing=missing) if _finite(v) is not None else v}"
+            for k, v in value.items()
+        )
+    table = {**DECIMALS, **(decimals or {})}
+    shown = []
+    for unit in units:
+        digits = None if exact else table[unit]
+        shown.append(number(value.get(unit), digits, trim=trim, missing=missing))
+    if units[1] not in value:  # a quantity given in one unit only
+        return f"{shown[0]} {units[0]}"
+    return f"{shown[0]} {units[0]} ({shown[1]} {units[1]})"
+
+
+def is_quantity(value: object) -> bool:
+    """Whether ``value`` is a two-unit quantity this module can print."""
+    return isinstance(value, Mapping) and _pair_of(value) is not None
+
+
+def load_text(value: Mapping | None, **kw) -> str:
+    """A load [psf, kPa]: ``35.0 psf (1.68 kPa)``; see :func:`quantity_text`."""
+    return quantity_text(value, **kw)
+
+
+def length_text(value: Mapping | None, **kw) -> str:
+    """A length on a roof [ft, m]: ``17.67 ft (5.39 m)``; see :func:`quantity_text`."""
+    return quantity_text(value, **kw)
+
+
+def elevation_text(value: Mapping | None, **kw) -> str:
+    """An elevation or a distance on the ground [ft, m]: ``1350 ft (411.5 m)``."""
+    return quantity_text(value, decimals=GROUND_DECIMALS, **kw)
+
+
+def slope_text(deg: object, *, trim: bool = False, missing: str = MISSING) -> str:
+    """A roof slope in degrees: ``26.57 deg``.
+
+    >>> slope_text(26.565), slope_text(5.0, trim=True)
+    ('26.57 deg', '5 deg')
+    """
+    text = number(deg, DECIMALS["deg"], trim=trim, missing=missing)
+    return text if text == missing else f"{text} deg"

@@ -1,0 +1,123 @@
+"""Roof descriptions from a ROOF.toml file and the roof options (library code, not CLI).
+
+The engine never reads a file (:mod:`neve.engine` is pure), so the reader of
+ROOF.toml lives here, beside the parts of the package rather than inside one:
+``neve roof``, ``neve site`` and ``neve screen`` call it, and so do
+:func:`neve.geo.screen.run.screen` (a ``roof=`` path) and any Python user::
+
+    from neve.roof_file import read_roof, read_roofs
+    roof = read_roof("roof.toml", {"risk": "III"})       # one Roof (options override the file)
+    roofs = read_roofs("profiles.toml")                  # a Roof, or {profile name: Roof}
+
+Keys are the roof options' names with ``_`` for ``-`` (:data:`ROOF_KEYS`) plus
+the ``[[step]]``, ``[[parapet]]``, ``[[projection]]`` and ``[overhang]`` tables;
+a screening file may hold ``[profile.NAME]`` tables instead, one roof each.
+"""
+
+from __future__ import annotations
+
+import tomllib
+from collections.abc import Mapping
+from pathlib import Path
+
+from neve.engine.errors import InputError
+from neve.engine.roof_spec import Roof, merge_roof_levels
+
+#: the roof options' names as keyword arguments, and as ROOF.toml keys
+ROOF_KEYS = (
+    "shape", "slope", "surface", "ct", "thermal", "ce", "terrain", "exposure", "risk",
+    "eave_to_ridge", "r_value", "ventilated", "unobstructed", "prismatic",
+)  # fmt: skip
+
+
+def read_toml(path: str | Path, field: str) -> dict:
+    """Read a TOML file; a missing or malformed file is an InputError naming ``field``.
+
+    The text is UTF-8; a byte-order mark at its start (as some Windows editors
+    write) is dropped, since TOML itself does not allow one.
+    """
+    p = Path(path)
+    if not p.is_file():
+        raise InputError(field, f"file {str(p)!r} not found", "a path to a TOML file")
+    try:
+        return tomllib.loads(p.read_text(encoding="utf-8-sig"))
+    except (tomllib.TOMLDecodeError, UnicodeDecodeError) as exc:
+        raise InputError(field, f"{str(p)!r} is not valid TOML ({exc})", "a TOML file") from None
+    except OSError as exc:
+        raise InputError(
+            field, f"{str(p)!r} cannot be read ({exc.strerror})", "a readable TOML file"
+        ) from None
+
+
+def given_options(options: Mapping) -> dict:
+    """The roof options that were given (not None), by :data:`ROOF_KEYS`."""
+    return {k: options[k] for k in ROOF_KEYS if options.get(k) is not None}
+
+
+def roof_mapping(roof_file: str | Path | None, options: Mapping | None = None) -> dict | None:
+    """Merge a ROOF.toml (one roof, no profiles) and the given options into one mapping.
+
+    The options override the file (:func:`neve.engine.roof_spec.merge_roof_levels`):
+    ``ct`` replaces the file's ``thermal``, ``unventilated`` its
+    ``ventilated = true``, and so on. None when neither describes a roof.
+    """
+    data: dict = {}
+    if roof_file:
+        data = read_toml(roof_file, "roof")
+        if "profile" in data:
+            raise InputError(
+                "roof",
+                "this file defines profiles; name one in the site file's 'roof' column",
+                "a ROOF.toml without [profile.*] tables",
+            )
+    given = given_options(options or {})
+    if not data and not given:
+        return None
+    return merge_roof_levels(data, given)
+
+
+def read_roof(roof_file: str | Path | None, options: Mapping | None = None) -> Roof | None:
+    """The one roof a ROOF.toml and the options describe, or None if they describe none."""
+    data = roof_mapping(roof_file, options)
+    return None if data is None else Roof.from_mapping(data)
+
+
+def roofs_from_mapping(data: Mapping, overrides: Mapping | None = None) -> Roof | dict[str, Roof]:
+    """One roof, or a dict of named profiles, from a ROOF.toml mapping.
+
+    A file with ``[profile.NAME]`` tables gives one roof per profile; keys at
+    the top of the file are shared defaults that each profile may override.
+    ``overrides`` (command-line roof options) win over both, also across
+    spellings (a profile's ``ct`` replaces a shared ``thermal``; see
+    :func:`neve.engine.roof_spec.merge_roof_levels`).
+    """
+    data = dict(data)
+    overrides = {k: v for k, v in dict(overrides or {}).items() if v is not None}
+    profiles = data.pop("profile", None)
+    if profiles is None:
+        return Roof.from_mapping(merge_roof_levels(data, overrides))
+    if not isinstance(profiles, Mapping) or not profiles:
+        raise InputError("roof", "[profile] must hold named tables", "[profile.NAME] tables")
+    out = {}
+    for name, table in profiles.items():
+        if not isinstance(table, Mapping):
+            raise InputError(f"profile.{name}", "is not a table", "[profile.NAME] with roof keys")
+        try:
+            levels = merge_roof_levels({"name": str(name)}, data, table, overrides)
+            out[str(name)] = Roof.from_mapping(levels)
+        except InputError as exc:
+            raise InputError(f"profile.{name}.{exc.field}", exc.problem, exc.accepted) from None
+    return out
+
+
+def read_roofs(
+    roof_file: str | Path | None, options: Mapping | None = None
+) -> Roof | dict[str, Roof] | None:
+    """A screening roof: one Roof, ``{profile: Roof}`` from ``[profile.*]`` tables, or None.
+
+    ``options`` (the roof options given beside the file) override every profile.
+    """
+    given = given_options(options or {})
+    if roof_file:
+        return roofs_from_mapping(read_toml(roof_file, "roof"), given)
+    return Roof.from_mapping(given) if given else None
