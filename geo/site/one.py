@@ -24,7 +24,14 @@ from neve.geo.layers.explain import explain
 from neve.geo.layers.model import as_layers, dem_argument
 from neve.geo.site.coords import check_range
 from neve.geo.site.elevation import MISMATCH_M, check_dem_options, parse_elevation
-from neve.geo.site.resolve import ELEVATION_SOURCES, STATUSES, resolve_detail
+from neve.geo.site.resolve import ELEVATION_SOURCES, resolve
+from neve.geo.site.result import (
+    BIT,
+    ELEVATION_ORIGINS,
+    STATUSES,
+    Resolution,
+    flag_names,
+)
 
 #: radius within which neighbouring zones are listed for one site [m]
 SEARCH_M = 1000.0
@@ -43,12 +50,19 @@ class SiteResult:
     ground: dict
     roof: dict | None
     layers: list = field(default_factory=list)
-    row: dict = field(default_factory=dict)
+    resolution: Resolution | None = None  # the look-up's result (ground flags add site-level ones)
     roof_result: object = None
 
     @property
+    def row(self) -> dict:
+        """The site as a row of :func:`neve.geo.site.resolve.resolve_points`."""
+        return {} if self.resolution is None else self.resolution.row(0)
+
+    @property
     def demo(self) -> bool:
-        return "demo_data" in self.ground["flags"]
+        if self.resolution is None:
+            return "demo_data" in self.ground["flags"]
+        return bool(int(self.resolution.flags[0]) & BIT["demo_data"])
 
     def to_json(self) -> dict:
         return {"site": self.site, "ground": self.ground, "roof": self.roof}
@@ -65,7 +79,8 @@ class SiteResult:
         return site_text(self)
 
 
-def _steps(layer, hits, row, elev_ft: float, source: str) -> list[dict]:
+def _steps(layer, hits, pg: float, elev_ft: float, source: str) -> list[dict]:
+    """The derivation of one site's ground value in ``layer`` (``hits`` of that one site)."""
     steps: list[Step] = []
     if np.isfinite(elev_ft):
         steps.append(
@@ -110,18 +125,36 @@ def _steps(layer, hits, row, elev_ft: float, source: str) -> list[dict]:
         steps.append(Step("pg", f"zone with a larger value within {layer.tolerance_m:g} m "
                           "of the site: the larger value governs",
                           "pg = max(pg, neighbouring values)",
-                          f"max({fmt(base)}; {hits.neigh_vals[0]})", row["pg_psf"], "psf",
+                          f"max({fmt(base)}; {hits.neigh_vals[0]})", pg, "psf",
                           f"{layer.name} (boundary tolerance)"))  # fmt: skip
     return [s.to_dict() for s in steps]
 
 
-def _elevation_step(row, rule: str) -> dict:
+def _site_at(res: Resolution, alt: bool) -> tuple:
+    """(elevation source, elevation [ft], status, pg [psf], zone) of the one site of ``res``.
+
+    ``alt``: the result at the elevation that does not govern.
+    """
+    if alt:
+        return (
+            ELEVATION_ORIGINS[res.alt_source[0]],
+            float(res.alt_elevation_ft[0]),
+            STATUSES[res.alt_status[0]],
+            float(res.alt_values["pg"][0]),
+            res.alt_zone_id[0],
+        )
+    return (ELEVATION_ORIGINS[res.elevation_source[0]], float(res.elevation_ft[0]),
+            STATUSES[res.status[0]], float(res.value("pg")[0]), res.zone_id[0])  # fmt: skip
+
+
+def _elevation_step(res: Resolution, rule: str) -> dict:
     """The step that records a given elevation and the DEM disagreeing, and what governs."""
-    alt_src = row["alt_elevation_source"]
+    _, elev_ft, status, pg, _ = _site_at(res, False)
+    alt_src, alt_ft, alt_status, alt_pg, _ = _site_at(res, True)
     gov_src = "dem" if alt_src == "input" else "input"
-    here = _outcome_text(row["status"], row["pg_psf"])
-    there = _outcome_text(row["alt_status"], row["alt_pg_psf"])
-    at = {gov_src: (row["elevation_ft"], here), alt_src: (row["alt_elevation_ft"], there)}
+    here = _outcome_text(status, pg)
+    there = _outcome_text(alt_status, alt_pg)
+    at = {gov_src: (elev_ft, here), alt_src: (alt_ft, there)}
     sub = "; ".join(
         f"{'given' if src == 'input' else 'DEM'} A = {fmt(at[src][0] * M_PER_FT)} m: {at[src][1]}"
         for src in ("input", "dem")
@@ -136,7 +169,7 @@ def _elevation_step(row, rule: str) -> dict:
         f"given elevation and DEM differ by more than {MISMATCH_M:g} m: "
         f"ground load worked at both; the {'DEM' if gov_src == 'dem' else 'given'} "
         "elevation governs",
-        eq, sub, row["elevation_ft"], "ft", ref,
+        eq, sub, elev_ft, "ft", ref,
     ).to_dict()  # fmt: skip
 
 
@@ -146,11 +179,12 @@ def _outcome_text(status: str, psf) -> str:
     return status
 
 
-def _alternatives(row) -> list[dict]:
+def _alternatives(res: Resolution) -> list[dict]:
     """Both elevations of a site whose given elevation and DEM disagree, with their results."""
-    alt_src = row["alt_elevation_source"]
-    if not alt_src:
+    if res.alt_source[0] < 0:
         return []
+    alt_src, alt_ft, alt_status, alt_pg, alt_zone = _site_at(res, True)
+    _, elev_ft, status, pg, zone = _site_at(res, False)
     gov_src = "dem" if alt_src == "input" else "input"
 
     def entry(src, ft, status, psf, zone, governs):
@@ -165,10 +199,9 @@ def _alternatives(row) -> list[dict]:
         }
 
     both = [
-        entry(gov_src, row["elevation_ft"], row["status"], row["pg_psf"], row["zone_id"], True),
-        entry(alt_src, row["alt_elevation_ft"], row["alt_status"], row["alt_pg_psf"],
-              row["alt_zone_id"], False),
-    ]  # fmt: skip
+        entry(gov_src, elev_ft, status, pg, zone, True),
+        entry(alt_src, alt_ft, alt_status, alt_pg, alt_zone, False),
+    ]
     return sorted(both, key=lambda e: e["source"] != "input")
 
 
@@ -283,44 +316,44 @@ def resolve_site(
     check_dem_options(dem_path, dem_units)
     layers = as_layers(layers)
     elev_in = parse_elevation(elevation)
-    df, ctx = resolve_detail(
+    res = resolve(
         [lat], [lon], layers=layers, elevation_ft=[elev_in], dem=dem_path,
         dem_units=dem_units, search_m=SEARCH_M, elevation_source=elevation_source,
+        keep_detail=True,
     )  # fmt: skip
-    row = df.iloc[0].to_dict()
-    alt = ctx["alt"]
-    if alt is not None and bool(alt["governs"][0]):  # the DEM elevation governs this site
-        ctx = dict(ctx, hits=alt["hits"], gov=alt["gov"], per_layer=alt["per_layer"])
-    g = int(ctx["gov"][0])
-    flags = [f for f in row["flags"].split(";") if f]
-    status = row["status"]
-    message = row["message"]
+    look, _ = res.detail.governing(0)  # where the DEM elevation governs, its look-up
+    g = int(res.layer[0])
+    bits = int(res.flags[0])
+    status = STATUSES[res.status[0]]
+    pg = float(res.value("pg")[0])  # the ground value, in the one container it travels in
+    message = res.message[0]
     gov_layer = layers[g] if g >= 0 else None
     steps: list[dict] = []
     neighbours: list[dict] = []
     if gov_layer is not None:
-        hits = ctx["hits"][g]
-        steps = _steps(gov_layer, hits, row, row["elevation_ft"], row["elevation_source"])
-        if row["alt_elevation_source"]:
-            steps.insert(0, _elevation_step(row, elevation_source))
+        hits = look.hits[g]
+        source = ELEVATION_ORIGINS[res.elevation_source[0]]
+        steps = _steps(gov_layer, hits, pg, float(res.elevation_ft[0]), source)
+        if res.alt_source[0] >= 0:
+            steps.insert(0, _elevation_step(res, elevation_source))
         neighbours = _neighbours(hits, gov_layer.tolerance_m)
-        zone = f"Zone {row['zone_id']} ({row['rule']})"
-        if row["zone_ids"] != row["zone_id"]:
-            zone += f", of overlapping zones {row['zone_ids'].replace(';', ', ')}"
+        zone = f"Zone {res.zone_id[0]} ({res.rule[0]})"
+        if res.zone_ids[0] != res.zone_id[0]:
+            zone += f", of overlapping zones {res.zone_ids[0].replace(';', ', ')}"
         message = f"{zone}. {message}"
     else:
-        near = [n for h in ctx["hits"] for n in _neighbours(h, math.inf)]
+        near = [n for h in look.hits for n in _neighbours(h, math.inf)]
         if near:
             n0 = min(near, key=lambda n: n["distance"]["m"])
             message += f" The nearest zone is {n0['zone_id']}, {n0['distance']['m']:.0f} m away."
-    if "coordinates_suspect" in flags and g < 0 and abs(lon) <= 90 and lat != lon:
+    if bits & BIT["coordinates_suspect"] and g < 0 and abs(lon) <= 90 and lat != lon:
         message += f" Did you mean {lon:g},{lat:g} (latitude and longitude swapped)?"
     others = []
     for k, layer in enumerate(layers):
         if k == g:
             continue
-        st, _ = ctx["per_layer"][k]
-        h = ctx["hits"][k]
+        st, _ = look.per_layer[k]
+        h = look.hits[k]
         psf = h.value_psf[0] if st[0] == 0 else math.nan
         others.append(
             {
@@ -336,7 +369,7 @@ def resolve_site(
     roof_result = None
     std = str(gov_layer.meta.get("standard", "")) if gov_layer is not None else ""
     if roof is not None and usable and not roof_engine_accepts(std):
-        flags = sorted(set(flags) | {"roof_standard_unsupported"})
+        bits |= BIT["roof_standard_unsupported"]
         message += (
             f" No roof snow loads were computed: the layer maps ground loads for {std},"
             f" and neve's roof engine covers {', '.join(ROOF_ENGINE_STANDARDS)} ground loads only."
@@ -345,10 +378,10 @@ def resolve_site(
         if usable:
             from neve.engine import analyze_roof
 
-            roof_result = analyze_roof(float(row["pg_psf"]), roof)
+            roof_result = analyze_roof(pg, roof)
             roof_json = roof_result.to_json()
             if status == "provisional":
-                limiting = ", ".join(f for f in flags if f != "demo_data")
+                limiting = ", ".join(flag_names(bits & ~BIT["demo_data"]))
                 roof_json["flags"] = sorted(set(roof_json["flags"]) | {"ground_provisional"})
                 roof_json["cautions"].insert(
                     0,
@@ -360,21 +393,22 @@ def resolve_site(
     cautions = list(CAUTIONS)
     if any(layer.demo for layer in layers):
         cautions.insert(0, DEMO_CAUTION)
-    elev_ft = _num(row["elevation_ft"])
-    dist = _num(row["distance_to_other_m"])
+    elev_ft = _num(res.elevation_ft[0])
+    dist = _num(res.distance_to_other_m[0])
+    zone_id, zone_ids = res.zone_id[0], res.zone_ids[0]
     ground = {
         "status": status,
-        "pg": load_json(row["pg_psf"]) if usable else None,
-        "zone_id": row["zone_id"] or None,
-        "zone_ids": [z for z in row["zone_ids"].split(";") if z],
-        "rule": row["rule"] or None,
-        "flags": flags,
+        "pg": load_json(pg) if usable else None,
+        "zone_id": zone_id or None,
+        "zone_ids": _zone_list(zone_id, zone_ids),
+        "rule": res.rule[0] or None,
+        "flags": flag_names(bits),
         "message": message,
         "elevation": length_json(elev_ft),
-        "elevation_source": row["elevation_source"],
-        "dem_elevation": length_json(_num(row["dem_elevation_ft"])),
+        "elevation_source": ELEVATION_ORIGINS[res.elevation_source[0]],
+        "dem_elevation": length_json(_num(res.dem_elevation_ft[0])),
         "elevation_rule": elevation_source,
-        "elevation_alternatives": _alternatives(row),
+        "elevation_alternatives": _alternatives(res),
         "distance_to_other": None if dist is None else length_json(dist * FT_PER_M),
         "neighbours": neighbours,
         "layer": gov_layer.info() if gov_layer is not None else None,
@@ -394,6 +428,14 @@ def resolve_site(
         site["address"] = address
     ground, nonfinite = _finite(ground)
     if nonfinite:  # never NaN or infinity in an output: null, and said so
-        ground["flags"] = sorted(set(ground["flags"]) | {"non_finite_value"})
+        bits |= BIT["non_finite_value"]
+        ground["flags"] = flag_names(bits)
         ground["message"] += " A value that is not a finite number was reported as null."
-    return SiteResult(site, ground, roof_json, list(layers), row, roof_result)
+    return SiteResult(site, ground, roof_json, list(layers), res.without_detail(), roof_result)
+
+
+def _zone_list(zone_id: str, zone_ids: str) -> list[str]:
+    """Every zone at the site: the governing one alone unless zones overlap or touch."""
+    if zone_ids == zone_id:
+        return [zone_id] if zone_id else []
+    return [z for z in zone_ids.split(";") if z]

@@ -1,15 +1,17 @@
 """Vectorized site resolution: many sites -> status, flags and ground snow load.
 
-:func:`resolve_points` is the engine under both ``neve site`` (one site) and
-``neve screen`` (a portfolio).  Everything is done on arrays: one DEM read
-per window, one spatial query per layer (:mod:`neve.geo.layers.vector`), rules on
-arrays, and the per-site strings (flags, messages) are built once per
-distinct combination, not once per site.
+:func:`resolve` is the engine under both ``neve site`` (one site) and
+``neve screen`` (a portfolio); it returns a typed
+:class:`neve.geo.site.result.Resolution` (status codes, flag bits, values per
+quantity, ...), which :func:`resolve_points` turns into a table.  Everything
+is done on arrays: one DEM read per window, one spatial query per layer
+(:mod:`neve.geo.layers.vector`), rules on arrays, and the per-site messages
+are built once per distinct combination, not once per site.
 
-Status and flags follow DESIGN.md ("Site resolution result"); nothing is
-silently defaulted.  When several layers are given (most local first) the
-first layer that covers a site governs and the others are reported in
-``other_layers``.
+Status and flags are those of the README ("neve site and neve layer");
+nothing is silently defaulted.  When several layers are given (most local
+first) the first layer that covers a site governs and the others are
+reported in ``other_layers``.
 
 Readings where the contract leaves room (README, "Elevation, DEM and study
 areas"):
@@ -33,11 +35,13 @@ areas"):
 
 from __future__ import annotations
 
+from dataclasses import dataclass
+
 import numpy as np
 import pandas as pd
 
 from neve.engine.errors import InputError
-from neve.engine.units import KPA_PER_PSF, M_PER_FT
+from neve.engine.units import M_PER_FT
 from neve.geo.layers import rules as R
 from neve.geo.layers.model import as_layers
 from neve.geo.layers.vector import NONE, Hits, layer_hits
@@ -50,51 +54,37 @@ from neve.geo.site.elevation import (
     plausible_dem,
     sample_dem,
 )
+from neve.geo.site.result import (  # noqa: F401  (the result's names, as they were here)
+    BIT,
+    COLUMNS,
+    ERROR,
+    FLAG_TABLE,
+    FLAGS,
+    FROM_DEM,
+    FROM_INPUT,
+    FROM_NONE,
+    LIMITING,
+    NO_DATA,
+    OK,
+    PROVISIONAL,
+    STATUSES,
+    STUDY,
+    Provenance,
+    Resolution,
+)
 
-STATUSES = ("ok", "provisional", "study_required", "no_data", "error")
-OK, PROVISIONAL, STUDY, NO_DATA, ERROR = range(5)
-FLAGS = (
-    "study_required",
-    "above_elevation_limit",
-    "elevation_needed",
-    "outside_layer",
-    "near_boundary",
-    "overlapping_zones",
-    "dem_nodata",
-    "coordinates_suspect",
-    "elevation_mismatch",
-    "demo_data",
-    "study_area_nearby",
-    "dem_implausible",
-)
-BIT = {name: 1 << i for i, name in enumerate(FLAGS)}
-#: flags that make a usable value provisional
-LIMITING = (
-    BIT["near_boundary"]
-    | BIT["overlapping_zones"]
-    | BIT["elevation_needed"]
-    | BIT["coordinates_suspect"]
-    | BIT["elevation_mismatch"]
-    | BIT["study_area_nearby"]
-)
 #: ``elevation_source`` choices: which elevation governs where a given one and the DEM disagree
 ELEVATION_SOURCES = ("larger", "input")
-_BAD_COORDS = 1 << 20  # message-only bits, never shown as flags
-_NEAR_UNKNOWN = 1 << 21
-_NEAR_VALUED = 1 << 22
-COLUMNS = [
-    "status", "pg_psf", "pg_kpa", "zone_id", "zone_ids", "rule", "flags", "message",
-    "elevation_ft", "elevation_m", "elevation_source", "dem_elevation_ft",
-    "distance_to_other_m", "neighbour_values_psf", "layer_name", "layer_sha256", "other_layers",
-    "alt_elevation_source", "alt_elevation_ft", "alt_status", "alt_pg_psf", "alt_zone_id",
-]  # fmt: skip
+_BAD_COORDS = BIT["bad_coordinates"]  # message-only bits (kind "note"), never shown as flags
+_NEAR_UNKNOWN = BIT["near_unknown"]
+_NEAR_VALUED = BIT["near_valued"]
 
 
 def layer_status(h: Hits) -> tuple[np.ndarray, np.ndarray]:
     """Status code and flag bits of each site from one layer's hits alone."""
     st = h.state
     status = np.full(h.n, NO_DATA, dtype=np.int8)
-    flags = np.zeros(h.n, dtype=np.int64)
+    flags = np.zeros(h.n, dtype=np.uint64)
     flags[st == NONE] |= BIT["outside_layer"]
     status[(st == R.BAD) | (st == R.NUMERIC)] = ERROR
     need = st == R.NEED_ELEV
@@ -238,43 +228,17 @@ def resolve_points(
     search_m: float | None = None,
     elevation_source: str = "larger",
 ) -> pd.DataFrame:
-    """Resolve many sites to status, flags and ground snow load (vectorized).
+    """Resolve many sites to status, flags and ground snow load, as a table.
 
-    Parameters
-    ----------
-    lat, lon : array_like
-        Site coordinates [degrees, EPSG:4326]; bad values give status ``error``.
-    layers : list of paths or Layer, optional
-        Most local first; None gives the embedded demo stack.
-    elevation_ft : array_like, optional
-        Given site elevations [ft]; NaN where not given.
-    dem : str or pathlib.Path, optional
-        DEM sampled where needed (and compared with given elevations).
-    dem_units : str, optional
-        Vertical unit of a DEM that states none; never overrides the unit a
-        DEM states (a contradiction is an :class:`InputError`); refused
-        without ``dem``.
-    search_m : float, optional
-        Radius for reporting neighbouring zones [m] (default: each layer's
-        boundary tolerance).
-    elevation_source : {"larger", "input"}
-        Where a given elevation and the DEM differ by more than
-        :data:`neve.geo.site.elevation.MISMATCH_M` (flag ``elevation_mismatch``), the
-        ground load is worked at both elevations.  ``"larger"`` (default):
-        the more demanding result governs (see :func:`more_demanding`);
-        ``"input"``: the given elevation governs.  The other result is
-        reported in the ``alt_*`` columns and in the message.
-
-    Returns
-    -------
-    pandas.DataFrame
-        One row per site, in input order, with the columns of :data:`COLUMNS`.
+    The same as :func:`resolve` (see there for the parameters), turned into
+    a DataFrame: one row per site, in input order, with the columns of
+    :data:`COLUMNS` (:meth:`neve.geo.site.result.Resolution.to_frame`).
     """
-    df, _ = resolve_detail(
+    res = resolve(
         lat, lon, layers=layers, elevation_ft=elevation_ft, dem=dem, dem_units=dem_units,
         search_m=search_m, elevation_source=elevation_source,
     )  # fmt: skip
-    return df
+    return res.to_frame()
 
 
 #: how demanding a result is when the elevations disagree (higher governs): a defective
@@ -306,7 +270,7 @@ def _lookup(layers, lo, la, elev, search_m, valid) -> dict:
     covered = np.array([h.covered for h in hits]).reshape(len(layers), n)
     gov = np.where(covered.any(axis=0), covered.argmax(axis=0), -1)
     status = np.full(n, NO_DATA, dtype=np.int8)
-    bits = np.full(n, BIT["outside_layer"], dtype=np.int64)
+    bits = np.full(n, BIT["outside_layer"], dtype=np.uint64)
     value = np.full(n, np.nan)
     zone_id = np.full(n, "", dtype=object)
     zone_ids = zone_id.copy()
@@ -387,7 +351,54 @@ def _implausible_text(raw_ft: np.ndarray) -> np.ndarray:
     return np.array(txt, dtype=object)[inv]
 
 
-def resolve_detail(
+@dataclass
+class Lookup:
+    """Every layer's hits for some sites at one elevation each, and the governing layer."""
+
+    hits: list  # one neve.geo.layers.vector.Hits per layer
+    gov: np.ndarray  # governing layer index per site, -1 for none
+    per_layer: list  # (status codes, flag bits) of each layer alone
+
+
+@dataclass
+class Detail:
+    """The look-up behind a :class:`Resolution` (kept for one site's derivation).
+
+    ``main`` is the look-up at the given (or only) elevation of every site;
+    where a given elevation and the DEM disagree, ``alt`` is the look-up at
+    the DEM elevation of the sites ``alt_sites``, and ``alt_governs`` says
+    for which of them it governs.
+    """
+
+    main: Lookup
+    alt: Lookup | None = None
+    alt_sites: np.ndarray | None = None
+    alt_governs: np.ndarray | None = None
+
+    def governing(self, i: int) -> tuple[Lookup, int]:
+        """The look-up that governs site ``i`` and the site's position in it."""
+        if self.alt is not None:
+            at = np.flatnonzero(self.alt_sites == i)
+            if at.size and bool(self.alt_governs[at[0]]):
+                return self.alt, int(at[0])
+        return self.main, int(i)
+
+
+def _message_key(status: np.ndarray, bits: np.ndarray, gov: np.ndarray) -> np.ndarray:
+    """One int64 per (status, message bits, governing layer): the low 16 flag bits and the notes."""
+    low = bits & np.uint64(0xFFFF)
+    notes = (bits >> np.uint64(56)) & np.uint64(0xFF)
+    small = (low | (notes << np.uint64(16))).astype(np.int64)  # < 2**24
+    return (status.astype(np.int64) << 40) | (small << 11) | (gov + 1).astype(np.int64)
+
+
+def _key_parts(u: int) -> tuple[int, int, int]:
+    small = (u >> 11) & ((1 << 24) - 1)
+    bits = (small & 0xFFFF) | ((small >> 16) << 56)
+    return u >> 40, bits, (u & 2047) - 1
+
+
+def resolve(
     lat,
     lon,
     *,
@@ -397,16 +408,42 @@ def resolve_detail(
     dem_units=None,
     search_m=None,
     elevation_source: str = "larger",
-):
-    """Like :func:`resolve_points`, also returning the look-up detail.
+    keep_detail: bool = False,
+) -> Resolution:
+    """Resolve many sites to status, flags and ground snow load (vectorized).
 
-    The second value holds ``layers``, and for the governing elevation of
-    each site ``hits`` (one :class:`neve.geo.layers.vector.Hits` per layer), ``gov``
-    (governing layer index, -1 for none), ``per_layer`` and ``bits``.  Where
-    the DEM elevation governs a site, ``alt`` holds the look-up at the DEM
-    elevation for the sites ``alt["sites"]``, and ``alt["governs"]`` says
-    which of them it governs; ``hits`` is always the look-up at the given
-    (or only) elevation.
+    Parameters
+    ----------
+    lat, lon : array_like
+        Site coordinates [degrees, EPSG:4326]; bad values give status ``error``.
+    layers : list of paths or Layer, optional
+        Most local first; None gives the embedded demo stack.
+    elevation_ft : array_like, optional
+        Given site elevations [ft]; NaN where not given.
+    dem : str or pathlib.Path, optional
+        DEM sampled where needed (and compared with given elevations).
+    dem_units : str, optional
+        Vertical unit of a DEM that states none; never overrides the unit a
+        DEM states (a contradiction is an :class:`InputError`); refused
+        without ``dem``.
+    search_m : float, optional
+        Radius for reporting neighbouring zones [m] (default: each layer's
+        boundary tolerance).
+    elevation_source : {"larger", "input"}
+        Where a given elevation and the DEM differ by more than
+        :data:`neve.geo.site.elevation.MISMATCH_M` (flag ``elevation_mismatch``), the
+        ground load is worked at both elevations.  ``"larger"`` (default):
+        the more demanding result governs (see :func:`more_demanding`);
+        ``"input"``: the given elevation governs.  The other result is
+        reported in the ``alt_*`` fields and in the message.
+    keep_detail : bool
+        Keep the look-up (:class:`Detail`) in ``Resolution.detail``, for the
+        derivation of one site.
+
+    Returns
+    -------
+    neve.geo.site.result.Resolution
+        One entry per site, in input order.
     """
     from neve.engine.choices import choose_key
 
@@ -429,8 +466,8 @@ def resolve_detail(
     dem_ft, implausible = plausible_dem(dem_raw)
     has_in, has_dem = np.isfinite(given), np.isfinite(dem_ft)
     elev = np.where(has_in, given, dem_ft)
-    source = np.where(has_in, "input", np.where(has_dem, "dem", "none")).astype(object)
-    extra = np.zeros(n, dtype=np.int64)
+    source = np.where(has_in, FROM_INPUT, np.where(has_dem, FROM_DEM, FROM_NONE)).astype(np.int8)
+    extra = np.zeros(n, dtype=np.uint64)
     mismatch = has_in & has_dem & (np.abs(given - dem_ft) * M_PER_FT > MISMATCH_M)
     extra[mismatch] |= BIT["elevation_mismatch"]
     if dem is not None:
@@ -448,12 +485,12 @@ def resolve_detail(
             extra[out[sw.covered]] |= BIT["coordinates_suspect"]
     _finish(main, extra, valid)
     # a given elevation the DEM disagrees with: the ground load at the DEM elevation too
-    alt_source = np.full(n, "", dtype=object)
+    alt_source = np.full(n, -1, dtype=np.int8)
     alt_elev = np.full(n, np.nan)
-    alt_status = np.full(n, "", dtype=object)
+    alt_status = np.full(n, -1, dtype=np.int8)
     alt_value = np.full(n, np.nan)
     alt_zone = np.full(n, "", dtype=object)
-    alt = None
+    detail = Detail(Lookup(main["hits"], main["gov"], main["per_layer"]))
     note = np.full(n, "", dtype=object)
     sub = np.flatnonzero(mismatch & valid)
     if sub.size:
@@ -474,30 +511,28 @@ def resolve_detail(
             main[key][swap] = a[key][use_dem]
             a[key][use_dem] = mine[use_dem]
         elev[swap] = dem_ft[swap]
-        source[swap] = "dem"
-        alt_source[sub] = np.where(use_dem, "input", "dem")
+        source[swap] = FROM_DEM
+        alt_source[sub] = np.where(use_dem, FROM_INPUT, FROM_DEM)
         alt_elev[sub] = np.where(use_dem, given[sub], dem_ft[sub])
-        alt_status[sub] = np.array(STATUSES, dtype=object)[a["status"]]
+        alt_status[sub] = a["status"]
         alt_value[sub] = a["value"]
         alt_zone[sub] = a["zone_id"]
-        alt = {"sites": sub, "governs": use_dem, "hits": a["hits"], "gov": a["gov"],
-               "per_layer": a["per_layer"]}  # fmt: skip
+        detail.alt = Lookup(a["hits"], a["gov"], a["per_layer"])
+        detail.alt_sites, detail.alt_governs = sub, use_dem
     status, bits, gov = main["status"], main["bits"], main["gov"]
-    # flags and messages once per distinct combination
-    key = (status.astype(np.int64) << 48) | (bits << 10) | (gov + 1).astype(np.int64)
-    uniq, inv = np.unique(key, return_inverse=True)
-    msgs, ftxt = [], []
+    # messages once per distinct combination of status, flags and governing layer
+    codes, uniq = pd.factorize(_message_key(status, bits, gov))
+    msgs = []
     for u in uniq:
-        s, b, g = int(u >> 48), int((u >> 10) & ((1 << 38) - 1)), int(u & 1023) - 1
+        s, b, g = _key_parts(int(u))
         msgs.append(_message(s, b, layers[g] if 0 <= g < len(layers) else None))
-        ftxt.append(";".join(sorted(f for f in FLAGS if b & BIT[f])))
-    message = np.array(msgs, dtype=object)[inv]
+    message = np.array(msgs, dtype=object)[codes]
     err = np.flatnonzero(valid & (status == ERROR) & (gov >= 0))
     # where the DEM elevation governs, the governing hits are those of the second look-up
     at_dem = np.zeros(n, dtype=bool)
     pos = np.full(n, -1, dtype=np.intp)
-    if alt is not None:
-        at_dem[sub[alt["governs"]]] = True
+    if detail.alt is not None:
+        at_dem[sub[use_dem]] = True
         pos[sub] = np.arange(sub.size)
     for k in np.unique(gov[err]):  # the governing zone's own account: zone, value, why
         for use_alt in (False, True):
@@ -505,7 +540,7 @@ def resolve_detail(
             if sel.size == 0:
                 continue
             if use_alt:
-                why = layers[k].site_errors(alt["hits"][k], pos[sel], elev[sel])
+                why = layers[k].site_errors(detail.alt.hits[k], pos[sel], elev[sel])
             else:
                 why = layers[k].site_errors(main["hits"][k], sel, elev[sel])
             message[sel] = np.where(why != "", why + " " + message[sel], message[sel])
@@ -514,38 +549,39 @@ def resolve_detail(
         message[bad_dem] = message[bad_dem] + _implausible_text(dem_raw[bad_dem])
     if sub.size:
         message[sub] = message[sub] + note[sub]
-    flag_text = np.array(ftxt, dtype=object)[inv]
-    names = np.array([layer.name for layer in layers] + [""], dtype=object)
-    shas = np.array([layer.sha256 for layer in layers] + [""], dtype=object)
-    value = main["value"]
-    cols = {
-        "status": np.array(STATUSES, dtype=object)[status],
-        "pg_psf": value,
-        "pg_kpa": value * KPA_PER_PSF,
-        "zone_id": main["zone_id"],
-        "zone_ids": main["zone_ids"],
-        "rule": main["rule"],
-        "flags": flag_text,
-        "message": message,
-        "elevation_ft": elev,
-        "elevation_m": elev * M_PER_FT,
-        "elevation_source": source,
-        "dem_elevation_ft": dem_ft,
-        "distance_to_other_m": main["dist"],
-        "neighbour_values_psf": main["neigh"],
-        "layer_name": names[gov],
-        "layer_sha256": shas[gov],
-        "other_layers": main["others"],
-        "alt_elevation_source": alt_source,
-        "alt_elevation_ft": alt_elev,
-        "alt_status": alt_status,
-        "alt_pg_psf": alt_value,
-        "alt_zone_id": alt_zone,
-    }
-    # object columns stay object (no per-row conversion to Arrow strings for big portfolios)
-    df = pd.DataFrame(
-        {k: pd.Series(v, dtype=object if v.dtype == object else v.dtype) for k, v in cols.items()}
+    prov = tuple(Provenance.of(layer) for layer in layers)
+    return Resolution(
+        status=status,
+        flags=bits & ~np.uint64(_BAD_COORDS | _NEAR_UNKNOWN | _NEAR_VALUED),
+        values=_per_quantity(main["value"], gov, prov),
+        layer=gov.astype(np.intp),
+        zone_id=main["zone_id"],
+        zone_ids=main["zone_ids"],
+        rule=main["rule"],
+        elevation_ft=elev,
+        elevation_source=source,
+        dem_elevation_ft=dem_ft,
+        distance_to_other_m=main["dist"],
+        neighbour_values=main["neigh"],
+        other_layers=main["others"],
+        message=message,
+        alt_source=alt_source,
+        alt_elevation_ft=alt_elev,
+        alt_status=alt_status,
+        alt_values={"pg": alt_value},
+        alt_zone_id=alt_zone,
+        layers=prov,
+        detail=detail if keep_detail else None,
     )
-    ctx = {"layers": layers, "hits": main["hits"], "gov": main["gov"],
-           "per_layer": main["per_layer"], "bits": bits, "alt": alt}  # fmt: skip
-    return df, ctx
+
+
+def _per_quantity(value: np.ndarray, gov: np.ndarray, prov: tuple) -> dict:
+    """The governing values keyed by the quantity each layer maps (``pg`` when no layer)."""
+    quantities = sorted({p.quantity for p in prov}) or ["pg"]
+    if len(quantities) == 1:
+        return {quantities[0]: value}
+    out = {}
+    for q in quantities:
+        mine = np.array([k for k, p in enumerate(prov) if p.quantity == q], dtype=np.intp)
+        out[q] = np.where(np.isin(gov, mine), value, np.nan)
+    return out
