@@ -8,9 +8,8 @@ cases each may not be combined with (ASCE 7-16 Sec. 7.3.4, 7.4.5, 7.5, 7.9,
 
 from __future__ import annotations
 
+from neve.engine.asce7_16 import STANDARD, eaves, sliding, unbalanced
 from neve.engine.asce7_16 import drift as dr
-from neve.engine.asce7_16 import eaves, sliding, unbalanced
-from neve.engine.asce7_16.factors import STANDARD
 from neve.engine.errors import InputError
 from neve.engine.roof_spec import Roof
 from neve.engine.steps import StepLog, fmt

@@ -15,9 +15,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from neve.engine.asce7_16 import STANDARD
 from neve.engine.steps import StepLog, fmt
-
-STANDARD = "ASCE 7-16"
 
 #: the largest snow density Eq. 7.7-1 gives [pcf]
 DENSITY_CAP = 30.0

@@ -13,11 +13,10 @@ References
 
 from __future__ import annotations
 
+from neve.engine.asce7_16 import STANDARD
 from neve.engine.choices import choose
 from neve.engine.errors import InputError
 from neve.engine.steps import StepLog, fmt
-
-STANDARD = "ASCE 7-16"
 
 #: ASCE 7-16 Table 1.5-2: snow importance factor Is by risk category
 #: (risk category from Table 1.5-1).

@@ -12,9 +12,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from neve.engine.asce7_16 import STANDARD
 from neve.engine.steps import StepLog, fmt
-
-STANDARD = "ASCE 7-16"
 
 #: pg at or below which the minimum load is Is*pg, above which it is 20*Is [psf]
 #: (Sec. 7.3.4)

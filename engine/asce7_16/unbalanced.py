@@ -12,10 +12,9 @@ import math
 
 import numpy as np
 
+from neve.engine.asce7_16 import STANDARD
 from neve.engine.asce7_16.drift import drift_height, snow_density
 from neve.engine.steps import StepLog, fmt
-
-STANDARD = "ASCE 7-16"
 
 #: unbalanced loads are not required below 1/2 on 12 or above 7 on 12
 LOW_SLOPE_DEG = math.degrees(math.atan2(0.5, 12.0))  # 2.386 deg, printed as 2.38
