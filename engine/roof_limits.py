@@ -14,9 +14,10 @@ the other spelling of the same thing (``ct`` for ``thermal``).
 
 References
 ----------
-.. [1] ASCE/SEI 7-16, Sec. 7.3 (flat roof snow load, roofs of 5 degrees or
-   less), Table 7.3-1 (Ce), Table 7.3-2 (Ct), Sec. 7.7.2 (adjacent
-   structures closer than 20 ft).
+.. [1] The default standard of :mod:`neve.engine.standards` (ASCE 7-16): the
+   clauses behind the flat-roof slope limit, the Ce and Ct tables and the
+   20 ft limit of adjacent structures are its provisions ``limit.flat_slope``,
+   ``factor.Ce``, ``factor.Ct`` and ``limit.adjacent``.
 """
 
 from __future__ import annotations
@@ -28,8 +29,9 @@ from neve.engine.errors import InputError
 from neve.engine.units import Bound
 
 #: the steepest slope a roof given as ``flat`` may have [deg].  ASCE 7-16
-#: Sec. 7.3 works the flat roof snow load pf for roofs of 5 degrees or less
-#: (about 1.05 on 12); a steeper roof is a monoslope, gable or hip roof.
+#: works the flat roof snow load pf for roofs of 5 degrees or less (about 1.05
+#: on 12; its provision ``limit.flat_slope``); a steeper roof is a monoslope,
+#: gable or hip roof.
 FLAT_SLOPE_MAX_DEG = 5.0
 
 #: largest ground snow load neve accepts [psf]; far above any mapped value
@@ -42,15 +44,15 @@ _PLAN = "longer than the roofs of the largest buildings"
 #: (a roof length, a height); a zero separation is a step within one structure.
 RANGES: dict[str, Bound] = {
     "pg": Bound(0.0, PG_MAX_PSF, "psf", why="plausibility bound on ground snow loads"),
-    "ce": Bound(0.7, 1.2, why="the extremes of ASCE 7-16 Table 7.3-1"),
-    "ct": Bound(0.85, 1.3, why="the extremes of ASCE 7-16 Table 7.3-2"),
+    "ce": Bound(0.7, 1.2, why="the extremes of the exposure factor table (ASCE 7-16)"),
+    "ct": Bound(0.85, 1.3, why="the extremes of the thermal factor table (ASCE 7-16)"),
     "r_value": Bound(0.0, 200.0, "ft2.h.F/Btu", why="far above any insulated roof"),
     "eave_to_ridge": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
     "overhang.length": Bound(0.0, 50.0, "ft", lo_open=True, why="a deep canopy; omit [overhang] when there is none"),
     "step.height": Bound(0.0, 500.0, "ft", lo_open=True, why="a tall building beside a low roof"),
     "step.upper_length": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
     "step.lower_length": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
-    "step.separation": Bound(0.0, 5000.0, "ft", why="0 for a step in one structure; drifts stop at 20 ft (Sec. 7.7.2)"),
+    "step.separation": Bound(0.0, 5000.0, "ft", why="0 for a step in one structure; drifts stop at 20 ft (adjacent structures)"),
     "step.upper_eave_to_ridge": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
     "step.upper_pf": Bound(0.0, PG_MAX_PSF, "psf", why="the ground snow load bound"),
     "parapet.height": Bound(0.0, 50.0, "ft", lo_open=True, why="taller walls are a roof step"),
@@ -123,7 +125,10 @@ def flat_too_steep(slope: float, stated: bool, given=None) -> None:
     the message asks for one); ``given``: the slope as the user wrote it.
     """
     shown = f"{given!r} ({slope:.2f} degrees)" if given is not None else f"{slope:.2f} degrees"
-    limit = f"at most {FLAT_SLOPE_MAX_DEG:g} degrees (about 1.05:12; ASCE 7-16 Sec. 7.3)"
+    from neve.engine.standards import get_standard
+
+    ref = get_standard().ref("limit.flat_slope")
+    limit = f"at most {FLAT_SLOPE_MAX_DEG:g} degrees (about 1.05:12; {ref})"
     if stated:
         raise InputError(
             "slope",

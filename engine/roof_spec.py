@@ -206,10 +206,11 @@ class Roof:
             )
         shape = str(data.get("shape", "flat")).strip().lower()
         if shape in UNSUPPORTED_SHAPES:
+            from neve.engine.standards import get_standard
+
+            ref = get_standard().ref("shapes_not_covered")
             raise UnsupportedError(
-                "shape",
-                f"{shape!r} roofs are not covered by neve yet (ASCE 7-16 Sec. 7.4.3-7.4.4, 7.6.2-7.6.4)",
-                ", ".join(SHAPES),
+                "shape", f"{shape!r} roofs are not covered by neve yet ({ref})", ", ".join(SHAPES)
             )
         shape = choose_key("shape", shape, SHAPES)
         if "slope" in data:

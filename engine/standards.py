@@ -260,11 +260,15 @@ class Standard:
         )
 
     def provision(self, key: str) -> str:
-        """The clause behind ``key`` (``"load.pf"`` -> ``"Eq. 7.3-1"``); ``""`` if none."""
+        """The clause behind ``key`` (``"load.pf"``: the equation of pf); ``""`` if none."""
         return str(self.provisions.get(key, ""))
 
     def ref(self, key: str) -> str:
-        """The provision with the standard's title, e.g. ``ASCE 7-16 Eq. 7.3-1``."""
+        """The provision with the standard's title (a step's ``ref``); ``""`` if none.
+
+        >>> get_standard().ref("load.pf") == "ASCE 7-16 " + get_standard().provision("load.pf")
+        True
+        """
         clause = self.provision(key)
         return f"{self.title} {clause}" if clause else ""
 

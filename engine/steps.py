@@ -3,7 +3,8 @@
 A :class:`Step` is the unit of the calculation package.  It names the symbol,
 says in a few words what it is, gives the equation in symbols, the equation
 with the numbers substituted, the value, its unit and the provision it comes
-from (``ref``, e.g. ``ASCE 7-16 Eq. 7.3-1``).
+from (``ref``: the standard's title and clause, as
+:meth:`neve.engine.standards.Standard.ref` gives it).
 
 Values may be numpy arrays (portfolio screening evaluates many sites at
 once); :meth:`Step.to_dict` is for a single site and needs a scalar.

@@ -130,17 +130,24 @@ def _roof_rows(roof: dict | None) -> list[tuple[str, str]]:
 def _summary(roof: dict | None) -> list[dict]:
     if not roof:
         return []
+    from neve.engine.standards import find_standard
+
     std = roof.get("standard") or ""
+    standard = find_standard(std) if std else None  # clause labels come from the standard
+
+    def provision(key: str) -> str:
+        return standard.provision(key) if standard is not None else ""
+
     loads = roof.get("loads") or {}
     rows = []
     labels = {
-        "pf": ("Flat roof snow load pf", "Eq. 7.3-1"),
-        "ps": ("Sloped roof snow load ps", "Eq. 7.4-1"),
-        "pm": ("Minimum roof snow load pm", "Sec. 7.3.4"),
-        "rain_on_snow": ("Rain-on-snow surcharge", "Sec. 7.10"),
+        "pf": "Flat roof snow load pf",
+        "ps": "Sloped roof snow load ps",
+        "pm": "Minimum roof snow load pm",
+        "rain_on_snow": "Rain-on-snow surcharge",
     }
     for key, load in loads.items():
-        label, ref = labels.get(key, (key, ""))
+        label, ref = labels.get(key, key), provision(f"load.{key}")
         rows.append({"label": label, "value": style.load_text(load) if load else "not applicable",
                      "ref": f"{std} {ref}".strip(), "governing": False})  # fmt: skip
     for case in roof.get("cases") or []:
@@ -149,39 +156,20 @@ def _summary(roof: dict | None) -> list[dict]:
             for k, v in case.items()
             if k not in _CASE_META and isinstance(v, dict) and ("psf" in v)
         ]
+        ref = (standard.case_ref(case) if standard is not None else "") or (
+            f"{std} {case.get('case') or ''}"
+        )
         rows.append({"label": f"Case: {case.get('name') or case.get('case')}",
-                     "value": "; ".join(vals) or "\u2014", "ref": f"{std} {_case_ref(case)}".strip(),
+                     "value": "; ".join(vals) or "\u2014", "ref": ref.strip(),
                      "governing": False})  # fmt: skip
+    rule = provision("design_uniform")
     rows.append({"label": "Governing uniform load (balanced or minimum; unbalanced, drift and "
                           "sliding cases act separately)",
                  "value": style.load_text(roof.get("design_uniform")),
-                 "ref": f"{std} larger of ps + rain-on-snow and pm (Sec. 7.3.4, 7.4, 7.10)".strip(),
+                 "ref": f"{std} larger of ps + rain-on-snow and pm"
+                        f"{f' ({rule})' if rule else ''}".strip(),
                  "governing": True})  # fmt: skip
     return rows
-
-
-#: the provision each kind of case comes from (ASCE 7-16 Chapter 7)
-_CASE_REFS = {
-    "balanced": "Eq. 7.4-1, Sec. 7.10",
-    "minimum": "Sec. 7.3.4",
-    "unbalanced": "Sec. 7.6.1",
-    "sliding": "Sec. 7.9",
-    "ice_dam": "Sec. 7.4.5",
-    "partial": "Sec. 7.5",
-}
-_DRIFT_REFS = {
-    "step": "Sec. 7.7.1",
-    "adjacent": "Sec. 7.7.2",
-    "parapet": "Sec. 7.8",
-    "projection": "Sec. 7.8",
-}
-
-
-def _case_ref(case: dict) -> str:
-    kind = str(case.get("case") or "")
-    if kind == "drift":
-        return _DRIFT_REFS.get(str(case.get("source") or ""), "Sec. 7.7, 7.8")
-    return _CASE_REFS.get(kind, kind)
 
 
 def _provenance(ground: dict) -> list[tuple[str, str]]:

@@ -36,6 +36,7 @@ import tomllib
 from pathlib import Path
 
 from neve.engine.errors import LayerError
+from neve.engine.standards import site_quantities
 from neve.engine.units import FT_PER_M, KPA_PER_PSF
 
 REQUIRED = (
@@ -61,8 +62,9 @@ VALUE_UNITS = {"psf": 1.0, "kPa": 1.0 / KPA_PER_PSF}
 ELEVATION_UNITS = {"ft": 1.0, "m": FT_PER_M}
 #: largest boundary tolerance accepted [m]
 MAX_TOLERANCE_M = 5000.0
-#: quantities a layer may map (only ``pg`` is used by the roof engine today)
-QUANTITIES = ("pg",)
+#: quantities a layer may map: those the registered standards need, by name
+#: (:func:`neve.engine.standards.site_quantities`; ASCE 7-16 needs ``pg``)
+QUANTITIES = site_quantities()
 
 
 class SidecarError(LayerError):

@@ -16,7 +16,6 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from neve.engine.errors import InputError
-from neve.engine.roof import CAUTIONS
 from neve.engine.steps import Step, fmt
 from neve.engine.units import FT_PER_M, KPA_PER_PSF, M_PER_FT, length_json, load_json
 from neve.geo.layers import rules as R
@@ -243,16 +242,16 @@ def _neighbours(hits, tol_m: float) -> list[dict]:
     return out
 
 
-#: layer standards whose ground snow loads the ASCE 7-16 roof engine may take
-#: (ASCE 7-05 and 7-10 map the same 50-year ground snow load as ASCE 7-16;
-#: ASCE 7-22 maps strength-level loads and EN 1991-1-3 a different quantity).
-ROOF_ENGINE_STANDARDS = ("ASCE 7-16", "ASCE 7-10", "ASCE 7-05")
+def roof_engine_accepts(standard: str, roof_standard=None, quantity: str = "pg") -> bool:
+    """Whether a layer of ``standard`` (and ``quantity``) may feed ``roof_standard``'s roof loads.
 
+    ``roof_standard``: a registered standard's id or name (the default one when
+    omitted); the registry says which layer editions and quantities it takes
+    (:meth:`neve.engine.standards.Standard.accepts_layer`).
+    """
+    from neve.engine.standards import get_standard
 
-def roof_engine_accepts(standard: str) -> bool:
-    """Whether a layer's ground loads may feed the ASCE 7-16 roof engine."""
-    norm = standard.upper().replace(" ", "").replace("/SEI", "")
-    return any(norm == s.replace(" ", "") for s in ROOF_ENGINE_STANDARDS)
+    return get_standard(roof_standard).accepts_layer(standard, quantity)
 
 
 def resolve_site(
@@ -269,6 +268,7 @@ def resolve_site(
     address: str | None = None,
     given: str | None = None,
     elevation_source: str = "larger",
+    standard=None,
 ) -> SiteResult:
     """Resolve one site to its ground snow load and, given a roof, its roof loads.
 
@@ -296,7 +296,14 @@ def resolve_site(
         reported in ``ground.elevation_alternatives``; ``"larger"`` (default)
         lets the more demanding result govern, ``"input"`` the given
         elevation (:func:`neve.geo.site.resolve.more_demanding`).
+    standard : str, optional
+        The standard of the roof loads (an id or name of the standards
+        registry, :mod:`neve.engine.standards`); the default one (ASCE 7-16)
+        when omitted.  An unknown one is an ``InputError`` listing those available.
     """
+    from neve.engine.standards import get_standard
+
+    roof_std = get_standard(standard)
     lat, lon = float(lat), float(lon)
     check_range(lat, lon)
     if roof is not None:
@@ -368,17 +375,16 @@ def resolve_site(
     roof_json = None
     roof_result = None
     std = str(gov_layer.meta.get("standard", "")) if gov_layer is not None else ""
-    if roof is not None and usable and not roof_engine_accepts(std):
+    quantity = str(gov_layer.meta.get("quantity", "pg")) if gov_layer is not None else "pg"
+    if roof is not None and usable and not roof_std.accepts_layer(std, quantity):
         bits |= BIT["roof_standard_unsupported"]
         message += (
             f" No roof snow loads were computed: the layer maps ground loads for {std},"
-            f" and neve's roof engine covers {', '.join(ROOF_ENGINE_STANDARDS)} ground loads only."
+            f" and neve's roof engine covers {', '.join(roof_std.layer_standards)} ground loads only."
         )
     elif roof is not None:
         if usable:
-            from neve.engine import analyze_roof
-
-            roof_result = analyze_roof(pg, roof)
+            roof_result = roof_std.analyze({quantity: pg}, roof)
             roof_json = roof_result.to_json()
             if status == "provisional":
                 limiting = ", ".join(flag_names(bits & ~BIT["demo_data"]))
@@ -390,7 +396,7 @@ def resolve_site(
                 )
         else:
             message += f" No roof snow loads were computed: the ground status is {status}."
-    cautions = list(CAUTIONS)
+    cautions = list(roof_std.cautions)
     if any(layer.demo for layer in layers):
         cautions.insert(0, DEMO_CAUTION)
     elev_ft = _num(res.elevation_ft[0])
