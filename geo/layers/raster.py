@@ -24,7 +24,7 @@ import numpy as np
 
 from neve.engine.errors import LayerError
 from neve.geo.layers import rules as R
-from neve.geo.layers.vector import Hits, reduce_hits
+from neve.geo.layers.hits import Hits, reduce_hits
 
 #: most cell offsets visited in each direction for the neighbour search
 MAX_OFFSET = 4

@@ -1,7 +1,7 @@
 """Addresses in a site file to coordinates, for ``neve screen``.
 
 :func:`geocode_rows` fills the coordinates of the rows of a parsed site file
-(:class:`neve.geo.screen.sitefile.SiteArrays`) that are located by an address, asking the
+(:class:`neve.geo.screen.site_arrays.SiteArrays`) that are located by an address, asking the
 geocoder once per distinct address.  :func:`make_geocoder` builds that
 geocoder from a gazetteer CSV and/or a Nominatim-compatible server (see
 :mod:`neve.geo.site.geocode`), wrapped in a :class:`CachedGeocoder` that remembers
@@ -12,15 +12,12 @@ error; the run goes on.
 from __future__ import annotations
 
 from pathlib import Path
-from typing import TYPE_CHECKING
 
 import numpy as np
 import pandas as pd
 
 from neve.engine.errors import InputError
-
-if TYPE_CHECKING:
-    from neve.geo.screen.sitefile import SiteArrays
+from neve.geo.screen.site_arrays import SiteArrays
 
 
 def _latlon(hit) -> tuple[float, float] | None:
@@ -250,7 +247,7 @@ def geocode_sites(
 
     Parameters
     ----------
-    site : neve.geo.screen.sitefile.SiteArrays
+    site : neve.geo.screen.site_arrays.SiteArrays
         Parsed site file; its ``lat``, ``lon`` and ``error`` are filled in place.
     geocoder : callable, optional
         ``address -> (lat, lon) | None``; built by :func:`make_geocoder` from

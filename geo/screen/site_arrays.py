@@ -1,0 +1,64 @@
+"""The parsed site file of ``neve screen``: one array per column, one entry per input row.
+
+:func:`neve.geo.screen.sitefile.parse_sites` builds a :class:`SiteArrays`;
+:mod:`neve.geo.screen.geocode_rows` fills in the coordinates of the rows that
+an address locates; :mod:`neve.geo.screen.run` resolves them. It lives in a module
+of its own so that the parser and the geocoding of rows need not import each other.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+import pandas as pd
+
+
+@dataclass
+class SiteArrays:
+    """A site file parsed into arrays, one entry per input row, in input order.
+
+    Attributes
+    ----------
+    frame : pandas.DataFrame
+        The input columns as read (a geometry column becomes WKT text).
+    lat, lon : numpy.ndarray
+        Coordinates [deg, WGS 84]; NaN where the row has none (yet).
+    elevation_ft : numpy.ndarray
+        Given elevation [ft]; NaN where none was given.
+    error : numpy.ndarray
+        Per-row error text (object array, ``""`` where the row is fine).
+    address : numpy.ndarray or None
+        Address text for rows to geocode (``""`` elsewhere), or None.
+    roof : numpy.ndarray or None
+        Roof profile names from a ``roof`` column, or None.
+    source : str
+        How sites are located: ``latlon``, ``address`` or ``geometry``.
+    site_id : str or None
+        The name of the site-id column, if any.
+    duplicate : numpy.ndarray
+        True where the row's site id also appears on another row.
+    multiline : dict
+        Row index -> (first, last) physical line of CSV records whose quoted
+        cells hold line breaks (flagged ``multiline_field``).
+    input_info : dict
+        How the file was laid out (see :class:`neve.geo.screen.read.ReadNotes`).
+    """
+
+    frame: pd.DataFrame
+    lat: np.ndarray
+    lon: np.ndarray
+    elevation_ft: np.ndarray
+    error: np.ndarray
+    source: str
+    address: np.ndarray | None = None
+    roof: np.ndarray | None = None
+    site_id: str | None = None
+    duplicate: np.ndarray = field(default_factory=lambda: np.zeros(0, bool))
+    columns: dict = field(default_factory=dict)
+    geometry: object = None
+    multiline: dict = field(default_factory=dict)
+    input_info: dict = field(default_factory=dict)
+
+    def __len__(self) -> int:
+        return len(self.frame)
