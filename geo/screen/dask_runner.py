@@ -4,9 +4,12 @@ The sites are staged as a partitioned GeoParquet dataset that the workers
 read themselves (only paths travel in the task graph), the zone layers are
 scattered once to every worker (without their look-up caches, which each
 worker builds for itself), and each partition is resolved on its worker
-by the same :func:`neve.geo.site.resolve.resolve_points` the local engine uses, so both
-engines give the same rows.  Memory per worker is bounded by the partition
-size.
+by the same :func:`neve.geo.site.resolve.resolve` the local engine uses, so both
+engines give the same rows.  A worker sends back its partition's
+:class:`neve.geo.site.result.Resolution` (plain numpy arrays, which pickle
+as they are) with the partition's row numbers; this process puts them
+together in input order (:meth:`Resolution.concat`).  Memory per worker is
+bounded by the partition size.
 
 Without a ``scheduler`` address a :class:`distributed.LocalCluster` is started
 for the run (two worker processes, one thread each, on a 2-core machine).
@@ -28,7 +31,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from neve.engine.errors import InputError
+from neve.engine.errors import InputError, NeveError
 
 #: sites per partition when ``partitions`` is not given
 PARTITION_SIZE = 250_000
@@ -61,14 +64,14 @@ def _client(scheduler: str | None):
     return Client(cluster), cluster
 
 
-def _resolve_partition(part, layers, dem, dem_units, columns=None, elevation_source="larger"):
-    """Resolve one partition of staged sites (runs on a worker)."""
-    from neve.geo.site.resolve import resolve_points
+def _resolve_partition(part, layers, dem, dem_units, elevation_source="larger"):
+    """Resolve one partition of staged sites (runs on a worker): its row numbers and result."""
+    from neve.geo.site.resolve import resolve
 
     lat = part["lat"].to_numpy(dtype=float)
     lon = part["lon"].to_numpy(dtype=float)
     elev = part["elevation_ft"].to_numpy(dtype=float)
-    res = resolve_points(
+    res = resolve(
         lat,
         lon,
         layers=layers,
@@ -77,12 +80,7 @@ def _resolve_partition(part, layers, dem, dem_units, columns=None, elevation_sou
         dem_units=dem_units,
         elevation_source=elevation_source,
     )
-    res = pd.DataFrame(res).reset_index(drop=True)
-    if columns is not None:
-        res = res[list(columns)]
-    res.insert(0, "row", part["row"].to_numpy())
-    res.index = part.index
-    return res
+    return part["row"].to_numpy(dtype=np.int64), res
 
 
 def _stage(frame: pd.DataFrame, folder: Path, nparts: int) -> list[Path]:
@@ -103,7 +101,7 @@ def _stage(frame: pd.DataFrame, folder: Path, nparts: int) -> list[Path]:
     return paths
 
 
-def resolve_dask(
+def resolve_dask_result(
     lat,
     lon,
     elevation_ft=None,
@@ -114,11 +112,10 @@ def resolve_dask(
     scheduler: str | None = None,
     partitions: int | None = None,
     staging: str | Path | None = None,
-    columns: list[str] | None = None,
     progress: bool = False,
     elevation_source: str = "larger",
-) -> pd.DataFrame:
-    """Resolve sites on a Dask cluster; one row per site, in input order.
+):
+    """Resolve sites on a Dask cluster; one result entry per site, in input order.
 
     Parameters
     ----------
@@ -129,7 +126,7 @@ def resolve_dask(
     layers : list of Layer
         Zone layers, most local first (scattered to every worker).
     dem, dem_units, elevation_source
-        As for :func:`neve.geo.site.resolve.resolve_points`; the DEM path must be
+        As for :func:`neve.geo.site.resolve.resolve`; the DEM path must be
         readable on the workers.
     scheduler : str, optional
         Address of a running scheduler (``tcp://host:8786``); a LocalCluster
@@ -141,19 +138,17 @@ def resolve_dask(
         Folder shared with the workers for the staged sites (default: the
         ``NEVE_DASK_STAGING`` environment variable, else a temporary folder
         for a LocalCluster, else the partitions are sent from this process).
-    columns : list of str, optional
-        Resolver columns to bring back (all when omitted); fewer columns
-        means less data sent from the workers.
 
     Returns
     -------
-    pandas.DataFrame
-        The resolver's columns, one row per site, in input order.
+    neve.geo.site.result.Resolution
+        The partitions' results put together in input order.
     """
+    import dask
     import dask_geopandas
     import geopandas as gpd
 
-    from neve.geo.site.resolve import resolve_points
+    from neve.geo.site.result import Resolution
 
     lat = np.asarray(lat, dtype=float)
     lon = np.asarray(lon, dtype=float)
@@ -164,14 +159,6 @@ def resolve_dask(
             "partitions", f"{partitions!r} is not a positive whole number", "1, 2, ..."
         )
     frame = pd.DataFrame({"row": np.arange(n), "lat": lat, "lon": lon, "elevation_ft": elev})
-    meta = resolve_points(
-        lat[:1], lon[:1], layers=layers, elevation_ft=None if elevation_ft is None else elev[:1],
-        dem=dem, dem_units=dem_units, elevation_source=elevation_source,
-    )  # fmt: skip
-    meta = pd.DataFrame(meta).iloc[:0].copy()
-    if columns is not None:
-        meta = meta[list(columns)]
-    meta.insert(0, "row", np.zeros(0, dtype=np.int64))
     client, cluster = _client(scheduler)
     staging = staging or os.environ.get(STAGING_ENV)
     own_tmp = None
@@ -195,44 +182,69 @@ def resolve_dask(
         # pickling empties the layers' look-up caches (Layer.__getstate__): each worker
         # builds its own prepared geometries and trees on first use
         [layers_future] = client.scatter([list(layers)], broadcast=True)
-        resolved = ddf.map_partitions(
-            _resolve_partition,
-            layers_future,
-            dem,
-            dem_units,
-            None if columns is None else list(columns),
-            elevation_source,
-            meta=meta,
-            align_dataframes=False,
-        )
-        result = _compute(client, resolved, n, progress)
+        tasks = [
+            dask.delayed(_resolve_partition)(part, layers_future, dem, dem_units, elevation_source)
+            for part in ddf.to_delayed()
+        ]
+        done = _compute(client, tasks, n, progress)
     finally:
         client.close()
         if cluster is not None:
             cluster.close()
         if own_tmp is not None:
             shutil.rmtree(own_tmp, ignore_errors=True)
-    result = result.sort_values("row", kind="stable").reset_index(drop=True)
-    if len(result) != n or not np.array_equal(result["row"].to_numpy(), np.arange(n)):
-        raise RuntimeError(f"the cluster returned {len(result)} rows for {n} sites")
-    return result.drop(columns="row")
+    rows = np.concatenate([r for r, _ in done]) if done else np.empty(0, dtype=np.int64)
+    if len(rows) != n:
+        raise NeveError(f"the cluster returned {len(rows)} results for {n} sites")
+    order = np.argsort(rows, kind="stable")
+    if not np.array_equal(rows[order], np.arange(n)):
+        raise NeveError(f"the cluster did not return each of the {n} sites once")
+    result = Resolution.concat([res for _, res in done])
+    return result if np.array_equal(order, np.arange(n)) else result.take(order)
 
 
-def _compute(client, resolved, n: int, progress: bool) -> pd.DataFrame:
+def resolve_dask(
+    lat,
+    lon,
+    elevation_ft=None,
+    *,
+    layers,
+    dem=None,
+    dem_units=None,
+    scheduler: str | None = None,
+    partitions: int | None = None,
+    staging: str | Path | None = None,
+    columns: list[str] | None = None,
+    progress: bool = False,
+    elevation_source: str = "larger",
+) -> pd.DataFrame:
+    """:func:`resolve_dask_result` as a table: one row per site, in input order.
+
+    ``columns`` names the resolver columns to give (all when omitted); the
+    other parameters are those of :func:`resolve_dask_result`.
+    """
+    res = resolve_dask_result(
+        lat, lon, elevation_ft, layers=layers, dem=dem, dem_units=dem_units,
+        scheduler=scheduler, partitions=partitions, staging=staging, progress=progress,
+        elevation_source=elevation_source,
+    )  # fmt: skip
+    return res.to_frame(columns)
+
+
+def _compute(client, tasks, n: int, progress: bool) -> list:
+    """Run the partition tasks; their (rows, result) pairs in partition order."""
     from distributed import as_completed
 
     from neve.geo.screen.local import progress_bar
 
-    parts = resolved.to_delayed()
-    futures = client.compute(parts)
+    futures = client.compute(tasks)
     bar = progress_bar(n, progress, "resolving (dask)")
     done = {}
     try:
         for fut in as_completed(futures):
-            part = fut.result()
-            done[fut.key] = part
-            bar.update(len(part))
+            rows, res = fut.result()
+            done[fut.key] = (rows, res)
+            bar.update(len(res))
     finally:
         bar.close()
-    frames = [done[f.key] for f in futures]
-    return pd.concat(frames, ignore_index=True) if frames else resolved._meta
+    return [done[f.key] for f in futures]

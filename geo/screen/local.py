@@ -1,9 +1,10 @@
 """The local screening engine: many sites resolved in chunks on this machine.
 
-:func:`resolve_local` cuts the sites into chunks of at most
-:data:`CHUNK_SIZE`, resolves each with :func:`neve.geo.site.resolve.resolve_points`
+:func:`resolve_local_result` cuts the sites into chunks of at most
+:data:`CHUNK_SIZE`, resolves each with :func:`neve.geo.site.resolve.resolve`
 (one spatial join per layer and chunk) and puts the chunks back in input
-order.  Large portfolios are resolved by :func:`worker_threads` threads:
+order, as one :class:`neve.geo.site.result.Resolution`
+(:func:`resolve_local` gives it as a table).  Large portfolios are resolved by :func:`worker_threads` threads:
 shapely and numpy release the GIL for the heavy work, so two threads use two
 cores without copying the sites to other processes.  Each thread works on its
 own copy of the layers (:func:`portable_layer`).
@@ -81,7 +82,7 @@ def progress_bar(total: int, enabled: bool, desc: str):
     return tqdm(total=total, disable=not enabled, desc=desc, unit="site", leave=False)
 
 
-def resolve_local(
+def resolve_local_result(
     lat: np.ndarray,
     lon: np.ndarray,
     elevation_ft: np.ndarray | None,
@@ -91,8 +92,8 @@ def resolve_local(
     dem_units: str | None = None,
     progress: bool = False,
     elevation_source: str = "larger",
-) -> pd.DataFrame | None:
-    """Resolve sites in chunks on this machine; one DataFrame row per site, in order.
+):
+    """Resolve sites in chunks on this machine; one result entry per site, in order.
 
     Parameters
     ----------
@@ -103,19 +104,20 @@ def resolve_local(
     layers : list of neve.geo.layers.model.Layer
         Zone layers, most local first.
     dem, dem_units, elevation_source
-        As for :func:`neve.geo.site.resolve.resolve_points`.
+        As for :func:`neve.geo.site.resolve.resolve`.
     progress : bool
         Show a progress bar on stderr.
 
     Returns
     -------
-    pandas.DataFrame or None
-        The resolver's columns, one row per site in input order (None for no sites).
+    neve.geo.site.result.Resolution or None
+        The chunks' results put together in input order (None for no sites).
     """
     import queue
     from concurrent.futures import ThreadPoolExecutor
 
-    from neve.geo.site.resolve import resolve_points
+    from neve.geo.site.resolve import resolve
+    from neve.geo.site.result import Resolution
 
     n = len(lat)
     threads = worker_threads(n)
@@ -130,7 +132,7 @@ def resolve_local(
         start, stop = chunk
         own = pool.get()  # a layer set no other thread is using
         try:
-            return resolve_points(
+            return resolve(
                 lat[start:stop],
                 lon[start:stop],
                 layers=own,
@@ -156,6 +158,26 @@ def resolve_local(
                     bar.update(chunk[1] - chunk[0])
     finally:
         bar.close()
-    if not parts:
-        return None
-    return parts[0] if len(parts) == 1 else pd.concat(parts, ignore_index=True)
+    return Resolution.concat(parts) if parts else None
+
+
+def resolve_local(
+    lat: np.ndarray,
+    lon: np.ndarray,
+    elevation_ft: np.ndarray | None,
+    *,
+    layers: list,
+    dem=None,
+    dem_units: str | None = None,
+    progress: bool = False,
+    elevation_source: str = "larger",
+) -> pd.DataFrame | None:
+    """:func:`resolve_local_result` as a table: the resolver's columns, one row per site.
+
+    Returns None for no sites.
+    """
+    res = resolve_local_result(
+        lat, lon, elevation_ft, layers=layers, dem=dem, dem_units=dem_units,
+        progress=progress, elevation_source=elevation_source,
+    )  # fmt: skip
+    return None if res is None else res.to_frame()

@@ -26,7 +26,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from neve.engine.errors import InputError
+from neve.engine.errors import InputError, NeveError
 from neve.engine.roof_spec import Roof
 from neve.engine.units import KPA_PER_PSF, M_PER_FT
 from neve.geo.screen.local import (  # noqa: F401  (the local engine's names re-exported)
@@ -35,6 +35,7 @@ from neve.geo.screen.local import (  # noqa: F401  (the local engine's names re-
     THREADS_ENV,
     portable_layer,
     resolve_local,
+    resolve_local_result,
     worker_threads,
 )
 from neve.geo.screen.outputs import (  # noqa: F401  (summary names re-exported)
@@ -47,6 +48,17 @@ from neve.geo.screen.outputs import (  # noqa: F401  (summary names re-exported)
     summarize,
 )
 from neve.geo.screen.sitefile import SiteArrays, load_sites
+from neve.geo.site.result import (
+    BIT,
+    ERROR,
+    FROM_NONE,
+    OK,
+    PROVISIONAL,
+    Provenance,
+    Resolution,
+    bits_of,
+    flags_text,
+)
 from neve.roof_file import read_toml, roofs_from_mapping  # noqa: F401  (moved; re-exported)
 
 #: the result columns neve adds (before the roof columns), in order
@@ -201,24 +213,23 @@ def run_screen(
     if len(idx) == 0:
         resolved = None
     elif engine == "dask":
-        from neve.geo.screen.dask_runner import resolve_dask
+        from neve.geo.screen.dask_runner import resolve_dask_result
 
-        resolved = resolve_dask(
+        resolved = resolve_dask_result(
             site.lat[idx],
             site.lon[idx],
             elev_arg,
             scheduler=scheduler,
             partitions=partitions,
             staging=staging,
-            columns=list(RESOLVED_COLUMNS),
             **kwargs,
         )
     else:
-        resolved = resolve_local(site.lat[idx], site.lon[idx], elev_arg, **kwargs)
+        resolved = resolve_local_result(site.lat[idx], site.lon[idx], elev_arg, **kwargs)
     lap("resolve")
-    out = _assemble(site, idx, resolved, demo=any(ly.demo for ly in layer_list))
-    if roofs is not None:
-        _add_roof(out, site, roofs, layer_list)
+    res = _rows_result(site, idx, resolved, layer_list)
+    roof_cols = _roof_columns(res, site, roofs, layer_list) if roofs is not None else {}
+    out = {**_result_columns(res, site), **roof_cols}  # text only here, at the edge
     results = _join_input(site.frame, out)
     lap("roof_and_assemble")
     summary = summarize(
@@ -275,138 +286,114 @@ def screen(sites, *, layers=None, dem=None, dem_units=None, roof=None, engine="l
     return run.results
 
 
-def _assemble(
-    site: SiteArrays, idx: np.ndarray, resolved: pd.DataFrame | None, demo: bool = False
-) -> dict:
-    """The result columns for every row: the resolver's where it ran, errors elsewhere.
+def _rows_result(
+    site: SiteArrays, idx: np.ndarray, resolved: Resolution | None, layers: list
+) -> Resolution:
+    """The result of every input row: the resolver's where it ran, ``error`` elsewhere.
 
-    Text columns stay in the resolver's (Arrow-backed) string dtype and are
-    moved by index, never converted element by element.
+    Row-level flags (``duplicate_site_id``, ``multiline_field``) are added as
+    bits; rows that were never looked up carry their reason in ``message``.
     """
     n = len(site)
-    rows = pd.RangeIndex(n)
-    cols = list(RESOLVED_COLUMNS)
     if resolved is None or not len(idx):
-        res = pd.DataFrame({c: pd.Series(np.nan if c in ("pg_psf", "elevation_ft") else None,
-                                         index=rows, dtype=float if c in ("pg_psf", "elevation_ft")
-                                         else "str") for c in cols})  # fmt: skip
+        res = Resolution.blank(n, tuple(Provenance.of(layer) for layer in layers))
     else:
         if len(resolved) != len(idx):
-            raise RuntimeError(f"resolver returned {len(resolved)} rows for {len(idx)} sites")
-        res = resolved[cols].set_axis(pd.Index(idx))
-        if len(idx) != n:
-            res = res.reindex(rows)
-        else:
-            res = res.set_axis(rows)
+            raise NeveError(f"resolver returned {len(resolved)} results for {len(idx)} sites")
+        res = resolved.placed(idx, n)
     invalid = np.ones(n, dtype=bool)
     invalid[idx] = False
-    status = res["status"].copy()
-    message = res["message"].copy()
-    flags = res["flags"].copy()
-    source = res["elevation_source"].copy()
     if invalid.any():
         errors = site.error[invalid]
-        errors = np.where(errors == "", "no coordinates for this row", errors)
-        status[invalid] = "error"
-        message[invalid] = errors
-        flags[invalid] = "demo_data" if demo else ""
-        source[invalid] = "none"
+        res.status[invalid] = ERROR
+        res.message[invalid] = np.where(errors == "", "no coordinates for this row", errors)
+        res.flags[invalid] = BIT["demo_data"] if any(ly.demo for ly in layers) else 0
+        res.elevation_source[invalid] = FROM_NONE
     if site.duplicate.any():
-        d = site.duplicate
-        old = flags[d].fillna("")
-        flags[d] = np.where(old == "", "duplicate_site_id", old + ";duplicate_site_id")
+        res.flags[site.duplicate] |= BIT["duplicate_site_id"]
     if site.multiline:  # a quoted cell with line breaks: kept, never silently
         rows = np.fromiter(site.multiline, dtype=np.int64, count=len(site.multiline))
-        old = flags.iloc[rows].fillna("").to_numpy(dtype=object)
-        flags.iloc[rows] = [
-            ";".join(sorted(set(filter(None, str(f).split(";"))) | {"multiline_field"}))
-            for f in old
-        ]
-        said = message.iloc[rows].fillna("").to_numpy(dtype=object)
-        message.iloc[rows] = [
+        res.flags[rows] |= BIT["multiline_field"]
+        res.message[rows] = [
             f"{m} Input record on lines {a}-{b} of the file: a quoted cell holds line breaks "
             f"(if that is not meant, look for a stray quote on line {a}).".strip()
-            for m, (a, b) in zip(said, site.multiline.values(), strict=True)
+            for m, (a, b) in zip(res.message[rows], site.multiline.values(), strict=True)
         ]
-    text = {}
-    for col in ("zone_id", "rule", "layer_name"):  # no zone: missing, not an empty name
-        v = res[col]
-        text[col] = v.mask(v == "") if (v == "").any() else v
-    pg = res["pg_psf"].to_numpy(dtype=float, na_value=np.nan)
-    elev = res["elevation_ft"].to_numpy(dtype=float, na_value=np.nan)
+    return res
+
+
+def _missing_if_empty(text: np.ndarray) -> np.ndarray:
+    """Text per row with "" (no zone, no layer) as a missing value."""
+    empty = text == ""
+    if not empty.any():
+        return text
+    out = text.copy()
+    out[empty] = np.nan
+    return out
+
+
+def _result_columns(res: Resolution, site: SiteArrays) -> dict:
+    """The result columns of every row (:data:`RESULT_COLUMNS`): the edge where codes and
+    bits become text."""
+    pg = res.value("pg")
+    elev = res.elevation_ft
     return {
-        "status": status,
+        "status": res.status_text(),
         "pg_psf": pg,
         "pg_kpa": pg * KPA_PER_PSF,
-        "zone_id": text["zone_id"],
-        "flags": flags.fillna(""),
-        "message": message.fillna(""),
+        "zone_id": _missing_if_empty(res.zone_id),
+        "flags": flags_text(res.flags),
+        "message": res.message,
         LAT_COLUMN: site.lat,
         LON_COLUMN: site.lon,
         "site_elevation_ft": elev,
         "site_elevation_m": elev * M_PER_FT,
-        "site_elevation_source": source,
-        "rule": text["rule"],
-        "layer_name": text["layer_name"],
+        "site_elevation_source": res.elevation_source_text(),
+        "rule": _missing_if_empty(res.rule),
+        "layer_name": _missing_if_empty(res.layer_field("name")),
     }
 
 
-def _merge_flags(texts: np.ndarray, extra) -> np.ndarray:
-    """Add ``extra`` flags to ';'-joined flag texts, once per distinct text (fast)."""
-    codes, uniques = pd.factorize(pd.Series(texts, dtype=object).fillna(""))
-    merged = np.array(
-        [";".join(sorted(set(filter(None, str(u).split(";"))) | set(extra))) for u in uniques]
-        + [";".join(sorted(set(extra)))],
-        dtype=object,
-    )
-    return merged[codes]  # code -1 (missing) picks the last entry
+def _roof_columns(res: Resolution, site: SiteArrays, roofs, layers) -> dict:
+    """Uniform roof loads of the usable rows (``<load>_psf`` beside ``<load>_kpa``).
 
-
-def _add_roof(out: dict, site: SiteArrays, roofs, layers) -> None:
+    The ground value goes to the engine as the result's own array; the
+    roof's flags are added to the rows' flag bits.
+    """
     from neve.engine import screening_flags, uniform_loads
     from neve.geo.site.one import roof_engine_accepts
 
     n = len(site)
-    for name in ROOF_LOADS:
-        out[f"{name}_psf"] = np.full(n, np.nan)
-    status = out["status"]
-    pg = out["pg_psf"]
-    usable = pd.Series(status).isin(ROOF_STATUSES).to_numpy() & np.isfinite(pg)
+    psf = {name: np.full(n, np.nan) for name in ROOF_LOADS}
+    pg = res.value("pg")
+    usable = np.isin(res.status, (OK, PROVISIONAL)) & np.isfinite(pg)
     # only layers mapping ASCE 7-16-compatible ground loads feed the engine
     refused = [
-        ly.name for ly in layers if not roof_engine_accepts(str(ly.meta.get("standard", "")))
+        k
+        for k, ly in enumerate(layers)
+        if not roof_engine_accepts(str(ly.meta.get("standard", "")))
     ]
     if refused:
-        other = usable & pd.Series(out["layer_name"]).isin(refused).to_numpy()
-        if other.any():
-            flags = pd.Series(out["flags"]).astype(object).to_numpy(copy=True)
-            flags[other] = _merge_flags(flags[other], ["roof_standard_unsupported"])
-            out["flags"] = pd.Series(flags)
-            usable = usable & ~other
+        other = usable & np.isin(res.layer, refused)
+        res.flags[other] |= BIT["roof_standard_unsupported"]
+        usable &= ~other
     groups = (
         [(roofs, usable)]
         if isinstance(roofs, Roof)
         else [(r, usable & (site.roof == name)) for name, r in roofs.items()]
     )
-    row_flags = None
     for roof, mask in groups:
         if not mask.any():
             continue
-        extra = screening_flags(roof)
-        if extra:
-            if row_flags is None:
-                row_flags = pd.Series(out["flags"]).astype(object).to_numpy(copy=True)
-            row_flags[mask] = _merge_flags(row_flags[mask], extra)
+        res.flags[mask] |= bits_of(screening_flags(roof))
         loads = uniform_loads(pg[mask], roof)
         for name in ROOF_LOADS:
-            out[f"{name}_psf"][mask] = np.asarray(loads[name], dtype=float)
-    if row_flags is not None:
-        out["flags"] = pd.Series(row_flags)
-    for name in ROOF_LOADS:
-        out[f"{name}_kpa"] = out[f"{name}_psf"] * KPA_PER_PSF
-    order = [c for name in ROOF_LOADS for c in (f"{name}_psf", f"{name}_kpa")]
-    for c in order:  # move the roof columns to the end, psf beside kPa
-        out[c] = out.pop(c)
+            psf[name][mask] = np.asarray(loads[name], dtype=float)
+    out = {}
+    for name in ROOF_LOADS:  # psf beside kPa
+        out[f"{name}_psf"] = psf[name]
+        out[f"{name}_kpa"] = psf[name] * KPA_PER_PSF
+    return out
 
 
 def _join_input(frame: pd.DataFrame, out: dict) -> pd.DataFrame:
