@@ -156,9 +156,17 @@ def run_screen(
     max_rows: int | None = None,
     progress: bool = False,
     elevation_source: str = "larger",
+    standard=None,
 ) -> ScreenRun:
-    """Screen sites; return the results with their summary (see :func:`screen`)."""
+    """Screen sites; return the results with their summary (see :func:`screen`).
+
+    ``standard``: the standard of the roof loads (an id or name of
+    :mod:`neve.engine.standards`; the default one when omitted).
+    """
     from neve.engine.choices import choose_key
+    from neve.engine.standards import get_standard
+
+    roof_std = get_standard(standard)  # an unknown one is refused before any work
 
     t0 = time.perf_counter()
     timings: dict[str, float] = {}
@@ -228,7 +236,7 @@ def run_screen(
         resolved = resolve_local_result(site.lat[idx], site.lon[idx], elev_arg, **kwargs)
     lap("resolve")
     res = _rows_result(site, idx, resolved, layer_list)
-    roof_cols = _roof_columns(res, site, roofs, layer_list) if roofs is not None else {}
+    roof_cols = _roof_columns(res, site, roofs, layer_list, roof_std) if roofs is not None else {}
     out = {**_result_columns(res, site), **roof_cols}  # text only here, at the edge
     results = _join_input(site.frame, out)
     lap("roof_and_assemble")
@@ -354,24 +362,28 @@ def _result_columns(res: Resolution, site: SiteArrays) -> dict:
     }
 
 
-def _roof_columns(res: Resolution, site: SiteArrays, roofs, layers) -> dict:
+def _roof_columns(res: Resolution, site: SiteArrays, roofs, layers, standard=None) -> dict:
     """Uniform roof loads of the usable rows (``<load>_psf`` beside ``<load>_kpa``).
 
-    The ground value goes to the engine as the result's own array; the
-    roof's flags are added to the rows' flag bits.
+    The ground value goes to the standard (asked of the registry) as the
+    result's own array of the quantity it needs; the roof's flags are added
+    to the rows' flag bits.
     """
-    from neve.engine import screening_flags, uniform_loads
-    from neve.geo.site.one import roof_engine_accepts
+    from neve.engine.standards import get_standard
 
+    std = get_standard(standard)
+    quantity = std.quantities[0]
     n = len(site)
     psf = {name: np.full(n, np.nan) for name in ROOF_LOADS}
-    pg = res.value("pg")
+    pg = res.value(quantity)
     usable = np.isin(res.status, (OK, PROVISIONAL)) & np.isfinite(pg)
-    # only layers mapping ASCE 7-16-compatible ground loads feed the engine
+    # only layers of the editions and quantity the standard takes feed its roof loads
     refused = [
         k
         for k, ly in enumerate(layers)
-        if not roof_engine_accepts(str(ly.meta.get("standard", "")))
+        if not std.accepts_layer(
+            str(ly.meta.get("standard", "")), str(ly.meta.get("quantity", "pg"))
+        )
     ]
     if refused:
         other = usable & np.isin(res.layer, refused)
@@ -385,8 +397,8 @@ def _roof_columns(res: Resolution, site: SiteArrays, roofs, layers) -> dict:
     for roof, mask in groups:
         if not mask.any():
             continue
-        res.flags[mask] |= bits_of(screening_flags(roof))
-        loads = uniform_loads(pg[mask], roof)
+        res.flags[mask] |= bits_of(std.screening_flags(roof))
+        loads = std.uniform({quantity: pg[mask]}, roof)
         for name in ROOF_LOADS:
             psf[name][mask] = np.asarray(loads[name], dtype=float)
     out = {}

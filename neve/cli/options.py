@@ -240,16 +240,21 @@ def geocoder_url_option(f):
 # --- outputs -----------------------------------------------------------------------
 
 
-def format_option(f):
-    """``--format text|json``: what the command prints."""
-    return click.option(
+def format_option(f=None, *, choices: tuple[str, ...] = ("text", "json"), help: str | None = None):
+    """``--format text|json``: what the command prints.
+
+    ``@format_option`` gives text or json; ``@format_option(choices=..., help=...)``
+    a command with more formats (``neve verify``: text, json, html).
+    """
+    opt = click.option(
         "--format",
         "fmt",
-        type=click.Choice(["text", "json"]),
+        type=click.Choice(list(choices)),
         default="text",
         show_default=True,
-        help="Output: readable text, or one JSON object.",
-    )(f)
+        help=help or "Output: readable text, or one JSON object.",
+    )
+    return opt if f is None else opt(f)
 
 
 def map_option(help: str, *, required: bool = False):
@@ -293,3 +298,44 @@ def overwrite_option(help: str):
 def quiet_option(f):
     """``--quiet``: no progress bar."""
     return click.option("--quiet", is_flag=True, help="No progress bar.")(f)
+
+
+def output_option(help: str, *, required: bool = False):
+    """``-o/--output FILE``: the file a command writes; ``help`` says which."""
+    return click.option(
+        "-o", "--output", "output", required=required, type=click.Path(dir_okay=False), help=help
+    )
+
+
+# --- the standard --------------------------------------------------------------------
+
+
+def _standard(ctx, param, value):
+    """The registered standard named by ``--standard`` (unknown: exit 2, listing those there are)."""
+    if value is None:
+        return None
+    from neve.engine.standards import get_standard
+
+    return get_standard(value, field="standard")
+
+
+def standard_option(f=None, *, default: str | None = "asce7-16", help: str | None = None):
+    """``--standard ID``: the standard of the roof loads (ids and names of the registry).
+
+    ``@standard_option`` defaults to ``asce7-16``; ``neve verify`` takes
+    ``@standard_option(default=None, help=...)`` (every registered standard).
+    The command receives the :class:`neve.engine.standards.Standard` (or None).
+    """
+    from neve.engine.standards import standards
+
+    known = "; ".join(f"{s.id} ({s.title})" for s in standards())
+    opt = click.option(
+        "--standard",
+        "standard",
+        metavar="ID",
+        default=default,
+        show_default=default is not None,
+        callback=_standard,
+        help=(help or "Standard of the roof snow loads") + f": {known}.",
+    )
+    return opt if f is None else opt(f)

@@ -15,10 +15,12 @@ from neve.cli.options import (
     layers_option,
     map_look_options,
     map_option,
+    output_option,
     overwrite_option,
     quiet_option,
     roof_options,
     roofs_from_options,
+    standard_option,
 )
 from neve.engine.errors import InputError
 
@@ -29,13 +31,8 @@ def _terminate(signum, frame):  # pragma: no cover - exercised through a subproc
 
 @click.command("screen")
 @click.argument("sites", type=click.Path(dir_okay=False))
-@click.option(
-    "-o",
-    "--output",
-    "output",
-    required=True,
-    type=click.Path(dir_okay=False),
-    help="Results file: .csv, .xlsx (with a summary sheet), .gpkg or .parquet.",
+@output_option(
+    "Results file: .csv, .xlsx (with a summary sheet), .gpkg or .parquet.", required=True
 )
 @layers_option
 @dem_options
@@ -85,8 +82,9 @@ def _terminate(signum, frame):  # pragma: no cover - exercised through a subproc
     type=click.Path(dir_okay=False),
     help="Also write the run summary as JSON to this file.",
 )
+@standard_option
 def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, tiles, self_contained, engine, scheduler, staging, partitions,
-           gazetteer, geocoder_url, geocode_cache, quiet, overwrite, csv_raw, summary_json, **roof_kw):  # fmt: skip
+           gazetteer, geocoder_url, geocode_cache, quiet, overwrite, csv_raw, summary_json, standard, **roof_kw):  # fmt: skip
     """Screen a portfolio: ground snow load (and roof loads) for every site in SITES.
 
     SITES is a CSV, XLSX, GeoPackage or Parquet file with lat/lon (or
@@ -155,6 +153,7 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
             geocode_cache=geocode_cache,
             max_rows=XLSX_MAX_ROWS if fmt == "xlsx" else None,
             progress=progress,
+            standard=standard,
         )
         write_results(
             run.results,

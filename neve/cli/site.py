@@ -15,6 +15,7 @@ from neve.cli.options import (
     overwrite_option,
     roof_from_options,
     roof_options,
+    standard_option,
 )
 from neve.engine.errors import InputError
 from neve.engine.jsonsafe import dumps, finite_copy
@@ -54,6 +55,7 @@ def _check_output(path: str | None, field: str, overwrite: bool, is_dir: bool = 
 @click.option("--user-agent", help="User agent sent to the geocoding server.")
 @click.option("--geocoder-timeout", type=float, default=10.0, show_default=True,
               help="Seconds to wait for the geocoding server.")  # fmt: skip
+@standard_option
 def site(**kw) -> None:
     """Ground snow load of a site from zone layers, and roof snow loads when a roof is given.
 
@@ -99,6 +101,7 @@ def site(**kw) -> None:
         address=address,
         given=given,
         elevation_source=kw["elevation_source"],
+        standard=kw["standard"],
     )
     data = finite_copy(result.to_json())  # no NaN or infinity in any output: null + a flag
     if kw["map_path"] or kw["package_dir"]:
