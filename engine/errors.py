@@ -5,6 +5,16 @@ process exit code the command-line interface uses for it, so the CLI never
 has to guess: bad input and unreadable layers exit with 2, anything else
 with 1.  Warnings about a result are never raised or printed; they travel as
 flags inside the result.
+
+Everything neve raises on purpose derives from :class:`NeveError` (a test reads
+the source to hold that: ``tests/contract/test_house.py``). Where a caller may
+already catch a built-in exception, the subclass keeps it as a second base
+(:class:`InputError` is also a ``ValueError``), so ``except ValueError`` still
+works. The named subclasses elsewhere: ``neve.geo.layers.sidecar.SidecarError``,
+``neve.geo.layers.formula.ExpressionError``, ``neve.geo.layers.rules.LayerValueError``
+(layer errors), ``neve.geo.site.geocode.GeocodeError``,
+``neve.geo.screen.geocode_rows.GeocodeMiss`` and the safe writer's
+``neve.safe_write.TargetKindError``.
 """
 
 from __future__ import annotations
@@ -56,3 +66,12 @@ class MissingDataError(NeveError):
 
 class UnsupportedError(InputError):
     """The request is understood but not covered by neve (e.g. a curved roof)."""
+
+
+class OutputError(NeveError):
+    """An output cannot be made as asked (e.g. a self-contained map that still links a file).
+
+    Not the user's input at fault: exit code 1.
+    """
+
+    exit_code = 1

@@ -322,7 +322,9 @@ def finish(
     if self_contained:
         remote = assets.remote_references(html)
         if remote:
-            raise RuntimeError(f"self-contained map still references remote assets: {remote[:3]}")
+            from neve.engine.errors import OutputError
+
+            raise OutputError(f"self-contained map still references remote assets: {remote[:3]}")
     return write_text(path, html, overwrite=overwrite, field="map", parents=True)
 
 

@@ -41,6 +41,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
+from neve.engine.errors import LayerError
 from neve.engine.roof_spec import PG_MAX_PSF
 from neve.geo.layers.formula import MAX_MAGNITUDE, Expr, ExpressionError, compile_expr
 
@@ -61,6 +62,10 @@ NUMERIC = 6  #: the rule gave no finite number from 0 to the plausibility bound 
 RESERVED = {"zone_id", "rule", "table", "expr", "source", "note", "geometry"}
 
 
+class LayerValueError(LayerError, ValueError):
+    """A cell of a zone layer is not a usable value (a bad number or elevation table)."""
+
+
 def _clean_text(value) -> str:
     if value is None or (isinstance(value, float) and math.isnan(value)):
         return ""
@@ -68,7 +73,7 @@ def _clean_text(value) -> str:
 
 
 def _opt_float(value) -> float:
-    """A float, NaN for missing; raises ValueError for text that is not a number."""
+    """A float, NaN for missing; raises ValueError (LayerValueError) for text that is not a number."""
     if value is None:
         return math.nan
     if isinstance(value, str):
@@ -76,7 +81,7 @@ def _opt_float(value) -> float:
             return math.nan
         return float(value)
     if isinstance(value, bool):
-        raise ValueError("a boolean is not a number")
+        raise LayerValueError("a boolean is not a number")
     return float(value)
 
 
@@ -85,19 +90,19 @@ def parse_table(value) -> tuple[np.ndarray, np.ndarray]:
 
     Raises
     ------
-    ValueError
-        When the text is not a JSON list of at least two ``[elevation, value]``
+    LayerValueError
+        (a ``ValueError`` too) When the text is not a JSON list of at least two ``[elevation, value]``
         number pairs with strictly increasing elevation and values of zero or more.
     """
     text = _clean_text(value)
     if not text:
-        raise ValueError("the table is missing")
+        raise LayerValueError("the table is missing")
     try:
         pairs = json.loads(text)
     except json.JSONDecodeError as exc:
-        raise ValueError(f"the table is not JSON ({exc.msg})") from None
+        raise LayerValueError(f"the table is not JSON ({exc.msg})") from None
     if not isinstance(pairs, list) or len(pairs) < 2:
-        raise ValueError("the table must be a list of at least two [elevation, value] pairs")
+        raise LayerValueError("the table must be a list of at least two [elevation, value] pairs")
     elev, vals = [], []
     for pair in pairs:
         if (
@@ -106,14 +111,14 @@ def parse_table(value) -> tuple[np.ndarray, np.ndarray]:
             or not all(isinstance(x, (int, float)) and not isinstance(x, bool) for x in pair)
             or not all(math.isfinite(x) for x in pair)
         ):
-            raise ValueError(f"entry {pair!r} is not an [elevation, value] pair of numbers")
+            raise LayerValueError(f"entry {pair!r} is not an [elevation, value] pair of numbers")
         elev.append(float(pair[0]))
         vals.append(float(pair[1]))
     e, v = np.array(elev), np.array(vals)
     if np.any(np.diff(e) <= 0):
-        raise ValueError("elevations in the table are not strictly increasing")
+        raise LayerValueError("elevations in the table are not strictly increasing")
     if np.any(v < 0):
-        raise ValueError("the table has a negative value")
+        raise LayerValueError("the table has a negative value")
     return e, v
 
 

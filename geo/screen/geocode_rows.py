@@ -16,7 +16,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-from neve.engine.errors import InputError
+from neve.engine.errors import InputError, NeveError
 from neve.geo.screen.site_arrays import SiteArrays
 
 
@@ -70,8 +70,10 @@ class CachedGeocoder:
         return hit
 
 
-class GeocodeMiss(LookupError):
+class GeocodeMiss(NeveError, LookupError):
     """One address could not be placed (not found, or ambiguous); that row only is an error."""
+
+    exit_code = 2
 
 
 def _gazetteer_lookup(path: str | Path):
