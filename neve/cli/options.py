@@ -79,6 +79,13 @@ def _pair(decl: str, name: str, help_: str):
     return click.option(decl, name, default=None, multiple=True, callback=_one_answer, help=help_)
 
 
+def _roof_help(name: str) -> str:
+    """The help of a roof option the default standard declares (its roof options are data)."""
+    from neve.engine.standards import get_standard
+
+    return get_standard().roof_option(name).help
+
+
 roof_options = _stack(
     click.option(
         "--roof",
@@ -88,33 +95,22 @@ roof_options = _stack(
     ),
     click.option("--shape", help="Roof shape: flat, monoslope, gable, hip."),
     click.option("--slope", help="Roof slope, e.g. 6:12 or 26.6deg."),
-    click.option("--surface", help="Roof surface: slippery or other."),
-    click.option("--ct", help="Thermal factor Ct given directly (ASCE 7-16 Table 7.3-2)."),
-    click.option(
-        "--thermal",
-        help="Thermal condition: heated, cold-ventilated, unheated, below-freezing, greenhouse.",
-    ),
-    click.option("--ce", help="Exposure factor Ce given directly (ASCE 7-16 Table 7.3-1)."),
-    click.option("--terrain", help="Surface roughness: B, C, D, above-treeline, treeless."),
-    click.option("--exposure", help="Roof exposure: fully, partially, sheltered."),
-    click.option("--risk", help="Risk category: I, II, III, IV."),
+    click.option("--surface", help=_roof_help("surface")),
+    click.option("--ct", help=_roof_help("ct")),
+    click.option("--thermal", help=_roof_help("thermal")),
+    click.option("--ce", help=_roof_help("ce")),
+    click.option("--terrain", help=_roof_help("terrain")),
+    click.option("--exposure", help=_roof_help("exposure")),
+    click.option("--risk", help=_roof_help("risk")),
     click.option(
         "--eave-to-ridge",
         "eave_to_ridge",
         help="Horizontal eave-to-ridge distance W, e.g. 30ft.",
     ),
-    click.option("--r-value", "r_value", help="Roof thermal resistance R [ft2.h.F/Btu], e.g. 30."),
-    _pair("--ventilated/--unventilated", "ventilated", "Whether the roof is ventilated."),
-    _pair(
-        "--unobstructed/--obstructed",
-        "unobstructed",
-        "Whether snow can slide off the eaves unobstructed.",
-    ),
-    _pair(
-        "--prismatic/--non-prismatic",
-        "prismatic",
-        "Simply supported prismatic members from ridge to eave (Sec. 7.6.1).",
-    ),
+    click.option("--r-value", "r_value", help=_roof_help("r_value")),
+    _pair("--ventilated/--unventilated", "ventilated", _roof_help("ventilated")),
+    _pair("--unobstructed/--obstructed", "unobstructed", _roof_help("unobstructed")),
+    _pair("--prismatic/--non-prismatic", "prismatic", _roof_help("prismatic")),
 )
 roof_options.__doc__ = "Decorate a click command with the roof options and ``--roof ROOF.toml``."
 
