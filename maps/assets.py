@@ -211,16 +211,8 @@ def atomic_write_bytes(path: str | os.PathLike, data: bytes) -> Path:
     """Replace ``path`` with ``data`` atomically: :func:`neve.safe_write.write_bytes`.
 
     See :func:`atomic_write_text`.  As before, a folder in the way is an ``OSError``
-    (``IsADirectoryError``).
+    (:class:`neve.safe_write.TargetKindError`, an ``InputError`` too).
     """
-    import errno
-
-    from neve.engine.errors import InputError
     from neve.safe_write import write_bytes
 
-    try:
-        return write_bytes(path, data, overwrite=True, field="path", parents=True)
-    except InputError as exc:
-        if Path(path).is_dir():
-            raise IsADirectoryError(errno.EISDIR, str(exc), str(path)) from None
-        raise
+    return write_bytes(path, data, overwrite=True, field="path", parents=True)

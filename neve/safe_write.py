@@ -49,11 +49,20 @@ from collections.abc import Callable, Iterator
 from contextlib import contextmanager
 from pathlib import Path
 
-from neve.engine.errors import InputError
+from neve.engine.errors import InputError, NeveError
+
+
+class TargetKindError(InputError, OSError):
+    """A folder stands where a file goes, or a file where a folder goes (exit code 2).
+
+    Also an ``OSError``, as the failed rename it prevents would have been.
+    """
+
 
 __all__ = [
     "STALE_AFTER_S",
     "TEMP_KINDS",
+    "TargetKindError",
     "atomic_file",
     "atomic_folder",
     "check_target",
@@ -126,7 +135,7 @@ def make_temp(target: str | os.PathLike, kind: str = "part", *, folder: bool = T
     import tempfile
 
     if kind not in TEMP_KINDS:
-        raise ValueError(f"kind must be one of {TEMP_KINDS}")
+        raise InputError("kind", f"unknown temporary kind {kind!r}", ", ".join(TEMP_KINDS))
     target = Path(target)
     prefix, suffix = temp_prefix(target), f".{kind}"
     where = _folder_of(target)
@@ -256,7 +265,7 @@ def check_target(
         )
     if folder:
         if _exists(p) and not p.is_dir():
-            raise InputError(field, f"{str(p)!r} is a file", "a folder path")
+            raise TargetKindError(field, f"{str(p)!r} is a file", "a folder path")
         if not p.is_dir() or not any(p.iterdir()):
             return p
         if replaceable is not None:
@@ -268,7 +277,7 @@ def check_target(
     if _exists(p) and not overwrite:
         raise InputError(field, f"{str(p)!r} already exists", ACCEPTED)
     if p.is_dir():
-        raise InputError(field, f"{str(p)!r} is a folder", "a file path")
+        raise TargetKindError(field, f"{str(p)!r} is a folder", "a file path")
     return p
 
 
@@ -362,7 +371,7 @@ def atomic_file(
     try:
         yield tmp
         if not tmp.is_file():
-            raise OSError(f"the writer produced no file for {target}")
+            raise NeveError(f"the writer produced no file for {str(target)!r}")
         _fsync(tmp)
         publish(tmp, target, overwrite=overwrite, field=field)
     finally:

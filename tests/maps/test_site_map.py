@@ -15,6 +15,7 @@ RAW_HOSTILE = ("<script>alert", "<img src=x", "onerror=alert(2)>")
 def _write(tmp_path, site=None, views=None, **kw):
     site = site or make_site_json()
     views = views if views is not None else [make_view()]
+    kw.setdefault("overwrite", True)  # the tests write several maps to one path
     return write_site_map(site, views, tmp_path / "site.html", **kw).read_text(encoding="utf-8")
 
 
