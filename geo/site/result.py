@@ -185,7 +185,13 @@ def _texts(table: Sequence[str], codes: np.ndarray, none: str = "") -> np.ndarra
     return np.array([*table, none], dtype=object)[np.asarray(codes, dtype=np.intp)]
 
 
-@dataclass
+def _same(a: np.ndarray, b: np.ndarray) -> bool:
+    if a.dtype != b.dtype or a.shape != b.shape:
+        return False
+    return bool(np.array_equal(a, b, equal_nan=a.dtype.kind == "f"))
+
+
+@dataclass(eq=False)
 class Resolution:
     """n resolved sites as arrays (one entry per site, in input order).
 
@@ -251,6 +257,18 @@ class Resolution:
 
     def __len__(self) -> int:
         return int(self.status.size)
+
+    def __eq__(self, other) -> bool:
+        """Equal when every array (NaN equal to NaN) and the layers are; the detail is not compared."""
+        if not isinstance(other, Resolution) or self.layers != other.layers:
+            return NotImplemented if not isinstance(other, Resolution) else False
+        for (_, a), (_, b) in zip(self._arrays(), other._arrays(), strict=True):
+            if isinstance(a, dict):
+                if set(a) != set(b) or not all(_same(a[q], b[q]) for q in a):
+                    return False
+            elif not _same(a, b):
+                return False
+        return True
 
     # ------------------------------------------------------------------ building
     @classmethod
