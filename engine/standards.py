@@ -151,6 +151,8 @@ class VerificationCase:
         ``compute(inputs) -> mapping`` of the same quantity names.
     note : str
         The hand calculation or reading, for the manual.
+    group : str
+        The provision the manual files the case under (``Table 7.3-1``).
     """
 
     id: str
@@ -160,6 +162,7 @@ class VerificationCase:
     tolerance: float | Mapping[str, float]
     compute: Callable[[Mapping[str, Any]], Mapping[str, Any]]
     note: str = ""
+    group: str = ""
 
     def tolerances(self) -> dict[str, float]:
         """The absolute tolerance of every quantity (0 for words and yes/no)."""
@@ -191,6 +194,7 @@ class VerificationCase:
         out = {
             "id": self.id,
             "standard": standard,
+            "group": self.group,
             "source": self.source,
             "inputs": dict(self.inputs),
             "expected": dict(self.expected),

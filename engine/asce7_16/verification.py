@@ -85,8 +85,21 @@ NEUTRAL = {"ce": 1.0, "ct": 1.0, "risk": "II"}
 _MEMORY = "(from memory)"
 
 
+#: id prefixes and the provision kind they stand for
+_GROUPS = {"table": "Table", "eq": "Eq.", "fig": "Fig.", "sec": "Sec."}
+
+
+def _group(id_: str) -> str:
+    """The provision a case is filed under: ``sec-7.7.1/...`` -> ``Sec. 7.7.1``."""
+    head = id_.split("/", 1)[0]
+    kind, _, number = head.partition("-")
+    if kind in _GROUPS:
+        return f"{_GROUPS[kind]} {number}"
+    return "Governing uniform load (Sec. 7.3.4, Eq. 7.4-1, Sec. 7.10)"
+
+
 def _case(id_, source, inputs, expected, tolerance, compute, note=""):
-    return VerificationCase(id_, source, inputs, expected, tolerance, compute, note)
+    return VerificationCase(id_, source, inputs, expected, tolerance, compute, note, _group(id_))
 
 
 def _neutral(**roof) -> dict:

@@ -20,6 +20,7 @@ _COMMANDS = {
     "site": ("neve.cli.site", "site", "Ground and roof snow loads for one site."),
     "screen": ("neve.cli.screen", "screen", "Screen a portfolio of sites."),
     "layer": ("neve.cli.layer", "layer", "Check or show a zone layer."),
+    "verify": ("neve.cli.verify", "verify", "Run the verification cases of the standards."),
 }
 
 
