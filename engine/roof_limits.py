@@ -44,8 +44,8 @@ _PLAN = "longer than the roofs of the largest buildings"
 #: (a roof length, a height); a zero separation is a step within one structure.
 RANGES: dict[str, Bound] = {
     "pg": Bound(0.0, PG_MAX_PSF, "psf", why="plausibility bound on ground snow loads"),
-    "ce": Bound(0.7, 1.2, why="the extremes of the exposure factor table (ASCE 7-16)"),
-    "ct": Bound(0.85, 1.3, why="the extremes of the thermal factor table (ASCE 7-16)"),
+    "ce": Bound(0.7, 1.2, why="the extremes of the standard's exposure factor table"),
+    "ct": Bound(0.85, 1.3, why="the extremes of the standard's thermal factor table"),
     "r_value": Bound(0.0, 200.0, "ft2.h.F/Btu", why="far above any insulated roof"),
     "eave_to_ridge": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
     "overhang.length": Bound(0.0, 50.0, "ft", lo_open=True, why="a deep canopy; omit [overhang] when there is none"),

@@ -152,7 +152,7 @@ class VerificationCase:
     note : str
         The hand calculation or reading, for the manual.
     group : str
-        The provision the manual files the case under (``Table 7.3-1``).
+        The provision the manual files the case under (a table, an equation).
     """
 
     id: str
