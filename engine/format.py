@@ -117,10 +117,10 @@ def number(
     return text
 
 
-def _pair_of(value: Mapping) -> tuple[str, str] | None:
-    for first, second in PAIRS:
-        if first in value:
-            return first, second
+def _pair_of(value: Mapping, first: str | None = None) -> tuple[str, str] | None:
+    for a, b in PAIRS:
+        if a in value:
+            return (b, a) if first == b else (a, b)
     return None
 
 
@@ -131,6 +131,8 @@ def quantity_text(
     exact: bool = False,
     decimals: Mapping[str, int] | None = None,
     missing: str = MISSING,
+    missing_number: str | None = None,
+    first: str | None = None,
 ) -> str:
     """A two-unit quantity as ``x unit (y twin)``; the units are read from its keys.
 
@@ -146,21 +148,26 @@ def quantity_text(
     decimals : mapping, optional
         Decimals per unit overriding :data:`DECIMALS` (e.g. :data:`GROUND_DECIMALS`).
     missing : str
-        Text for a missing quantity, or for a missing number within it.
+        Text for a missing quantity (None or empty).
+    missing_number : str, optional
+        Text for a missing number within a quantity (default: ``missing``).
+    first : str, optional
+        The unit to show first (default: the contract's, ``psf``, ``ft``, ...).
     """
     if not value:
         return missing
-    units = _pair_of(value)
+    inner = missing if missing_number is None else missing_number
+    units = _pair_of(value, first)
     if units is None:  # not a unit pair: each entry as it is
         return ", ".join(
-            f"{k}: {number(v, None, missing=missing) if _finite(v) is not None else v}"
+            f"{k}: {number(v, None, missing=inner) if _finite(v) is not None else v}"
             for k, v in value.items()
         )
     table = {**DECIMALS, **(decimals or {})}
     shown = []
     for unit in units:
         digits = None if exact else table[unit]
-        shown.append(number(value.get(unit), digits, trim=trim, missing=missing))
+        shown.append(number(value.get(unit), digits, trim=trim, missing=inner))
     if units[1] not in value:  # a quantity given in one unit only
         return f"{shown[0]} {units[0]}"
     return f"{shown[0]} {units[0]} ({shown[1]} {units[1]})"

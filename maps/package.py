@@ -17,6 +17,7 @@ import json
 import os
 from pathlib import Path
 
+from neve.engine.format import is_quantity
 from neve.maps import assets, style
 from neve.maps.diagrams import write_case_diagrams
 from neve.maps.site_map import cautions_of, is_demo, summary_context, write_site_map
@@ -45,12 +46,8 @@ def _data_uri(path: Path) -> str:
 def _value_text(value) -> str:
     """Render a case value generically: loads, lengths, line loads, numbers, text."""
     if isinstance(value, dict):
-        if "psf" in value:
-            return style.load_text(value)
-        if "ft" in value:
-            return style.length_text(value)
-        if "plf" in value:
-            return f"{style.num(value.get('plf'), 1)} plf ({style.num(value.get('kN/m'), 2)} kN/m)"
+        if is_quantity(value):  # load, length, line load, density: the one formatter
+            return style.quantity_text(value)
         return ", ".join(f"{k}: {_value_text(v)}" for k, v in value.items())
     if isinstance(value, (list, tuple)):
         return "; ".join(_value_text(v) for v in value)

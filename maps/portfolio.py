@@ -336,3 +336,24 @@ def _legend_html(counts: Counter, n_total: int, n_drawn: int, notes: list[str]) 
         notes=notes,
         cautions=list(DEFAULT_CAUTIONS),
     )
+
+
+def screen_view(results):
+    """``neve screen`` results as :func:`write_portfolio_map` reads them.
+
+    ``lat``/``lon`` become the coordinates used (``site_lat``/``site_lon``); the
+    input's own ``lat``, ``lon`` and ``site_id`` columns are kept as ``input_*``;
+    sites without an id are named by their row in the site file (``row 1`` = the
+    first data row).
+    """
+    view = results.copy(deep=False)
+    for col in ("lat", "lon", "site_id"):
+        if col in view.columns:
+            view = view.rename(columns={col: f"input_{col}"})
+    view["lat"] = results["site_lat"]
+    view["lon"] = results["site_lon"]
+    if "site_id" in results.columns:
+        view["site_id"] = results["site_id"].astype(str)
+    else:  # row numbers as in the site file (1 = first data row)
+        view["site_id"] = [f"row {i + 1}" for i in range(len(results))]
+    return view

@@ -101,7 +101,7 @@ def summary_context(site_json: dict) -> dict:
         pg = n.get("pg")
         pg_text = style.load_text(pg) if isinstance(pg, dict) else style.num(pg, 2)
         dist = n.get("distance")
-        dist_text = style.length_text(dist) if isinstance(dist, dict) else style.num(dist, 0)
+        dist_text = style.elevation_text(dist) if isinstance(dist, dict) else style.num(dist, 0)
         neighbours.append(f"zone {n.get('zone_id')}: {pg_text} at {dist_text}")
     others = []
     for o in ground.get("other_layers") or []:
@@ -124,9 +124,9 @@ def summary_context(site_json: dict) -> dict:
         "zone": ", ".join(str(z) for z in zone_ids) or "none",
         "rule": ground.get("rule") or "",
         "flags": [str(f) for f in ground.get("flags") or []],
-        "elevation": style.length_text(ground.get("elevation")),
+        "elevation": style.elevation_text(ground.get("elevation")),
         "elevation_source": ground.get("elevation_source") or "none",
-        "distance": style.length_text(ground.get("distance_to_other"))
+        "distance": style.elevation_text(ground.get("distance_to_other"))
         if ground.get("distance_to_other")
         else "",
         "neighbours": neighbours,

@@ -13,6 +13,8 @@ import functools
 import math
 from html import escape
 
+from neve.engine import format as fmt
+
 #: value scale, low to high (our own)
 VALUE_COLOURS = (
     "#eef7f6",
@@ -72,30 +74,31 @@ def esc(value: object) -> str:
 
 
 def num(x: object, digits: int = 1) -> str:
-    """A number for people: trailing zeros dropped; None/NaN -> an em dash."""
-    try:
-        v = float(x)  # type: ignore[arg-type]
-    except (TypeError, ValueError):
-        return "\u2014"
-    if not math.isfinite(v):
-        return "\u2014"
-    text = f"{v:.{digits}f}"
-    return text.rstrip("0").rstrip(".") if "." in text else text
+    """A number for people: trailing zeros dropped; None/NaN -> an em dash.
+
+    The one formatter of :mod:`neve.engine.format`, as maps and reports show it.
+    """
+    return fmt.number(x, digits, trim=True, missing="\u2014")
 
 
 def load_text(load: dict | None, first: str = "psf") -> str:
     """``{"psf": x, "kPa": y}`` -> ``"x psf (y kPa)"``; None -> ``"none"``."""
-    if not load:
-        return "none"
-    other = "kPa" if first == "psf" else "psf"
-    return f"{num(load.get(first), 1 if first == 'psf' else 2)} {first} ({num(load.get(other), 2 if other == 'kPa' else 1)} {other})"
+    return fmt.load_text(load, trim=True, missing="none", missing_number="\u2014", first=first)
 
 
 def length_text(length: dict | None) -> str:
     """``{"ft": x, "m": y}`` -> ``"x ft (y m)"``; None -> ``"none"``."""
-    if not length:
-        return "none"
-    return f"{num(length.get('ft'), 1)} ft ({num(length.get('m'), 2)} m)"
+    return fmt.length_text(length, trim=True, missing="none", missing_number="\u2014")
+
+
+def elevation_text(length: dict | None) -> str:
+    """An elevation or a distance on the ground: ``"1350 ft (411.5 m)"``; None -> ``"none"``."""
+    return fmt.elevation_text(length, trim=True, missing="none", missing_number="\u2014")
+
+
+def quantity_text(value: dict | None) -> str:
+    """Any two-unit quantity of the JSON contract (load, length, line load, density)."""
+    return fmt.quantity_text(value, trim=True, missing="none", missing_number="\u2014")
 
 
 def _nice_step(span: float, n: int) -> float:

@@ -177,33 +177,23 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
         click.echo(f"map: {map_path}")
 
 
-def map_frame(results):
-    """The results as the portfolio map reads them: ``lat``/``lon`` are the coordinates used."""
-    view = results.copy(deep=False)
-    for col in ("lat", "lon", "site_id"):
-        if col in view.columns:
-            view = view.rename(columns={col: f"input_{col}"})
-    view["lat"] = results["site_lat"]
-    view["lon"] = results["site_lon"]
-    if "site_id" in results.columns:
-        view["site_id"] = results["site_id"].astype(str)
-    else:  # row numbers as in the site file (1 = first data row)
-        view["site_id"] = [f"row {i + 1}" for i in range(len(results))]
-    return view
-
-
 def _write_map(
     run, map_path: str, overwrite: bool, *, tiles: str = "none", self_contained: bool = False
 ) -> None:
-    try:
-        from neve.maps.portfolio import write_portfolio_map
-    except ImportError as exc:  # pragma: no cover - until the maps package lands
-        raise InputError("map", f"the portfolio map is not available ({exc})", "no --map") from None
+    from neve.maps.portfolio import screen_view, write_portfolio_map
+
     write_portfolio_map(
-        map_frame(run.results),
+        screen_view(run.results),
         map_path,
         demo=bool(run.summary.get("demo")),
         tiles=tiles,
         self_contained=self_contained,
         overwrite=overwrite,
     )
+
+
+def map_frame(results):
+    """The results as the portfolio map reads them (:func:`neve.maps.portfolio.screen_view`)."""
+    from neve.maps.portfolio import screen_view
+
+    return screen_view(results)

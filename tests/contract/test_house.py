@@ -517,3 +517,91 @@ def test_a_deliberate_library_error_reaches_the_user_as_a_message(tmp_path, monk
     assert "neve: error: self-contained map still references remote assets" in res.stderr
     assert res.exception is None or isinstance(res.exception, SystemExit)
     assert not out.exists()  # nothing half written
+
+
+# --- one formatter -----------------------------------------------------------------
+
+_PAIR = r"(-?[0-9.]+) (psf|ft|plf|pcf) \((-?[0-9.]+) (kPa|m|kN/m|kN/m3)\)"
+
+
+def _numbers(text: str) -> tuple[float, str, float, str]:
+    import re
+
+    m = re.fullmatch(_PAIR, text.strip())
+    assert m, text
+    return float(m.group(1)), m.group(2), float(m.group(3)), m.group(4)
+
+
+@pytest.mark.parametrize("module", ["neve.engine.format", "neve.engine.roof_text"])
+def test_formatter_examples(module):
+    """The formatter's docstring examples run (regression guard of its printed forms)."""
+    import doctest
+    import importlib
+
+    mod = importlib.import_module(module)
+    result = doctest.testmod(mod, optionflags=doctest.ELLIPSIS)
+    assert result.failed == 0
+    if module == "neve.engine.format":
+        assert result.attempted > 5
+
+
+@pytest.mark.parametrize(
+    ("x", "decimals", "trim", "expected"),
+    [
+        (35.0, 1, False, "35.0"),
+        (35.0, 1, True, "35"),
+        (1.67585, 2, False, "1.68"),
+        (-0.004, 2, False, "0.00"),  # no "-0.00"
+        (float("nan"), 1, False, "n/a"),
+        (float("inf"), 1, False, "n/a"),
+        (None, 1, False, "n/a"),
+        ("abc", 1, False, "n/a"),
+        (35.0875, None, False, "35.0875"),
+        (294.4, 0, False, "294"),
+    ],
+)
+def test_number(x, decimals, trim, expected):
+    """Rounding half to even of Python's format, as printed (regression guard)."""
+    from neve.engine.format import number
+
+    assert number(x, decimals, trim=trim) == expected
+
+
+def test_cli_text_and_package_show_the_same_numbers(tmp_path):
+    """Every quantity of a roof result reads the same in ``neve roof`` text and the package.
+
+    The package drops trailing zeros; the numbers are the same (issue 9: "one formatter for
+    loads, lengths and slopes used by the CLI, maps and package alike"). Regression guard."""
+    from neve.engine.format import is_quantity
+    from neve.engine.roof import analyze_roof
+    from neve.engine.roof_text import case_values
+    from neve.maps.package import _value_text
+    from neve.roof_file import read_roof
+
+    roof = read_roof(ROOT / "examples" / "warehouse.toml")
+    data = analyze_roof(35.0, roof).to_json()
+    checked = 0
+    for case in data["cases"]:
+        lines = dict(line.split(" = ", 1) for line in case_values(case) if " = " in line)
+        for key, value in case.items():
+            if key in ("steps",) or not is_quantity(value):
+                continue
+            cli = _numbers(lines[key])
+            doc = _numbers(_value_text(value))
+            assert cli == doc, (case["case"], key, lines[key], _value_text(value))
+            checked += 1
+    assert checked > 20  # loads, lengths, line loads and densities were all compared
+
+
+def test_site_text_and_site_map_show_the_same_elevation():
+    """The ground elevation reads the same in ``neve site`` text and on the site map."""
+    import re
+
+    from neve.geo.site.one import resolve_site
+    from neve.maps.site_map import summary_context
+
+    result = resolve_site(47.52, -140.05, elevation="450m")  # the invented demo island
+    text = result.to_text()
+    line = re.search(r"Elevation: +(.+?)  source", text).group(1)
+    shown = summary_context(result.to_json())["elevation"]
+    assert _numbers(line) == _numbers(shown), (line, shown)
