@@ -283,7 +283,7 @@ def _run_json(*args: str) -> dict:
 
 
 #: objects whose keys are data (inputs of a verification case, counts per name), not contract
-_OPEN = {"inputs", "expected", "computed", "timings_s"}
+_OPEN = {"inputs", "expected", "computed", "tolerance", "timings_s"}
 
 
 def _keys(obj, out: set[str]) -> set[str]:
