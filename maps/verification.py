@@ -60,6 +60,11 @@ def verification_report(standard=None) -> dict:
     return report
 
 
+def verify(standard=None) -> dict:
+    """``neve verify`` from Python: the report of :func:`verification_report`."""
+    return verification_report(standard)
+
+
 def _show(value) -> str:
     """A value for people: numbers to 6 significant digits, mappings as ``key: value``."""
     if isinstance(value, bool):
@@ -171,5 +176,6 @@ __all__ = [
     "verification_json",
     "verification_report",
     "verification_text",
+    "verify",
     "write_verification",
 ]

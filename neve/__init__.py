@@ -9,6 +9,8 @@ The public API carries the CLI's names; heavy parts load only when used, so
     neve.resolve_site(47.52, -140.05, dem="demo")      # neve site
     neve.screen("sites.csv", roof="profiles.toml")     # neve screen
     neve.check_layer("zones.gpkg")                     # neve layer check
+    neve.verify()                                      # neve verify
+    neve.get_standard("ASCE 7-16")                     # the standards registry
 
 The parts: :mod:`neve.engine` (the standards: pure computation),
 :mod:`neve.geo` (zone layers, one site, screening), :mod:`neve.maps` (maps and
@@ -34,6 +36,9 @@ _LAZY = {
     "screen": "neve.geo.screen.run",
     "load_layer": "neve.geo.layers.model",
     "check_layer": "neve.geo.layers.check",
+    "verify": "neve.maps.verification",
+    "get_standard": "neve.engine.standards",
+    "standards": "neve.engine.standards",
 }
 
 __all__ = [

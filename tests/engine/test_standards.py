@@ -411,3 +411,13 @@ def test_library_calls_take_the_standard_too():
         screen(frame, roof={"shape": "flat"}, standard="nope")
     res = screen(frame, roof={"shape": "flat"}, standard="ASCE 7-16")
     assert res["pf_psf"].iloc[0] == pytest.approx(0.7 * res["pg_psf"].iloc[0], abs=1e-6)
+
+
+def test_public_api_names():
+    import neve
+
+    assert neve.get_standard("ASCE 7-16") is get_standard()
+    assert [s.id for s in neve.standards()] == available()
+    report = neve.verify("asce7-16")
+    assert report["summary"]["ok"] and report["summary"]["total"] == len(get_standard().cases())
+    assert {"verify", "get_standard", "standards"} <= set(dir(neve))
