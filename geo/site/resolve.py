@@ -43,7 +43,7 @@ import pandas as pd
 from neve.engine.errors import InputError
 from neve.engine.units import M_PER_FT
 from neve.geo.layers import rules as R
-from neve.geo.layers.model import as_layers
+from neve.geo.layers.model import as_layers, dem_argument
 from neve.geo.layers.vector import NONE, Hits, layer_hits
 from neve.geo.site.coords import suspect_mask, valid_mask
 from neve.geo.site.elevation import (
@@ -421,7 +421,8 @@ def resolve(
     elevation_ft : array_like, optional
         Given site elevations [ft]; NaN where not given.
     dem : str or pathlib.Path, optional
-        DEM sampled where needed (and compared with given elevations).
+        DEM sampled where needed (and compared with given elevations);
+        ``"demo"`` is the embedded synthetic DEM.
     dem_units : str, optional
         Vertical unit of a DEM that states none; never overrides the unit a
         DEM states (a contradiction is an :class:`InputError`); refused
@@ -453,6 +454,7 @@ def resolve(
     n = lat.size
     if lon.size != n:
         raise InputError("lon", f"{lon.size} longitudes for {n} latitudes", "arrays of one length")
+    dem = dem_argument(dem)  # "demo": the embedded synthetic DEM, as for `neve site`
     if dem is None and dem_units is not None:
         check_dem_options(dem, dem_units)  # refused: a unit with no DEM
     layers = as_layers(layers)

@@ -326,3 +326,12 @@ def test_every_flag_combination_prints_sorted():
     names = [f.name for f in FLAG_TABLE if f.kind == "site"]
     for pair in itertools.combinations(names, 2):
         assert flags_text(np.array([bits_of(pair)], dtype=np.uint64))[0] == ";".join(sorted(pair))
+
+
+def test_demo_dem_by_name():
+    from neve.geo.layers.model import demo_dem_path
+
+    at = ([47.52, 47.4822], [-140.05, -140.0269])  # the README's demo sites (invented data)
+    named = resolve(*at, dem="demo")
+    assert named == resolve(*at, dem=demo_dem_path())
+    assert (named.elevation_source == R.FROM_DEM).all() and (named.flags & BIT["demo_data"]).all()
