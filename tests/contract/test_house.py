@@ -2,7 +2,7 @@
 
 Source of every check: issue 9 ("no import circle and no library -> CLI import
 remains"; "every option defined once and shared"; "one exception root") and
-DEVELOPERS.md, "Layout and dependency direction" (engine imports nothing of the
+DEVELOPERS.md, "The house" (engine imports nothing of the
 others, reads no file, imports no GIS library). These are structural
 regression guards: they read the source with :mod:`ast`, nothing is imported
 to build the graph, so a module that fails to import still shows its edges.
