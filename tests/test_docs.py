@@ -392,6 +392,128 @@ def test_environment_variables_are_in_the_contract():
     _missing(found, "environment variable(s)", "Environment variables")
 
 
+# --------------------------------------------------------------------------- the house picture
+
+#: folder -> import name (pyproject.toml, [tool.setuptools] package-dir)
+_PACKAGE_DIRS = {"neve": "neve", "engine": "neve.engine", "geo": "neve.geo", "maps": "neve.maps"}
+
+#: the rooms of DEVELOPERS.md's picture, and what each may import (besides itself)
+_MAY_IMPORT = {
+    "api": {"*"},  # neve/__init__.py, neve/__main__.py: the public API and `python -m neve`
+    "cli": {"*"},
+    "geo.screen": {
+        "geo",
+        "geo.site",
+        "geo.layers",
+        "engine",
+        "registry",
+        "safe_write",
+        "roof_file",
+    },
+    "geo.site": {"geo", "geo.layers", "engine", "registry"},
+    "geo.layers": {"geo", "engine", "registry"},
+    "geo": {"engine"},
+    "maps": {"engine", "registry", "safe_write"},
+    "engine": {"registry"},
+    "registry": {"engine"},
+    "standard": {"engine", "registry"},
+    "safe_write": {"engine"},
+    "roof_file": {"engine"},
+}
+#: imports against the picture that are known and reported, each with its reason
+_KNOWN_EXCEPTIONS = {
+    # the Roof description still validates the ASCE 7-16 choice words of thermal,
+    # terrain and exposure itself, until those roof options move to the standard
+    ("neve.engine.roof_spec", "neve.engine.asce7_16.factors"),
+}
+
+
+def _module_names() -> dict[str, Path]:
+    out = {}
+    for folder, name in _PACKAGE_DIRS.items():
+        for path in (ROOT / folder).rglob("*.py"):
+            rel = path.relative_to(ROOT / folder).with_suffix("").parts
+            parts = [name, *rel]
+            if parts[-1] == "__init__":
+                parts = parts[:-1]
+            out[".".join(parts)] = path
+    # neve/ holds only the root and the CLI: its engine/geo/maps come from their own folders
+    return {m: p for m, p in out.items() if m.startswith("neve")}
+
+
+def _room(module: str) -> str:
+    parts = module.split(".")
+    if module in ("neve", "neve.__main__"):
+        return "api"
+    second = parts[1]
+    if second in ("cli", "safe_write", "roof_file", "maps"):
+        return second
+    if second == "geo":
+        return "geo" if len(parts) == 2 else f"geo.{parts[2]}"
+    if second == "engine":
+        if len(parts) > 2 and parts[2] == "standards":
+            return "registry"
+        is_package = len(parts) > 2 and (ROOT / "engine" / parts[2]).is_dir()
+        return "standard" if is_package else "engine"
+    raise AssertionError(f"{module} is in no room of DEVELOPERS.md's picture")
+
+
+def _imports(modules: dict[str, Path]):
+    """(importer, imported module) for every neve import, function-level ones included."""
+    for module, path in modules.items():
+        package = module if path.name == "__init__.py" else module.rsplit(".", 1)[0]
+        for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):
+            if isinstance(node, ast.Import):
+                targets = [a.name for a in node.names]
+            elif isinstance(node, ast.ImportFrom):
+                base = node.module or ""
+                if node.level:
+                    up = package.split(".")[: len(package.split(".")) - node.level + 1]
+                    base = ".".join([*up, base] if base else up)
+                targets = [
+                    f"{base}.{a.name}" if f"{base}.{a.name}" in modules else base
+                    for a in node.names
+                ]
+            else:
+                continue
+            for target in targets:
+                if target.split(".")[0] == "neve":
+                    while target not in modules and "." in target:
+                        target = target.rsplit(".", 1)[0]
+                    yield module, target
+
+
+def test_the_rooms_import_as_developers_md_draws_them():
+    modules = _module_names()
+    edges = set(_imports(modules))
+    assert ("neve.geo.site.resolve", "neve.geo.layers.vector") in edges  # the walk sees imports
+    wrong = []
+    for importer, imported in sorted(edges):
+        a, b = _room(importer), _room(imported)
+        allowed = _MAY_IMPORT[a]
+        if a == b or "*" in allowed or b in allowed or (importer, imported) in _KNOWN_EXCEPTIONS:
+            continue
+        wrong.append(f"{importer} ({a}) imports {imported} ({b})")
+    assert not wrong, "imports against DEVELOPERS.md, 'The house':\n" + "\n".join(wrong)
+
+
+def test_the_known_exceptions_are_still_there():
+    # an exception that has been fixed is removed from the list (and from DEVELOPERS.md)
+    edges = set(_imports(_module_names()))
+    assert _KNOWN_EXCEPTIONS <= edges, _KNOWN_EXCEPTIONS - edges
+
+
+def test_developers_md_names_every_room():
+    text = (ROOT / "DEVELOPERS.md").read_text(encoding="utf-8")
+    picture = text[text.index("## The house") :]
+    for room in ("neve.cli", "neve.geo.screen", "neve.geo.site", "neve.geo.layers", "neve.maps",
+                 "neve.engine", "neve.engine.standards", "neve.engine.asce7_16",
+                 "neve.safe_write", "neve.roof_file"):  # fmt: skip
+        assert room in picture, room
+    for std in sorted({m.split(".")[2] for m in _module_names() if _room(m) == "standard"}):
+        assert f"neve.engine.{std}" in picture, f"the standard neve.engine.{std} is not drawn"
+
+
 # --------------------------------------------------------------------------- the docs themselves
 
 #: spelled in pieces so that this file does not match itself
