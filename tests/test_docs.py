@@ -497,6 +497,17 @@ def test_the_rooms_import_as_developers_md_draws_them():
     assert not wrong, "imports against DEVELOPERS.md, 'The house':\n" + "\n".join(wrong)
 
 
+def test_nothing_imports_data_recipes():
+    found = []
+    for module, path in _module_names().items():
+        for node in ast.walk(ast.parse(path.read_text(encoding="utf-8"))):
+            names = [a.name for a in node.names] if isinstance(node, ast.Import) else []
+            if isinstance(node, ast.ImportFrom):
+                names = [node.module or ""]
+            found += [f"{module} imports {n}" for n in names if n.split(".")[0] == "data_recipes"]
+    assert not found, found
+
+
 def test_the_known_exceptions_are_still_there():
     # an exception that has been fixed is removed from the list (and from DEVELOPERS.md)
     edges = set(_imports(_module_names()))
