@@ -585,3 +585,39 @@ def test_readme_python_examples_use_the_public_api():
     assert used, "no neve.<name> in the README's Python examples"
     for name in sorted(used):
         assert hasattr(neve, name), f"README uses neve.{name}, which neve does not have"
+
+
+def _resolves(dotted: str) -> bool:
+    import importlib
+
+    parts = dotted.split(".")
+    for i in range(len(parts), 0, -1):
+        try:
+            obj = importlib.import_module(".".join(parts[:i]))
+        except ImportError:
+            continue
+        for attr in parts[i:]:
+            if not hasattr(obj, attr):
+                return False
+            obj = getattr(obj, attr)
+        return True
+    return False
+
+
+@pytest.mark.parametrize("doc", ["README.md", "DEVELOPERS.md", "docs/contract.md"])
+def test_every_neve_name_the_docs_give_exists(doc):
+    text = (ROOT / doc).read_text(encoding="utf-8")
+    names = set(re.findall(r"`(neve(?:\.[A-Za-z_]\w*)+)", text))
+    assert names or doc == "docs/contract.md"
+    missing = sorted(n for n in names if not _resolves(n))
+    assert not missing, f"{doc} names what neve does not have: {', '.join(missing)}"
+
+
+@pytest.mark.parametrize("doc", ["README.md", "docs/contract.md"])
+def test_every_repository_path_the_docs_give_exists(doc):
+    text = (ROOT / doc).read_text(encoding="utf-8")
+    paths = re.findall(
+        r"`((?:engine|geo|maps|neve|tests|data_recipes|docs|examples)/[\w/.-]+)`", text
+    )
+    missing = sorted({p for p in paths if not (ROOT / p).exists()})
+    assert not missing, f"{doc} names files that do not exist: {', '.join(missing)}"
