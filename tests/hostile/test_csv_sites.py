@@ -98,6 +98,8 @@ def expected_reading(sf: SiteFile) -> list[dict]:
             want["error"] = True  # an odd quote on a line of its own
         if rec.malformed or len(rec.fields) > n_cols or any(map(has_surrogate, rec.fields)):
             want["error"] = True
+        if rec.malformed and row.lines > 1:
+            want["intact"] = []  # one line of a broken multi-line row: its cells are a guess
         want["clean"] = row.kind in CLEAN_KINDS and not merged
         out.append(want)
     return out

@@ -199,3 +199,21 @@ def test_each_payload_as_site_id_in_the_portfolio_map(tmp_path, payload):
     assert not warning_problems(result, "screen --map")
     assert not page_defects(page)
     assert shows_token(page, payload)
+
+
+@pytest.mark.issue8("1")
+@pytest.mark.parametrize("payload", list(PAYLOADS), ids=lambda p: p[:14])
+def test_each_payload_as_a_gazetteer_address(tmp_path, payload):
+    # issue 8 section 1: an address found in a gazetteer reaches the site map as text
+    import csv
+
+    with (tmp_path / "g.csv").open("w", newline="", encoding="utf-8") as fh:
+        csv.writer(fh).writerows([["address", "lat", "lon"], [payload, "47.52", "-140.05"]])
+    page = tmp_path / "site.html"
+    result = run(["site", "--address", payload, "--gazetteer", tmp_path / "g.csv",
+                  "--elevation", "100m", "--map", page, "--format", "json"])  # fmt: skip
+    assert_exit(result, (0,), "site --address")
+    assert not warning_problems(result, "site --address")
+    assert strict_json(result.stdout)["site"]["address"] == payload
+    assert not page_defects(page)
+    assert shows_token(page, payload)

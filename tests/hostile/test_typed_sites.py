@@ -209,7 +209,8 @@ def parquet_frames(draw):
 @examples(15)
 @given(spec=parquet_frames())
 def test_parquet_typed_columns(spec):
-    # issue 8 section 2: typed coordinate columns, any text (NUL, control characters) kept
+    # issue 8 section 2: typed coordinate columns, any text (NUL, control characters) kept;
+    # XLSX and GPKG outputs of such text are written whole, with every row
     frame, bad = spec
     rows = [
         {"site_id": s, "note": t, "_error": b}
@@ -226,8 +227,18 @@ def test_parquet_typed_columns(spec):
         problems = []
         problems += warning_problems(result, "screen parquet") + warning_problems(xlsx, "xlsx")
         problems += _xlsx_count(folder / "r.xlsx", len(frame))
+        gpkg = run(["screen", folder / "sites.parquet", "-o", folder / "r.gpkg", "--quiet"])
+        assert_exit(gpkg, (0,), "screen parquet -> gpkg")
+        problems += warning_problems(gpkg, "gpkg") + _gpkg_count(folder / "r.gpkg", len(frame))
     problems += _typed_problems(["site_id", "note", "lat", "lon"], rows, cols)
     assert not problems, "\n".join(problems)
+
+
+def _gpkg_count(path: Path, n: int) -> list[str]:
+    import pyogrio
+
+    got = len(pyogrio.read_dataframe(path, read_geometry=False))
+    return [] if got == n else [f"GPKG output: {got} rows for {n}"]
 
 
 def _xlsx_count(path: Path, n: int) -> list[str]:
