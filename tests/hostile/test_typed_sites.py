@@ -46,57 +46,54 @@ def _xlsx_text(s: str) -> str:
     return ILLEGAL_CHARACTERS_RE.sub("", s)
 
 
-def _coord_cell(ok):
-    """(value, must_be_error) for an XLSX coordinate cell."""
+def _coord_good(ok):
+    return st.one_of(ok, ok.map(lambda v: f"{v:.6f}"))
+
+
+def _coord_bad():
+    """A coordinate cell that is no coordinate."""
     return st.one_of(
-        ok.map(lambda v: (v, False)),
-        ok.map(lambda v: (f"{v:.6f}", False)),
-        st.booleans().map(lambda v: (v, True)),
-        WHEN.map(lambda v: (v, True)),
-        DAY.map(lambda v: (v, True)),
-        st.none().map(lambda v: (v, True)),
-        marked_text(2).map(lambda v: (_xlsx_text(v), True)),
-        st.floats(1000.0, 1e9).map(lambda v: (v, True)),
+        st.booleans(),
+        WHEN,
+        DAY,
+        st.none(),
+        marked_text(2).map(_xlsx_text),
+        st.floats(1000.0, 1e9),
     )
 
 
-def _elev_cell(unit_in_name: bool):
+def _elev_good(unit_in_name: bool):
     good = st.floats(0.0, 3000.0)
     if unit_in_name:
-        ok = st.one_of(good.map(lambda v: (v, False)), st.none().map(lambda v: (v, False)))
-    else:
-        ok = st.one_of(
-            good.map(lambda v: (f"{v:.1f}m", False)),
-            st.none().map(lambda v: (v, False)),
-            good.map(lambda v: (v, True)),  # a bare number has no unit
-        )
-    return st.one_of(
-        ok,
-        st.booleans().map(lambda v: (v, True)),
-        WHEN.map(lambda v: (v, True)),
-        DAY.map(lambda v: (v, True)),
-    )
+        return st.one_of(good, st.none())
+    return st.one_of(good.map(lambda v: f"{v:.1f}m"), st.none())
+
+
+def _elev_bad(unit_in_name: bool):
+    typed = st.one_of(st.booleans(), WHEN, DAY)
+    if unit_in_name:
+        return typed
+    return st.one_of(typed, st.floats(0.0, 3000.0))  # a bare number has no unit
 
 
 @st.composite
 def xlsx_rows(draw):
+    """Rows with at most one bad cell each, so a bad cell that is read as good shows."""
     elev_name = draw(st.sampled_from(("elevation", "elevation_m")))
+    in_name = elev_name == "elevation_m"
     n = draw(st.integers(1, 6))
     rows = []
     for _ in range(n):
-        lat, lat_bad = draw(_coord_cell(LAT_OK))
-        lon, lon_bad = draw(_coord_cell(LON_OK))
-        elev, elev_bad = draw(_elev_cell(elev_name == "elevation_m"))
-        rows.append(
-            {
-                "site_id": _xlsx_text(draw(marked_text())) or "S",
-                "note": _xlsx_text(draw(hostile_text())),
-                "lat": lat,
-                "lon": lon,
-                elev_name: elev,
-                "_error": lat_bad or lon_bad or elev_bad,
-            }
-        )
+        bad = draw(st.sampled_from((None, "lat", "lon", elev_name)))
+        row = {
+            "site_id": _xlsx_text(draw(marked_text())) or "S",
+            "note": _xlsx_text(draw(hostile_text())),
+            "lat": draw(_coord_bad() if bad == "lat" else _coord_good(LAT_OK)),
+            "lon": draw(_coord_bad() if bad == "lon" else _coord_good(LON_OK)),
+            elev_name: draw(_elev_bad(in_name) if bad == elev_name else _elev_good(in_name)),
+            "_error": bad is not None,
+        }
+        rows.append(row)
     return elev_name, rows
 
 
