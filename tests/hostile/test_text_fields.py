@@ -153,10 +153,11 @@ def _pdf_problems(pdf: Path) -> list[str]:
 
 @pytest.mark.issue8("1")
 @examples(1)  # a package takes several seconds (PDF, static map, diagrams)
-@example(  # every payload of the issue at once
-    name="".join(PAYLOADS),
-    project="".join(PAYLOADS),
-    element_names=[p + " e" for p in list(PAYLOADS)[:3]],
+@example(  # every payload of the issue at once, with control characters and code points
+    # no font has (they once printed matplotlib's glyph warnings on stderr)
+    name="".join(PAYLOADS) + "\x13\x85\U00048e04",
+    project="".join(PAYLOADS) + "\x04\u2028",
+    element_names=[p + " e\x13\U00046814" for p in list(PAYLOADS)[:3]],
 )
 @given(
     name=arg_text(marked_text()),
