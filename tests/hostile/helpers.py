@@ -440,11 +440,3 @@ def number_defects(columns: dict[str, list], statuses: list) -> list[str]:
                 if is_missing(v) or not (0.0 <= v <= PG_MAX_PSF):
                     out.append(f"row {i}: status {s!r} with pg_psf {v!r}")
     return out
-
-
-# --------------------------------------------------------------------------- files
-
-
-def write_bytes(path: Path, data: bytes) -> Path:
-    path.write_bytes(data)
-    return path
