@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import functools
 import math
+import warnings
 from html import escape
 
 from neve.engine import format as fmt
@@ -207,7 +208,10 @@ def plain_figure_text(func):
     def wrapper(*args, **kwargs):
         import matplotlib
 
-        with matplotlib.rc_context({"text.parse_math": False}):
+        with matplotlib.rc_context({"text.parse_math": False}), warnings.catch_warnings():
+            # a name may hold characters no font has (control characters, rare
+            # code points): drawn as an empty box, not a warning on the terminal
+            warnings.filterwarnings("ignore", message=r"Glyph \d+ .*missing from font")
             return func(*args, **kwargs)
 
     return wrapper

@@ -163,13 +163,11 @@ def area_of_use_problems(bounds: np.ndarray, crs, ids) -> list[dict]:
 
 
 def _check_vector(path: Path, meta: dict, problems: list[dict]) -> int:
-    import geopandas as gpd
     import shapely
 
-    try:
-        gdf = gpd.read_file(path, engine="pyogrio")
-    except Exception as exc:
-        raise LayerError(f"layer {str(path)!r} cannot be read as a vector file ({exc})") from None
+    from neve.geo.layers.model import read_vector
+
+    gdf = read_vector(path, require_crs=False)  # the same reader (and warnings) as look-ups
     if len(gdf) == 0:
         problems.append(_problem("empty_layer", "the layer has no zones"))
         return 0

@@ -48,19 +48,25 @@ def file_sha256(path: str | Path) -> str:
     return h.hexdigest()
 
 
-def read_vector(path: str | Path):
-    """Read a vector layer file into a GeoDataFrame (LayerError when unreadable)."""
+def read_vector(path: str | Path, *, require_crs: bool = True):
+    """Read a vector layer file into a GeoDataFrame (LayerError when unreadable).
+
+    ``require_crs=False`` (``neve layer check``) returns a frame without a CRS
+    so that the check can report it among the other problems.
+    """
     import geopandas as gpd
 
     try:
         with warnings.catch_warnings():
             # geopandas warns when a column of JSON text does not parse; the
             # table column is parsed, and its defects reported, by neve.geo.layers.rules
-            warnings.simplefilter("ignore", UserWarning)
+            warnings.filterwarnings(
+                "ignore", message="Could not parse column", category=UserWarning
+            )
             gdf = gpd.read_file(path, engine="pyogrio")
     except Exception as exc:  # pyogrio raises several types for unreadable data
         raise LayerError(f"layer {str(path)!r} cannot be read as a vector file ({exc})") from None
-    if gdf.crs is None:
+    if gdf.crs is None and require_crs:
         raise LayerError(
             f"layer {str(path)!r} has no coordinate reference system; "
             "accepted: a file that declares its CRS (e.g. EPSG:4326)"

@@ -196,6 +196,16 @@ def parse_elevation_cells(series: pd.Series, unit: str | None, name: str):
             with np.errstate(invalid="ignore"):
                 contradicts = has_unit & ~np.isnan(factor) & (factor != LENGTH_UNITS[unit])
             factor = np.where(has_unit, factor, LENGTH_UNITS[unit])
+            clash = contradicts & ~np.isnan(number)
+            if clash.any():  # issue 8: a cell contradicting its column's unit refuses the file
+                i = int(np.flatnonzero(clash)[0])
+                raise InputError(
+                    name,
+                    f"record {i + 1} says {text.iloc[i]!r}, which contradicts the column's "
+                    f"unit ({unit}; {int(clash.sum())} such cell(s))",
+                    f"bare numbers in a column named elevation_{unit}, or a column named "
+                    "'elevation' with the unit in each cell",
+                )
         out = number * factor
         bare = ~has_unit & ~np.isnan(number) & (unit is None)
         unknown = has_unit & np.isnan(factor) & ~np.isnan(number)
@@ -203,10 +213,6 @@ def parse_elevation_cells(series: pd.Series, unit: str | None, name: str):
             (unparsed, "is not an elevation"),
             (bare, "is a bare number with no unit"),
             (unknown, "has a unit that is not a length"),
-            (
-                contradicts & ~np.isnan(number),
-                f"gives a unit that contradicts the column's ({unit})",
-            ),
         ):
             if mask.any():
                 err[mask] = [

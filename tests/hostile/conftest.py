@@ -9,6 +9,11 @@ example::
 
     NEVE_HYPOTHESIS_PROFILE=deep python -m pytest tests/hostile -q -p no:cacheprovider
 
+Derandomized means the same examples for the same test collection: hypothesis
+also draws constants from the project's loaded modules, so running one file
+alone may generate other examples than the whole suite does.  A failure
+prints its example and a ``@reproduce_failure`` line that replays it anywhere.
+
 The profiles are registered in :mod:`tests.hostile.helpers` and never loaded
 globally: each test of this folder takes its settings from
 :func:`tests.hostile.helpers.examples`, so the other test folders keep their

@@ -246,12 +246,33 @@ def decoded(text: str) -> str:
     return text
 
 
+_SWITCHER = re.compile(r"\b(?:base_layers|overlays)\s*:\s*\{(.*?)\}", re.S)
+_JS_KEY = re.compile(r'"((?:[^"\\]|\\.)*)"\s*:')
+
+
+def switcher_names(raw: str) -> list[str]:
+    """The layer names of a Leaflet layer switcher, as the browser gets them.
+
+    Leaflet inserts these names with ``innerHTML``, so, once their JSON
+    escapes are resolved, they must hold no markup of their own.
+    """
+    names = []
+    for block in _SWITCHER.findall(raw):
+        for key in _JS_KEY.findall(block):
+            try:
+                names.append(json.loads(f'"{key}"'))
+            except ValueError:
+                names.append(key)
+    return names
+
+
 def page_defects(path: Path) -> list[str]:
     """What a page shows of an evaluated template or an element built from input text.
 
     A template payload must never turn into its evaluated form, in the raw page
     or once its escapes are resolved; an HTML payload must never stand in the
-    raw page (HTML or SVG) as markup.  A JSON file is data: it keeps the text
+    raw page (HTML or SVG) as markup, nor in a name of the layer switcher
+    (which Leaflet inserts as HTML) once its JSON escapes are resolved.  A JSON file is data: it keeps the text
     exactly, so only the template check applies to it.
     """
     raw = Path(path).read_text(encoding="utf-8", errors="replace")
@@ -264,10 +285,13 @@ def page_defects(path: Path) -> list[str]:
     if Path(path).suffix.lower() == ".json":  # data, not a page: text kept exactly
         return out
     low = raw.lower()
+    switcher = " ".join(switcher_names(raw)).lower()
     for payload, forms in HTML_PAYLOADS.items():
         for form in forms:
             if form in low:
                 out.append(f"{path.name}: {payload!r} stands as markup (found {form!r})")
+            if form in switcher:
+                out.append(f"{path.name}: {payload!r} is markup in the layer switcher")
     return out
 
 
@@ -416,11 +440,3 @@ def number_defects(columns: dict[str, list], statuses: list) -> list[str]:
                 if is_missing(v) or not (0.0 <= v <= PG_MAX_PSF):
                     out.append(f"row {i}: status {s!r} with pg_psf {v!r}")
     return out
-
-
-# --------------------------------------------------------------------------- files
-
-
-def write_bytes(path: Path, data: bytes) -> Path:
-    path.write_bytes(data)
-    return path

@@ -153,10 +153,11 @@ def _pdf_problems(pdf: Path) -> list[str]:
 
 @pytest.mark.issue8("1")
 @examples(1)  # a package takes several seconds (PDF, static map, diagrams)
-@example(  # every payload of the issue at once
-    name="".join(PAYLOADS),
-    project="".join(PAYLOADS),
-    element_names=[p + " e" for p in list(PAYLOADS)[:3]],
+@example(  # every payload of the issue at once, with control characters and code points
+    # no font has (they once printed matplotlib's glyph warnings on stderr)
+    name="".join(PAYLOADS) + "\x13\x85\U00048e04",
+    project="".join(PAYLOADS) + "\x04\u2028",
+    element_names=[p + " e\x13\U00046814" for p in list(PAYLOADS)[:3]],
 )
 @given(
     name=arg_text(marked_text()),
@@ -197,5 +198,23 @@ def test_each_payload_as_site_id_in_the_portfolio_map(tmp_path, payload):
                   "--quiet"])  # fmt: skip
     assert_exit(result, (0,), "screen --map")
     assert not warning_problems(result, "screen --map")
+    assert not page_defects(page)
+    assert shows_token(page, payload)
+
+
+@pytest.mark.issue8("1")
+@pytest.mark.parametrize("payload", list(PAYLOADS), ids=lambda p: p[:14])
+def test_each_payload_as_a_gazetteer_address(tmp_path, payload):
+    # issue 8 section 1: an address found in a gazetteer reaches the site map as text
+    import csv
+
+    with (tmp_path / "g.csv").open("w", newline="", encoding="utf-8") as fh:
+        csv.writer(fh).writerows([["address", "lat", "lon"], [payload, "47.52", "-140.05"]])
+    page = tmp_path / "site.html"
+    result = run(["site", "--address", payload, "--gazetteer", tmp_path / "g.csv",
+                  "--elevation", "100m", "--map", page, "--format", "json"])  # fmt: skip
+    assert_exit(result, (0,), "site --address")
+    assert not warning_problems(result, "site --address")
+    assert strict_json(result.stdout)["site"]["address"] == payload
     assert not page_defects(page)
     assert shows_token(page, payload)

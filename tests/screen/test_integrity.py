@@ -322,17 +322,33 @@ def test_two_columns_for_one_coordinate_exit_2(tmp_path, grid_layer, header, nam
     assert not (tmp_path / "o.csv").exists()
 
 
-def test_elevation_unit_contradicting_the_column_name_is_an_error_row(tmp_path, grid_layer):
+def test_elevation_unit_contradicting_the_column_name_is_refused(tmp_path, grid_layer):
+    # issue 8 section 3: an elevation_ft column whose cell says 450m is a contradiction,
+    # refused with exit 2 (naming the column, the record and the cell); nothing written
     text = (
         "site_id,lat,lon,elevation_ft\n"
+        f"ft,{SW[0]},{SW[1]},450ft\n"
         f"m,{SW[0]},{SW[1]},450m\n"  # the name says ft, the cell says m
+    )
+    sites = tmp_path / "s.csv"
+    sites.write_text(text, encoding="utf-8")
+    out = tmp_path / "o.csv"
+    r = CliRunner().invoke(main, ["screen", str(sites), "-o", str(out), "--layer", grid_layer,
+                                  "--quiet"])  # fmt: skip
+    assert r.exit_code == 2, r.output
+    assert "elevation_ft" in r.output and "'450m'" in r.output and "record 2" in r.output
+    assert not out.exists()
+
+
+def test_elevation_cells_agreeing_with_the_column_name_are_read(tmp_path, grid_layer):
+    text = (
+        "site_id,lat,lon,elevation_ft\n"
         f"ft,{SW[0]},{SW[1]},450ft\n"
         f"bare,{SW[0]},{SW[1]},450\n"
         f"feet,{SW[0]},{SW[1]},450 feet\n"
     )
     out, _, _ = _screen_csv(tmp_path, grid_layer, text)
     df = _text_back(out).set_index("site_id")
-    assert df.loc["m", "status"] == "error" and "contradicts" in df.loc["m", "message"]
     for ok in ("ft", "bare", "feet"):
         assert df.loc[ok, "status"] != "error", df.loc[ok, "message"]
         assert float(df.loc[ok, "site_elevation_ft"]) == pytest.approx(450.0)
