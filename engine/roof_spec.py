@@ -240,14 +240,13 @@ class Roof:
             kw["ct"] = _float(data["ct"], "ct")
         if "ce" in data:
             kw["ce"] = _float(data["ce"], "ce")
-        from neve.engine.asce7_16.factors import EXPOSURES, TERRAINS, THERMAL
+        from neve.engine.standards import get_standard
 
-        if "thermal" in data:
-            kw["thermal"] = choose_key("thermal", data["thermal"], THERMAL)
-        if "terrain" in data:
-            kw["terrain"] = choose_key("terrain", data["terrain"], TERRAINS)
-        if "exposure" in data:
-            kw["exposure"] = choose_key("exposure", data["exposure"], EXPOSURES)
+        # the choice words of the standard's own roof options, asked of the registry
+        words = {o.name: o.choices for o in get_standard().roof_options if o.kind == "choice"}
+        for key in ("thermal", "terrain", "exposure"):
+            if key in data:
+                kw[key] = choose_key(key, data[key], list(words[key]))
         if "risk" in data:
             kw["risk"] = choose_key("risk", str(data["risk"]).upper(), RISKS)
         kw["eave_to_ridge"] = _length(data, "eave_to_ridge", "", "eave_to_ridge")

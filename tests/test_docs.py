@@ -421,11 +421,7 @@ _MAY_IMPORT = {
     "roof_file": {"engine"},
 }
 #: imports against the picture that are known and reported, each with its reason
-_KNOWN_EXCEPTIONS = {
-    # the Roof description still validates the ASCE 7-16 choice words of thermal,
-    # terrain and exposure itself, until those roof options move to the standard
-    ("neve.engine.roof_spec", "neve.engine.asce7_16.factors"),
-}
+_KNOWN_EXCEPTIONS: set[tuple[str, str]] = set()  # none left
 
 
 def _module_names() -> dict[str, Path]:
