@@ -395,11 +395,16 @@ def test_environment_variables_are_in_the_contract():
 # --------------------------------------------------------------------------- the house picture
 
 #: folder -> import name (pyproject.toml, [tool.setuptools] package-dir)
-_PACKAGE_DIRS = {"neve": "neve", "engine": "neve.engine", "geo": "neve.geo", "maps": "neve.maps"}
+_PACKAGE_DIRS = {
+    "src/neve": "neve",
+    "engine": "neve.engine",
+    "geo": "neve.geo",
+    "maps": "neve.maps",
+}
 
 #: the rooms of DEVELOPERS.md's picture, and what each may import (besides itself)
 _MAY_IMPORT = {
-    "api": {"*"},  # neve/__init__.py, neve/__main__.py: the public API and `python -m neve`
+    "api": {"*"},  # src/neve/__init__.py, src/neve/__main__.py: the public API and `python -m neve`
     "cli": {"*"},
     "geo.screen": {
         "geo",
@@ -433,7 +438,7 @@ def _module_names() -> dict[str, Path]:
             if parts[-1] == "__init__":
                 parts = parts[:-1]
             out[".".join(parts)] = path
-    # neve/ holds only the root and the CLI: its engine/geo/maps come from their own folders
+    # src/neve/ holds only the root and the CLI: its engine/geo/maps come from their own folders
     return {m: p for m, p in out.items() if m.startswith("neve")}
 
 

@@ -508,7 +508,7 @@ def test_cli_refuses_every_existing_output_with_exit_2(tmp_path, what):
 # --- no other module writes a final output by itself --------------------------------------
 
 #: source folders of the ``neve`` import package (tests/ and data_recipes/ are not in it)
-SOURCES = ("neve", "engine", "geo", "maps")
+SOURCES = ("src/neve", "engine", "geo", "maps")
 #: functions of ``os`` / ``shutil`` that write or move a file onto their second argument
 MOVE_CALLS = {"replace", "rename", "renames", "link", "symlink", "move", "copy", "copy2",
               "copyfile", "copytree"}  # fmt: skip
@@ -630,7 +630,7 @@ def test_no_module_but_safe_write_writes_final_outputs_by_itself():
     for folder in SOURCES:
         for path in sorted((ROOT / folder).rglob("*.py")):
             rel = path.relative_to(ROOT).as_posix()
-            if rel == "neve/safe_write.py":
+            if rel == "src/neve/safe_write.py":
                 continue
             source = path.read_text(encoding="utf-8")
             for line, call, target in find_writes(source):

@@ -337,17 +337,17 @@ def _option_decls(path: Path) -> list[tuple[str, int]]:
 
 
 def test_every_option_is_defined_once():
-    """An option spelling appears in one ``click.option`` call in all of neve/cli."""
+    """An option spelling appears in one ``click.option`` call in all of src/neve/cli."""
     seen: dict[str, list[str]] = {}
-    for path in sorted((ROOT / "neve" / "cli").glob("*.py")):
+    for path in sorted((ROOT / "src" / "neve" / "cli").glob("*.py")):
         for spelling, line in _option_decls(path):
             seen.setdefault(spelling, []).append(f"{path.name}:{line}")
     assert {k: v for k, v in seen.items() if len(v) > 1} == {}
 
 
 def test_shared_options_live_in_options_py():
-    """Options used by more than one command are defined in neve/cli/options.py only."""
-    here = {s for s, _ in _option_decls(ROOT / "neve" / "cli" / "options.py")}
+    """Options used by more than one command are defined in src/neve/cli/options.py only."""
+    here = {s for s, _ in _option_decls(ROOT / "src" / "neve" / "cli" / "options.py")}
     for shared in ("--layer", "--dem", "--dem-units", "--elevation-source", "--format",
                    "--overwrite", "--tiles", "--self-contained", "--map", "--gazetteer",
                    "--geocoder-url", "--roof", "--shape", "--slope"):  # fmt: skip
