@@ -56,7 +56,7 @@ __all__ = [
 #: id of the standard used when none is named
 DEFAULT = "asce7-16"
 #: modules that register the standards shipped with neve (imported on first lookup)
-BUILTIN = ("neve.engine.asce7_16.standard",)
+BUILTIN = ("neve.engine.asce7_16.standard", "neve.engine.asce7_22.standard")
 
 _REGISTRY: dict[str, Standard] = {}
 _loaded = False
