@@ -99,6 +99,8 @@ FLAG_TABLE: tuple[Flag, ...] = (
     Flag("ice_dam_conditions_unstated", 34, "roof", "the ice-dam waiver conditions not stated"),
     Flag("members_unstated", 35, "roof", "prismatic members not stated"),
     Flag("upper_pf_assumed", 36, "roof", "the upper roof's pf taken as this roof's"),
+    Flag("w2_needed", 37, "roof", "cases that need W2 were not computed (ASCE 7-22)"),
+    Flag("thermal_upper_bound", 38, "roof", "Ct is Table 7.3-3's upper bound (ASCE 7-22)"),
     Flag("bad_coordinates", 56, "note", "coordinates missing or out of range: no look-up"),
     Flag("near_unknown", 57, "note", "a zone within the tolerance has no usable value"),
     Flag("near_valued", 58, "note", "a zone within the tolerance has another usable value"),

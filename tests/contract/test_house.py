@@ -421,6 +421,7 @@ EXPECTED_OPTIONS = {
             _FORMAT,
             ("pg", ("--pg",), "StringParamType", None, True, True),
             ("no_steps", ("--no-steps",), "BoolParamType", False, False, False),
+            ("w2", ("--w2",), "StringParamType", None, False, False),  # issue 10
         ]
     ),  # fmt: skip
     ("site",): sorted(

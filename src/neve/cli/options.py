@@ -61,6 +61,33 @@ def pg_option(f):
     )(f)
 
 
+def _w2(ctx, param, value):
+    """``--w2``: a plain number from 0 to 1 (the winter wind parameter W2), or None."""
+    if value is None:
+        return None
+    accepted = "a plain number from 0 to 1, e.g. 0.45 (the winter wind parameter W2)"
+    try:
+        w2 = float(str(value).strip())
+    except ValueError:
+        raise InputError("w2", f"{value!r} is not a number", accepted) from None
+    if not (0.0 <= w2 <= 1.0):  # also refuses nan
+        raise InputError("w2", f"{value!r} is outside 0 to 1", accepted)
+    return w2
+
+
+def w2_option(f):
+    """``--w2``: the site's winter wind parameter W2, a plain number in [0, 1] (ASCE 7-22)."""
+    return click.option(
+        "--w2",
+        "w2",
+        default=None,
+        callback=_w2,
+        metavar="FRACTION",
+        help="Winter wind parameter W2 of the site, a plain number from 0 to 1, e.g. 0.45 "
+        "(ASCE 7-22 drifts and unbalanced loads; without it those cases are not computed).",
+    )(f)
+
+
 # --- roof --------------------------------------------------------------------------
 
 
