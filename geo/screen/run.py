@@ -237,7 +237,8 @@ def run_screen(
     lap("resolve")
     res = _rows_result(site, idx, resolved, layer_list)
     roof_cols = _roof_columns(res, site, roofs, layer_list, roof_std) if roofs is not None else {}
-    out = {**_result_columns(res, site), **roof_cols}  # text only here, at the edge
+    record_cols = _on_record_columns(res, site, roof_cols)  # before the flags become text
+    out = {**_result_columns(res, site), **roof_cols, **record_cols}  # text only here, at the edge
     results = _join_input(site.frame, out)
     lap("roof_and_assemble")
     summary = summarize(
@@ -406,6 +407,35 @@ def _roof_columns(res: Resolution, site: SiteArrays, roofs, layers, standard=Non
         out[f"{name}_psf"] = psf[name]
         out[f"{name}_kpa"] = psf[name] * KPA_PER_PSF
     return out
+
+
+#: columns added when the site file has a snow_load_on_record column (the existing-roof check)
+ON_RECORD_COLUMNS = ("on_record_psf", "on_record_kpa", "load_ratio")
+
+
+def _on_record_columns(res: Resolution, site: SiteArrays, roof_cols: dict) -> dict:
+    """The load on record, ``load_ratio`` and the ``exceeds_record`` bit (:mod:`neve.geo.site.on_record`).
+
+    ``load_ratio`` = today's ``design_uniform`` / the load on record: uniform loads
+    only, as screening gives them; no ratio (and no flag) without a roof, without a
+    usable ground load or without a load on record.
+    """
+    if site.on_record_psf is None:
+        return {}
+    from neve.geo.site.on_record import load_ratio
+
+    record = np.asarray(site.on_record_psf, dtype=float)
+    design = roof_cols.get("design_uniform_psf")
+    if design is None:
+        design = np.full(len(site), np.nan)
+    ratio, above = load_ratio(design, record)
+    if above.any():
+        res.flags[above] |= BIT["exceeds_record"]
+    return {
+        "on_record_psf": record,
+        "on_record_kpa": record * KPA_PER_PSF,
+        "load_ratio": ratio,
+    }
 
 
 def _join_input(frame: pd.DataFrame, out: dict) -> pd.DataFrame:

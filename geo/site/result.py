@@ -86,6 +86,7 @@ FLAG_TABLE: tuple[Flag, ...] = (
     Flag("multiline_field", 17, "row", "a quoted cell of the record holds line breaks"),
     Flag("cell_escaped", 18, "row", "a cell was neutralised for a spreadsheet output"),
     Flag("cell_truncated", 19, "row", "a cell was cut to fit the output format"),
+    Flag("exceeds_record", 20, "row", "today's uniform roof load is above the load on record"),
     Flag("shape_assumed", 24, "roof", "no roof shape given: flat assumed"),
     Flag("exposure_assumed", 25, "roof", "Ce from the default terrain and exposure"),
     Flag("thermal_assumed", 26, "roof", "Ct from the default thermal condition"),
