@@ -141,7 +141,7 @@ def drift_required(hc, hb):
     """Drifts are required unless hc/hb < 0.2 (ASCE 7-22 Sec. 7.7.1) [bool]."""
     hc = np.asarray(hc, dtype=float)
     hb = np.asarray(hb, dtype=float)
-    with np.errstate(divide="ignore", invalid="ignore"):
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         ratio = np.where(hb > 0, hc / hb, np.inf)
     return (ratio >= HC_HB_LIMIT) & (hc > 0)
 
