@@ -169,6 +169,25 @@ def _summary(roof: dict | None) -> list[dict]:
     return rows
 
 
+def _on_record_rows(rec: dict | None) -> list[dict]:
+    """The existing-roof check (``neve site --on-record``) as rows of the summary table."""
+    if not rec:
+        return []
+    ratio = rec.get("load_ratio")
+    if ratio is None:
+        verdict = f"not computed: {rec.get('reason') or 'no design_uniform load'}"
+    else:
+        above = "above the record (exceeds_record)" if rec.get("exceeds_record") else "not above"
+        verdict = f"{ratio:.3f}: {above}"
+    ref = "neve existing-roof check: uniform loads only, drifts not included"
+    return [
+        {"label": "Roof snow load on record", "value": style.load_text(rec.get("load")),
+         "ref": "as given (--on-record)", "governing": False},
+        {"label": "Load ratio (design_uniform / load on record)", "value": verdict,
+         "ref": ref, "governing": False},
+    ]  # fmt: skip
+
+
 def _provenance(ground: dict) -> list[tuple[str, str]]:
     layer = ground.get("layer") or {}
     rows = [
@@ -277,7 +296,7 @@ def write_package(
             "factors": _factors(data.get("roof")),
             "roof_rows": _roof_rows(data.get("roof")),
             "not_required": list((data.get("roof") or {}).get("not_required") or []),
-            "summary": _summary(data.get("roof")),
+            "summary": _summary(data.get("roof")) + _on_record_rows(data.get("on_record")),
             "provenance": _provenance(ground),
             "ground_steps": list(ground.get("steps") or []),
             "static_map": _data_uri(png),

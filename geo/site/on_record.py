@@ -107,7 +107,14 @@ def parse_on_record(text: object, field: str = "on-record") -> float:
     return value
 
 
-def on_record_json(record_psf: float, design: dict | None, status: str, roof_given: bool) -> dict:
+def on_record_json(
+    record_psf: float,
+    design: dict | None,
+    status: str,
+    roof_given: bool,
+    *,
+    design_psf: float | None = None,
+) -> dict:
     """The ``on_record`` object of ``neve site --on-record``.
 
     Parameters
@@ -120,10 +127,18 @@ def on_record_json(record_psf: float, design: dict | None, status: str, roof_giv
         The ground status (for the reason when there is no ratio).
     roof_given : bool
         Whether a roof was given.
+    design_psf : float, optional
+        The unrounded ``design_uniform`` [psf] (the JSON load is rounded); taken
+        for the ratio when given, so that ``neve site`` and ``neve screen`` agree.
     """
     from neve.engine.units import load_json
 
+    lo, hi = ON_RECORD_RANGE_PSF
+    if not (math.isfinite(float(record_psf)) and lo < float(record_psf) <= hi):
+        raise InputError("on-record", f"{record_psf!r} psf is out of range", ACCEPTED_ON_RECORD)
     psf = None if design is None else design.get("psf")
+    if psf is not None and design_psf is not None and math.isfinite(float(design_psf)):
+        psf = float(design_psf)
     ratio, above = load_ratio(np.nan if psf is None else float(psf), record_psf)
     r = float(ratio)
     reason = None

@@ -51,6 +51,7 @@ class SiteResult:
     layers: list = field(default_factory=list)
     resolution: Resolution | None = None  # the look-up's result (ground flags add site-level ones)
     roof_result: object = None
+    on_record: dict | None = None  # `--on-record`: the existing-roof check (geo/site/on_record.py)
 
     @property
     def row(self) -> dict:
@@ -64,7 +65,10 @@ class SiteResult:
         return bool(int(self.resolution.flags[0]) & BIT["demo_data"])
 
     def to_json(self) -> dict:
-        return {"site": self.site, "ground": self.ground, "roof": self.roof}
+        out = {"site": self.site, "ground": self.ground, "roof": self.roof}
+        if self.on_record is not None:  # only when a load on record was given
+            out["on_record"] = self.on_record
+        return out
 
     def views(self, radius_m: float = 5000) -> list[dict]:
         """``layer.view(center)`` of every layer used, for the maps."""
@@ -269,6 +273,7 @@ def resolve_site(
     given: str | None = None,
     elevation_source: str = "larger",
     standard=None,
+    on_record_psf: float | None = None,
 ) -> SiteResult:
     """Resolve one site to its ground snow load and, given a roof, its roof loads.
 
@@ -300,6 +305,10 @@ def resolve_site(
         The standard of the roof loads (an id or name of the standards
         registry, :mod:`neve.engine.standards`); the default one (ASCE 7-16)
         when omitted.  An unknown one is an ``InputError`` listing those available.
+    on_record_psf : float, optional
+        The roof snow load on record of an existing roof [psf]: the result's
+        ``on_record`` gives ``load_ratio`` = ``design_uniform`` / this load and
+        ``exceeds_record`` (:mod:`neve.geo.site.on_record`).
     """
     from neve.engine.standards import get_standard
 
@@ -437,7 +446,20 @@ def resolve_site(
         bits |= BIT["non_finite_value"]
         ground["flags"] = flag_names(bits)
         ground["message"] += " A value that is not a finite number was reported as null."
-    return SiteResult(site, ground, roof_json, list(layers), res.without_detail(), roof_result)
+    on_record = None
+    if on_record_psf is not None:
+        from neve.geo.site.on_record import on_record_json, parse_on_record
+
+        if isinstance(on_record_psf, str):
+            on_record_psf = parse_on_record(on_record_psf)
+        design = None if roof_json is None else roof_json.get("design_uniform")
+        exact = getattr(roof_result, "design_uniform", None)  # unrounded, as screening has it
+        on_record = on_record_json(
+            float(on_record_psf), design, status, roof is not None, design_psf=exact
+        )
+    return SiteResult(
+        site, ground, roof_json, list(layers), res.without_detail(), roof_result, on_record
+    )
 
 
 def _zone_list(zone_id: str, zone_ids: str) -> list[str]:

@@ -80,9 +80,27 @@ def site_text(result, show_steps: bool = True) -> str:
         lines += ["  " + line if line else "" for line in body.splitlines()]
         if "ground_provisional" in roof.get("flags", []):
             lines.append(f"  ! {roof['cautions'][0]}")
+    lines += on_record_lines(getattr(result, "on_record", None))
     lines.append("")
     lines.append("Cautions:")
     lines += [f"  - {c}" for c in g["cautions"]]
     if result.demo:
         lines += ["", DEMO_BANNER]
     return printable("\n".join(lines))
+
+
+def on_record_lines(rec: dict | None) -> list[str]:
+    """The existing-roof check of ``neve site --on-record`` in words (none without it)."""
+    if not rec:
+        return []
+    lines = ["", f"On record:   {_load(rec['load'])} (the roof's design snow load on record)"]
+    lines.append(f"Today:       {_load(rec['design_uniform'])} ({rec['compared_with']})")
+    if rec["load_ratio"] is None:
+        lines.append(f"Load ratio:  {NONE}  ({rec['reason']})")
+    else:
+        verdict = (
+            "above the record: exceeds_record" if rec["exceeds_record"] else "not above the record"
+        )
+        lines.append(f"Load ratio:  {rec['load_ratio']:.3f}  ({verdict})")
+    lines.append(f"  {rec['note']}")
+    return lines

@@ -446,6 +446,7 @@ EXPECTED_OPTIONS = {
             ("project", ("--project",), "StringParamType", None, False, False),
             ("site_name", ("--site-name",), "StringParamType", None, False, False),
             ("user_agent", ("--user-agent",), "StringParamType", None, False, False),
+            ("on_record", ("--on-record",), "StringParamType", None, True, False),  # issue 10
         ]
     ),  # fmt: skip
     ("screen",): sorted(
@@ -471,6 +472,8 @@ EXPECTED_OPTIONS = {
             ("quiet", ("--quiet",), "BoolParamType", False, False, False),
             ("csv_raw", ("--csv-raw",), "BoolParamType", False, False, False),
             ("summary_json", ("--summary-json",), _PATH, None, False, False),
+            ("map_colour", ("--map-colour",), "Choice('ground', 'ratio')", "ground", False,
+             False),  # issue 10
         ]
     ),  # fmt: skip
     ("layer", "check"): sorted(

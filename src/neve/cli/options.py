@@ -313,6 +313,45 @@ def self_contained_option(f):
 map_look_options = _stack(tiles_option, self_contained_option)
 
 
+def map_colour_option(f):
+    """``--map-colour ground|ratio``: what colours the sites of the portfolio map."""
+    return click.option(
+        "--map-colour",
+        "map_colour",
+        type=click.Choice(["ground", "ratio"], case_sensitive=False),
+        default="ground",
+        show_default=True,
+        help="Colour the portfolio map's sites by ground snow load band (ground), or by "
+        "load_ratio, today's design_uniform / snow_load_on_record (ratio).",
+    )(f)
+
+
+# --- the existing-roof check ---------------------------------------------------------
+
+
+def _on_record(ctx, param, values: tuple):
+    """``--on-record``: the roof snow load on record [psf] (given once), or None."""
+    value = once("on-record")(ctx, param, values)
+    if value is None:
+        return None
+    from neve.geo.site.on_record import parse_on_record
+
+    return parse_on_record(value, "on-record")
+
+
+def on_record_option(f):
+    """``--on-record LOAD``: the roof snow load an existing roof was designed for."""
+    return click.option(
+        "--on-record",
+        "on_record",
+        metavar="LOAD",
+        multiple=True,
+        callback=_on_record,
+        help="Roof snow load on record of an existing roof, with its unit (30psf, 1.44kPa): "
+        "reports load_ratio = today's design_uniform / this load, and exceeds_record above 1.0.",
+    )(f)
+
+
 def overwrite_option(help: str):
     """``--overwrite``: replace existing outputs; ``help`` names the command's outputs."""
     return click.option("--overwrite", is_flag=True, help=help)

@@ -13,6 +13,7 @@ from neve.cli.options import (
     gazetteer_option,
     geocoder_url_option,
     layers_option,
+    map_colour_option,
     map_look_options,
     map_option,
     output_option,
@@ -39,6 +40,7 @@ def _terminate(signum, frame):  # pragma: no cover - exercised through a subproc
 @roof_options
 @map_option("Portfolio map (.html).")
 @map_look_options
+@map_colour_option
 @click.option(
     "--engine",
     type=click.Choice(["local", "dask"], case_sensitive=False),
@@ -84,14 +86,17 @@ def _terminate(signum, frame):  # pragma: no cover - exercised through a subproc
 )
 @standard_option
 def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, tiles, self_contained, engine, scheduler, staging, partitions,
-           gazetteer, geocoder_url, geocode_cache, quiet, overwrite, csv_raw, summary_json, standard, **roof_kw):  # fmt: skip
+           gazetteer, geocoder_url, geocode_cache, quiet, overwrite, csv_raw, summary_json, standard, map_colour="ground", **roof_kw):  # fmt: skip
     """Screen a portfolio: ground snow load (and roof loads) for every site in SITES.
 
     SITES is a CSV, XLSX, GeoPackage or Parquet file with lat/lon (or
     latitude/longitude), an address, or point geometry; an optional
     elevation carries its unit in the cell (1200ft, 412m) or in the column
     name (elevation_ft, elevation_m).  Every row comes back in order with
-    status, flags and message.
+    status, flags and message.  An optional snow_load_on_record column (30psf,
+    1.44kPa; or snow_load_on_record_psf / _kpa with plain numbers) adds
+    load_ratio = today's design_uniform / the load on record, flagged
+    exceeds_record above 1.0 (uniform loads only; needs a roof).
 
     Results are an aid to, not a substitute for, a licensed design
     professional. Confirm ground snow loads with the authority having
@@ -164,7 +169,10 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
             csv_raw=csv_raw,
         )
         if map_path:
-            _write_map(run, map_path, overwrite, tiles=tiles, self_contained=self_contained)
+            _write_map(
+                run, map_path, overwrite, tiles=tiles, self_contained=self_contained,
+                colour=map_colour.lower(),
+            )  # fmt: skip
         if summary_json:
             text = json.dumps(run.summary, indent=2)
             write_text(summary_json, text, overwrite=overwrite, field="summary-json")
@@ -178,7 +186,13 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
 
 
 def _write_map(
-    run, map_path: str, overwrite: bool, *, tiles: str = "none", self_contained: bool = False
+    run,
+    map_path: str,
+    overwrite: bool,
+    *,
+    tiles: str = "none",
+    self_contained: bool = False,
+    colour: str = "ground",
 ) -> None:
     from neve.maps.portfolio import screen_view, write_portfolio_map
 
@@ -189,6 +203,7 @@ def _write_map(
         tiles=tiles,
         self_contained=self_contained,
         overwrite=overwrite,
+        colour=colour,
     )
 
 

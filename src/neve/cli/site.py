@@ -12,6 +12,7 @@ from neve.cli.options import (
     layers_option,
     map_look_options,
     map_option,
+    on_record_option,
     overwrite_option,
     roof_from_options,
     roof_options,
@@ -56,6 +57,7 @@ def _check_output(path: str | None, field: str, overwrite: bool, is_dir: bool = 
 @click.option("--geocoder-timeout", type=float, default=10.0, show_default=True,
               help="Seconds to wait for the geocoding server.")  # fmt: skip
 @standard_option
+@on_record_option
 def site(**kw) -> None:
     """Ground snow load of a site from zone layers, and roof snow loads when a roof is given.
 
@@ -102,6 +104,7 @@ def site(**kw) -> None:
         given=given,
         elevation_source=kw["elevation_source"],
         standard=kw["standard"],
+        on_record_psf=kw.get("on_record"),
     )
     data = finite_copy(result.to_json())  # no NaN or infinity in any output: null + a flag
     if kw["map_path"] or kw["package_dir"]:
