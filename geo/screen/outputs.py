@@ -624,7 +624,7 @@ def on_record_summary(results: pd.DataFrame) -> dict:
     ratio is above 1.0; ``load_ratio``: its ``min`` and ``max`` (null without any);
     ``roof_given``: whether the run had a roof (without one nothing is compared).
     """
-    from neve.geo.site.on_record import COMPARED_WITH, load_ratio
+    from neve.engine.on_record import COMPARED_WITH, load_ratio
 
     record = pd.to_numeric(results["on_record_psf"], errors="coerce").to_numpy(dtype=float)
     ratio = pd.to_numeric(results["load_ratio"], errors="coerce").to_numpy(dtype=float)

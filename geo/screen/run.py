@@ -414,7 +414,7 @@ ON_RECORD_COLUMNS = ("on_record_psf", "on_record_kpa", "load_ratio")
 
 
 def _on_record_columns(res: Resolution, site: SiteArrays, roof_cols: dict) -> dict:
-    """The load on record, ``load_ratio`` and the ``exceeds_record`` bit (:mod:`neve.geo.site.on_record`).
+    """The load on record, ``load_ratio`` and the ``exceeds_record`` bit (:mod:`neve.engine.on_record`).
 
     ``load_ratio`` = today's ``design_uniform`` / the load on record: uniform loads
     only, as screening gives them; no ratio (and no flag) without a roof, without a
@@ -422,7 +422,7 @@ def _on_record_columns(res: Resolution, site: SiteArrays, roof_cols: dict) -> di
     """
     if site.on_record_psf is None:
         return {}
-    from neve.geo.site.on_record import load_ratio
+    from neve.engine.on_record import load_ratio
 
     record = np.asarray(site.on_record_psf, dtype=float)
     design = roof_cols.get("design_uniform_psf")

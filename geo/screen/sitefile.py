@@ -266,7 +266,7 @@ def parse_on_record_cells(series: pd.Series, unit: str | None, name: str):
         Column name for the messages.
     """
     from neve.engine.units import LOAD_UNITS
-    from neve.geo.site.on_record import ON_RECORD_RANGE_PSF
+    from neve.engine.on_record import ON_RECORD_RANGE_PSF
 
     n = len(series)
     err = np.full(n, "", dtype=object)
@@ -450,7 +450,7 @@ def parse_sites(frame: pd.DataFrame, geometry=None) -> SiteArrays:
         )
         _merge(err, elev_err)
     on_record = None
-    if cols.get("on_record") is not None:  # the existing-roof check (geo/site/on_record.py)
+    if cols.get("on_record") is not None:  # the existing-roof check (engine/on_record.py)
         name = str(cols["on_record"])
         on_record, record_err = parse_on_record_cells(
             frame[cols["on_record"]], ON_RECORD_NAMES[name.strip().lower()], name

@@ -51,7 +51,7 @@ class SiteResult:
     layers: list = field(default_factory=list)
     resolution: Resolution | None = None  # the look-up's result (ground flags add site-level ones)
     roof_result: object = None
-    on_record: dict | None = None  # `--on-record`: the existing-roof check (geo/site/on_record.py)
+    on_record: dict | None = None  # `--on-record`: the existing-roof check (engine/on_record.py)
 
     @property
     def row(self) -> dict:
@@ -308,7 +308,7 @@ def resolve_site(
     on_record_psf : float, optional
         The roof snow load on record of an existing roof [psf]: the result's
         ``on_record`` gives ``load_ratio`` = ``design_uniform`` / this load and
-        ``exceeds_record`` (:mod:`neve.geo.site.on_record`).
+        ``exceeds_record`` (:mod:`neve.engine.on_record`).
     """
     from neve.engine.standards import get_standard
 
@@ -448,7 +448,7 @@ def resolve_site(
         ground["message"] += " A value that is not a finite number was reported as null."
     on_record = None
     if on_record_psf is not None:
-        from neve.geo.site.on_record import on_record_json, parse_on_record
+        from neve.engine.on_record import on_record_json, parse_on_record
 
         if isinstance(on_record_psf, str):
             on_record_psf = parse_on_record(on_record_psf)

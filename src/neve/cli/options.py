@@ -83,8 +83,9 @@ def w2_option(f):
         default=None,
         callback=_w2,
         metavar="FRACTION",
-        help="Winter wind parameter W2 of the site, a plain number from 0 to 1, e.g. 0.45 "
-        "(ASCE 7-22 drifts and unbalanced loads; without it those cases are not computed).",
+        help="Winter wind parameter W2 of the site, a plain number from 0 to 1, e.g. 0.45, "
+        "for a standard that uses it (asce7-22: drifts and unbalanced loads; without it "
+        "those cases are not computed).",
     )(f)
 
 
@@ -334,7 +335,7 @@ def _on_record(ctx, param, values: tuple):
     value = once("on-record")(ctx, param, values)
     if value is None:
         return None
-    from neve.geo.site.on_record import parse_on_record
+    from neve.engine.on_record import parse_on_record
 
     return parse_on_record(value, "on-record")
 

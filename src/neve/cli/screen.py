@@ -160,6 +160,13 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
             progress=progress,
             standard=standard,
         )
+        if map_path and map_colour.lower() == "ratio" and "load_ratio" not in run.results:
+            from neve.maps.portfolio import RATIO_NEEDS
+
+            raise InputError(
+                "map-colour", "'ratio' given, but the site file has no snow_load_on_record "
+                "column", RATIO_NEEDS,
+            )  # fmt: skip; refused before any output is written
         write_results(
             run.results,
             output,

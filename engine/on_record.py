@@ -92,6 +92,33 @@ def load_ratio(design_psf, record_psf) -> tuple[np.ndarray, np.ndarray]:
     return ratio, exceeds
 
 
+#: bands of load_ratio for maps (neve's own): (upper bound, label); the split at 1.0 is
+#: exactly the ``exceeds_record`` threshold, so a site is drawn above 1.0 iff it is flagged
+RATIO_BANDS = (
+    (0.8, "under 0.8"),
+    (1.0, "0.8 to 1.0"),
+    (1.25, "above 1.0 to 1.25"),
+    (1.5, "above 1.25 to 1.5"),
+    (math.inf, "above 1.5"),
+)
+
+
+def ratio_band(ratio) -> np.ndarray:
+    """Index into :data:`RATIO_BANDS` per ratio [-]; -1 where there is no ratio.
+
+    >>> ratio_band([0.5, 0.8, 1.0, 1.01, 1.25, 1.5, 2.0, float("nan")]).tolist()
+    [0, 1, 1, 2, 2, 3, 4, -1]
+    """
+    r = np.atleast_1d(np.asarray(ratio, dtype=float))
+    _, above = load_ratio(r, 1.0)
+    band = np.full(r.shape, -1, dtype=int)
+    fine = np.isfinite(r)
+    band[fine & ~above] = np.where(r[fine & ~above] < RATIO_BANDS[0][0], 0, 1)
+    up = fine & above
+    band[up] = 2 + np.searchsorted([b for b, _ in RATIO_BANDS[2:-1]], r[up], side="left")
+    return band
+
+
 def parse_on_record(text: object, field: str = "on-record") -> float:
     """One load on record with its unit (``30psf``, ``1.44kPa``) -> [psf].
 
