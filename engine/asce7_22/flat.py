@@ -167,10 +167,16 @@ def seismic_snow_weight(pf, design_uniform):
 
     ``0.15 x`` the uniform design snow load where ``pf > 45 psf``, else 0.
 
+    Reading: the provision takes the uniform design snow load whatever the
+    roof's slope (wording from memory, as in ASCE 7-16 Sec. 12.7.2), so a
+    sloped roof's Cs does not reduce it: neve takes the larger of pf and the
+    governing uniform load.
+
     References
     ----------
-    ASCE 7-22 Sec. 12.7.2 (confirmed [NFBA25]).  Information only: neve
-    computes no seismic loads.
+    ASCE 7-22 Sec. 12.7.2 (45 psf and 15 % confirmed [NFBA25]).  Information
+    only: neve computes no seismic loads.
     """
     pf = np.asarray(pf, dtype=float)
-    return np.where(pf > SEISMIC_PF_THRESHOLD, SEISMIC_SHARE * np.asarray(design_uniform), 0.0)
+    base = np.fmax(pf, np.asarray(design_uniform, dtype=float))
+    return np.where(pf > SEISMIC_PF_THRESHOLD, SEISMIC_SHARE * base, 0.0)

@@ -35,7 +35,10 @@ def roofs(draw):
     if draw(st.booleans()):
         data["ct"] = draw(st.sampled_from([0.85, 1.0, 1.1, 1.2, 1.3]))
     else:
-        data["thermal"] = draw(st.sampled_from(["cold-ventilated", "unheated", "below-freezing"]))
+        # "heated" without an R-value: Table 7.3-3's upper bound, the same for every pg
+        data["thermal"] = draw(
+            st.sampled_from(["heated", "cold-ventilated", "unheated", "below-freezing"])
+        )
     if data["shape"] == "flat":
         data["slope"] = "0deg"
     else:

@@ -154,6 +154,10 @@ def test_seismic_weight_note():
     sw = out["seismic_weight"]
     assert sw["applies"] is True and sw["load"]["psf"] == pytest.approx(7.35)
     assert sw["ref"] == "ASCE 7-22 Sec. 12.7.2"
+    # a sloped roof: the share is of the unreduced load (reading of "whatever the slope")
+    out = run(80.0, shape="gable", slope="12:12", eave_to_ridge="20ft", w2=0.4)
+    assert out["loads"]["ps"]["psf"] < out["loads"]["pf"]["psf"]  # Cs < 1 at 45 deg
+    assert out["seismic_weight"]["load"]["psf"] == pytest.approx(0.15 * 0.7 * 80)
     out = run(64.0)  # pf = 44.8 psf: not above 45
     assert out["seismic_weight"]["applies"] is False
     assert out["seismic_weight"]["load"]["psf"] == 0.0
@@ -284,3 +288,32 @@ def test_facade_quantities_mapping_and_unknown_quantity():
     # the old signature keeps working, and 7-16 JSON has no 7-22 keys
     old = analyze_roof(35.0, r).to_json()
     assert old["standard"] == "ASCE 7-16" and "w2" not in old and "seismic_weight" not in old
+
+
+# --- Sec. 7.9, 7.4.5, 7.5 (from memory: as ASCE 7-16, with pf of Eq. 7.3-1) -------------------
+def test_sliding_from_an_upper_roof():
+    step = {**STEP, "height": "10ft", "lower_length": "60ft", "upper_slope": "6:12",
+            "upper_eave_to_ridge": "30ft", "upper_pf": "40psf"}  # fmt: skip
+    out = run(40.0, w2=0.45, step=[step])
+    (c,) = cases(out, "sliding")
+    # 0.4 pf W / 15 = 0.4 x 40 x 30 / 15 = 32 psf over 15 ft
+    assert c["load"]["psf"] == pytest.approx(32.0)
+    assert c["extent"]["ft"] == pytest.approx(15.0)
+    assert all("ASCE 7-16" not in s["ref"] and "Is" not in s["equation"] for s in c["steps"])
+
+
+def test_ice_dam_on_a_heated_roof_whatever_its_ct():
+    # a heated roof (Table 7.3-3 upper bound 1.2) is still a warm roof for Sec. 7.4.5
+    out = run(40.0, thermal="heated", overhang="2ft")
+    (c,) = cases(out, "ice_dam")
+    assert out["factors"]["Ct"] == 1.2
+    assert c["load"]["psf"] == pytest.approx(2 * 0.7 * 1.2 * 40)  # 2 pf = 67.2 psf
+    assert "ice_dam_conditions_unstated" in out["flags"]
+    cold = run(40.0, thermal="unheated", overhang="2ft")
+    assert not cases(cold, "ice_dam")
+
+
+def test_partial_loading_half_of_balanced():
+    out = run(40.0)
+    (c,) = cases(out, "partial")
+    assert c["half"]["psf"] == pytest.approx(0.5 * 28.0)  # ps = 0.7 x 40 = 28 psf
