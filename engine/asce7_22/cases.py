@@ -74,7 +74,11 @@ def unbalanced_cases(pg, ps, roof: Roof, w2, cases, skipped, flags) -> None:
         if m == "general" and w2 is None:
             flags.append("w2_needed")
             skipped.append(
-                {"case": "unbalanced", "name": "general method", "reason": W2_REASON + " (Sec. 7.6.1)"}
+                {
+                    "case": "unbalanced",
+                    "name": "general method",
+                    "reason": W2_REASON + " (Sec. 7.6.1)",
+                }
             )
             continue
         if m == "narrow":
@@ -127,7 +131,9 @@ def drift_cases(pg, ps, roof: Roof, w2, cases, skipped, flags) -> None:
         if places:
             flags.append("w2_needed")
         for name in places:
-            skipped.append({"case": "drift", "name": name, "reason": W2_REASON + " (Sec. 7.7, 7.8)"})
+            skipped.append(
+                {"case": "drift", "name": name, "reason": W2_REASON + " (Sec. 7.7, 7.8)"}
+            )
         return
     for st in roof.steps:
         v = dr.step_drifts(pg, ps, st, w2)

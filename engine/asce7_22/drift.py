@@ -89,9 +89,7 @@ def snow_density(pg, log: StepLog | None = None):
     return gamma
 
 
-def drift_height(
-    pg, lu, w2, log: StepLog | None = None, symbol: str = "hd", what: str = "drift"
-):
+def drift_height(pg, lu, w2, log: StepLog | None = None, symbol: str = "hd", what: str = "drift"):
     """Drift height hd [ft] from the upwind fetch lu [ft] and W2 [-].
 
     ``hd = 1.5 sqrt(pg^0.74 lu^0.70 W2^1.7 / gamma)`` with gamma from
@@ -187,7 +185,9 @@ def _log_shape(log, hd, hc, hd_used, w, ref: str, what: str, ratio: float):
             f"w = min({r} x {fmt(hd)}^2 / {fmt(hc)}, 8 x {fmt(hc)})", w, "ft", ref,
         )  # fmt: skip
     else:
-        log.add("w", f"{what}: drift width", f"w = {r} hd", f"w = {r} x {fmt(hd_used)}", w, "ft", ref)
+        log.add(
+            "w", f"{what}: drift width", f"w = {r} hd", f"w = {r} x {fmt(hd_used)}", w, "ft", ref
+        )
 
 
 def surcharge(hd, gamma, log: StepLog | None = None, what: str = "drift"):

@@ -105,9 +105,7 @@ def minimum_load(pg, risk: str, log: StepLog | None = None):
     pg = np.asarray(pg, dtype=float)
     pm = np.minimum(pg, pm_max)
     if log is not None:
-        sub = (
-            f"pm = min({fmt(pg)}, {fmt(pm_max)})" if np.ndim(pg) == 0 else "per site"
-        )
+        sub = f"pm = min({fmt(pg)}, {fmt(pm_max)})" if np.ndim(pg) == 0 else "per site"
         log.add(
             "pm",
             f"minimum roof snow load (low-slope roof), risk category {risk}: "

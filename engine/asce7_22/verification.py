@@ -209,8 +209,16 @@ add(
     _case(
         "table-7.3-3/r-30/pg-30",
         f"ASCE 7-22 Table 7.3-3: unventilated roof, R = 30, pg = 30 psf, Ct = 1.17 ({TDEG})",
-        {"pg": "30psf", "roof": {"ce": 1.0, "thermal": "heated", "unventilated": True,
-                                  "r_value": 30, "risk": "II"}},  # fmt: skip
+        {
+            "pg": "30psf",
+            "roof": {
+                "ce": 1.0,
+                "thermal": "heated",
+                "unventilated": True,
+                "r_value": 30,
+                "risk": "II",
+            },
+        },  # fmt: skip
         {"Ct": 1.17, "pf [psf]": 24.57, "thermal_upper_bound": False},
         1e-9,
         _uniform_values,
@@ -222,8 +230,16 @@ add(
         "table-7.3-3/upper-bound",
         f"ASCE 7-22 Table 7.3-3 ranges from 1.0 to 1.2 ({TDEG}); a cell neve does not hold "
         "from a published source takes the upper bound 1.2 (neve's conservative rule)",
-        {"pg": "50psf", "roof": {"ce": 1.0, "thermal": "heated", "unventilated": True,
-                                  "r_value": 20, "risk": "II"}},  # fmt: skip
+        {
+            "pg": "50psf",
+            "roof": {
+                "ce": 1.0,
+                "thermal": "heated",
+                "unventilated": True,
+                "r_value": 20,
+                "risk": "II",
+            },
+        },  # fmt: skip
         {"Ct": 1.2, "pf [psf]": 42.0, "thermal_upper_bound": True},
         1e-9,
         _uniform_values,
@@ -277,8 +293,11 @@ add(
     _case(
         "sec-7.6.1/gable-6-12/w-30",
         f"ASCE 7-22 Sec. 7.6.1 {MEMORY}, hd by Eq. 7.6-1 with lu = W ({STR_CAN}); hand calculation",
-        {"pg": "63psf", "w2": 0.45, "roof": {**NEUTRAL, "shape": "gable", "slope": "6:12",
-                                               "eave_to_ridge": "30ft"}},  # fmt: skip
+        {
+            "pg": "63psf",
+            "w2": 0.45,
+            "roof": {**NEUTRAL, "shape": "gable", "slope": "6:12", "eave_to_ridge": "30ft"},
+        },  # fmt: skip
         {"windward [psf]": 13.23, "surcharge [psf]": 38.6041, "surcharge_extent [ft]": 9.2784},
         {"windward [psf]": 1e-9, "surcharge [psf]": 2e-3, "surcharge_extent [ft]": 2e-3},
         _case_values("unbalanced", method="general"),
@@ -292,8 +311,16 @@ add(
         "sec-7.6.1/gable-narrow",
         f"ASCE 7-22 Sec. 7.6.1 {MEMORY}: W <= 20 ft with prismatic members, leeward pg, "
         "no importance factor, no W2 needed",
-        {"pg": "63psf", "roof": {**NEUTRAL, "shape": "gable", "slope": "6:12",
-                                  "eave_to_ridge": "16ft", "prismatic": True}},  # fmt: skip
+        {
+            "pg": "63psf",
+            "roof": {
+                **NEUTRAL,
+                "shape": "gable",
+                "slope": "6:12",
+                "eave_to_ridge": "16ft",
+                "prismatic": True,
+            },
+        },  # fmt: skip
         {"leeward [psf]": 63.0, "windward [psf]": 0.0, "w2_needed": False},
         1e-9,
         _case_values("unbalanced", method="narrow"),

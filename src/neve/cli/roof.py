@@ -52,8 +52,7 @@ def roof(pg, w2, fmt, no_steps, standard, **kwargs):
         raise InputError(
             "w2",
             f"{std.title} takes no winter wind parameter",
-            "--w2 only with a standard that uses W2: "
-            + ", ".join(s for s in _w2_standards()),
+            "--w2 only with a standard that uses W2: " + ", ".join(s for s in _w2_standards()),
         )
     pg_psf = parse_pg(pg, "pg")
     roof_ = roof_from_options(kwargs) or Roof.from_mapping({})

@@ -57,12 +57,12 @@ def _peaks(out) -> dict:
     """Every load of the result, by a key that does not depend on pg or W2."""
     vals = {"design_uniform": out["design_uniform"]["psf"], "pf": out["loads"]["pf"]["psf"],
             "ps": out["loads"]["ps"]["psf"]}  # fmt: skip
-    for i, c in enumerate(out["cases"]):
+    for c in out["cases"]:
         for key in ("load", "total_peak", "leeward_peak", "pd", "leeward", "total"):
             if isinstance(c.get(key), dict) and "psf" in c[key]:
-                vals[f"{c['case']}:{c.get('method')}:{c.get('governs')}:{c['name']}:{key}"] = (
-                    c[key]["psf"]
-                )
+                vals[f"{c['case']}:{c.get('method')}:{c.get('governs')}:{c['name']}:{key}"] = c[
+                    key
+                ]["psf"]
     return vals
 
 
