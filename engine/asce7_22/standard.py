@@ -21,6 +21,7 @@ References
 
 from __future__ import annotations
 
+import math
 from collections.abc import Mapping
 
 from neve.engine.asce7_22 import STANDARD
@@ -123,9 +124,17 @@ def _take(quantities, name: str, need: bool):
     return quantities if name == "pg" else None
 
 
+def _w2(quantities):
+    """W2 from the site quantities; None, or a NaN (a site without a W2 value), is not given."""
+    w2 = _take(quantities, "w2", False)
+    if isinstance(w2, float) and math.isnan(w2):
+        return None
+    return w2
+
+
 def analyze(quantities, roof):
     """Every ASCE 7-22 load case of ``roof`` for ``{"pg": psf, "w2": fraction}`` (w2 optional)."""
-    return analyze_roof(_take(quantities, "pg", True), roof, _take(quantities, "w2", False))
+    return analyze_roof(_take(quantities, "pg", True), roof, _w2(quantities))
 
 
 def uniform(quantities, roof) -> dict:

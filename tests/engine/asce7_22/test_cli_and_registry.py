@@ -123,3 +123,16 @@ def test_every_flag_is_in_the_flag_table_and_the_contract():
         assert flag in names and f"`{flag}`" in contract
     bits = {f.name: f.bit for f in FLAG_TABLE}
     assert bits["w2_needed"] == 37 and bits["thermal_upper_bound"] == 38
+
+
+def test_analyze_through_the_registry_with_and_without_w2():
+    from neve.engine.roof_spec import Roof
+
+    std = get_standard("asce7-22")
+    roof = Roof.from_mapping({"ce": 1.0, "ct": 1.0, "parapet": [{"height": "4ft",
+                              "upwind_length": "100ft"}]})  # fmt: skip
+    with_w2 = std.analyze({"pg": 63.0, "w2": 0.45}, roof).to_json()
+    assert "w2_needed" not in with_w2["flags"] and with_w2["w2"] == 0.45
+    for missing in ({"pg": 63.0}, {"pg": 63.0, "w2": None}, {"pg": 63.0, "w2": float("nan")}):
+        out = std.analyze(missing, roof).to_json()
+        assert "w2_needed" in out["flags"] and out["w2"] is None
