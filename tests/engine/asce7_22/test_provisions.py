@@ -190,11 +190,21 @@ def test_snow_density_cap():
     assert float(drift.snow_density(150)) == 30.0
 
 
-@pytest.mark.parametrize("bad", [-0.1, 1.01, float("nan"), "x", True])
+@pytest.mark.parametrize("bad", [-0.1, 1.01, "x", True])
 def test_w2_out_of_range_is_refused(bad):
     with pytest.raises(InputError) as e:
         run(40.0, w2=bad)
     assert e.value.field == "w2"
+
+
+def test_nan_w2_is_refused_by_the_engine_and_missing_at_the_registry():
+    # the provision function wants a number in [0, 1]; the registry reads NaN as a site
+    # without a W2 value (not given: w2_needed), as screening reads a NaN pg
+    from neve.engine.asce7_22.analysis import analyze_roof as analyze_22
+
+    with pytest.raises(InputError):
+        analyze_22(40.0, Roof.from_mapping(NEUTRAL), float("nan"))
+    assert run(40.0, w2=float("nan"))["w2"] is None
 
 
 # --- the [SKA] roof step example -----------------------------------------------------------------
