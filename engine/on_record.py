@@ -46,8 +46,7 @@ ON_RECORD_RANGE_PSF = (0.0, PG_MAX_PSF)
 #: what today's load is compared with (the result key / column stem)
 COMPARED_WITH = "design_uniform"
 ACCEPTED_ON_RECORD = (
-    "a roof snow load above 0 with its unit, e.g. 30psf or 1.44kPa "
-    f"(at most {PG_MAX_PSF:g} psf)"
+    f"a roof snow load above 0 with its unit, e.g. 30psf or 1.44kPa (at most {PG_MAX_PSF:g} psf)"
 )
 #: what the check means, for people (text output, JSON, summaries)
 NOTE = (

@@ -265,8 +265,8 @@ def parse_on_record_cells(series: pd.Series, unit: str | None, name: str):
     name : str
         Column name for the messages.
     """
-    from neve.engine.units import LOAD_UNITS
     from neve.engine.on_record import ON_RECORD_RANGE_PSF
+    from neve.engine.units import LOAD_UNITS
 
     n = len(series)
     err = np.full(n, "", dtype=object)
@@ -313,8 +313,7 @@ def parse_on_record_cells(series: pd.Series, unit: str | None, name: str):
         ):
             if mask.any():
                 err[mask] = [
-                    f"{name}: {v!r} {why}; accepted: {ACCEPTED_ON_RECORD_CELL}"
-                    for v in text[mask]
+                    f"{name}: {v!r} {why}; accepted: {ACCEPTED_ON_RECORD_CELL}" for v in text[mask]
                 ]
         if odd.any():
             what = np.broadcast_to(np.asarray(what, dtype=object), odd.shape)

@@ -472,8 +472,14 @@ EXPECTED_OPTIONS = {
             ("quiet", ("--quiet",), "BoolParamType", False, False, False),
             ("csv_raw", ("--csv-raw",), "BoolParamType", False, False, False),
             ("summary_json", ("--summary-json",), _PATH, None, False, False),
-            ("map_colour", ("--map-colour",), "Choice('ground', 'ratio')", "ground", False,
-             False),  # issue 10
+            (
+                "map_colour",
+                ("--map-colour",),
+                "Choice('ground', 'ratio')",
+                "ground",
+                False,
+                False,
+            ),  # issue 10
         ]
     ),  # fmt: skip
     ("layer", "check"): sorted(

@@ -208,7 +208,9 @@ def test_summary_counts(grid_layer):
 
 
 def test_without_the_column_nothing_changes(grid_layer):
-    res = screen(_sites(["20psf"]).drop(columns="snow_load_on_record"), roof=ROOF, layers=[grid_layer])
+    res = screen(
+        _sites(["20psf"]).drop(columns="snow_load_on_record"), roof=ROOF, layers=[grid_layer]
+    )
     assert not {"load_ratio", "on_record_psf", "on_record_kpa"} & set(res.columns)
     run = run_screen(_sites(["20psf"]).drop(columns="snow_load_on_record"), layers=[grid_layer])
     assert "on_record" not in run.summary

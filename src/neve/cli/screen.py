@@ -164,8 +164,9 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
             from neve.maps.portfolio import RATIO_NEEDS
 
             raise InputError(
-                "map-colour", "'ratio' given, but the site file has no snow_load_on_record "
-                "column", RATIO_NEEDS,
+                "map-colour",
+                "'ratio' given, but the site file has no snow_load_on_record column",
+                RATIO_NEEDS,
             )  # fmt: skip; refused before any output is written
         write_results(
             run.results,
