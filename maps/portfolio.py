@@ -52,6 +52,8 @@ NO_RATIO_COLOUR = "#c8c8c8"
 NO_RATIO_LABEL = "no ratio (no load on record, no roof, or no usable ground load)"
 #: the popup lines of a ratio map, first
 RATIO_POPUP = ("load_ratio", "on_record_psf", "design_uniform_psf")
+#: decimals of those popup lines
+RATIO_POPUP_DECIMALS = {"load_ratio": 3, "on_record_psf": 2, "design_uniform_psf": 2}
 
 #: longest text a popup shows per field [characters]; longer text is cut with an ellipsis
 POPUP_TEXT_LIMITS = {"site_id": 80, "zone": 60, "flags": 160, "message": 240, "extra": 40}
@@ -149,6 +151,14 @@ def _clean(v, limit: int = 240) -> str:
         return ""
     text = str(v)
     return text if len(text) <= limit else text[: limit - 1] + "\u2026"
+
+
+def _rounded(v, column: str):
+    """The ratio map's own popup numbers, rounded for reading (other cells as they are)."""
+    digits = RATIO_POPUP_DECIMALS.get(column)
+    if digits is None or isinstance(v, bool) or not isinstance(v, (int, float)):
+        return v
+    return "" if not math.isfinite(v) else f"{v:.{digits}f}"
 
 
 def _layer_class():
@@ -325,7 +335,8 @@ def write_portfolio_map(
         "message": message,
         "extra_names": [c.replace("_", " ") for c in extra_cols],
         "extra": [
-            [_clean(v, POPUP_TEXT_LIMITS["extra"]) for v in sub[c].tolist()] for c in extra_cols
+            [_clean(_rounded(v, c), POPUP_TEXT_LIMITS["extra"]) for v in sub[c].tolist()]
+            for c in extra_cols
         ],
     }
 

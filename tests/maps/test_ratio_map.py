@@ -136,3 +136,12 @@ def test_ratio_map_offline_in_chromium(tmp_path):
         page.screenshot(path=str(tmp_path / "ratio_map.png"))
         assert record["dialogs"] == [] and record["page_errors"] == []
         assert record["blocked"] == []
+
+
+def test_ratio_popup_numbers_are_rounded_for_reading(tmp_path):
+    d = _payload(write_portfolio_map(_results(), tmp_path / "r.html", colour="ratio").read_text())
+    ratio = d["extra"][d["extra_names"].index("load ratio")]
+    assert ratio[:4] == ["0.500", "0.800", "1.000", "1.000"]  # 1.0000001 reads 1.000 ...
+    assert d["codes"][d["code"][3]]["label"] == RATIO_BANDS[2][1]  # ... but is drawn above 1.0
+    assert ratio[7] == ""  # no ratio
+    assert d["extra"][d["extra_names"].index("on record psf")][0] == "56.00"  # 28 / 0.5

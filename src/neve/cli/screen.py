@@ -167,7 +167,7 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
                 "map-colour",
                 "'ratio' given, but the site file has no snow_load_on_record column",
                 RATIO_NEEDS,
-            )  # fmt: skip; refused before any output is written
+            )  # refused before any output is written
         write_results(
             run.results,
             output,
