@@ -256,3 +256,32 @@ def test_cli_ratio_map_needs_the_column(tmp_path, grid_layer):
     assert res.exit_code == 2
     assert "map-colour" in res.output and "snow_load_on_record" in res.output
     assert not out.exists() and not page.exists()  # refused before any output
+
+
+def test_the_new_columns_keys_and_flag_are_in_the_contract(tmp_path, grid_layer):
+    # docs/contract.md is the contract (tests/test_docs.py checks the demo run without a
+    # load on record; this run has one, with a roof)
+    from tests.test_docs import _keys, _missing
+
+    sites = tmp_path / "sites.csv"
+    sites.write_text(
+        "site_id,lat,lon,elevation,snow_load_on_record\nA,44.5,-108.5,1000ft,20psf\n", "utf-8"
+    )
+    out, summ = tmp_path / "out.csv", tmp_path / "s.json"
+    args = ["screen", str(sites), "-o", str(out), "--layer", str(grid_layer), "--shape", "flat",
+            "--quiet", "--summary-json", str(summ)]  # fmt: skip
+    assert CliRunner().invoke(main, args).exit_code == 0
+    columns = pd.read_csv(out, nrows=0).columns.tolist()
+    added = columns[columns.index("status") :]
+    assert {"on_record_psf", "on_record_kpa", "load_ratio"} <= set(added)
+    _missing(added, "screening result column(s)")
+    summary = json.loads(summ.read_text(encoding="utf-8"))
+    _missing(_keys(summary["on_record"], {"on_record"}), "`--summary-json` key(s)")
+    _missing(["exceeds_record", "snow_load_on_record", "snow_load_on_record_psf",
+              "snow_load_on_record_kpa"], "name(s)")  # fmt: skip
+    lat, lon = SE
+    res = CliRunner().invoke(main, ["site", "--at", f"{lat},{lon}", "--layer", str(grid_layer),
+                                    "--elevation", "1000ft", "--shape", "flat",
+                                    "--on-record", "20psf", "--format", "json"])  # fmt: skip
+    assert res.exit_code == 0, res.output
+    _missing(_keys(json.loads(res.output)["on_record"], {"on_record"}), "`neve site` key(s)")
