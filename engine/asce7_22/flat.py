@@ -24,8 +24,11 @@ from neve.engine.steps import StepLog, fmt
 #: category [psf].  The table itself is confirmed [PROSE: "Risk Category-specific
 #: pm,max values in Table 7.3-4"; NFBA25: "a new table showing the upper limit of
 #: minimum snow load, pm,max ... for each risk category"]; the four values are
-#: from memory.
-MINIMUM_MAX_TABLE_7_3_4 = {"I": 20.0, "II": 25.0, "III": 30.0, "IV": 35.0}
+#: from memory.  They agree with carrying ASCE 7-16's minimum (20 Is psf, a
+#: service-level load with the 1.6 snow load factor) to strength level:
+#: 20 x 1.6 x (0.8, 1.0, 1.1, 1.2) = 25.6, 32, 35.2, 38.4 psf, i.e. 25, 30, 35
+#: and 40 psf in round numbers (our check of the memory, not a source).
+MINIMUM_MAX_TABLE_7_3_4 = {"I": 25.0, "II": 30.0, "III": 35.0, "IV": 40.0}
 #: slope below which a monoslope, hip or gable roof is "low-slope" [deg]
 #: (Sec. 7.3.3; from memory, unchanged from ASCE 7-16)
 MINIMUM_SLOPE_LIMIT = 15.0

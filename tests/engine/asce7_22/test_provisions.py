@@ -118,7 +118,7 @@ def test_table_7_3_3_function_vectorised():
 # --- Sec. 7.3.3, Table 7.3-4 (table confirmed [PROSE, NFBA25], values from memory) -----------
 @pytest.mark.parametrize(
     ("risk", "pg", "pm"),
-    [("I", 40, 20.0), ("II", 40, 25.0), ("III", 40, 30.0), ("IV", 40, 35.0), ("II", 12, 12.0)],
+    [("I", 40, 25.0), ("II", 40, 30.0), ("III", 40, 35.0), ("IV", 50, 40.0), ("IV", 38, 38.0), ("II", 12, 12.0)],
 )
 def test_minimum_load_by_risk_category(risk, pg, pm):
     out = run(float(pg), risk=risk)
