@@ -382,7 +382,16 @@ def _standard(ctx, param, value):
     return get_standard(value, field="standard")
 
 
-def standard_option(f=None, *, default: str | None = "asce7-16", help: str | None = None):
+def _standards(ctx, param, values):
+    """The registered standards named by a repeated ``--standard`` (unknown: exit 2)."""
+    from neve.engine.standards import get_standard
+
+    return [get_standard(v, field="standard") for v in values or ()]
+
+
+def standard_option(
+    f=None, *, default: str | None = "asce7-16", help: str | None = None, multiple: bool = False
+):
     """``--standard ID``: the standard of the roof loads (ids and names of the registry).
 
     ``@standard_option`` defaults to ``asce7-16``; ``neve verify`` takes
@@ -396,9 +405,38 @@ def standard_option(f=None, *, default: str | None = "asce7-16", help: str | Non
         "--standard",
         "standard",
         metavar="ID",
-        default=default,
-        show_default=default is not None,
-        callback=_standard,
+        default=None if multiple else default,  # ``multiple``: neve compare (issue 10)
+        show_default=default is not None and not multiple,
+        multiple=multiple,
+        callback=_standards if multiple else _standard,
         help=(help or "Standard of the roof snow loads") + f": {known}.",
     )
     return opt if f is None else opt(f)
+
+
+# --- edition comparison (issue 10) -------------------------------------------------------
+
+
+def _compare(ctx, param, value):
+    """``--compare ID,ID[,...]``: two or more registered standards (unknown or one: exit 2)."""
+    if value is None:
+        return None
+    from neve.geo.site.compare import check_editions
+
+    names = [v.strip() for v in str(value).split(",") if v.strip()]
+    return check_editions(names, field_name="compare")
+
+
+def compare_option(f):
+    """``--compare asce7-16,asce7-22``: screen under each edition and join the results."""
+    return click.option(
+        "--compare",
+        "compare",
+        metavar="ID,ID",
+        default=None,
+        callback=_compare,
+        help="Screen under each of these standards (comma-separated ids, two or more, e.g. "
+        "asce7-16,asce7-22), each with its own layers: per-edition columns <column>__<id>, "
+        "pg_ratio and design_uniform_ratio (last / first), and the count of sites whose "
+        "governing uniform load rises by more than 10 %.",
+    )(f)
