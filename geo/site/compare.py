@@ -53,8 +53,12 @@ def edition_layers(standard, layers=None, *, field_name: str = "layer") -> list:
     from neve.geo.layers.model import as_layers
 
     std = get_standard(standard)
-    given = as_layers(None if layers is None or list(layers) == [] else list(layers))
+    demo = layers is None or list(layers) == []
+    given = as_layers(None if demo else list(layers))
     kept = [ly for ly in given if layer_accepted(std, ly)]
+    if demo and not kept:
+        given = given + [ly for ly in _other_demo_layers(given) if ly not in given]
+        kept = [ly for ly in given if layer_accepted(std, ly)]
     if not kept:
         seen = sorted({str(ly.meta.get("standard", "")) for ly in given})
         where = "the embedded demo layers" if not layers else "the layers given"
@@ -65,6 +69,23 @@ def edition_layers(standard, layers=None, *, field_name: str = "layer") -> list:
             f"{', '.join(std.layer_standards)} (give one --layer per edition)",
         )
     return kept
+
+
+def _other_demo_layers(stack) -> list:
+    """Every other layer file with a sidecar in the demo folder (another edition's).
+
+    Used only when the default demo stack has no layer of an edition; in the
+    order of the file names.
+    """
+    from neve.geo.layers.model import DEMO_DIR, load_layer
+
+    have = {ly.path.resolve() for ly in stack}
+    out = []
+    for sidecar in sorted(DEMO_DIR.glob("*.toml")):
+        path = sidecar.with_suffix("")
+        if path.is_file() and path.resolve() not in have:
+            out.append(load_layer(path))
+    return out
 
 
 def check_editions(standards: Sequence, field_name: str = "standard") -> list:
