@@ -300,3 +300,20 @@ def test_demo_without_722_layers_says_which_layers_it_needs():
     r = _run("compare", "--at", "47.52,-140.05", *TWO, *FLAT)
     assert r.exit_code == 2
     assert "error: layer:" in r.stderr and "demo" in r.stderr
+
+
+def test_an_edition_missing_from_the_demo_stack_takes_the_demo_folders_other_layers(
+    tmp_path, monkeypatch
+):
+    import neve.geo.layers.model as model
+    from neve.geo.site.compare import edition_layers
+
+    model.demo_layers()  # the default stack, loaded from the real demo folder
+    write_layer(tmp_path / "other_722.geojson", _rows_722(),
+                {"name": "other 7-22", "standard": "ASCE 7-22", "demo": True})  # fmt: skip
+    monkeypatch.setattr(model, "DEMO_DIR", tmp_path)
+    if any(ly.meta["standard"] == "ASCE 7-22" for ly in model.demo_layers()):
+        pytest.skip("the default demo stack has ASCE 7-22 layers itself")
+    got = edition_layers("asce7-22")
+    assert [ly.name for ly in got] == ["other 7-22"]
+    assert all(ly.meta["standard"] == "ASCE 7-16" for ly in edition_layers("asce7-16"))
