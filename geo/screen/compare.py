@@ -4,8 +4,10 @@
 once per edition, each with the layers that edition accepts
 (:func:`neve.geo.site.compare.edition_layers`; the demo layers of each edition
 when none are given), and joins the runs: the input columns once, as given and
-in order, then every result column of each edition as ``<column>__<standard id>``
-(``pg_psf__asce7-16``, ``design_uniform_psf__asce7-22``, ...), then the ratios
+in order, then the coordinates used (``site_lat``, ``site_lon``, once: the same in
+every edition), then every other result column of each edition as
+``<column>__<standard id>`` (``pg_psf__asce7-16``, ``design_uniform_psf__asce7-22``,
+...), then the ratios
 
 * ``pg_ratio`` = ``pg_psf`` of the last edition / ``pg_psf`` of the first,
 * ``design_uniform_ratio`` = the same of ``design_uniform_psf`` (with a roof),
@@ -29,8 +31,17 @@ from neve.engine.errors import NeveError
 
 #: a rise above this ratio (last / first edition) is counted in ``rises_over_10pct``
 RISE_RATIO = 1.10
+#: result columns given once, unsuffixed, when every edition has the same values (the
+#: coordinates used: the same site file is read the same way for every edition)
+SHARED = ("site_lat", "site_lon")
 #: (ratio column, the per-edition column it divides)
 RATIOS = (("pg_ratio", "pg_psf"), ("design_uniform_ratio", "design_uniform_psf"))
+
+
+def _same(a: pd.Series, b: pd.Series) -> bool:
+    x = pd.to_numeric(a, errors="coerce").to_numpy(dtype=float)
+    y = pd.to_numeric(b, errors="coerce").to_numpy(dtype=float)
+    return bool(np.array_equal(x, y, equal_nan=True))
 
 
 def column_name(column: str, standard_id: str) -> str:
@@ -97,11 +108,16 @@ def run_compare(sites, standards, *, layers=None, **screen_kw) -> CompareRun:
     k = _split(first)
     cols = {c: first[c] for c in first.columns[:k]}  # the input, once, as given
     for std, run in runs:
+        if len(run.results) != len(first):
+            raise NeveError(f"{std.id}: {len(run.results)} result rows for {len(first)} input rows")
+    shared = [c for c in SHARED if all(_same(run.results[c], first[c]) for _, run in runs)]
+    for c in shared:  # the coordinates used: one pair, as a point output needs them
+        cols[c] = first[c]
+    for std, run in runs:
         res = run.results
-        if len(res) != len(first):
-            raise NeveError(f"{std.id}: {len(res)} result rows for {len(first)} input rows")
         for c in res.columns[_split(res) :]:
-            cols[column_name(c, std.id)] = res[c]
+            if c not in shared:
+                cols[column_name(c, std.id)] = res[c]
     a_id, b_id = chosen[0].id, chosen[-1].id
     ratios = {}
     for name, col in RATIOS:

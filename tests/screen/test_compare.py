@@ -89,7 +89,8 @@ def test_every_input_row_and_cell_kept_in_order(run, env):
     k = list(plain.columns).index("status")
     inputs = list(plain.columns[:k])
     assert inputs == ["site_id", "lat", "lon", "elevation", "input_status", "note"]
-    assert list(run.results.columns[: len(inputs)]) == inputs
+    assert list(run.results.columns[: len(inputs) + 2]) == [*inputs, "site_lat", "site_lon"]
+    assert "site_lat__asce7-16" not in run.results
     assert len(run.results) == 5
     pd.testing.assert_frame_equal(run.results[inputs], plain[inputs])
     assert list(run.results["site_id"]) == ["z1", "z2", "bad", "z3", "z6"]
@@ -102,7 +103,7 @@ def test_each_editions_columns_are_that_editions_screening(run, env):
         alone = run_screen(sites, layers=[layer], standard=sid, roof=Roof.from_mapping(ROOF))
         res = alone.results
         for c in res.columns[list(res.columns).index("status") :]:
-            got = run.results[column_name(c, sid)]
+            got = run.results[c if c in ("site_lat", "site_lon") else column_name(c, sid)]
             pd.testing.assert_series_equal(got, res[c], check_names=False)
 
 
@@ -218,3 +219,32 @@ def test_an_edition_without_its_layer_exits_2(env):
                                   "--compare", "asce7-16,asce7-22", "--quiet"])  # fmt: skip
     assert r.exit_code == 2, r.output
     assert "error: layer:" in r.stderr and "ASCE 7-22" in r.stderr
+
+
+@pytest.mark.parametrize("suffix", ["csv", "xlsx", "gpkg", "parquet"])
+def test_every_output_format_and_the_map(env, suffix):
+    d, a16, a22, sites = env
+    out = d / f"all.{suffix}"
+    html = d / f"all_{suffix}.html"
+    r = CliRunner().invoke(main, [
+        "screen", sites, "-o", str(out), "--layer", a16, "--layer", a22, "--compare",
+        "asce7-16,asce7-22", "--shape", "flat", "--quiet", "--map", str(html), "--overwrite",
+    ])  # fmt: skip
+    assert r.exit_code == 0, r.output
+    if suffix == "csv":
+        df = pd.read_csv(out)
+    elif suffix == "xlsx":
+        df = pd.read_excel(out, sheet_name=0)
+        sheet = pd.read_excel(out, sheet_name="summary")
+        assert "status: ok__asce7-22" in set(sheet["item"])
+    elif suffix == "gpkg":
+        import geopandas as gpd
+
+        df = gpd.read_file(out)
+    else:
+        df = pd.read_parquet(out)
+    assert len(df) == 5
+    assert {"pg_psf__asce7-16", "pg_psf__asce7-22", "pg_ratio", "design_uniform_ratio"} <= set(
+        df.columns
+    )
+    assert html.is_file()
