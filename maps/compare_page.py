@@ -84,6 +84,13 @@ def comparison_context(data: Mapping) -> dict:
                 "flags": list(g.get("flags") or []),
                 "governing": _governing_text(gov),
                 "governing_ref": "" if gov is None else gov.get("ref") or "",
+                "roof_flags": list((r.get("roof") or {}).get("flags") or []),
+                "not_worked": [
+                    f"{n.get('case')}"
+                    + (f" ({n['name']})" if n.get("name") else "")
+                    + f": {n.get('reason')}"
+                    for n in (r.get("roof") or {}).get("not_required") or []
+                ],
             }
         )
     site_rows, cases, index = [], [], {}

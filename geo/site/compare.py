@@ -334,17 +334,31 @@ def comparison_text(data: Mapping) -> str:
         layer = (g.get("layer") or {}).get("name") or "no layer"
         flags = ", ".join(g.get("flags") or []) or "no flags"
         lines.append(f"  {r['title']}: ground status {g.get('status')} ({layer}; {flags})")
+        roof = r.get("roof")
+        if roof:
+            lines.append(f"    roof flags: {', '.join(roof.get('flags') or []) or 'none'}")
+            for n in roof.get("not_required") or []:
+                what = str(n.get("case")) + (f" ({n['name']})" if n.get("name") else "")
+                lines.append(f"    not worked: {what}: {n.get('reason')}")
     lines.append("")
     head = ["quantity"] + ids + [f"{ids[-1]} - {ids[0]}", "ratio"]
-    rows = []
+    rows: list = []
+    case = None
     for d in data["differences"]:
-        label = d["quantity"] if d["case"] is None else f"{d['case']}: {d['name']}: {d['quantity']}"
-        diff = d["difference"]
-        diff_text = "-" if not diff else _show({k: v for k, v in diff.items()})
+        key = (d["case"], d["name"])
+        if d["case"] is not None and key != case:
+            rows.append(f"case {d['case']}: {d['name']}")  # a heading line
+            case = key
+        diff = "-" if not d["difference"] else _show(d["difference"])
         ratio = "-" if d["ratio"] is None else f"{d['ratio']:.3f}"
-        rows.append([label] + [_show(d["values"][i]) for i in ids] + [diff_text, ratio])
-    widths = [max(len(str(x[i])) for x in [head, *rows]) for i in range(len(head))]
+        label = d["quantity"] if d["case"] is None else f"  {d['quantity']}"
+        rows.append([label] + [_show(d["values"][i]) for i in ids] + [diff, ratio])
+    table = [head] + [r for r in rows if isinstance(r, list)]
+    widths = [max(len(str(x[i])) for x in table) for i in range(len(head))]
     for row in [head, *rows]:
+        if isinstance(row, str):
+            lines.append(row)
+            continue
         lines.append("  ".join(str(x).ljust(w) for x, w in zip(row, widths, strict=True)).rstrip())
     lines.append("")
     for sid, gov in data["governing"].items():
