@@ -209,6 +209,7 @@ def test_text_output(layers):
     assert "design_uniform" in r.stdout and "1.300" in r.stdout
     assert "governing uniform load, asce7-22: minimum" in r.stdout
     assert "caution:" in r.stdout
+    assert "roof flags:" in r.stdout and "case minimum:" in r.stdout
 
 
 @pytest.mark.parametrize(

@@ -84,6 +84,14 @@ def test_the_page_shows_every_quantity_and_case(built):
     assert gov["ref"] and gov["ref"] in page
     assert "licensed design professional" in page
     assert "only in ASCE 7-16" in page  # the balanced case with rain-on-snow (7-16 only)
+    # each edition's roof flags and the cases it did not work
+    from markupsafe import escape
+
+    for r in data["results"]:
+        for f in r["roof"]["flags"]:
+            assert f'<span class="flag">{f}</span>' in page
+        for n in r["roof"]["not_required"]:
+            assert str(escape(n["reason"])) in page
 
 
 def test_names_are_text_not_markup_or_template(built):
