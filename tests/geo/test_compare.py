@@ -318,3 +318,21 @@ def test_an_edition_missing_from_the_demo_stack_takes_the_demo_folders_other_lay
     got = edition_layers("asce7-22")
     assert [ly.name for ly in got] == ["other 7-22"]
     assert all(ly.meta["standard"] == "ASCE 7-16" for ly in edition_layers("asce7-16"))
+
+
+def test_a_study_site_compares_nothing_but_says_so(layers):
+    # zone Z3 of the fixture grid requires a site-specific case study in both layers
+    at = f"{LAT0 + D / 2},{LON0 + 2.5 * D}"
+    r = _run("compare", "--at", at, "--layer", layers[0], "--layer", layers[1], *TWO, *FLAT,
+             "--format", "json")  # fmt: skip
+    assert r.exit_code == 0, r.output
+    data = json.loads(r.stdout)
+    for res in data["results"]:
+        assert res["ground"]["status"] == "study_required"
+        assert "study_required" in res["ground"]["flags"]
+        assert res["roof"] is None
+    pg = _diff(data, "pg")
+    assert pg["values"] == {"asce7-16": None, "asce7-22": None}
+    assert pg["difference"] is None and pg["ratio"] is None
+    assert data["governing"] == {"asce7-16": None, "asce7-22": None}
+    assert any("site-specific case study" in c for c in data["cautions"])
