@@ -23,6 +23,8 @@ import json
 
 import pytest
 from click.testing import CliRunner
+from hypothesis import given
+from hypothesis import strategies as st
 
 from neve.cli import main
 from neve.geo.site.compare import compare_site, differences, governing_case
@@ -336,3 +338,24 @@ def test_a_study_site_compares_nothing_but_says_so(layers):
     assert pg["difference"] is None and pg["ratio"] is None
     assert data["governing"] == {"asce7-16": None, "asce7-22": None}
     assert any("site-specific case study" in c for c in data["cautions"])
+
+
+_LOAD = st.floats(min_value=0.0, max_value=2000.0, allow_nan=False)
+
+
+@given(a=_LOAD, b=_LOAD)
+def test_difference_and_ratio_property(a, b):
+    """difference = b - a per unit (4 decimals); ratio = b / a (4 decimals), none for a = 0."""
+    from neve.engine.units import load_json
+
+    def site(psf):
+        return {"ground": {"pg": load_json(psf)}, "roof": None}
+
+    pg = differences([("x", site(a)), ("y", site(b))])[0]
+    va, vb = load_json(a), load_json(b)
+    assert pg["difference"]["psf"] == pytest.approx(vb["psf"] - va["psf"], abs=1e-4)
+    assert pg["difference"]["kPa"] == pytest.approx(vb["kPa"] - va["kPa"], abs=1e-4)
+    if va["psf"] == 0:
+        assert pg["ratio"] is None
+    else:
+        assert pg["ratio"] == pytest.approx(vb["psf"] / va["psf"], abs=1e-4)
