@@ -21,6 +21,8 @@ LABELS = {
     "pg": "Ground snow load pg",
     "pf": "Flat roof snow load pf",
     "ps": "Sloped roof snow load ps",
+    "pm": "Minimum roof snow load pm",
+    "rain_on_snow": "Rain-on-snow surcharge",
     "design_uniform": "Governing uniform load",
 }
 

@@ -9,7 +9,7 @@ the embedded demo layers of that edition.  Each edition then runs through
 --format json --standard <edition>`` prints.
 
 :func:`differences` lines the editions up: the ground load ``pg``, the roof
-loads ``pf`` and ``ps``, ``design_uniform`` and every load and length of each
+loads ``pf``, ``ps``, ``pm`` and ``rain_on_snow``, ``design_uniform`` and every load and length of each
 roof case (matched by case kind and name; a case one edition does not have is
 listed with null for it).  ``difference`` = last edition minus first edition
 (per unit, in the units of the values), ``ratio`` = last / first (of the
@@ -29,7 +29,7 @@ from neve.engine.format import is_quantity
 from neve.engine.jsonsafe import finite_copy
 
 #: the roof loads compared (keys of ``roof.loads``), then ``design_uniform``
-ROOF_LOADS = ("pf", "ps")
+ROOF_LOADS = ("pf", "ps", "pm", "rain_on_snow")
 #: case keys that are no quantity to compare
 _CASE_META = ("case", "name", "steps", "source", "governs", "method", "note", "not_combined_with")
 #: cases whose ``load`` is a uniform load that ``design_uniform`` may take
@@ -241,7 +241,8 @@ def _ground_ref(ground: Mapping) -> str:
 def differences(editions: Sequence[tuple[str, Mapping]]) -> list[dict]:
     """The comparable quantities of ``editions`` (``[(standard id, site JSON)]``), side by side.
 
-    Each entry: ``quantity`` (``pg``, ``pf``, ``ps``, ``design_uniform`` or a
+    Each entry: ``quantity`` (``pg``, ``pf``, ``ps``, ``pm``, ``rain_on_snow``,
+    ``design_uniform`` or a
     case's key such as ``pd``), ``case`` and ``name`` (null for the site and
     roof quantities), ``values`` (standard id -> value or null), ``difference``
     (last minus first, per unit; null when either is null), ``ratio`` (last /

@@ -134,6 +134,16 @@ def test_difference_arithmetic_hand_checked(cmp_json):
     # flat roof: Cs = 1, ps = pf (both editions, Sec. 7.4)
     ps = _diff(cmp_json, "ps")
     assert ps["difference"]["psf"] == pytest.approx(4.2)
+    # pm: 7-16 Is pg = 20 (pg <= 20 psf, Sec. 7.3.4); 7-22 min(26, 30) = 26 (Sec. 7.3.3)
+    pm = _diff(cmp_json, "pm")
+    assert pm["values"]["asce7-16"]["psf"] == pytest.approx(20.0)
+    assert pm["values"]["asce7-22"]["psf"] == pytest.approx(26.0)
+    assert pm["difference"]["psf"] == pytest.approx(6.0) and pm["ratio"] == pytest.approx(1.3)
+    # rain-on-snow: 7-16 5 psf (pg = 20 <= 20 psf, Sec. 7.10); 7-22 none above 20 psf
+    ros = _diff(cmp_json, "rain_on_snow")
+    assert ros["values"]["asce7-16"]["psf"] == pytest.approx(5.0)
+    assert ros["values"]["asce7-22"] is None
+    assert ros["difference"] is None and ros["ratio"] is None
     # design_uniform: 7-16 max(14 + 5, 20) = 20 (pm = Is pg, Sec. 7.3.4); 7-22
     # max(18.2, min(26, 30)) = 26: difference 6, ratio 1.3
     du = _diff(cmp_json, "design_uniform")

@@ -71,6 +71,7 @@ def test_the_page_shows_every_quantity_and_case(built):
     for title in ("ASCE 7-16", "ASCE 7-22"):
         assert f"<th>{title}</th>" in page
     for label in ("Ground snow load pg", "Flat roof snow load pf", "Sloped roof snow load ps",
+                  "Minimum roof snow load pm", "Rain-on-snow surcharge",
                   "Governing uniform load"):  # fmt: skip
         assert label in page
     for d in data["differences"]:
