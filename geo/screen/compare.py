@@ -15,14 +15,18 @@ every edition), then every other result column of each edition as
 empty where either value is missing or the first is zero.  The summary counts
 the sites whose governing uniform load rises by more than 10 %
 (``rises_over_10pct``: ``design_uniform_ratio`` > 1.10) and keeps each
-edition's own summary under ``editions``.
+edition's own summary under ``editions``.  Addresses are geocoded for the first
+edition and taken from a temporary cache for the others (unless a
+``geocode_cache`` or ``geocoder`` is given).
 
 Results are an aid to, not a substitute for, a licensed design professional.
 """
 
 from __future__ import annotations
 
+import tempfile
 from dataclasses import dataclass, field
+from pathlib import Path
 
 import numpy as np
 import pandas as pd
@@ -102,8 +106,12 @@ def run_compare(sites, standards, *, layers=None, **screen_kw) -> CompareRun:
     chosen = check_editions(standards, field_name="compare")
     screen_kw.pop("standard", None)
     per_edition = [(std, edition_layers(std, layers)) for std in chosen]  # refused before work
-    runs = [(std, run_screen(sites, layers=kept, standard=std, **screen_kw))
-            for std, kept in per_edition]  # fmt: skip
+    with tempfile.TemporaryDirectory(prefix="neve-compare-") as tmp:
+        if screen_kw.get("geocoder") is None and screen_kw.get("geocode_cache") is None:
+            # addresses found for the first edition are not asked again for the next
+            screen_kw["geocode_cache"] = Path(tmp) / "geocode_cache.json"
+        runs = [(std, run_screen(sites, layers=kept, standard=std, **screen_kw))
+                for std, kept in per_edition]  # fmt: skip
     first = runs[0][1].results
     k = _split(first)
     cols = {c: first[c] for c in first.columns[:k]}  # the input, once, as given

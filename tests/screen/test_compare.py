@@ -248,3 +248,30 @@ def test_every_output_format_and_the_map(env, suffix):
         df.columns
     )
     assert html.is_file()
+
+
+def test_addresses_are_asked_of_the_server_once_for_every_edition(env, monkeypatch):
+    # an invented server stand-in: counts the requests (no network)
+    from types import SimpleNamespace
+
+    import neve.geo.site.geocode as gc
+
+    d, a16, a22, _ = env
+    where = {"1 Fixture Road": (30.005, -39.995), "2 Fixture Road": (30.005, -39.985)}
+    asked: list[str] = []
+
+    def fake(address, url, *args, **kwargs):
+        asked.append(address)
+        lat, lon = where[address]
+        return SimpleNamespace(lat=lat, lon=lon)
+
+    monkeypatch.setattr(gc, "from_server", fake)
+    sites = d / "addresses.csv"
+    sites.write_text("site_id,address,elevation\na,1 Fixture Road,100ft\n"
+                     "b,2 Fixture Road,100ft\n", encoding="utf-8")  # fmt: skip
+    run = run_compare(str(sites), ["asce7-16", "asce7-22"], layers=[a16, a22],
+                      geocoder_url="http://geocoder.invalid", roof=Roof.from_mapping(ROOF))  # fmt: skip
+    assert sorted(asked) == ["1 Fixture Road", "2 Fixture Road"]  # once each, not per edition
+    r = run.results.set_index("site_id")
+    assert r.loc["a", "site_lat"] == pytest.approx(30.005)
+    assert r.loc["a", "design_uniform_ratio"] == pytest.approx(1.3)  # Z1: 26 / 20
