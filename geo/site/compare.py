@@ -100,7 +100,8 @@ def check_editions(standards: Sequence, field_name: str = "standard") -> list:
     if len(chosen) < 2:
         raise InputError(
             field_name,
-            f"{len(chosen)} edition given; a comparison needs at least two",
+            f"{len(chosen)} edition{'' if len(chosen) == 1 else 's'} given; "
+            "a comparison needs at least two",
             f"two or more of {', '.join(available())}, e.g. --standard asce7-16 --standard asce7-22",
         )
     return chosen
@@ -108,7 +109,10 @@ def check_editions(standards: Sequence, field_name: str = "standard") -> list:
 
 @dataclass
 class Comparison:
-    """The editions' site results; :meth:`to_json` is ``{site, results, differences, governing}``."""
+    """The editions' site results; :meth:`to_json` is the ``neve compare`` JSON.
+
+    ``{site, results, differences, governing, basis, cautions}`` (docs/contract.md).
+    """
 
     site: dict
     results: list = field(default_factory=list)  # [(Standard, SiteResult, site JSON)]
