@@ -52,9 +52,9 @@ def edition_layers(standard, layers=None, *, field_name: str = "layer") -> list:
     from neve.engine.standards import get_standard
     from neve.geo.layers.model import as_layers
 
-    std = get_standard(standard)
+    std = get_standard(standard)  # with no layers: that edition's demo stack
     demo = layers is None or list(layers) == []
-    given = as_layers(None if demo else list(layers))
+    given = _demo_stack(std) if demo else as_layers(list(layers))
     kept = [ly for ly in given if layer_accepted(std, ly)]
     if demo and not kept:
         given = given + [ly for ly in _other_demo_layers(given) if ly not in given]
@@ -69,6 +69,20 @@ def edition_layers(standard, layers=None, *, field_name: str = "layer") -> list:
             f"{', '.join(std.layer_standards)} (give one --layer per edition)",
         )
     return kept
+
+
+def _demo_stack(std) -> list:
+    """The embedded demo stack of ``std`` (the geo layer model's choice where it makes one)."""
+    from neve.engine.errors import LayerError
+    from neve.geo.layers import model
+
+    pick = getattr(model, "demo_layers_for", None)  # the demo stack per standard, where built
+    if pick is not None:
+        try:
+            return list(pick(std))
+        except LayerError:  # that edition's demo files are not built: the default stack
+            pass
+    return model.demo_layers()
 
 
 def _other_demo_layers(stack) -> list:
