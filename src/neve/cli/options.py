@@ -414,6 +414,23 @@ def standard_option(
     return opt if f is None else opt(f)
 
 
+def layer_standard_option(f):
+    """``--standard ID`` of ``neve site`` and ``neve screen``: default from the governing layer.
+
+    Omitted, the roof standard is the one that takes the governing layer's
+    edition (an ASCE 7-22 layer: asce7-22), else asce7-16; the command
+    receives None then.  Given, a layer of another edition is flagged
+    ``edition_mismatch`` (no roof loads from it).
+    """
+    return standard_option(
+        f,
+        default=None,
+        help="Standard of the roof snow loads (default: the one that takes the governing "
+        "layer's edition, else asce7-16; a layer of another edition than the one given is "
+        "flagged edition_mismatch)",
+    )
+
+
 # --- edition comparison (issue 10) -------------------------------------------------------
 
 

@@ -22,7 +22,7 @@ from neve.cli.options import (
     quiet_option,
     roof_options,
     roofs_from_options,
-    standard_option,
+    layer_standard_option,
 )
 from neve.engine.errors import InputError
 
@@ -85,7 +85,7 @@ def _terminate(signum, frame):  # pragma: no cover - exercised through a subproc
     type=click.Path(dir_okay=False),
     help="Also write the run summary as JSON to this file.",
 )
-@standard_option
+@layer_standard_option
 @compare_option
 def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, tiles, self_contained, engine, scheduler, staging, partitions,
            gazetteer, geocoder_url, geocode_cache, quiet, overwrite, csv_raw, summary_json, standard, map_colour="ground", compare=None, **roof_kw):  # fmt: skip

@@ -16,7 +16,7 @@ from neve.cli.options import (
     overwrite_option,
     roof_from_options,
     roof_options,
-    standard_option,
+    layer_standard_option,
 )
 from neve.engine.errors import InputError
 from neve.engine.jsonsafe import dumps, finite_copy
@@ -56,7 +56,7 @@ def _check_output(path: str | None, field: str, overwrite: bool, is_dir: bool = 
 @click.option("--user-agent", help="User agent sent to the geocoding server.")
 @click.option("--geocoder-timeout", type=float, default=10.0, show_default=True,
               help="Seconds to wait for the geocoding server.")  # fmt: skip
-@standard_option
+@layer_standard_option
 @on_record_option
 def site(**kw) -> None:
     """Ground snow load of a site from zone layers, and roof snow loads when a roof is given.
