@@ -174,9 +174,19 @@ def _check_vector(path: Path, meta: dict, problems: list[dict]) -> int:
     if gdf.crs is None:
         problems.append(_problem("crs", "the layer declares no coordinate reference system"))
     vu, eu = meta.get("value_units", "psf"), meta.get("elevation_units", "ft")
-    zt = ZoneTable.from_frame(gdf, meta.get("quantity", "pg"), vu)
-    problems.extend(zt.problems)  # with invalid geometries (shapely's reason) per zone
-    problems.extend(range_problems(zt, vu, eu))
+    from neve.geo.layers.sidecar import RISK_CATEGORIES, is_per_risk
+
+    # a per-risk layer (ASCE 7-22): each risk category's columns are checked, shared
+    # defects (ids, geometry) once
+    cats = RISK_CATEGORIES if is_per_risk(meta) else (None,)
+    seen: set = set()
+    for cat in cats:
+        zt = ZoneTable.from_frame(gdf, meta.get("quantity", "pg"), vu, cat)
+        for p in [*zt.problems, *range_problems(zt, vu, eu)]:  # with invalid geometries
+            key = (p["kind"], p["zone_id"], p["message"])
+            if key not in seen:
+                seen.add(key)
+                problems.append(p if cat is None else dict(p, risk_category=cat))
     ids = zt.zone_id
     geoms = gdf.geometry.values
     empty = shapely.is_missing(geoms) | shapely.is_empty(geoms)
