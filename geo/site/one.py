@@ -73,7 +73,12 @@ class SiteResult:
     def views(self, radius_m: float = 5000) -> list[dict]:
         """``layer.view(center)`` of every layer used, for the maps."""
         center = (self.site["lat"], self.site["lon"])
-        return [layer.view(center=center, radius_m=radius_m) for layer in self.layers]
+        # the maps draw ground load layers; W2 layers (fractions, not loads) are in ground.w2
+        return [
+            layer.view(center=center, radius_m=radius_m)
+            for layer in self.layers
+            if getattr(layer, "quantity", "pg") != "w2"
+        ]
 
     def to_text(self) -> str:
         """A readable summary for ``--format text``."""
