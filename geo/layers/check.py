@@ -304,6 +304,12 @@ def _check_raster(path: Path, meta: dict, problems: list[dict]) -> int:
     return int(finite.sum())
 
 
+def rasterio_open(path):
+    import rasterio
+
+    return rasterio.open(path)
+
+
 def check_layer(path: str | Path) -> dict:
     """Check a layer file and its sidecar.
 
@@ -326,6 +332,20 @@ def check_layer(path: str | Path) -> dict:
     is_raster = p.suffix.lower() in RASTER_SUFFIXES
     if is_raster:
         count = _check_raster(p, meta, problems)
+        for cat, name in (meta.get("risk_rasters") or {}).items():  # per risk category (7-22)
+            q = p.with_name(name)
+            if not q.is_file():
+                problems.append(_problem("risk_rasters", f"risk category {cat}: {name!r} not found",
+                                         key="risk_rasters", risk_category=cat))  # fmt: skip
+                continue
+            own: list[dict] = []
+            _check_raster(q, dict(meta, study_mask=None), own)
+            with rasterio_open(q) as a, rasterio_open(p) as b:
+                if (a.height, a.width, a.transform, a.crs) != (b.height, b.width, b.transform, b.crs):
+                    own.append(_problem("risk_rasters", f"{name!r} is not on the layer's grid"))
+            for prob in own:
+                prob["message"] = f"risk category {cat} ({name}): {prob['message']}"
+                problems.append(dict(prob, risk_category=cat))
     else:
         if meta.get("study_mask"):
             problems.append(

@@ -384,3 +384,28 @@ def test_demo_site_with_standard_asce7_22_uses_the_722_demo():
                                    "--shape", "flat", "--format", "json"])  # fmt: skip
     d = json.loads(out.output)
     assert d["ground"]["layer"]["standard"] == "ASCE 7-16" and d["roof"]["standard"] == "ASCE 7-16"
+
+
+# ----------------------------------------------------------------- neve layer check
+def test_layer_check_checks_every_category(tmp_path):
+    from neve.geo.layers.check import check_layer
+
+    rows = rows_722()
+    rows[1]["table_III"] = "[[0, 14], [0, 40]]"  # Z2: elevations not increasing in III only
+    path = write_layer(tmp_path / "bad.gpkg", rows, META_722)
+    report = check_layer(path)
+    assert not report["ok"]
+    bad = [p for p in report["problems"] if p["zone_id"] == "Z2"]
+    assert [p["risk_category"] for p in bad] == ["III"]
+    assert "table_III" in bad[0]["message"]
+    assert check_layer(write_layer(tmp_path / "good.gpkg", rows_722(), META_722))["ok"]
+
+
+def test_layer_check_checks_every_category_raster(tmp_path):
+    from neve.geo.layers.check import check_layer
+
+    path = write_risk_rasters(tmp_path)
+    assert check_layer(path)["ok"]
+    _raster(tmp_path / "pg_IV.tif", -5.0)  # category IV holds negative cells
+    report = check_layer(path)
+    assert [p["risk_category"] for p in report["problems"]] == ["IV"]
