@@ -280,20 +280,6 @@ def test_governing_case_without_roof_is_none():
     assert governing_case(None) is None
 
 
-def _demo_has_722() -> bool:
-    from neve.engine.errors import NeveError
-    from neve.geo.site.compare import edition_layers
-
-    try:
-        return bool(edition_layers("asce7-22"))
-    except NeveError:  # no ASCE 7-22 demo layer yet
-        return False
-
-
-@pytest.mark.skipif(
-    not _demo_has_722(),
-    reason="the invented ASCE 7-22 demo layers (issue 10, demo data) are not in geo/demo yet",
-)
 def test_demo_compare_uses_each_editions_demo_layers():
     # Skerrow Island harbour (invented demo site): each edition resolved on its own demo layers
     r = _run("compare", "--at", "47.52,-140.05", "--elevation", "450m", *TWO, *FLAT,
@@ -302,17 +288,17 @@ def test_demo_compare_uses_each_editions_demo_layers():
     data = json.loads(r.stdout)
     for res, title in zip(data["results"], ("ASCE 7-16", "ASCE 7-22"), strict=True):
         assert "demo_data" in res["ground"]["flags"]
-        assert all(x["standard"] == title for x in res["ground"]["layers"] if x["standard"])
-        assert res["roof"] is None or res["roof"]["standard"] == title
+        assert "edition_mismatch" not in res["ground"]["flags"]  # never one edition's map
+        assert res["ground"]["layers"]
+        assert all(x["standard"] == title for x in res["ground"]["layers"])
+        assert res["roof"]["standard"] == title
+    # the 7-22 edition takes its W2 layer too (ground.w2), the 7-16 edition none of it
+    g16, g22 = (r["ground"] for r in data["results"])
+    assert 0.0 <= g22["w2"]["value"] <= 1.0
+    assert g22["w2"]["layer"]["path"] in {x["path"] for x in g22["layers"]}
+    assert g22["w2"]["layer"]["path"] not in {x["path"] for x in g16["layers"]}
     assert data["cautions"][0].startswith("DEMO DATA")
-
-
-def test_demo_without_722_layers_says_which_layers_it_needs():
-    if _demo_has_722():
-        pytest.skip("the demo has ASCE 7-22 layers: covered by the test above")
-    r = _run("compare", "--at", "47.52,-140.05", *TWO, *FLAT)
-    assert r.exit_code == 2
-    assert "error: layer:" in r.stderr and "demo" in r.stderr
+    assert _diff(data, "pg")["ratio"] is not None
 
 
 def test_an_edition_missing_from_the_demo_stack_takes_the_demo_folders_other_layers(
