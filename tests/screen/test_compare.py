@@ -275,3 +275,22 @@ def test_addresses_are_asked_of_the_server_once_for_every_edition(env, monkeypat
     r = run.results.set_index("site_id")
     assert r.loc["a", "site_lat"] == pytest.approx(30.005)
     assert r.loc["a", "design_uniform_ratio"] == pytest.approx(1.3)  # Z1: 26 / 20
+
+
+def test_demo_layers_of_each_edition(tmp_path):
+    # invented Skerrow Island sites (demo = true); no --layer: each edition its own demo layers
+    from pathlib import Path
+
+    sites = Path(__file__).resolve().parents[2] / "examples" / "roofs_on_record.csv"
+    run = run_compare(str(sites), ["asce7-16", "asce7-22"], roof=Roof.from_mapping(ROOF))
+    res = run.results
+    assert run.summary["demo"] is True
+    for (std, one), title in zip(run.runs, ("ASCE 7-16", "ASCE 7-22"), strict=True):
+        sid = std.id
+        assert one.layers and all(ly.demo and ly.meta["standard"] == title for ly in one.layers)
+        flags = res[column_name("flags", sid)].fillna("")
+        assert not flags.str.contains("edition_mismatch").any()
+        assert flags.str.contains("demo_data").all()
+    ratio = res["design_uniform_ratio"].to_numpy(dtype=float)
+    assert run.summary["rises_over_10pct"] == int(np.count_nonzero(ratio > 1.10))
+    assert run.summary["compared"] == int(np.count_nonzero(np.isfinite(ratio)))
