@@ -445,7 +445,7 @@ def _demo_722_stack() -> tuple[Layer, ...]:
     missing = [f for f in DEMO_722_LAYER_FILES if not (DEMO_DIR / f).is_file()]
     if missing:
         raise LayerError(
-            f"the embedded ASCE 7-22 demo data is missing ({', '.join(missing)}); "
+            f"the embedded per-risk demo data (asce7-22) is missing ({', '.join(missing)}); "
             "rebuild it with: python data_recipes/build_demo.py"
         )
     return tuple(load_layer(DEMO_DIR / f) for f in DEMO_722_LAYER_FILES)

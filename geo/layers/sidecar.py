@@ -72,25 +72,39 @@ OPTIONAL = {
 }
 #: risk categories of a per-risk layer, in order
 RISK_CATEGORIES = ("I", "II", "III", "IV")
-#: layer editions whose ``pg`` layers map one value per risk category
-PER_RISK_STANDARDS = ("ASCE 7-22",)
+#: the registered standards (ids of :mod:`neve.engine.standards`) whose ground loads are
+#: mapped once per risk category: a ``pg`` layer of an edition they take (their
+#: ``layer_standards``) carries one value per category
+PER_RISK_STANDARDS = ("asce7-22",)
 #: the unit of a fraction (W2): the only ``value_units`` of a ``w2`` layer
 FRACTION = "fraction"
 #: quantities that are fractions (no value unit)
 FRACTION_QUANTITIES = ("w2",)
 
 
-def _norm_standard(text: str) -> str:
-    return str(text).upper().replace(" ", "").replace("/SEI", "")
+def per_risk_editions() -> tuple[str, ...]:
+    """The layer editions (sidecar ``standard`` strings) mapped per risk category."""
+    from neve.engine.standards import find_standard
+
+    out: list[str] = []
+    for sid in PER_RISK_STANDARDS:
+        std = find_standard(sid)
+        if std is not None:
+            out.extend(std.layer_standards)
+    return tuple(out)
 
 
 def is_per_risk(meta: dict) -> bool:
     """Whether a layer (its validated sidecar) maps ``pg`` once per risk category."""
     if meta.get("quantity", "pg") != "pg":
         return False
-    return _norm_standard(meta.get("standard", "")) in {
-        _norm_standard(s) for s in PER_RISK_STANDARDS
-    }
+    from neve.engine.standards import find_standard
+
+    for sid in PER_RISK_STANDARDS:
+        std = find_standard(sid)
+        if std is not None and std.accepts_layer(str(meta.get("standard", "")), "pg"):
+            return True
+    return False
 #: accepted value units (canonical spelling) and their factor to psf
 VALUE_UNITS = {"psf": 1.0, "kPa": 1.0 / KPA_PER_PSF}
 #: accepted elevation units (canonical spelling) and their factor to ft
@@ -232,7 +246,7 @@ def validate_meta(raw: dict, where: str = "sidecar") -> dict:
     if rr is not None:
         if not is_per_risk(meta):
             raise SidecarError(
-                f"{where} risk_rasters: only a pg layer of {', '.join(PER_RISK_STANDARDS)} maps "
+                f"{where} risk_rasters: only a pg layer of {', '.join(per_risk_editions())} maps "
                 "values per risk category; accepted: no risk_rasters here",
                 "risk_rasters",
             )
