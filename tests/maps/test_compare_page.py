@@ -165,3 +165,13 @@ def test_escaping_of_every_text_from_the_inputs():
     assert "<img" not in html
     assert html.count("&lt;img src=x onerror=alert(1)&gt;{{7*7}}&amp;amp;") >= 7
     assert "1.200" in html and "only in B" in html
+
+
+def test_an_existing_folder_is_refused_before_any_work(tmp_path):
+    out = tmp_path / "pkg"
+    out.mkdir()
+    (out / "keep.txt").write_text("mine", encoding="utf-8")
+    r = CliRunner().invoke(main, ["compare", "--at", AT, *TWO, *FLAT, "--package", str(out)])
+    assert r.exit_code == 2, r.output
+    assert "package" in r.stderr
+    assert [p.name for p in out.iterdir()] == ["keep.txt"]
