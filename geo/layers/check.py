@@ -341,7 +341,12 @@ def check_layer(path: str | Path) -> dict:
             own: list[dict] = []
             _check_raster(q, dict(meta, study_mask=None), own)
             with rasterio_open(q) as a, rasterio_open(p) as b:
-                if (a.height, a.width, a.transform, a.crs) != (b.height, b.width, b.transform, b.crs):
+                if (a.height, a.width, a.transform, a.crs) != (
+                    b.height,
+                    b.width,
+                    b.transform,
+                    b.crs,
+                ):
                     own.append(_problem("risk_rasters", f"{name!r} is not on the layer's grid"))
             for prob in own:
                 prob["message"] = f"risk category {cat} ({name}): {prob['message']}"

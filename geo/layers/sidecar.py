@@ -105,6 +105,8 @@ def is_per_risk(meta: dict) -> bool:
         if std is not None and std.accepts_layer(str(meta.get("standard", "")), "pg"):
             return True
     return False
+
+
 #: accepted value units (canonical spelling) and their factor to psf
 VALUE_UNITS = {"psf": 1.0, "kPa": 1.0 / KPA_PER_PSF}
 #: accepted elevation units (canonical spelling) and their factor to ft
@@ -257,7 +259,7 @@ def validate_meta(raw: dict, where: str = "sidecar") -> dict:
         ):
             raise SidecarError(
                 f"{where} risk_rasters: {rr!r}; accepted: a table of one raster file name per "
-                "risk category, {I = \"pg_I.tif\", II = ..., III = ..., IV = ...}",
+                'risk category, {I = "pg_I.tif", II = ..., III = ..., IV = ...}',
                 "risk_rasters",
             )
         meta["risk_rasters"] = {c: rr[c].strip() for c in RISK_CATEGORIES}

@@ -183,7 +183,9 @@ def run_screen(
     from neve.geo.site.elevation import check_dem_options
 
     check_dem_options(dem, dem_units)  # before any work: a unit without a DEM, or a clash
-    if explicit is not None and (layers is None or (isinstance(layers, (list, tuple)) and not layers)):
+    if explicit is not None and (
+        layers is None or (isinstance(layers, (list, tuple)) and not layers)
+    ):
         from neve.geo.layers.model import demo_layers_for
 
         layers = demo_layers_for(explicit)  # --standard asce7-22: the 7-22 demo layers

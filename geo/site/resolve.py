@@ -449,7 +449,7 @@ def resolve(
     if not ground:
         raise InputError(
             "layer",
-            "only W2 layers (quantity = \"w2\") given",
+            'only W2 layers (quantity = "w2") given',
             "at least one ground snow load layer (quantity pg) beside the W2 layers",
         )
     kw = dict(elevation_ft=elevation_ft, dem=dem, dem_units=dem_units, search_m=search_m,

@@ -90,7 +90,9 @@ FLAG_TABLE: tuple[Flag, ...] = (
     Flag("cell_truncated", 19, "row", "a cell was cut to fit the output format"),
     Flag("exceeds_record", 20, "row", "today's uniform roof load is above the load on record"),
     Flag(
-        "edition_mismatch", 22, "site",
+        "edition_mismatch",
+        22,
+        "site",
         "the governing layer is of another edition than --standard: no roof loads from it",
     ),  # fmt: skip
     Flag("shape_assumed", 24, "roof", "no roof shape given: flat assumed"),
@@ -416,7 +418,9 @@ class Resolution:
             # on request only (not in COLUMNS): the W2 look-up (ASCE 7-22 W2 layers)
             "w2": lambda: self.value("w2"),
             "w2_zone_id": lambda: self.extra.get("w2_zone_id", np.full(len(self), "", object)),
-            "w2_flags": lambda: flags_text(self.extra.get("w2_flags", np.zeros(len(self), np.uint64))),
+            "w2_flags": lambda: flags_text(
+                self.extra.get("w2_flags", np.zeros(len(self), np.uint64))
+            ),
         }
         unknown = [c for c in want if c not in make]
         if unknown:

@@ -184,7 +184,9 @@ def write_risk_rasters(folder, values=(11.0, 22.0, 33.0, 44.0), sidecar=None):
     return main
 
 
-@pytest.mark.parametrize(("cat", "expected"), list(zip(CATS, (11.0, 22.0, 33.0, 44.0), strict=True)))
+@pytest.mark.parametrize(
+    ("cat", "expected"), list(zip(CATS, (11.0, 22.0, 33.0, 44.0), strict=True))
+)
 def test_raster_per_category(tmp_path, cat, expected):
     path = write_risk_rasters(tmp_path)  # cell values 11, 22, 33, 44 psf (written above)
     lat, lon = centre(1, 1)

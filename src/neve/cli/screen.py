@@ -13,6 +13,7 @@ from neve.cli.options import (
     dem_options,
     gazetteer_option,
     geocoder_url_option,
+    layer_standard_option,
     layers_option,
     map_colour_option,
     map_look_options,
@@ -22,7 +23,6 @@ from neve.cli.options import (
     quiet_option,
     roof_options,
     roofs_from_options,
-    layer_standard_option,
 )
 from neve.engine.errors import InputError
 

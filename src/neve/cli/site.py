@@ -9,6 +9,7 @@ from neve.cli.options import (
     format_option,
     gazetteer_option,
     geocoder_url_option,
+    layer_standard_option,
     layers_option,
     map_look_options,
     map_option,
@@ -16,7 +17,6 @@ from neve.cli.options import (
     overwrite_option,
     roof_from_options,
     roof_options,
-    layer_standard_option,
 )
 from neve.engine.errors import InputError
 from neve.engine.jsonsafe import dumps, finite_copy
