@@ -286,6 +286,10 @@ def differences(editions: Sequence[tuple[str, Mapping]]) -> list[dict]:
             by_key.setdefault(key, c)
             if key not in order:
                 order.append(key)
+        for key, c in _governing_drifts(r.get("cases") or []).items():
+            by_key[key] = c
+            if key not in order:
+                order.append(key)
         cases.append(by_key)
     for kind, name in order:
         found = [c.get((kind, name)) for c in cases]
@@ -297,6 +301,28 @@ def differences(editions: Sequence[tuple[str, Mapping]]) -> list[dict]:
             vals = [_case_values(c).get(k) if c else None for c in found]
             out.append(_entry(k, kind, name, ids, vals, refs))
     return out
+
+
+def _governing_drifts(cases) -> dict:
+    """The larger drift at each roof step or adjacent structure, keyed for matching.
+
+    One edition may report a step's leeward and windward drifts as one case
+    (the governing one, ASCE 7-16) and another as two cases (ASCE 7-22); the
+    like-for-like comparison is the drift that governs at that step, so each
+    edition adds a row ``governing drift at <the step>`` holding its larger
+    ``pd`` case.
+    """
+    best: dict = {}
+    for c in cases:
+        if c.get("case") != "drift" or c.get("source") not in ("step", "adjacent"):
+            continue
+        name = str(c.get("name") or "")
+        where = name[name.find(" at ") + 4:] if " at " in name else name
+        key = ("drift", f"governing drift at {where}")
+        pd = ((c.get("pd") or {}).get("psf")) or 0.0
+        if key not in best or pd > ((best[key].get("pd") or {}).get("psf") or 0.0):
+            best[key] = c
+    return best
 
 
 def governing_case(roof: Mapping | None) -> dict | None:

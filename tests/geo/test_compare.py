@@ -357,3 +357,23 @@ def test_difference_and_ratio_property(a, b):
         assert pg["ratio"] is None
     else:
         assert pg["ratio"] == pytest.approx(vb["psf"] / va["psf"], abs=1e-4)
+
+
+def _drift(name, pd):
+    return {"case": "drift", "name": name, "source": "step", "pd": {"psf": pd, "kPa": None},
+            "steps": []}  # fmt: skip
+
+
+def test_step_drifts_are_compared_by_the_governing_drift_at_each_step():
+    # invented case values: one edition reports the governing step drift as one case
+    # (ASCE 7-16 Sec. 7.7.1 form), the other leeward and windward separately (ASCE 7-22)
+    a = {"ground": {}, "roof": {"cases": [_drift("drift at roof step 'hb'", 20.0)]}}
+    b = {"ground": {}, "roof": {"cases": [_drift("leeward drift at roof step 'hb'", 30.0),
+                                          _drift("windward drift at roof step 'hb'", 25.0)]}}  # fmt: skip
+    out = differences([("asce7-16", a), ("asce7-22", b)])
+    row = [d for d in out if d["name"] == "governing drift at roof step 'hb'" and d["quantity"] == "pd"]
+    assert len(row) == 1
+    assert row[0]["values"]["asce7-16"]["psf"] == 20.0
+    assert row[0]["values"]["asce7-22"]["psf"] == 30.0  # the larger of 30 and 25
+    assert row[0]["difference"]["psf"] == pytest.approx(10.0)
+    assert row[0]["ratio"] == pytest.approx(1.5)
