@@ -17,6 +17,17 @@ Outputs (in ``geo/demo/`` unless ``--out`` is given):
     A local amendment of the (invented) town of Port Hallin, in EPSG:4326,
     values in kPa and elevations in m, to stack above the base layer; one of
     its zones is elevation-limited.
+``skerrow_722_pg.gpkg`` (+ ``.toml``)
+    The island's invented ASCE 7-22 ground load layer (``standard = "ASCE
+    7-22"``): the base layer's zones with one value per risk category
+    (``pg_I`` .. ``pg_IV``, ``table_I`` .. ``table_IV``, ``expr_I`` ..
+    ``expr_IV``, ``pg_min_I`` .. ``pg_min_IV``), UTM 7N, psf, ft.  Not in the
+    default demo stack: neve uses it when ``--standard asce7-22`` is asked
+    without ``--layer``.
+``skerrow_722_w2.geojson`` (+ ``.toml``)
+    The island's invented winter wind parameter W2 (``quantity = "w2"``,
+    a fraction, no ``value_units``), EPSG:4326: windward west, sheltered
+    east, and a study area on Cape Gale.
 ``skerrow_dem.tif``
     A synthetic DEM of the island (two summits), UTM 7N, 200 m cells,
     float32 metres (band unit metadata ``metre``), nodata over the sea.
@@ -188,13 +199,107 @@ def build(out: Path = DEFAULT_OUT) -> list[Path]:
     dem_path = out / "skerrow_dem.tif"
     build_dem(dem_path)
     (out / "README.md").write_text(_README, encoding="utf-8")
-    return [base_path, town_path, dem_path]
+    return [base_path, town_path, dem_path, *build_722(out)]
+
+
+#: invented ASCE 7-22 values per zone of the base layer, by risk category I, II, III, IV.
+#: fixed zones: pg [psf]; SK-N: the formula's coefficient on A; SK-H: table values at its points
+PG_722 = {
+    "SK-W": (24.0, 28.0, 32.0, 35.0),
+    "SK-NE": (42.0, 50.0, 56.0, 61.0),
+    "SK-E": (33.0, 39.0, 44.0, 48.0),
+}
+#: SK-N: pg = Zc + slope * max(A - 800, 0) with Zc and slope per category (invented)
+FORMULA_722 = {"I": (27.0, 0.014), "II": (32.0, 0.017), "III": (36.0, 0.019), "IV": (39.0, 0.021)}
+#: SK-H: table [[elevation ft, pg psf], ...] per category (invented)
+TABLE_722 = {
+    "I": [[0, 29], [1000, 39], [2500, 68], [4500, 115]],
+    "II": [[0, 34], [1000, 46], [2500, 80], [4500, 136]],
+    "III": [[0, 38], [1000, 52], [2500, 90], [4500, 152]],
+    "IV": [[0, 42], [1000, 57], [2500, 98], [4500, 166]],
+}
+#: the pg_min floor of SK-N per category [psf] (invented)
+FLOOR_722 = {"I": 29.0, "II": 34.0, "III": 38.0, "IV": 41.0}
+CATEGORIES = ("I", "II", "III", "IV")
+
+
+def build_722(out: Path = DEFAULT_OUT) -> list[Path]:
+    """Write the invented ASCE 7-22 demo layers (pg per risk category; W2) into ``out``."""
+    import json
+
+    import geopandas as gpd
+    from shapely.geometry import box
+
+    os.environ["OGR_CURRENT_DATE"] = "2026-01-01T00:00:00Z"
+    rows = base_zones()
+    data: dict = {"zone_id": [r[0] for r in rows], "rule": [r[1] for r in rows]}
+    data["elev_max"] = [float("nan") if r[3] is None else float(r[3]) for r in rows]
+    for k, cat in enumerate(CATEGORIES):
+        data[f"pg_{cat}"] = [PG_722[r[0]][k] if r[0] in PG_722 else float("nan") for r in rows]
+        data[f"table_{cat}"] = [json.dumps(TABLE_722[cat]) if r[0] == "SK-H" else None
+                                for r in rows]  # fmt: skip
+        data[f"expr_{cat}"] = [
+            f"Zc_{cat} + {FORMULA_722[cat][1]:g} * max(A - 800, 0)" if r[0] == "SK-N" else None
+            for r in rows
+        ]
+        data[f"Zc_{cat}"] = [FORMULA_722[cat][0] if r[0] == "SK-N" else float("nan")
+                             for r in rows]  # fmt: skip
+        data[f"pg_min_{cat}"] = [FLOOR_722[cat] if r[0] == "SK-N" else float("nan")
+                                 for r in rows]  # fmt: skip
+    data["note"] = [r[9] for r in rows]
+    data["source"] = ["Skerrow Island ASCE 7-22 demo map (invented), sheet 1"] * len(rows)
+    gdf = gpd.GeoDataFrame(data, geometry=[r[8] for r in rows], crs=UTM)
+    pg_path = out / "skerrow_722_pg.gpkg"
+    pg_path.unlink(missing_ok=True)
+    gdf.to_file(pg_path, layer="zones", driver="GPKG", engine="pyogrio")
+    _sidecar(
+        pg_path,
+        name="Skerrow Island ASCE 7-22 ground snow loads by risk category (DEMO)",
+        jurisdiction="Skerrow Island Building Office (fictional)",
+        standard="ASCE 7-22",
+        value_units="psf",
+        elevation_units="ft",
+        boundary_tolerance_m=250,
+        notes="Invented strength-level values, one per risk category; never for design.",
+    )
+    big = 40.0
+    w2 = [
+        ("W2-W", "fixed", 0.55, box(-big, -big, -6.0, big), "Windward west (invented)"),
+        ("W2-E", "fixed", 0.42, box(-6.0, -big, big, big), "Sheltered east (invented)"),
+    ]
+    cape = _to_utm(box(-22.5, -10.5, -15.5, -3.5))
+    wgdf = gpd.GeoDataFrame(
+        {
+            "zone_id": [r[0] for r in w2] + ["W2-CAPE"],
+            "rule": [r[1] for r in w2] + ["study"],
+            "w2": [r[2] for r in w2] + [float("nan")],
+            "note": [r[4] for r in w2] + ["Cape Gale: winter wind too variable to map (invented)"],
+            "source": ["Skerrow Island W2 demo map (invented)"] * 3,
+        },
+        geometry=[_to_utm(r[3]).difference(cape) for r in w2] + [cape],
+        crs=UTM,
+    ).to_crs(4326)
+    w2_path = out / "skerrow_722_w2.geojson"
+    w2_path.unlink(missing_ok=True)
+    wgdf.to_file(w2_path, driver="GeoJSON", engine="pyogrio", layer_options={
+        "COORDINATE_PRECISION": 7, "WRITE_NAME": "NO"})  # fmt: skip
+    _sidecar(
+        w2_path,
+        name="Skerrow Island winter wind parameter W2 (DEMO)",
+        jurisdiction="Skerrow Island Building Office (fictional)",
+        standard="ASCE 7-22",
+        quantity="w2",
+        elevation_units="ft",
+        boundary_tolerance_m=250,
+        notes="Invented W2 fractions; never for design.",
+    )
+    return [pg_path, w2_path]
 
 
 def _sidecar(path: Path, **keys) -> None:
     meta = {"name": keys.pop("name"), "jurisdiction": keys.pop("jurisdiction")}
     meta.update(COMMON)
-    meta.update(keys)
+    meta.update(keys)  # e.g. standard = "ASCE 7-22" for the 7-22 demo layers
     import tomli_w
 
     head = "# Sidecar of an invented demo layer: never for design.\n"
@@ -261,6 +366,9 @@ Built by `python data_recipes/build_demo.py` (deterministic).
 
 - `skerrow_base.gpkg`: base layer (UTM 7N, psf, ft), zones of every rule kind
 - `port_hallin_amendment.geojson`: local amendment (EPSG:4326, kPa, m)
+- `skerrow_722_pg.gpkg`: ASCE 7-22 layer, one value per risk category (UTM 7N, psf, ft);
+  used with `--standard asce7-22` when no `--layer` is given
+- `skerrow_722_w2.geojson`: ASCE 7-22 winter wind parameter W2 (EPSG:4326, a fraction)
 - `skerrow_dem.tif`: synthetic DEM (UTM 7N, metres, nodata over the sea)
 """
 

@@ -42,6 +42,8 @@ class RoofResult:
     flags: list[str] = field(default_factory=list)
     not_required: list[dict] = field(default_factory=list)
     cautions: list[str] = field(default_factory=list)
+    #: keys a standard adds to the JSON object (ASCE 7-22: ``w2``, ``seismic_weight``)
+    extra: dict = field(default_factory=dict)
 
     def case(self, kind: str) -> list[dict]:
         """All cases of one kind (``"drift"``, ``"unbalanced"`` ...)."""
@@ -49,7 +51,7 @@ class RoofResult:
 
     def to_json(self) -> dict:
         r = self.roof
-        return {
+        out = {
             "standard": self.standard,
             "pg": load_json(self.pg),
             "roof": {
@@ -68,6 +70,9 @@ class RoofResult:
             "flags": sorted(set(self.flags)),
             "cautions": list(self.cautions),
         }
+        for key, value in self.extra.items():
+            out.setdefault(key, value)
+        return out
 
 
 def _standard(standard):
@@ -76,7 +81,30 @@ def _standard(standard):
     return get_standard(standard)
 
 
-def analyze_roof(pg: float, roof: Roof, *, standard=None) -> RoofResult:
+def _quantities(std, pg, quantities, more) -> dict:
+    """The site quantities by name: ``pg`` first, then ``quantities=`` and keywords (``w2=``).
+
+    A quantity the standard does not take is an InputError naming it; a value
+    of None is "not given" and left out.
+    """
+    out = {std.quantities[0]: pg}
+    for source in (quantities or {}, more):
+        for key, value in source.items():
+            if value is None:
+                continue
+            if key not in std.quantities:
+                from neve.engine.errors import InputError
+
+                raise InputError(
+                    key,
+                    f"{std.title} takes no site quantity {key!r}",
+                    ", ".join(std.quantities),
+                )
+            out[key] = value
+    return out
+
+
+def analyze_roof(pg: float, roof: Roof, *, standard=None, quantities=None, **more) -> RoofResult:
     """Every load case of ``roof`` under ground snow load ``pg``, by ``standard``.
 
     Parameters
@@ -88,6 +116,9 @@ def analyze_roof(pg: float, roof: Roof, *, standard=None) -> RoofResult:
         The roof (see :meth:`Roof.from_mapping`).
     standard : str, optional
         An id or name of a registered standard; the default one when omitted.
+    quantities : mapping, optional
+        Further site quantities by name, e.g. ``{"w2": 0.45}`` for ASCE 7-22
+        (also as keywords: ``w2=0.45``); None values count as not given.
 
     Returns
     -------
@@ -97,10 +128,10 @@ def analyze_roof(pg: float, roof: Roof, *, standard=None) -> RoofResult:
         and cautions.
     """
     std = _standard(standard)
-    return std.analyze({std.quantities[0]: pg}, roof)
+    return std.analyze(_quantities(std, pg, quantities, more), roof)
 
 
-def uniform_loads(pg, roof: Roof, *, standard=None) -> dict:
+def uniform_loads(pg, roof: Roof, *, standard=None, quantities=None, **more) -> dict:
     """Uniform roof loads for many ground snow loads at once (arrays), by ``standard``.
 
     Parameters
@@ -113,6 +144,8 @@ def uniform_loads(pg, roof: Roof, *, standard=None) -> dict:
         One roof for all of them.
     standard : str, optional
         An id or name of a registered standard; the default one when omitted.
+    quantities : mapping, optional
+        Further site quantities (arrays) by name, e.g. ``{"w2": ...}``.
 
     Returns
     -------
@@ -121,7 +154,7 @@ def uniform_loads(pg, roof: Roof, *, standard=None) -> dict:
         ``rain_on_snow`` (0 where it does not apply) and ``design_uniform``.
     """
     std = _standard(standard)
-    return std.uniform({std.quantities[0]: pg}, roof)
+    return std.uniform(_quantities(std, pg, quantities, more), roof)
 
 
 def screening_flags(roof: Roof, *, standard=None) -> list[str]:

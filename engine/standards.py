@@ -56,7 +56,7 @@ __all__ = [
 #: id of the standard used when none is named
 DEFAULT = "asce7-16"
 #: modules that register the standards shipped with neve (imported on first lookup)
-BUILTIN = ("neve.engine.asce7_16.standard",)
+BUILTIN = ("neve.engine.asce7_16.standard", "neve.engine.asce7_22.standard")
 
 _REGISTRY: dict[str, Standard] = {}
 _loaded = False
@@ -346,7 +346,7 @@ def get_standard(name: str | Standard | None = None, field: str = "standard") ->
     >>> get_standard("EN 1991-1-3")
     Traceback (most recent call last):
     ...
-    neve.engine.errors.InputError: standard: 'EN 1991-1-3' is not a standard neve has; accepted: asce7-16
+    neve.engine.errors.InputError: standard: 'EN 1991-1-3' is not a standard neve has; accepted: asce7-16, asce7-22
     """
     std = find_standard(name)
     if std is None:

@@ -169,6 +169,25 @@ def _summary(roof: dict | None) -> list[dict]:
     return rows
 
 
+def _on_record_rows(rec: dict | None) -> list[dict]:
+    """The existing-roof check (``neve site --on-record``) as rows of the summary table."""
+    if not rec:
+        return []
+    ratio = rec.get("load_ratio")
+    if ratio is None:
+        verdict = f"not computed: {rec.get('reason') or 'no design_uniform load'}"
+    else:
+        above = "above the record (exceeds_record)" if rec.get("exceeds_record") else "not above"
+        verdict = f"{ratio:.3f}: {above}"
+    ref = "neve existing-roof check: uniform loads only, drifts not included"
+    return [
+        {"label": "Roof snow load on record", "value": style.load_text(rec.get("load")),
+         "ref": "as given (--on-record)", "governing": False},
+        {"label": "Load ratio (design_uniform / load on record)", "value": verdict,
+         "ref": ref, "governing": False},
+    ]  # fmt: skip
+
+
 def _provenance(ground: dict) -> list[tuple[str, str]]:
     layer = ground.get("layer") or {}
     rows = [
@@ -209,6 +228,7 @@ def write_package(
     project: str | None = None,
     site_name: str | None = None,
     overwrite: bool = False,
+    comparison: dict | None = None,
 ) -> dict[str, Path]:
     """Write the calculation package folder.
 
@@ -225,13 +245,16 @@ def write_package(
         Override the project and site names of ``site_json``.
     overwrite : bool
         Replace an existing package folder.
+    comparison : dict, optional
+        The ``neve compare`` JSON: adds ``comparison.json`` and the edition
+        comparison page to the report (:mod:`neve.maps.compare_page`).
 
     Returns
     -------
     dict
         ``report_html``, ``report_pdf``, ``site_json``, ``site_map``,
-        ``static_png``, ``static_svg`` and ``diagram:<case name>`` -> path
-        (paths inside the final folder).
+        ``static_png``, ``static_svg``, ``diagram:<case name>`` and, with
+        ``comparison``, ``comparison_json`` -> path (paths inside the final folder).
     """
     from weasyprint import HTML
 
@@ -277,7 +300,7 @@ def write_package(
             "factors": _factors(data.get("roof")),
             "roof_rows": _roof_rows(data.get("roof")),
             "not_required": list((data.get("roof") or {}).get("not_required") or []),
-            "summary": _summary(data.get("roof")),
+            "summary": _summary(data.get("roof")) + _on_record_rows(data.get("on_record")),
             "provenance": _provenance(ground),
             "ground_steps": list(ground.get("steps") or []),
             "static_map": _data_uri(png),
@@ -285,6 +308,17 @@ def write_package(
             "cases": _cases(data.get("roof"), diagrams),
         }
         html = render("report.html.j2", **ctx)
+        if comparison is not None:  # the edition comparison page, last (neve compare --package)
+            from neve.maps.compare_page import comparison_html
+
+            cmp = copy.deepcopy(comparison)
+            for key in ("project", "name"):
+                cmp["site"][key] = data["site"].get(key)
+            files["comparison_json"] = safe_write.write_text(
+                tmp / "comparison.json", json.dumps(cmp, indent=2, ensure_ascii=False) + "\n"
+            )
+            head, _, tail = html.rpartition("</body>")
+            html = f"{head}{comparison_html(cmp)}</body>{tail}"
         files["report_html"] = safe_write.write_text(tmp / "report.html", html)
         pdf = HTML(string=html, url_fetcher=_offline_fetcher(), base_url=str(tmp)).write_pdf()
         files["report_pdf"] = safe_write.write_bytes(tmp / "report.pdf", pdf)

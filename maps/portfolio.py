@@ -39,6 +39,22 @@ STATUS_SYMBOLS = {
     "error": ("error", "error in the row (crossed square)"),
 }
 
+#: what ``--map-colour`` may name
+MAP_COLOURS = ("ground", "ratio")
+RATIO_NEEDS = (
+    "a site file with a snow_load_on_record column, screened with a roof; or --map-colour ground"
+)
+RATIO_HEADING = "Load ratio: today's design_uniform / load on record"
+#: fills of :data:`neve.engine.on_record.RATIO_BANDS` (neve's own): blues at or below 1.0,
+#: amber to deep red above it
+RATIO_BAND_COLOURS = ("#3b78a8", "#a3d6d3", "#f4c542", "#e8590c", "#a61e1e")
+NO_RATIO_COLOUR = "#c8c8c8"
+NO_RATIO_LABEL = "no ratio (no load on record, no roof, or no usable ground load)"
+#: the popup lines of a ratio map, first
+RATIO_POPUP = ("load_ratio", "on_record_psf", "design_uniform_psf")
+#: decimals of those popup lines
+RATIO_POPUP_DECIMALS = {"load_ratio": 3, "on_record_psf": 2, "design_uniform_psf": 2}
+
 #: longest text a popup shows per field [characters]; longer text is cut with an ellipsis
 POPUP_TEXT_LIMITS = {"site_id": 80, "zone": 60, "flags": 160, "message": 240, "extra": 40}
 
@@ -137,6 +153,14 @@ def _clean(v, limit: int = 240) -> str:
     return text if len(text) <= limit else text[: limit - 1] + "\u2026"
 
 
+def _rounded(v, column: str):
+    """The ratio map's own popup numbers, rounded for reading (other cells as they are)."""
+    digits = RATIO_POPUP_DECIMALS.get(column)
+    if digits is None or isinstance(v, bool) or not isinstance(v, (int, float)):
+        return v
+    return "" if not math.isfinite(v) else f"{v:.{digits}f}"
+
+
 def _layer_class():
     from folium.elements import JSCSSMixin
     from folium.plugins import MarkerCluster
@@ -165,6 +189,7 @@ def write_portfolio_map(
     tiles: str = "none",
     self_contained: bool = False,
     overwrite: bool = False,
+    colour: str = "ground",
 ) -> Path:
     """Write the clustered portfolio map of screening results.
 
@@ -185,6 +210,11 @@ def write_portfolio_map(
         Inline every script and stylesheet so the page works offline.
     overwrite : bool
         Replace an existing file (otherwise an ``InputError``, before any work).
+    colour : {"ground", "ratio"}
+        What colours the sites: bands of the ground snow load (default), or
+        bands of ``load_ratio`` (today's ``design_uniform`` / the load on record,
+        :data:`neve.engine.on_record.RATIO_BANDS`; needs a ``load_ratio``
+        column); sites above 1.0 are those flagged ``exceeds_record``.
 
     Returns
     -------
@@ -193,9 +223,15 @@ def write_portfolio_map(
     import numpy as np
     import pandas as pd
 
+    from neve.engine.choices import choose_key
+
+    colour = choose_key("map-colour", colour, MAP_COLOURS)
     out = leaflet.check_path(path, "map", overwrite=overwrite)
     if not isinstance(results, pd.DataFrame):
         raise InputError("results", f"got {type(results).__name__}", "a pandas DataFrame")
+    if colour == "ratio" and "load_ratio" not in results.columns:
+        raise InputError("map-colour", "'ratio' given, but the results have no load_ratio "
+                         "column", RATIO_NEEDS)  # fmt: skip
     if "site_id" not in results.columns:  # optional in site files: number the rows
         results = results.assign(site_id=[f"row {i + 1}" for i in range(len(results))])
     missing = [c for c in REQUIRED if c not in results.columns]
@@ -233,6 +269,9 @@ def write_portfolio_map(
         {"cls": "error", "fill": "#fff", "flagged": True, "label": "error"},
     ]
     band = np.array([style.portfolio_band(v) for v in pg], dtype=int)
+    ratio_note = None
+    if colour == "ratio":  # the same codes, with the ratio's bands in place of pg's
+        codes, nb, special, band, ratio_note = _ratio_codes(results)
     code = np.full(n_total, special["error"], dtype=int)
     is_ok = status == "ok"
     is_prov = status == "provisional"
@@ -242,11 +281,14 @@ def write_portfolio_map(
     code[status == "study_required"] = special["study_required"]
     code[status == "no_data"] = special["no_data"]
 
-    notes = []
+    notes = [ratio_note] if ratio_note else []
     keep = placeable.copy()
     if (~placeable).sum():
         notes.append(f"{int((~placeable).sum())} site(s) without usable coordinates are not drawn.")
-    plain = keep & (code < nb)  # status ok with a value: the only rows ever sampled
+    flagged_code = np.array([c["flagged"] for c in codes], dtype=bool)
+    # status ok with a value (and, colouring by ratio, not above the record): the only rows
+    # ever sampled
+    plain = keep & (code < nb) & ~flagged_code[code]
     n_keep = int(keep.sum())
     if n_keep > MAX_POINTS:
         rng = np.random.default_rng(0)
@@ -269,6 +311,9 @@ def write_portfolio_map(
         for c in results.columns
         if (c.startswith("roof_") or (c.endswith("_psf") and c != "pg_psf"))
     ][:4]
+    if colour == "ratio":  # what the colour means comes first in the popups
+        first = [c for c in RATIO_POPUP if c in results.columns]
+        extra_cols = first + [c for c in extra_cols if c not in first][: max(0, 4 - len(first))]
     statuses = sorted(set(status.tolist()))
     s_index = {s: i for i, s in enumerate(statuses)}
     sub = results.iloc[rows]
@@ -290,7 +335,8 @@ def write_portfolio_map(
         "message": message,
         "extra_names": [c.replace("_", " ") for c in extra_cols],
         "extra": [
-            [_clean(v, POPUP_TEXT_LIMITS["extra"]) for v in sub[c].tolist()] for c in extra_cols
+            [_clean(_rounded(v, c), POPUP_TEXT_LIMITS["extra"]) for v in sub[c].tolist()]
+            for c in extra_cols
         ],
     }
 
@@ -308,19 +354,31 @@ def write_portfolio_map(
     )
     layer = _layer_class()(payload)
     layer.add_to(m)
-    leaflet.add_html(m, _legend_html(counts, n_total, len(rows), notes), "neve_legend")
+    legend = _legend_html(counts, n_total, len(rows), notes, colour=colour)
+    leaflet.add_html(m, legend, "neve_legend")
     return leaflet.finish(
         m, out, overwrite=overwrite, self_contained=self_contained, elements=[layer], cluster=True
     )
 
 
-def _legend_html(counts: Counter, n_total: int, n_drawn: int, notes: list[str]) -> str:
+def _legend_html(
+    counts: Counter, n_total: int, n_drawn: int, notes: list[str], colour: str = "ground"
+) -> str:
     from neve.maps.templating import render
 
     bands = [
         {"label": label, "colour": style.PORTFOLIO_BAND_COLOURS[i]}
         for i, (_, label) in enumerate(style.PORTFOLIO_BANDS_PSF)
     ]
+    heading = None
+    if colour == "ratio":
+        from neve.engine.on_record import RATIO_BANDS
+
+        heading = RATIO_HEADING
+        bands = [
+            {"label": label, "colour": RATIO_BAND_COLOURS[i], "cls": f"neve-ratio-{i}"}
+            for i, (_, label) in enumerate(RATIO_BANDS)
+        ] + [{"label": NO_RATIO_LABEL, "colour": NO_RATIO_COLOUR, "cls": "neve-ratio-none"}]
     symbols = [
         {"cls": cls, "label": text, "count": counts.get(key, 0)}
         for key, (cls, text) in STATUS_SYMBOLS.items()
@@ -335,7 +393,42 @@ def _legend_html(counts: Counter, n_total: int, n_drawn: int, notes: list[str]) 
         n_drawn=n_drawn,
         notes=notes,
         cautions=list(DEFAULT_CAUTIONS),
+        heading=heading,
     )
+
+
+def _ratio_codes(results):
+    """Symbol codes by band of ``load_ratio``: (codes, bands, special codes, band per row, note)."""
+    import numpy as np
+    import pandas as pd
+
+    from neve.engine.on_record import RATIO_BANDS, ratio_band
+
+    ratio = pd.to_numeric(results["load_ratio"], errors="coerce").to_numpy(dtype=float)
+    nb = len(RATIO_BANDS) + 1  # the last one: no ratio (no load on record, no roof, no value)
+    labels = [label for _, label in RATIO_BANDS] + [NO_RATIO_LABEL]
+    fills = [*RATIO_BAND_COLOURS, NO_RATIO_COLOUR]
+    above = {i for i, (upper, _) in enumerate(RATIO_BANDS) if upper > 1.0}
+    codes = []
+    for prov in (False, True):
+        for i, label in enumerate(labels):
+            codes.append({"cls": "provisional" if prov else "ok", "fill": fills[i],
+                          "flagged": prov or i in above, "label": label})  # fmt: skip
+    special = {"study_required": 2 * nb, "no_data": 2 * nb + 1, "error": 2 * nb + 2}
+    codes += [
+        {"cls": "study_required", "fill": "#fff", "flagged": True, "label": "study"},
+        {"cls": "no_data", "fill": "#fff", "flagged": True, "label": "no data"},
+        {"cls": "error", "fill": "#fff", "flagged": True, "label": "error"},
+    ]
+    band = ratio_band(ratio)
+    n_above = int(np.isin(band, sorted(above)).sum())
+    band = np.where(band < 0, nb - 1, band)  # drawn, in grey: never hidden as "no data"
+    note = (
+        f"Colour: load_ratio = today's design_uniform / snow_load_on_record (uniform loads "
+        f"only; drifts not included). {n_above:,} site(s) above 1.0 (exceeds_record): have "
+        "those roofs reviewed by a licensed design professional."
+    )
+    return codes, nb, special, band, note
 
 
 def screen_view(results):

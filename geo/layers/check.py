@@ -174,9 +174,19 @@ def _check_vector(path: Path, meta: dict, problems: list[dict]) -> int:
     if gdf.crs is None:
         problems.append(_problem("crs", "the layer declares no coordinate reference system"))
     vu, eu = meta.get("value_units", "psf"), meta.get("elevation_units", "ft")
-    zt = ZoneTable.from_frame(gdf, meta.get("quantity", "pg"), vu)
-    problems.extend(zt.problems)  # with invalid geometries (shapely's reason) per zone
-    problems.extend(range_problems(zt, vu, eu))
+    from neve.geo.layers.sidecar import RISK_CATEGORIES, is_per_risk
+
+    # a per-risk layer (ASCE 7-22): each risk category's columns are checked, shared
+    # defects (ids, geometry) once
+    cats = RISK_CATEGORIES if is_per_risk(meta) else (None,)
+    seen: set = set()
+    for cat in cats:
+        zt = ZoneTable.from_frame(gdf, meta.get("quantity", "pg"), vu, cat)
+        for p in [*zt.problems, *range_problems(zt, vu, eu)]:  # with invalid geometries
+            key = (p["kind"], p["zone_id"], p["message"])
+            if key not in seen:
+                seen.add(key)
+                problems.append(p if cat is None else dict(p, risk_category=cat))
     ids = zt.zone_id
     geoms = gdf.geometry.values
     empty = shapely.is_missing(geoms) | shapely.is_empty(geoms)
@@ -294,6 +304,12 @@ def _check_raster(path: Path, meta: dict, problems: list[dict]) -> int:
     return int(finite.sum())
 
 
+def rasterio_open(path):
+    import rasterio
+
+    return rasterio.open(path)
+
+
 def check_layer(path: str | Path) -> dict:
     """Check a layer file and its sidecar.
 
@@ -316,6 +332,25 @@ def check_layer(path: str | Path) -> dict:
     is_raster = p.suffix.lower() in RASTER_SUFFIXES
     if is_raster:
         count = _check_raster(p, meta, problems)
+        for cat, name in (meta.get("risk_rasters") or {}).items():  # per risk category (7-22)
+            q = p.with_name(name)
+            if not q.is_file():
+                problems.append(_problem("risk_rasters", f"risk category {cat}: {name!r} not found",
+                                         key="risk_rasters", risk_category=cat))  # fmt: skip
+                continue
+            own: list[dict] = []
+            _check_raster(q, dict(meta, study_mask=None), own)
+            with rasterio_open(q) as a, rasterio_open(p) as b:
+                if (a.height, a.width, a.transform, a.crs) != (
+                    b.height,
+                    b.width,
+                    b.transform,
+                    b.crs,
+                ):
+                    own.append(_problem("risk_rasters", f"{name!r} is not on the layer's grid"))
+            for prob in own:
+                prob["message"] = f"risk category {cat} ({name}): {prob['message']}"
+                problems.append(dict(prob, risk_category=cat))
     else:
         if meta.get("study_mask"):
             problems.append(

@@ -23,12 +23,17 @@ import numpy as np
 from neve.engine.errors import LayerError
 from neve.engine.units import FT_PER_M, KPA_PER_PSF
 from neve.geo.layers.rules import RULE_CODE, ZoneTable
-from neve.geo.layers.sidecar import read_sidecar, sidecar_path
+from neve.geo.layers.sidecar import RISK_CATEGORIES, is_per_risk, read_sidecar, sidecar_path
 
 DEMO_DIR = Path(__file__).resolve().parent.parent / "demo"
 #: the embedded demo stack, most local first
 DEMO_LAYER_FILES = ("port_hallin_amendment.geojson", "skerrow_base.gpkg")
 DEMO_DEM_FILE = "skerrow_dem.tif"
+#: the embedded, invented ASCE 7-22 demo stack (per risk category, and W2), most local first;
+#: used when ``--standard asce7-22`` is asked with no ``--layer`` (:func:`demo_layers_for`)
+DEMO_722_LAYER_FILES = ("skerrow_722_pg.gpkg", "skerrow_722_w2.geojson")
+#: the risk category a per-risk layer gives when none is asked (the common building)
+DEFAULT_RISK = "II"
 RASTER_SUFFIXES = (".tif", ".tiff", ".gtiff")
 VECTOR_SUFFIXES = (".gpkg", ".geojson", ".json", ".shp", ".fgb")
 _SHAPEFILE_PARTS = (".shp", ".shx", ".dbf", ".prj", ".cpg")
@@ -42,6 +47,16 @@ def file_sha256(path: str | Path) -> str:
         parts = [q for q in (p.with_suffix(s) for s in _SHAPEFILE_PARTS) if q.is_file()]
     h = hashlib.sha256()
     for q in parts:
+        with open(q, "rb") as fh:
+            for chunk in iter(lambda: fh.read(1 << 20), b""):
+                h.update(chunk)
+    return h.hexdigest()
+
+
+def _files_sha256(paths) -> str:
+    """One SHA-256 over several files, in order (a per-risk raster layer's data)."""
+    h = hashlib.sha256()
+    for q in paths:
         with open(q, "rb") as fh:
             for chunk in iter(lambda: fh.read(1 << 20), b""):
                 h.update(chunk)
@@ -90,17 +105,60 @@ class Layer:
     def __init__(self, path: str | Path, meta: dict, *, frame=None, raster=None):
         self.path = Path(path)
         self.meta = meta
-        self.sha256 = file_sha256(self.path)
         self.is_raster = raster is not None
+        self.per_risk = is_per_risk(meta)
+        #: the risk category whose values this layer gives (None: one value for all)
+        self.risk = DEFAULT_RISK if self.per_risk else None
+        if self.is_raster and raster.get("risk_paths"):
+            # one hash over the layer file and its per-category rasters (in category order)
+            self.sha256 = _files_sha256([self.path, *raster["risk_paths"].values()])
+        else:
+            self.sha256 = file_sha256(self.path)
         self.demo = bool(meta["demo"])
         self.frame = frame  # GeoDataFrame in the layer's CRS (vector layers)
         self.raster = raster  # dict of raster properties (raster layers)
+        if self.is_raster and raster.get("risk_paths"):
+            self.raster = dict(raster, data=raster["risk_paths"][DEFAULT_RISK])
         self.zones = (
-            ZoneTable.from_frame(frame, meta["quantity"], meta["value_units"])
+            ZoneTable.from_frame(frame, meta["quantity"], meta["value_units"], self.risk)
             if frame is not None
             else None
         )
         self._cache: dict = {}
+        self._risk_views: dict = {}
+
+    @property
+    def quantity(self) -> str:
+        return str(self.meta.get("quantity", "pg"))
+
+    def for_risk(self, category: str | None) -> Layer:
+        """This layer giving the values of risk ``category`` (``"I"`` .. ``"IV"``).
+
+        A layer that maps one value for every category (ASCE 7-16, a W2 layer)
+        returns itself.  The view shares the layer's geometry and caches.
+        """
+        if not self.per_risk or category is None:
+            return self
+        from neve.engine.choices import choose_key
+
+        cat = choose_key("risk", str(category).upper(), RISK_CATEGORIES)
+        if cat == self.risk:
+            return self
+        views = self.__dict__.setdefault("_risk_views", {})
+        if cat not in views:
+            view = object.__new__(Layer)
+            view.__dict__.update(self.__dict__)
+            view._risk_views = views
+            view.risk = cat
+            if self.is_raster:
+                view.raster = dict(self.raster, data=self.raster["risk_paths"][cat])
+            else:
+                view.zones = ZoneTable.from_frame(
+                    self.frame, self.meta["quantity"], self.meta["value_units"], cat
+                )
+            views[cat] = view
+            views.setdefault(self.risk, self)
+        return views[cat]
 
     # --- naming -------------------------------------------------------------
     @property
@@ -114,7 +172,7 @@ class Layer:
     @property
     def to_psf(self) -> float:
         """Factor from the layer's value units to psf."""
-        return 1.0 if self.meta["value_units"] == "psf" else 1.0 / KPA_PER_PSF
+        return 1.0 / KPA_PER_PSF if self.meta["value_units"] == "kPa" else 1.0
 
     @property
     def crs(self):
@@ -134,6 +192,7 @@ class Layer:
         """
         state = self.__dict__.copy()
         state["_cache"] = {}
+        state["_risk_views"] = {}
         return state
 
     def info(self) -> dict:
@@ -379,6 +438,42 @@ def _demo_stack() -> tuple[Layer, ...]:
 def demo_layers() -> list[Layer]:
     """The embedded, invented demo layer stack, most local first (``demo = true``)."""
     return list(_demo_stack())
+
+
+@functools.lru_cache(maxsize=1)
+def _demo_722_stack() -> tuple[Layer, ...]:
+    missing = [f for f in DEMO_722_LAYER_FILES if not (DEMO_DIR / f).is_file()]
+    if missing:
+        raise LayerError(
+            f"the embedded per-risk demo data (asce7-22) is missing ({', '.join(missing)}); "
+            "rebuild it with: python data_recipes/build_demo.py"
+        )
+    return tuple(load_layer(DEMO_DIR / f) for f in DEMO_722_LAYER_FILES)
+
+
+def demo_722_layers() -> list[Layer]:
+    """The embedded, invented ASCE 7-22 demo stack: pg per risk category, then W2 (``demo = true``)."""
+    return list(_demo_722_stack())
+
+
+def demo_layers_for(standard=None) -> list[Layer]:
+    """The demo stack for the roof standard ``standard`` (None: the default demo, ASCE 7-16).
+
+    A standard the default demo layers do not feed (ASCE 7-22) gets its own
+    invented demo layers when neve has them; otherwise the default demo stack.
+    """
+    stack = demo_layers()
+    if standard is None:
+        return stack
+    from neve.engine.standards import get_standard
+
+    std = get_standard(standard)
+    if any(std.accepts_layer(ly.meta["standard"], ly.quantity) for ly in stack):
+        return stack
+    other = demo_722_layers()
+    if any(std.accepts_layer(ly.meta["standard"], ly.quantity) for ly in other):
+        return other
+    return stack
 
 
 def demo_dem_path() -> Path:

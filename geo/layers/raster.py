@@ -66,7 +66,32 @@ def open_raster_layer(path: Path, meta: dict) -> dict:
                 "accepted: a mask with the same size, transform and CRS"
             )
         props["mask"] = mask
+    if meta.get("risk_rasters"):
+        paths = {}
+        for cat, name in meta["risk_rasters"].items():
+            q = path.with_name(name)
+            if not q.is_file():
+                raise LayerError(
+                    f"risk_rasters {cat}: {name!r} not found beside {path.name!r}; "
+                    "accepted: one raster file per risk category in the layer's folder"
+                )
+            with rasterio.open(q) as rs:
+                same = (rs.width, rs.height, rs.transform, rs.crs) == (
+                    props["width"], props["height"], t, props["crs"],
+                )  # fmt: skip
+            if not same:
+                raise LayerError(
+                    f"risk_rasters {cat}: {name!r} is not on the grid of {path.name!r}; "
+                    "accepted: rasters with the same size, transform and CRS"
+                )
+            paths[cat] = q
+        props["risk_paths"] = paths
     return props
+
+
+def data_path(layer) -> Path:
+    """The raster whose cells give the layer's values (the risk category's, per-risk layers)."""
+    return Path(layer.raster.get("data") or layer.path)
 
 
 def _cell_metres(layer, lat: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
@@ -126,7 +151,7 @@ def raster_hits(layer, lon, lat, search_m: float | None = None) -> Hits:
     c1 = int(min(cols[near_grid].max() + K + 1, W))
     if r1 <= r0 or c1 <= c0:
         return h
-    band = _read_window(layer.path, r0, r1, c0, c1)
+    band = _read_window(data_path(layer), r0, r1, c0, c1)
     vals = np.ma.filled(band.astype(float), np.nan)
     study = np.zeros(vals.shape, dtype=bool)
     if props["mask"] is not None:
@@ -194,7 +219,7 @@ def cell_errors(layer, zone_id: np.ndarray) -> np.ndarray:
         text = str(zid).removeprefix("cell:")
         out.append(
             f"The grid cell of layer {layer.name!r} at this site holds {text} {vu}, which is not "
-            f"a ground snow load (accepted: 0 to {limit:.4g} {vu})."
+            f"a plausible {layer.meta.get('quantity', 'pg')} value (accepted: 0 to {limit:.4g} {vu})."
         )
     return np.array(out, dtype=object)
 
@@ -212,7 +237,7 @@ def raster_view(layer, center, radius_m: float):
     from rasterio.windows import from_bounds
 
     props = layer.raster
-    with rasterio.open(layer.path) as ds:
+    with rasterio.open(data_path(layer)) as ds:
         if center is None:
             window = rasterio.windows.Window(0, 0, ds.width, ds.height)
         else:

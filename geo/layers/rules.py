@@ -60,6 +60,9 @@ NUMERIC = 6  #: the rule gave no finite number from 0 to the plausibility bound 
 
 #: columns with a meaning of their own (never treated as formula variables)
 RESERVED = {"zone_id", "rule", "table", "expr", "source", "note", "geometry"}
+#: per risk category (ASCE 7-22 layers), the table and expression columns are ``table_<cat>``
+#: and ``expr_<cat>``: text, never formula variables
+RESERVED |= {f"{c}_{k}" for c in ("table", "expr") for k in ("I", "II", "III", "IV")}
 
 
 class LayerValueError(LayerError, ValueError):
@@ -162,9 +165,18 @@ class ZoneTable:
 
     @classmethod
     def from_frame(
-        cls, df: pd.DataFrame, quantity: str = "pg", value_units: str = "psf"
+        cls,
+        df: pd.DataFrame,
+        quantity: str = "pg",
+        value_units: str = "psf",
+        category: str | None = None,
     ) -> ZoneTable:
         """Parse the attribute table of a vector layer (geometry column ignored).
+
+        ``category`` (a risk category, ``"I"`` .. ``"IV"``, for a layer that maps
+        one value per category, e.g. ASCE 7-22): the rules read the columns of that
+        category, ``<quantity>_<cat>`` (``pg_III``), ``table_<cat>``, ``expr_<cat>``
+        and ``pg_min_<cat>``; ``zone_id``, ``rule`` and ``elev_max`` are shared.
 
         Values above :func:`plausible_limit` (2000 psf, 95.8 kPa) are defects:
         no mapped ground snow load comes near them, so such a value is a unit
@@ -209,9 +221,12 @@ class ZoneTable:
             problems.append(
                 {"kind": "missing_column", "zone_id": None, "message": "no rule column"}
             )
-        raw_rules, raw_vals = get("rule"), get(quantity)
-        raw_emax, raw_min = get("elev_max"), get("pg_min")
-        raw_tab, raw_expr = get("table"), get("expr")
+        sfx = f"_{category}" if category else ""
+        value_col, min_col = f"{quantity}{sfx}", f"pg_min{sfx}"
+        table_col, expr_col = f"table{sfx}", f"expr{sfx}"
+        raw_rules, raw_vals = get("rule"), get(value_col)
+        raw_emax, raw_min = get("elev_max"), get(min_col)
+        raw_tab, raw_expr = get(table_col), get(expr_col)
         for j in range(n):
             label = ids[j] or f"row {j}"
             if not ids[j]:
@@ -232,20 +247,20 @@ class ZoneTable:
                 )
                 continue
             rules[j] = RULE_CODE[name]
-            for raw, arr, col in ((raw_emax, elev_max, "elev_max"), (raw_min, pg_min, "pg_min")):
+            for raw, arr, col in ((raw_emax, elev_max, "elev_max"), (raw_min, pg_min, min_col)):
                 try:
                     x = _opt_float(raw[j])
                 except (TypeError, ValueError):
                     problem(j, "parameter", f"zone {label}: {col} {raw[j]!r} is not a number")
                     continue
-                if not math.isnan(x) and (not math.isfinite(x) or (col == "pg_min" and x < 0)):
+                if not math.isnan(x) and (not math.isfinite(x) or (col == min_col and x < 0)):
                     problem(j, "parameter", f"zone {label}: {col} {raw[j]!r} is out of range")
                     continue
-                if col == "pg_min" and x > limit:
+                if col == min_col and x > limit:
                     problem(
                         j,
                         "implausible_value",
-                        f"zone {label}: pg_min {raw[j]!r} {value_units} is implausibly large "
+                        f"zone {label}: {min_col} {raw[j]!r} {value_units} is implausibly large "
                         f"(accepted: 0 to {limit:.4g} {value_units}); check the value and its units",
                     )
                     continue
@@ -260,13 +275,13 @@ class ZoneTable:
                         j,
                         "parameter",
                         f"zone {label}: rule fixed needs a value of zero or more in column "
-                        f"{quantity!r}, found {raw_vals[j]!r}",
+                        f"{value_col!r}, found {raw_vals[j]!r}",
                     )
                 elif x > limit:
                     problem(
                         j,
                         "implausible_value",
-                        f"zone {label}: {quantity} {raw_vals[j]!r} {value_units} is implausibly "
+                        f"zone {label}: {value_col} {raw_vals[j]!r} {value_units} is implausibly "
                         f"large (above {limit:.4g} {value_units}); check the value and its units",
                     )
                 else:
@@ -275,7 +290,8 @@ class ZoneTable:
                 try:
                     tables[j] = parse_table(raw_tab[j])
                 except ValueError as exc:
-                    problem(j, "table", f"zone {label}: {exc}")
+                    where = f" (column {table_col})" if category else ""
+                    problem(j, "table", f"zone {label}: {exc}{where}")
                     continue
                 if np.any(tables[j][1] > limit):
                     problem(
@@ -288,7 +304,8 @@ class ZoneTable:
                 try:
                     expr = compile_expr(_clean_text(raw_expr[j]))
                 except ExpressionError as exc:
-                    problem(j, "expression", f"zone {label}: {exc}")
+                    where = f" (column {expr_col})" if category else ""
+                    problem(j, "expression", f"zone {label}: {exc}{where}")
                     continue
                 unknown = sorted(expr.names - {"A"} - set(numeric))
                 if unknown:
@@ -354,6 +371,8 @@ def plausible_limit(value_units: str) -> float:
     """The largest plausible mapped value in a layer's value units."""
     from neve.engine.units import KPA_PER_PSF
 
+    if value_units == "fraction":  # W2: a fraction from 0 to 1
+        return 1.0
     return PG_MAX_PSF * KPA_PER_PSF if value_units == "kPa" else PG_MAX_PSF
 
 

@@ -25,8 +25,21 @@ key                       required  meaning
 ``demo``                  no        default false; true for invented data
 ``quantity``              no        default ``"pg"`` (the column holding the value)
 ``study_mask``            no        raster only: companion mask file, nonzero = study
+``risk_rasters``          no        raster ``pg`` layer of a per-risk edition (ASCE 7-22):
+                                    a table ``{I = "file", II = ..., III = ..., IV = ...}``
+                                    of one raster per risk category, beside the layer file
 ``notes``                 no        free text
 ========================  ========  ==============================================
+
+Per risk category (ASCE 7-22).  A ``pg`` layer whose ``standard`` is one of
+:data:`PER_RISK_STANDARDS` maps one value per risk category
+(:data:`RISK_CATEGORIES`): vector columns ``pg_I`` .. ``pg_IV`` (and
+``table_<cat>``, ``expr_<cat>``, ``pg_min_<cat>`` for the other rule kinds),
+or, for a raster layer, ``risk_rasters``.
+
+W2 layers.  A layer with ``quantity = "w2"`` maps the winter wind parameter
+W2, a fraction from 0 to 1: its sidecar needs no ``value_units`` (when given,
+it must be ``"fraction"``).
 """
 
 from __future__ import annotations
@@ -54,8 +67,46 @@ OPTIONAL = {
     "demo": False,
     "quantity": "pg",
     "study_mask": None,
+    "risk_rasters": None,
     "notes": "",
 }
+#: risk categories of a per-risk layer, in order
+RISK_CATEGORIES = ("I", "II", "III", "IV")
+#: the registered standards (ids of :mod:`neve.engine.standards`) whose ground loads are
+#: mapped once per risk category: a ``pg`` layer of an edition they take (their
+#: ``layer_standards``) carries one value per category
+PER_RISK_STANDARDS = ("asce7-22",)
+#: the unit of a fraction (W2): the only ``value_units`` of a ``w2`` layer
+FRACTION = "fraction"
+#: quantities that are fractions (no value unit)
+FRACTION_QUANTITIES = ("w2",)
+
+
+def per_risk_editions() -> tuple[str, ...]:
+    """The layer editions (sidecar ``standard`` strings) mapped per risk category."""
+    from neve.engine.standards import find_standard
+
+    out: list[str] = []
+    for sid in PER_RISK_STANDARDS:
+        std = find_standard(sid)
+        if std is not None:
+            out.extend(std.layer_standards)
+    return tuple(out)
+
+
+def is_per_risk(meta: dict) -> bool:
+    """Whether a layer (its validated sidecar) maps ``pg`` once per risk category."""
+    if meta.get("quantity", "pg") != "pg":
+        return False
+    from neve.engine.standards import find_standard
+
+    for sid in PER_RISK_STANDARDS:
+        std = find_standard(sid)
+        if std is not None and std.accepts_layer(str(meta.get("standard", "")), "pg"):
+            return True
+    return False
+
+
 #: accepted value units (canonical spelling) and their factor to psf
 VALUE_UNITS = {"psf": 1.0, "kPa": 1.0 / KPA_PER_PSF}
 #: accepted elevation units (canonical spelling) and their factor to ft
@@ -128,6 +179,17 @@ def validate_meta(raw: dict, where: str = "sidecar") -> dict:
             + ", ".join(list(REQUIRED) + list(OPTIONAL)),
             unknown[0],
         )
+    fraction = raw.get("quantity") in FRACTION_QUANTITIES
+    if fraction:
+        unit = raw.get("value_units", FRACTION)
+        if str(unit).strip().lower() != FRACTION:
+            raise SidecarError(
+                f"{where} value_units: {unit!r} for quantity {raw.get('quantity')!r}, a fraction; "
+                f"accepted: no value_units (or {FRACTION!r})",
+                "value_units",
+                "units",
+            )
+        raw = dict(raw, value_units="psf")  # validated below as a unit, then set to fraction
     missing = [k for k in REQUIRED if k not in raw]
     if missing:
         raise SidecarError(f"{where}: missing required key(s) {', '.join(missing)}", missing[0])
@@ -167,6 +229,8 @@ def validate_meta(raw: dict, where: str = "sidecar") -> dict:
             "boundary_tolerance_m",
         )
     meta["boundary_tolerance_m"] = float(tol)
+    if fraction:
+        meta["value_units"] = FRACTION
     if not isinstance(meta["demo"], bool):
         raise SidecarError(f"{where} demo: {meta['demo']!r} is not true or false", "demo")
     if meta["quantity"] not in QUANTITIES:
@@ -180,6 +244,25 @@ def validate_meta(raw: dict, where: str = "sidecar") -> dict:
         raise SidecarError(
             f"{where} study_mask: {mask!r}; accepted: a raster file name", "study_mask"
         )
+    rr = meta["risk_rasters"]
+    if rr is not None:
+        if not is_per_risk(meta):
+            raise SidecarError(
+                f"{where} risk_rasters: only a pg layer of {', '.join(per_risk_editions())} maps "
+                "values per risk category; accepted: no risk_rasters here",
+                "risk_rasters",
+            )
+        if (
+            not isinstance(rr, dict)
+            or sorted(rr) != sorted(RISK_CATEGORIES)
+            or not all(isinstance(v, str) and v.strip() for v in rr.values())
+        ):
+            raise SidecarError(
+                f"{where} risk_rasters: {rr!r}; accepted: a table of one raster file name per "
+                'risk category, {I = "pg_I.tif", II = ..., III = ..., IV = ...}',
+                "risk_rasters",
+            )
+        meta["risk_rasters"] = {c: rr[c].strip() for c in RISK_CATEGORIES}
     return meta
 
 

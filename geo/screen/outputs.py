@@ -341,6 +341,14 @@ def summary_rows(summary: dict) -> pd.DataFrame:
     pg = summary.get("pg_psf") or {}
     rows.append(("pg min [psf]", pg.get("min")))
     rows.append(("pg max [psf]", pg.get("max")))
+    rec = summary.get("on_record")
+    if rec:  # the existing-roof check
+        rows.append(("loads on record given", rec["given"]))
+        rows.append((f"loads on record compared with {rec['compared_with']}", rec["compared"]))
+        rows.append(("exceeds_record (load_ratio above 1.0)", rec["exceeds_record"]))
+        ratio = rec.get("load_ratio") or {}
+        rows.append(("load_ratio min", ratio.get("min")))
+        rows.append(("load_ratio max", ratio.get("max")))
     for i, layer in enumerate(summary.get("layers", [])):
         rows.append((f"layer {i + 1}", layer.get("name")))
         rows.append((f"layer {i + 1} sha256", layer.get("sha256")))
@@ -604,7 +612,62 @@ def summarize(
         "seconds": None if seconds is None else round(float(seconds), 3),
         "cautions": list(CAUTIONS),
         **({"input": dict(input_info)} if input_info else {}),
+        **({"on_record": on_record_summary(results)} if "load_ratio" in results.columns else {}),
     }
+
+
+def on_record_summary(results: pd.DataFrame) -> dict:
+    """The existing-roof check of a run: loads on record given, compared, exceeded.
+
+    ``given``: rows with a load on record; ``compared``: rows with a ``load_ratio``
+    (today's ``design_uniform`` / the load on record); ``exceeds_record``: rows whose
+    ratio is above 1.0; ``load_ratio``: its ``min`` and ``max`` (null without any);
+    ``roof_given``: whether the run had a roof (without one nothing is compared).
+    """
+    from neve.engine.on_record import COMPARED_WITH, load_ratio
+
+    record = pd.to_numeric(results["on_record_psf"], errors="coerce").to_numpy(dtype=float)
+    ratio = pd.to_numeric(results["load_ratio"], errors="coerce").to_numpy(dtype=float)
+    compared = np.isfinite(ratio)
+    _, above = load_ratio(ratio[compared], 1.0)  # the one threshold, as on the rows
+    return {
+        "given": int(np.isfinite(record).sum()),
+        "compared": int(compared.sum()),
+        "exceeds_record": int(above.sum()),
+        "compared_with": COMPARED_WITH,
+        "roof_given": f"{COMPARED_WITH}_psf" in results.columns,
+        "load_ratio": (
+            {"min": float(ratio[compared].min()), "max": float(ratio[compared].max())}
+            if compared.any()
+            else None
+        ),
+    }
+
+
+def on_record_lines(summary: dict) -> list[str]:
+    """The existing-roof check in words, for the printed summary."""
+    rec = summary.get("on_record")
+    if not rec:
+        return []
+    lines = [
+        f"loads on record: {rec['given']:,} given, {rec['compared']:,} compared with today's "
+        f"{rec['compared_with']} (uniform loads only; drifts not included), "
+        f"{rec['exceeds_record']:,} above the record (exceeds_record)"
+    ]
+    if rec.get("load_ratio"):
+        r = rec["load_ratio"]
+        lines.append(f"  load_ratio range: {r['min']:.3f} to {r['max']:.3f}")
+    if rec["given"] and not rec.get("roof_given"):
+        lines.append(
+            "  no roof given: load_ratio needs today's design_uniform roof load "
+            "(give roof options or --roof)"
+        )
+    if rec["exceeds_record"]:
+        lines.append(
+            "  a roof above its record needs review of the structure by a licensed design "
+            "professional"
+        )
+    return lines
 
 
 def input_lines(info: dict | None) -> list[str]:
@@ -665,6 +728,7 @@ def format_summary(summary: dict) -> str:
     else:
         lines.append("pg range: no site has a usable ground snow load")
     lines.extend(input_lines(summary.get("input")))
+    lines.extend(on_record_lines(summary))
     if summary.get("csv_cells_neutralised"):
         lines.append(
             f"csv: {summary['csv_cells_neutralised']:,} text cell(s) that a spreadsheet would "

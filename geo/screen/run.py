@@ -166,7 +166,7 @@ def run_screen(
     from neve.engine.choices import choose_key
     from neve.engine.standards import get_standard
 
-    roof_std = get_standard(standard)  # an unknown one is refused before any work
+    explicit = get_standard(standard) if standard is not None else None  # unknown: refused now
 
     t0 = time.perf_counter()
     timings: dict[str, float] = {}
@@ -183,6 +183,12 @@ def run_screen(
     from neve.geo.site.elevation import check_dem_options
 
     check_dem_options(dem, dem_units)  # before any work: a unit without a DEM, or a clash
+    if explicit is not None and (
+        layers is None or (isinstance(layers, (list, tuple)) and not layers)
+    ):
+        from neve.geo.layers.model import demo_layers_for
+
+        layers = demo_layers_for(explicit)  # --standard asce7-22: the 7-22 demo layers
     layer_list = _layers(layers)
     roofs = _roofs(roof)
     lap("layers")
@@ -194,6 +200,9 @@ def run_screen(
             "a .csv, .gpkg or .parquet output for large portfolios",
         )
     _profile_errors(site, roofs)
+    from neve.geo.screen.editions import has_per_risk, resolve_by_risk, row_risk, w2_columns
+
+    risk, risk_cell = row_risk(site, roofs)  # before the look-up: a bad risk cell is a row error
     lap("read")
     if site.address is not None and (site.address != "").any():
         from neve.geo.screen.geocode_rows import geocode_sites
@@ -218,26 +227,32 @@ def run_screen(
         progress=progress,
         elevation_source=elevation_source,
     )
-    if len(idx) == 0:
-        resolved = None
-    elif engine == "dask":
+    if engine == "dask":
         from neve.geo.screen.dask_runner import resolve_dask_result
 
-        resolved = resolve_dask_result(
-            site.lat[idx],
-            site.lon[idx],
-            elev_arg,
-            scheduler=scheduler,
-            partitions=partitions,
-            staging=staging,
-            **kwargs,
-        )
+        def resolver(la, lo, el, **kw):
+            return resolve_dask_result(la, lo, el, scheduler=scheduler, partitions=partitions,
+                                       staging=staging, **kw)  # fmt: skip
     else:
-        resolved = resolve_local_result(site.lat[idx], site.lon[idx], elev_arg, **kwargs)
+        resolver = resolve_local_result
+    if len(idx) == 0:
+        resolved = None
+    elif has_per_risk(layer_list):  # per-risk layers (ASCE 7-22): once per risk category
+        kwargs.pop("layers")
+        resolved = resolve_by_risk(resolver, site.lat[idx], site.lon[idx], elev_arg,
+                                   risk[idx], layer_list, **kwargs)  # fmt: skip
+    else:
+        resolved = resolver(site.lat[idx], site.lon[idx], elev_arg, **kwargs)
     lap("resolve")
     res = _rows_result(site, idx, resolved, layer_list)
-    roof_cols = _roof_columns(res, site, roofs, layer_list, roof_std) if roofs is not None else {}
-    out = {**_result_columns(res, site), **roof_cols}  # text only here, at the edge
+    roof_cols = (
+        _roof_columns(res, site, roofs, layer_list, explicit, np.where(risk_cell, risk, None))
+        if roofs is not None
+        else {}
+    )
+    record_cols = _on_record_columns(res, site, roof_cols)  # before the flags become text
+    w2_cols = w2_columns(res, layer_list)  # W2 layers given: w2, w2_zone_id
+    out = {**_result_columns(res, site), **w2_cols, **roof_cols, **record_cols}  # text: the edge
     results = _join_input(site.frame, out)
     lap("roof_and_assemble")
     summary = summarize(
@@ -362,50 +377,93 @@ def _result_columns(res: Resolution, site: SiteArrays) -> dict:
     }
 
 
-def _roof_columns(res: Resolution, site: SiteArrays, roofs, layers, standard=None) -> dict:
+def _roof_columns(
+    res: Resolution, site: SiteArrays, roofs, layers, standard=None, risk=None
+) -> dict:
     """Uniform roof loads of the usable rows (``<load>_psf`` beside ``<load>_kpa``).
 
     The ground value goes to the standard (asked of the registry) as the
-    result's own array of the quantity it needs; the roof's flags are added
-    to the rows' flag bits.
+    result's own arrays of the quantities it needs (``pg``, and ``w2`` for a
+    standard that takes it); the roof's flags are added to the rows' flag
+    bits.  ``standard`` None: each row's governing layer chooses the standard
+    that takes its edition (else ASCE 7-16); given, a row whose layer is of an
+    edition another standard takes is flagged ``edition_mismatch`` and one no
+    standard takes ``roof_standard_unsupported``, without roof loads.  ``risk``
+    (per row; None where the site file gives none): the building's risk category
+    from the row's ``risk`` cell, given to the roof of the row.
     """
-    from neve.engine.standards import get_standard
+    from dataclasses import replace
 
-    std = get_standard(standard)
-    quantity = std.quantities[0]
+    from neve.engine.standards import get_standard
+    from neve.geo.screen.editions import row_standards
+
+    explicit = get_standard(standard) if standard is not None else None
     n = len(site)
     psf = {name: np.full(n, np.nan) for name in ROOF_LOADS}
-    pg = res.value(quantity)
+    pg = res.value("pg")
+    w2 = res.value("w2")
     usable = np.isin(res.status, (OK, PROVISIONAL)) & np.isfinite(pg)
-    # only layers of the editions and quantity the standard takes feed its roof loads
-    refused = [
-        k
-        for k, ly in enumerate(layers)
-        if not std.accepts_layer(
-            str(ly.meta.get("standard", "")), str(ly.meta.get("quantity", "pg"))
-        )
-    ]
-    if refused:
-        other = usable & np.isin(res.layer, refused)
-        res.flags[other] |= BIT["roof_standard_unsupported"]
-        usable &= ~other
-    groups = (
-        [(roofs, usable)]
+    groups, mismatch, unsupported = row_standards(res, layers, explicit)
+    res.flags[usable & mismatch] |= BIT["edition_mismatch"]
+    res.flags[usable & unsupported] |= BIT["roof_standard_unsupported"]
+    profiles = (
+        [(roofs, np.ones(n, dtype=bool))]
         if isinstance(roofs, Roof)
-        else [(r, usable & (site.roof == name)) for name, r in roofs.items()]
+        else [(r, site.roof == name) for name, r in roofs.items()]
     )
-    for roof, mask in groups:
-        if not mask.any():
-            continue
-        res.flags[mask] |= bits_of(std.screening_flags(roof))
-        loads = std.uniform({quantity: pg[mask]}, roof)
-        for name in ROOF_LOADS:
-            psf[name][mask] = np.asarray(loads[name], dtype=float)
+    risks = [None] if risk is None else list(dict.fromkeys(np.asarray(risk).tolist()))
+    for std, rows in groups.values():
+        for roof, on_roof in profiles:
+            for cat in risks:
+                mask = usable & rows & on_roof
+                this = roof
+                if risk is not None:
+                    mask &= np.asarray(risk) == cat
+                    if cat is not None and roof.risk != cat:
+                        this = replace(roof, risk=cat)  # the row's building: its risk category
+                if not mask.any():
+                    continue
+                res.flags[mask] |= bits_of(std.screening_flags(this))
+                quantities = {"pg": pg[mask]}
+                if "w2" in std.quantities:
+                    quantities["w2"] = w2[mask]
+                loads = std.uniform(quantities, this)
+                for name in ROOF_LOADS:
+                    psf[name][mask] = np.asarray(loads[name], dtype=float)
     out = {}
     for name in ROOF_LOADS:  # psf beside kPa
         out[f"{name}_psf"] = psf[name]
         out[f"{name}_kpa"] = psf[name] * KPA_PER_PSF
     return out
+
+
+#: columns added when the site file has a snow_load_on_record column (the existing-roof check)
+ON_RECORD_COLUMNS = ("on_record_psf", "on_record_kpa", "load_ratio")
+
+
+def _on_record_columns(res: Resolution, site: SiteArrays, roof_cols: dict) -> dict:
+    """The load on record, ``load_ratio`` and the ``exceeds_record`` bit (:mod:`neve.engine.on_record`).
+
+    ``load_ratio`` = today's ``design_uniform`` / the load on record: uniform loads
+    only, as screening gives them; no ratio (and no flag) without a roof, without a
+    usable ground load or without a load on record.
+    """
+    if site.on_record_psf is None:
+        return {}
+    from neve.engine.on_record import load_ratio
+
+    record = np.asarray(site.on_record_psf, dtype=float)
+    design = roof_cols.get("design_uniform_psf")
+    if design is None:
+        design = np.full(len(site), np.nan)
+    ratio, above = load_ratio(design, record)
+    if above.any():
+        res.flags[above] |= BIT["exceeds_record"]
+    return {
+        "on_record_psf": record,
+        "on_record_kpa": record * KPA_PER_PSF,
+        "load_ratio": ratio,
+    }
 
 
 def _join_input(frame: pd.DataFrame, out: dict) -> pd.DataFrame:

@@ -43,6 +43,9 @@ class SiteArrays:
         cells hold line breaks (flagged ``multiline_field``).
     input_info : dict
         How the file was laid out (see :class:`neve.geo.screen.read.ReadNotes`).
+    on_record_psf : numpy.ndarray or None
+        The roof snow load on record [psf] from a ``snow_load_on_record`` column
+        (NaN where none is given), or None without such a column.
     """
 
     frame: pd.DataFrame
@@ -59,6 +62,7 @@ class SiteArrays:
     geometry: object = None
     multiline: dict = field(default_factory=dict)
     input_info: dict = field(default_factory=dict)
+    on_record_psf: np.ndarray | None = None
 
     def __len__(self) -> int:
         return len(self.frame)

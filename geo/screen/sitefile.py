@@ -235,6 +235,105 @@ def parse_elevation_cells(series: pd.Series, unit: str | None, name: str):
     return out, err
 
 
+#: load-on-record column names -> unit implied by the name (None: unit in each cell)
+ON_RECORD_NAMES = {
+    "snow_load_on_record": None,
+    "snow_load_on_record_psf": "psf",
+    "snow_load_on_record_kpa": "kpa",
+}
+ACCEPTED_ON_RECORD_CELL = (
+    "a load above 0 with its unit in the cell (30psf, 1.44kPa) in 'snow_load_on_record', "
+    "or a plain number in snow_load_on_record_psf or snow_load_on_record_kpa"
+)
+
+
+def parse_on_record_cells(series: pd.Series, unit: str | None, name: str):
+    """Roof snow loads on record [psf] and per-row errors from a column.
+
+    A blank cell means "none on record" (no error, NaN).  As for the elevation
+    (:func:`parse_elevation_cells`), a cell that does not parse, a bare number
+    where the unit must be in the cell, an unknown unit, a value not above 0 or
+    beyond the bound is a per-row error naming the column; a cell whose unit
+    contradicts the unit of the column name refuses the file.
+
+    Parameters
+    ----------
+    series : pandas.Series
+        The cells.
+    unit : {"psf", "kpa"} or None
+        Unit implied by the column name, or None when each cell must carry it.
+    name : str
+        Column name for the messages.
+    """
+    from neve.engine.on_record import ON_RECORD_RANGE_PSF
+    from neve.engine.units import LOAD_UNITS
+
+    n = len(series)
+    err = np.full(n, "", dtype=object)
+    out = np.full(n, np.nan)
+    if n == 0:
+        return out, err
+    odd, what = _odd_cells(series)
+    fast = None if unit is None or odd.any() else _as_float(series)
+    if unit is not None and not odd.any() and pd.api.types.is_numeric_dtype(series.dtype):
+        out = series.to_numpy(dtype=float, na_value=np.nan) * LOAD_UNITS[unit]
+        text = series.astype(object).where(series.notna(), "").astype(str)
+    elif fast is not None:  # a text column of plain numbers, unit in the column name
+        out = fast * LOAD_UNITS[unit]
+        text = series.astype(str)
+    else:
+        text = series.astype(object).where(series.notna(), "").astype(str).str.strip()
+        parts = text.str.extract(_CELL)
+        number = pd.to_numeric(parts["num"], errors="coerce").to_numpy(dtype=float)
+        cell_unit = parts["unit"].fillna("").str.lower().str.replace(" ", "", regex=False)
+        blank = (text == "").to_numpy()
+        unparsed = np.isnan(number) & ~blank
+        factor = cell_unit.map(LOAD_UNITS).to_numpy(dtype=float, na_value=np.nan)
+        has_unit = (cell_unit != "").to_numpy()
+        if unit is not None:  # a bare number takes the column's unit; another unit is refused
+            with np.errstate(invalid="ignore"):
+                clash = has_unit & ~np.isnan(factor) & (factor != LOAD_UNITS[unit])
+            clash &= ~np.isnan(number)
+            if clash.any():
+                i = int(np.flatnonzero(clash)[0])
+                raise InputError(
+                    name,
+                    f"record {i + 1} says {text.iloc[i]!r}, which contradicts the column's "
+                    f"unit ({unit}; {int(clash.sum())} such cell(s))",
+                    ACCEPTED_ON_RECORD_CELL,
+                )
+            factor = np.where(has_unit, factor, LOAD_UNITS[unit])
+        out = number * factor
+        bare = ~has_unit & ~np.isnan(number) & (unit is None)
+        unknown = has_unit & np.isnan(factor) & ~np.isnan(number)
+        for mask, why in (
+            (unparsed, "is not a load"),
+            (bare, "is a bare number with no unit"),
+            (unknown, "has a unit that is not a load"),
+        ):
+            if mask.any():
+                err[mask] = [
+                    f"{name}: {v!r} {why}; accepted: {ACCEPTED_ON_RECORD_CELL}" for v in text[mask]
+                ]
+        if odd.any():
+            what = np.broadcast_to(np.asarray(what, dtype=object), odd.shape)
+            cells = zip(series[odd], what[odd], strict=True)
+            err[odd] = [f"{name}: {v!r} is {w}, not a load" for v, w in cells]
+        out[err != ""] = np.nan
+    lo, hi = ON_RECORD_RANGE_PSF
+    with np.errstate(invalid="ignore"):
+        not_above = ~np.isnan(out) & (out <= lo)
+        too_big = ~np.isnan(out) & ((out > hi) | ~np.isfinite(out))
+    for mask, why in ((not_above, "is not above 0"), (too_big, "is out of range")):
+        if mask.any():
+            err[mask] = [
+                f"{name}: {v!r} {why}; accepted: {ACCEPTED_ON_RECORD_CELL} (at most {hi:g} psf)"
+                for v in np.asarray(text, dtype=object)[mask]
+            ]
+            out[mask] = np.nan
+    return out, err
+
+
 def find_columns(frame: pd.DataFrame, has_geometry: bool) -> dict:
     """Which columns hold coordinates, address, elevation, site id and roof."""
     cols = frame.columns
@@ -259,6 +358,14 @@ def find_columns(frame: pd.DataFrame, has_geometry: bool) -> dict:
             "elevation", f"more than one elevation column ({', '.join(elev)})", ACCEPTED_ELEVATION
         )
     found["elevation"] = elev[0] if elev else None
+    on_record = [c for c in cols if str(c).strip().lower() in ON_RECORD_NAMES]
+    if len(on_record) > 1:
+        raise InputError(
+            "snow_load_on_record",
+            f"more than one load-on-record column ({', '.join(map(str, on_record))})",
+            ACCEPTED_ON_RECORD_CELL,
+        )
+    found["on_record"] = on_record[0] if on_record else None
     if (found["lat"] is None) != (found["lon"] is None):
         have, miss = ("lat", "lon") if found["lat"] is not None else ("lon", "lat")
         names = LON_NAMES if miss == "lon" else LAT_NAMES
@@ -341,6 +448,13 @@ def parse_sites(frame: pd.DataFrame, geometry=None) -> SiteArrays:
             frame[name], ELEVATION_NAMES[name.strip().lower()], name
         )
         _merge(err, elev_err)
+    on_record = None
+    if cols.get("on_record") is not None:  # the existing-roof check (engine/on_record.py)
+        name = str(cols["on_record"])
+        on_record, record_err = parse_on_record_cells(
+            frame[cols["on_record"]], ON_RECORD_NAMES[name.strip().lower()], name
+        )
+        _merge(err, record_err)
     roof = None
     if cols["roof"] is not None:
         r = frame[cols["roof"]]
@@ -373,6 +487,7 @@ def parse_sites(frame: pd.DataFrame, geometry=None) -> SiteArrays:
         geometry=None if geometry is None else np.asarray(geometry, dtype=object),
         multiline=dict(notes.multiline),
         input_info=dict(notes.info) or {"format": "table", "records": n},
+        on_record_psf=on_record,
     )
 
 

@@ -51,6 +51,7 @@ class SiteResult:
     layers: list = field(default_factory=list)
     resolution: Resolution | None = None  # the look-up's result (ground flags add site-level ones)
     roof_result: object = None
+    on_record: dict | None = None  # `--on-record`: the existing-roof check (engine/on_record.py)
 
     @property
     def row(self) -> dict:
@@ -64,12 +65,20 @@ class SiteResult:
         return bool(int(self.resolution.flags[0]) & BIT["demo_data"])
 
     def to_json(self) -> dict:
-        return {"site": self.site, "ground": self.ground, "roof": self.roof}
+        out = {"site": self.site, "ground": self.ground, "roof": self.roof}
+        if self.on_record is not None:  # only when a load on record was given
+            out["on_record"] = self.on_record
+        return out
 
     def views(self, radius_m: float = 5000) -> list[dict]:
         """``layer.view(center)`` of every layer used, for the maps."""
         center = (self.site["lat"], self.site["lon"])
-        return [layer.view(center=center, radius_m=radius_m) for layer in self.layers]
+        # the maps draw ground load layers; W2 layers (fractions, not loads) are in ground.w2
+        return [
+            layer.view(center=center, radius_m=radius_m)
+            for layer in self.layers
+            if getattr(layer, "quantity", "pg") != "w2"
+        ]
 
     def to_text(self) -> str:
         """A readable summary for ``--format text``."""
@@ -269,6 +278,8 @@ def resolve_site(
     given: str | None = None,
     elevation_source: str = "larger",
     standard=None,
+    on_record_psf: float | None = None,
+    risk: str | None = None,
 ) -> SiteResult:
     """Resolve one site to its ground snow load and, given a roof, its roof loads.
 
@@ -298,12 +309,26 @@ def resolve_site(
         elevation (:func:`neve.geo.site.resolve.more_demanding`).
     standard : str, optional
         The standard of the roof loads (an id or name of the standards
-        registry, :mod:`neve.engine.standards`); the default one (ASCE 7-16)
-        when omitted.  An unknown one is an ``InputError`` listing those available.
+        registry, :mod:`neve.engine.standards`).  When omitted, the standard
+        that takes the governing layer's edition (sidecar ``standard``: an
+        ASCE 7-22 layer gives ASCE 7-22 roof loads), else the default one
+        (ASCE 7-16).  An unknown one is an ``InputError`` listing those
+        available.  Given, and the governing layer is of an edition another
+        registered standard takes: flag ``edition_mismatch`` and no roof loads.
+        With no ``layers``, a standard the default demo does not feed (ASCE
+        7-22) uses its own invented demo layers.
+    risk : {"I", "II", "III", "IV"}, optional
+        The risk category whose ground load per-risk layers (ASCE 7-22) give;
+        default the roof's ``risk``, else ``"II"``.  ``ground.pg_by_risk``
+        lists all four.
+    on_record_psf : float, optional
+        The roof snow load on record of an existing roof [psf]: the result's
+        ``on_record`` gives ``load_ratio`` = ``design_uniform`` / this load and
+        ``exceeds_record`` (:mod:`neve.engine.on_record`).
     """
     from neve.engine.standards import get_standard
 
-    roof_std = get_standard(standard)
+    explicit = get_standard(standard) if standard is not None else None  # unknown: refused now
     lat, lon = float(lat), float(lon)
     check_range(lat, lon)
     if roof is not None:
@@ -321,13 +346,20 @@ def resolve_site(
         )
     dem_path = dem_argument(dem)
     check_dem_options(dem_path, dem_units)
-    layers = as_layers(layers)
+    if layers is None or (isinstance(layers, (list, tuple)) and not layers):
+        from neve.geo.layers.model import demo_layers_for
+
+        layers = demo_layers_for(explicit)  # --standard asce7-22: the 7-22 demo layers
+    risk = _risk_of(risk, roof)
+    layers = [ly.for_risk(risk) for ly in as_layers(layers)]
+    # ground layers first, then W2 layers: the look-up detail indexes the ground layers
+    layers = [ly for ly in layers if ly.quantity != "w2"] + [
+        ly for ly in layers if ly.quantity == "w2"
+    ]
     elev_in = parse_elevation(elevation)
-    res = resolve(
-        [lat], [lon], layers=layers, elevation_ft=[elev_in], dem=dem_path,
-        dem_units=dem_units, search_m=SEARCH_M, elevation_source=elevation_source,
-        keep_detail=True,
-    )  # fmt: skip
+    look_kw = dict(elevation_ft=[elev_in], dem=dem_path, dem_units=dem_units, search_m=SEARCH_M,
+                   elevation_source=elevation_source)  # fmt: skip
+    res = resolve([lat], [lon], layers=layers, keep_detail=True, **look_kw)
     look, _ = res.detail.governing(0)  # where the DEM elevation governs, its look-up
     g = int(res.layer[0])
     bits = int(res.flags[0])
@@ -357,7 +389,7 @@ def resolve_site(
         message += f" Did you mean {lon:g},{lat:g} (latitude and longitude swapped)?"
     others = []
     for k, layer in enumerate(layers):
-        if k == g:
+        if k == g or layer.quantity == "w2":
             continue
         st, _ = look.per_layer[k]
         h = look.hits[k]
@@ -376,15 +408,30 @@ def resolve_site(
     roof_result = None
     std = str(gov_layer.meta.get("standard", "")) if gov_layer is not None else ""
     quantity = str(gov_layer.meta.get("quantity", "pg")) if gov_layer is not None else "pg"
+    roof_std = explicit if explicit is not None else layer_standard(std, quantity)
+    w2 = float(res.value("w2")[0])
     if roof is not None and usable and not roof_std.accepts_layer(std, quantity):
-        bits |= BIT["roof_standard_unsupported"]
-        message += (
-            f" No roof snow loads were computed: the layer maps ground loads for {std},"
-            f" and neve's roof engine covers {', '.join(roof_std.layer_standards)} ground loads only."
-        )
+        takers = [s.title for s in _takers(std, quantity)]
+        if explicit is not None and takers:
+            bits |= BIT["edition_mismatch"]
+            message += (
+                f" No roof snow loads were computed: the governing layer maps {std} ground loads"
+                f" (for {', '.join(takers)}), and --standard asks for {roof_std.title};"
+                " neve never mixes one edition's map with another edition's equations"
+                f" (give a {roof_std.title} layer, or --standard {_takers(std, quantity)[0].id})."
+            )
+        else:
+            bits |= BIT["roof_standard_unsupported"]
+            message += (
+                f" No roof snow loads were computed: the layer maps ground loads for {std},"
+                f" and neve's roof engine covers {', '.join(roof_std.layer_standards)} ground loads only."
+            )
     elif roof is not None:
         if usable:
-            roof_result = roof_std.analyze({quantity: pg}, roof)
+            quantities = {quantity: pg}
+            if "w2" in roof_std.quantities:
+                quantities["w2"] = w2 if math.isfinite(w2) else None
+            roof_result = roof_std.analyze(quantities, roof)
             roof_json = roof_result.to_json()
             if status == "provisional":
                 limiting = ", ".join(flag_names(bits & ~BIT["demo_data"]))
@@ -417,6 +464,9 @@ def resolve_site(
         "elevation_alternatives": _alternatives(res),
         "distance_to_other": None if dist is None else length_json(dist * FT_PER_M),
         "neighbours": neighbours,
+        "risk_category": risk,
+        "pg_by_risk": _pg_by_risk(gov_layer, res, lat, lon, layers, look_kw),
+        "w2": _w2_json(res, layers),
         "layer": gov_layer.info() if gov_layer is not None else None,
         "layers": [layer.info() for layer in layers],
         "other_layers": others,
@@ -437,7 +487,84 @@ def resolve_site(
         bits |= BIT["non_finite_value"]
         ground["flags"] = flag_names(bits)
         ground["message"] += " A value that is not a finite number was reported as null."
-    return SiteResult(site, ground, roof_json, list(layers), res.without_detail(), roof_result)
+    on_record = None
+    if on_record_psf is not None:
+        from neve.engine.on_record import on_record_json, parse_on_record
+
+        if isinstance(on_record_psf, str):
+            on_record_psf = parse_on_record(on_record_psf)
+        design = None if roof_json is None else roof_json.get("design_uniform")
+        exact = getattr(roof_result, "design_uniform", None)  # unrounded, as screening has it
+        on_record = on_record_json(
+            float(on_record_psf), design, status, roof is not None, design_psf=exact
+        )
+    return SiteResult(
+        site, ground, roof_json, list(layers), res.without_detail(), roof_result, on_record
+    )
+
+
+def _risk_of(risk, roof) -> str:
+    """The risk category asked: ``risk``, else the roof's, else II."""
+    from neve.engine.choices import choose_key
+    from neve.geo.layers.model import DEFAULT_RISK
+    from neve.geo.layers.sidecar import RISK_CATEGORIES
+
+    if risk is None and roof is not None:
+        risk = getattr(roof, "risk", None)
+    return choose_key("risk", str(risk or DEFAULT_RISK).upper(), RISK_CATEGORIES)
+
+
+def _takers(layer_std: str, quantity: str = "pg") -> list:
+    """The registered standards that take a layer of edition ``layer_std``."""
+    from neve.engine.standards import standards
+
+    return [s for s in standards() if s.accepts_layer(layer_std, quantity)]
+
+
+def layer_standard(layer_std: str, quantity: str = "pg"):
+    """The roof standard a layer's edition chooses: the first registered one that takes it,
+    else the default standard (ASCE 7-16)."""
+    from neve.engine.standards import get_standard
+
+    takers = _takers(layer_std, quantity) if layer_std else []
+    return takers[0] if takers else get_standard(None)
+
+
+def _pg_by_risk(gov_layer, res, lat, lon, layers, look_kw) -> dict | None:
+    """``{"I": load|null, ... "IV": ...}`` when the governing layer maps pg per risk category.
+
+    Each category is resolved with the same layers, elevation and rules as the
+    chosen one; null for a category without a usable value.  None (JSON null)
+    when the governing layer maps one pg for every category (ASCE 7-16).
+    """
+    if gov_layer is None or not gov_layer.per_risk:
+        return None
+    from neve.geo.layers.sidecar import RISK_CATEGORIES
+
+    out = {}
+    for cat in RISK_CATEGORIES:
+        if cat == gov_layer.risk:
+            r = res
+        else:
+            r = resolve([lat], [lon], layers=[ly.for_risk(cat) for ly in layers], **look_kw)
+        v = float(r.value("pg")[0])
+        ok = STATUSES[r.status[0]] in ("ok", "provisional") and math.isfinite(v)
+        out[cat] = load_json(v) if ok else None
+    return out
+
+
+def _w2_json(res: Resolution, layers) -> dict | None:
+    """``{"value", "zone_id", "layer", "flags"}`` of the W2 look-up; None without a W2 layer."""
+    if not any(ly.quantity == "w2" for ly in layers):
+        return None
+    k = int(res.extra["w2_layer"][0])
+    v = _num(res.value("w2")[0])
+    return {
+        "value": None if v is None else round(v, 6),
+        "zone_id": res.extra["w2_zone_id"][0] or None,
+        "layer": layers[k].info() if k >= 0 else None,
+        "flags": flag_names(int(res.extra["w2_flags"][0])),
+    }
 
 
 def _zone_list(zone_id: str, zone_ids: str) -> list[str]:

@@ -227,6 +227,7 @@ def resolve_points(
     dem_units: str | None = None,
     search_m: float | None = None,
     elevation_source: str = "larger",
+    risk: str | None = None,
 ) -> pd.DataFrame:
     """Resolve many sites to status, flags and ground snow load, as a table.
 
@@ -236,7 +237,7 @@ def resolve_points(
     """
     res = resolve(
         lat, lon, layers=layers, elevation_ft=elevation_ft, dem=dem, dem_units=dem_units,
-        search_m=search_m, elevation_source=elevation_source,
+        search_m=search_m, elevation_source=elevation_source, risk=risk,
     )  # fmt: skip
     return res.to_frame()
 
@@ -398,6 +399,20 @@ def _key_parts(u: int) -> tuple[int, int, int]:
     return u >> 40, bits, (u & 2047) - 1
 
 
+#: the W2 arrays a :class:`Resolution` carries in ``extra`` (empty without a W2 layer)
+W2_EXTRA = ("w2_status", "w2_flags", "w2_zone_id", "w2_layer")
+
+
+def w2_extra(n: int) -> dict:
+    """``extra`` arrays of n sites with no W2 look-up."""
+    return {
+        "w2_status": np.full(n, -1, dtype=np.int8),
+        "w2_flags": np.zeros(n, dtype=np.uint64),
+        "w2_zone_id": np.full(n, "", dtype=object),
+        "w2_layer": np.full(n, -1, dtype=np.intp),
+    }
+
+
 def resolve(
     lat,
     lon,
@@ -409,8 +424,98 @@ def resolve(
     search_m=None,
     elevation_source: str = "larger",
     keep_detail: bool = False,
+    risk: str | None = None,
 ) -> Resolution:
-    """Resolve many sites to status, flags and ground snow load (vectorized).
+    """Resolve many sites to status, flags, ground snow load and W2 (vectorized).
+
+    The layers are split by the quantity they map (sidecar ``quantity``): the
+    ``pg`` layers give the ground snow load, status and flags exactly as
+    described in :func:`resolve_ground`; the ``w2`` layers (the winter wind
+    parameter of ASCE 7-22), if any, are resolved the same way on their own
+    (stacking, boundary tolerance, provenance) and give ``values["w2"]`` and the
+    ``extra`` arrays :data:`W2_EXTRA`; a W2 study area sets ``w2_study_required``,
+    no usable W2 value ``w2_missing`` (the ground status is not changed by W2).
+
+    ``risk`` (``"I"`` .. ``"IV"``, default ``"II"``): the risk category whose
+    values per-risk layers (ASCE 7-22) give; layers that map one value for
+    every category ignore it.  Other parameters: :func:`resolve_ground`.
+    ``Resolution.layer`` and ``extra["w2_layer"]`` index the layers as given.
+    """
+    layers = as_layers(layers)
+    if risk is not None:
+        layers = [ly.for_risk(risk) for ly in layers]
+    ground = [k for k, ly in enumerate(layers) if ly.quantity != "w2"]
+    wind = [k for k, ly in enumerate(layers) if ly.quantity == "w2"]
+    if not ground:
+        raise InputError(
+            "layer",
+            'only W2 layers (quantity = "w2") given',
+            "at least one ground snow load layer (quantity pg) beside the W2 layers",
+        )
+    kw = dict(elevation_ft=elevation_ft, dem=dem, dem_units=dem_units, search_m=search_m,
+              elevation_source=elevation_source)  # fmt: skip
+    res = resolve_ground(lat, lon, layers=[layers[k] for k in ground], keep_detail=keep_detail,
+                         **kw)  # fmt: skip
+    n = len(res)
+    res.extra.update(w2_extra(n))
+    if not wind:
+        return res
+    gmap = np.array(ground + [-1], dtype=np.intp)
+    res.layer = gmap[res.layer]
+    wres = resolve_ground(lat, lon, layers=[layers[k] for k in wind], **kw)
+    wmap = np.array(wind + [-1], dtype=np.intp)
+    usable = np.isin(wres.status, (OK, PROVISIONAL))
+    wbits = wres.flags.copy()
+    study = wres.status == STUDY
+    wbits[study] |= BIT["w2_study_required"]
+    missing = ~usable & ~study
+    wbits[missing] |= BIT["w2_missing"]
+    res.flags |= wbits & np.uint64(BIT["w2_study_required"] | BIT["w2_missing"] | BIT["demo_data"])
+    res.values["w2"] = np.where(usable, wres.value(_quantity_of(wres)), np.nan)
+    res.extra.update(
+        w2_status=wres.status, w2_flags=wbits, w2_zone_id=wres.zone_id,
+        w2_layer=wmap[wres.layer],
+    )  # fmt: skip
+    res.message = res.message + _w2_texts(wres.status, res.values["w2"], wres.layer,
+                                          [layers[k] for k in wind])  # fmt: skip
+    res.layers = tuple(Provenance.of(layer) for layer in layers)
+    return res
+
+
+def _quantity_of(res: Resolution) -> str:
+    return next(iter(res.values)) if res.values else "w2"
+
+
+def _w2_texts(status, w2, layer_idx, wind_layers) -> np.ndarray:
+    """The W2 sentence appended to each site's message, once per distinct outcome."""
+    key = pd.Series(list(zip(status.tolist(), np.round(np.nan_to_num(w2, nan=-1), 6).tolist(),
+                             layer_idx.tolist(), strict=True)))  # fmt: skip
+    codes, uniq = pd.factorize(key)
+    texts = []
+    for st, v, k in uniq:
+        name = f"layer {wind_layers[k].name!r}" if 0 <= k < len(wind_layers) else "the W2 layers"
+        if st in (OK, PROVISIONAL):
+            texts.append(f" W2 = {v:.3g} from {name}" + (" (provisional)." if st else "."))
+        elif st == STUDY:
+            texts.append(f" W2: site-specific study required ({name}); no W2 value.")
+        else:
+            texts.append(f" W2: no usable value ({name}: {STATUSES[st]}).")
+    return np.array(texts, dtype=object)[codes]
+
+
+def resolve_ground(
+    lat,
+    lon,
+    *,
+    layers=None,
+    elevation_ft=None,
+    dem=None,
+    dem_units=None,
+    search_m=None,
+    elevation_source: str = "larger",
+    keep_detail: bool = False,
+) -> Resolution:
+    """Resolve many sites to status, flags and ground snow load (vectorized), one quantity.
 
     Parameters
     ----------

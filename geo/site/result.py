@@ -82,10 +82,19 @@ FLAG_TABLE: tuple[Flag, ...] = (
         "roof_standard_unsupported", 12, "site", "the layer's standard cannot feed the roof engine"
     ),
     Flag("non_finite_value", 13, "site", "a reported value was not finite and is null"),
+    Flag("w2_study_required", 14, "site", "the W2 layer requires a site-specific study here"),
+    Flag("w2_missing", 15, "site", "W2 layers were given but give no usable W2 value here"),
     Flag("duplicate_site_id", 16, "row", "another row has the same site_id"),
     Flag("multiline_field", 17, "row", "a quoted cell of the record holds line breaks"),
     Flag("cell_escaped", 18, "row", "a cell was neutralised for a spreadsheet output"),
     Flag("cell_truncated", 19, "row", "a cell was cut to fit the output format"),
+    Flag("exceeds_record", 20, "row", "today's uniform roof load is above the load on record"),
+    Flag(
+        "edition_mismatch",
+        22,
+        "site",
+        "the governing layer is of another edition than --standard: no roof loads from it",
+    ),  # fmt: skip
     Flag("shape_assumed", 24, "roof", "no roof shape given: flat assumed"),
     Flag("exposure_assumed", 25, "roof", "Ce from the default terrain and exposure"),
     Flag("thermal_assumed", 26, "roof", "Ct from the default thermal condition"),
@@ -99,6 +108,8 @@ FLAG_TABLE: tuple[Flag, ...] = (
     Flag("ice_dam_conditions_unstated", 34, "roof", "the ice-dam waiver conditions not stated"),
     Flag("members_unstated", 35, "roof", "prismatic members not stated"),
     Flag("upper_pf_assumed", 36, "roof", "the upper roof's pf taken as this roof's"),
+    Flag("w2_needed", 37, "roof", "cases that need the winter wind parameter W2 not computed"),
+    Flag("thermal_upper_bound", 38, "roof", "Ct is the upper bound of the heated-roof table"),
     Flag("bad_coordinates", 56, "note", "coordinates missing or out of range: no look-up"),
     Flag("near_unknown", 57, "note", "a zone within the tolerance has no usable value"),
     Flag("near_valued", 58, "note", "a zone within the tolerance has another usable value"),
@@ -180,6 +191,18 @@ COLUMNS = [
 UNITS = {"pg": "psf"}
 
 
+def blank_like(v: np.ndarray, n: int) -> np.ndarray:
+    """n entries of ``v``'s dtype meaning "none": NaN, -1 (codes), 0 (bits) or ""."""
+    v = np.asarray(v)
+    if v.dtype.kind == "f":
+        return np.full(n, np.nan, dtype=v.dtype)
+    if v.dtype.kind == "i":
+        return np.full(n, -1, dtype=v.dtype)
+    if v.dtype.kind in "ub":
+        return np.zeros(n, dtype=v.dtype)
+    return np.full(n, "", dtype=object)
+
+
 def _texts(table: Sequence[str], codes: np.ndarray, none: str = "") -> np.ndarray:
     """Names of ``codes`` in ``table`` (object array); code -1 gives ``none``."""
     return np.array([*table, none], dtype=object)[np.asarray(codes, dtype=np.intp)]
@@ -254,6 +277,9 @@ class Resolution:
     alt_zone_id: np.ndarray
     layers: tuple = ()
     detail: object = field(default=None, repr=False, compare=False)
+    #: further per-site arrays by name (the W2 look-up: ``w2_status``, ``w2_flags``,
+    #: ``w2_zone_id``, ``w2_layer``; see :func:`neve.geo.site.resolve.resolve`)
+    extra: dict = field(default_factory=dict)
 
     def __len__(self) -> int:
         return int(self.status.size)
@@ -335,6 +361,8 @@ class Resolution:
             target = getattr(out, name)
             if isinstance(value, dict):
                 for q, v in value.items():
+                    if q not in target:
+                        target[q] = blank_like(v, n)
                     target[q][rows] = v
             else:
                 target[rows] = value
@@ -387,10 +415,17 @@ class Resolution:
             "alt_status": lambda: _texts(STATUSES, self.alt_status),
             "alt_pg_psf": lambda: self.alt_values.get("pg", np.full(len(self), np.nan)),
             "alt_zone_id": lambda: self.alt_zone_id,
+            # on request only (not in COLUMNS): the W2 look-up (ASCE 7-22 W2 layers)
+            "w2": lambda: self.value("w2"),
+            "w2_zone_id": lambda: self.extra.get("w2_zone_id", np.full(len(self), "", object)),
+            "w2_flags": lambda: flags_text(
+                self.extra.get("w2_flags", np.zeros(len(self), np.uint64))
+            ),
         }
         unknown = [c for c in want if c not in make]
         if unknown:
-            raise InputError("columns", f"no resolver column {unknown[0]!r}", ", ".join(COLUMNS))
+            raise InputError("columns", f"no resolver column {unknown[0]!r}",
+                             ", ".join([*COLUMNS, "w2", "w2_zone_id", "w2_flags"]))  # fmt: skip
         # object columns stay object (no per-row conversion to string dtype for big portfolios)
         cols = {}
         for c in want:

@@ -36,6 +36,16 @@ def site_text(result, show_steps: bool = True) -> str:
         lines.append(f"Name:        {s.get('name') or '—'}    Project: {s.get('project') or '—'}")
     lines.append(f"Status:      {g['status']}")
     lines.append(f"Ground pg:   {_load(g['pg'])}")
+    by_risk = g.get("pg_by_risk")
+    if by_risk:  # a per-risk layer (ASCE 7-22): the chosen category and all four
+        lines.append(f"Risk:        category {g.get('risk_category')}; pg by category: "
+                     + ", ".join(f"{c} {_load(v)}" for c, v in by_risk.items()))  # fmt: skip
+    w2 = g.get("w2")
+    if w2 is not None:
+        value = NONE if w2["value"] is None else f"{w2['value']:g}"
+        w2_flags = ", ".join(w2["flags"]) or "none"
+        w2_zone = printable(w2["zone_id"] or NONE)
+        lines.append(f"W2:          {value}    zone: {w2_zone}    flags: {w2_flags}")
     zone = g["zone_id"] or "—"
     if len(g["zone_ids"]) > 1:
         zone += f"  (overlapping: {', '.join(g['zone_ids'])})"
@@ -80,9 +90,27 @@ def site_text(result, show_steps: bool = True) -> str:
         lines += ["  " + line if line else "" for line in body.splitlines()]
         if "ground_provisional" in roof.get("flags", []):
             lines.append(f"  ! {roof['cautions'][0]}")
+    lines += on_record_lines(getattr(result, "on_record", None))
     lines.append("")
     lines.append("Cautions:")
     lines += [f"  - {c}" for c in g["cautions"]]
     if result.demo:
         lines += ["", DEMO_BANNER]
     return printable("\n".join(lines))
+
+
+def on_record_lines(rec: dict | None) -> list[str]:
+    """The existing-roof check of ``neve site --on-record`` in words (none without it)."""
+    if not rec:
+        return []
+    lines = ["", f"On record:   {_load(rec['load'])} (the roof's design snow load on record)"]
+    lines.append(f"Today:       {_load(rec['design_uniform'])} ({rec['compared_with']})")
+    if rec["load_ratio"] is None:
+        lines.append(f"Load ratio:  {NONE}  ({rec['reason']})")
+    else:
+        verdict = (
+            "above the record: exceeds_record" if rec["exceeds_record"] else "not above the record"
+        )
+        lines.append(f"Load ratio:  {rec['load_ratio']:.3f}  ({verdict})")
+    lines.append(f"  {rec['note']}")
+    return lines

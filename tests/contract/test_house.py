@@ -421,6 +421,7 @@ EXPECTED_OPTIONS = {
             _FORMAT,
             ("pg", ("--pg",), "StringParamType", None, True, True),
             ("no_steps", ("--no-steps",), "BoolParamType", False, False, False),
+            ("w2", ("--w2",), "StringParamType", None, False, False),  # issue 10
         ]
     ),  # fmt: skip
     ("site",): sorted(
@@ -445,6 +446,7 @@ EXPECTED_OPTIONS = {
             ("project", ("--project",), "StringParamType", None, False, False),
             ("site_name", ("--site-name",), "StringParamType", None, False, False),
             ("user_agent", ("--user-agent",), "StringParamType", None, False, False),
+            ("on_record", ("--on-record",), "StringParamType", None, True, False),  # issue 10
         ]
     ),  # fmt: skip
     ("screen",): sorted(
@@ -470,6 +472,37 @@ EXPECTED_OPTIONS = {
             ("quiet", ("--quiet",), "BoolParamType", False, False, False),
             ("csv_raw", ("--csv-raw",), "BoolParamType", False, False, False),
             ("summary_json", ("--summary-json",), _PATH, None, False, False),
+            (
+                "map_colour",
+                ("--map-colour",),
+                "Choice('ground', 'ratio')",
+                "ground",
+                False,
+                False,
+            ),  # issue 10
+            ("compare", ("--compare",), "StringParamType", None, False, False),  # issue 10
+        ]
+    ),  # fmt: skip
+    # issue 10: neve compare takes neve site's parameters of these names as they are
+    ("compare",): sorted(
+        [
+            *_ROOF_OPTS,
+            _FORMAT,
+            _DEM,
+            _DEM_UNITS,
+            _ELEV_SOURCE,
+            _LAYERS,
+            _OVERWRITE,
+            _GAZETTEER,
+            _GEOCODER_URL,
+            ("address", ("--address",), "StringParamType", None, False, False),
+            ("at", ("--at",), "StringParamType", None, False, False),
+            ("elevation", ("--elevation",), "StringParamType", None, False, False),
+            ("geocoder_timeout", ("--geocoder-timeout",), "FloatParamType", 10.0, False, False),
+            ("package_dir", ("--package",), _PATH, None, False, False),
+            ("project", ("--project",), "StringParamType", None, False, False),
+            ("site_name", ("--site-name",), "StringParamType", None, False, False),
+            ("user_agent", ("--user-agent",), "StringParamType", None, False, False),
         ]
     ),  # fmt: skip
     ("layer", "check"): sorted(

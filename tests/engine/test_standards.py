@@ -56,16 +56,17 @@ def test_names_users_type_find_asce_7_16(name):
 def test_default_standard_is_asce_7_16():
     assert get_standard().id == "asce7-16"
     assert get_standard(None) is get_standard("asce7-16")
-    assert available() == ["asce7-16"]  # the only entry so far (issue 9)
+    # issue 10 adds ASCE 7-22; the default stays first
+    assert available() == ["asce7-16", "asce7-22"]
 
 
-@pytest.mark.parametrize("name", ["ASCE 7-22", "EN 1991-1-3", "asce7-10", "", "7-16"])
+@pytest.mark.parametrize("name", ["ASCE 7-21", "EN 1991-1-3", "asce7-10", "", "7-16"])
 def test_unknown_standard_is_an_input_error_listing_what_is_available(name):
     with pytest.raises(InputError) as info:
         get_standard(name)
     assert info.value.field == "standard"
-    assert info.value.accepted == "asce7-16"
-    assert str(info.value).endswith("accepted: asce7-16")
+    assert info.value.accepted == "asce7-16, asce7-22"
+    assert str(info.value).endswith("accepted: asce7-16, asce7-22")
     assert info.value.exit_code == 2
     assert find_standard(name) is None
 
@@ -90,8 +91,9 @@ def test_geo_takes_layer_editions_and_quantities_from_the_registry():
     from neve.geo.layers.sidecar import QUANTITIES
     from neve.geo.site.one import roof_engine_accepts
 
-    assert site_quantities() == ("pg",) == tuple(QUANTITIES)
+    assert site_quantities() == ("pg", "w2") == tuple(QUANTITIES)  # w2: ASCE 7-22 (issue 10)
     assert roof_engine_accepts("ASCE 7-10") and not roof_engine_accepts("ASCE 7-22")
+    assert roof_engine_accepts("ASCE 7-22", "asce7-22", "w2")
     assert roof_engine_accepts("ASCE 7-16", "ASCE 7-16", "pg")
     with pytest.raises(InputError):
         roof_engine_accepts("ASCE 7-16", "no-such-standard")
@@ -225,9 +227,9 @@ def toy_standard():
 
 
 def test_a_registered_standard_is_reached_by_the_core_and_the_cli(toy_standard):
-    assert available() == ["asce7-16", "toy-1"]
+    assert available() == ["asce7-16", "asce7-22", "toy-1"]
     assert get_standard("toy one") is toy_standard
-    assert site_quantities() == ("pg", "sk")
+    assert site_quantities() == ("pg", "w2", "sk")
     roof = Roof.from_mapping({"shape": "flat"})
     assert analyze_roof(3.0, roof, standard="toy-1").standard == "TOY 1"
     assert uniform_loads([1.0, 2.0], roof, standard="TOY 1")["design_uniform"].tolist() == [2, 4]
@@ -238,7 +240,7 @@ def test_a_registered_standard_is_reached_by_the_core_and_the_cli(toy_standard):
     assert json.loads(r.stdout)["standard"] == "TOY 1"
     bad = CliRunner().invoke(main, ["roof", "--pg", "3psf", "--standard", "nope"])
     assert bad.exit_code == 2
-    assert "accepted: asce7-16, toy-1" in bad.output
+    assert "accepted: asce7-16, asce7-22, toy-1" in bad.output
 
 
 def test_a_name_is_registered_once(toy_standard):
@@ -276,7 +278,8 @@ def _package_files() -> list[Path]:
 
 
 def _outside_the_standard(path: Path) -> bool:
-    return not path.relative_to(ROOT).as_posix().startswith("engine/asce7_16/")
+    inside = ("engine/asce7_16/", "engine/asce7_22/")  # the standards' own folders
+    return not path.relative_to(ROOT).as_posix().startswith(inside)
 
 
 def test_the_clause_check_sees_the_standard_and_the_rest():
@@ -328,15 +331,18 @@ def _cli(*args):
     return CliRunner().invoke(main, [str(a) for a in args])
 
 
-@pytest.mark.parametrize("command", ["roof", "site", "screen"])
-def test_every_roof_command_has_the_shared_standard_option(command):
+# neve roof defaults to ASCE 7-16; neve site and neve screen default to None: the standard
+# that takes the governing layer's edition, else ASCE 7-16 (issue 10, the site side)
+@pytest.mark.parametrize(("command", "default"), [("roof", "asce7-16"), ("site", None),
+                                                  ("screen", None)])  # fmt: skip
+def test_every_roof_command_has_the_shared_standard_option(command, default):
     import click
 
     ctx = click.Context(main)
     cmd = main.get_command(ctx, command)
     (param,) = [p for p in cmd.params if p.name == "standard"]
     assert param.opts == ["--standard"]
-    assert param.default == "asce7-16"
+    assert param.default == default
 
 
 def test_roof_standard_default_explicit_and_unknown():
@@ -393,9 +399,9 @@ def test_screen_standard_default_explicit_and_unknown(tmp_path):
     assert ok.any()
     np.testing.assert_allclose(res.loc[ok, "pf_psf"], 0.7 * res.loc[ok, "pg_psf"], atol=1e-6)
     out = tmp_path / "bad.csv"
-    bad = _cli("screen", sites, "-o", out, "--shape", "flat", "--standard", "ASCE 7-22")
+    bad = _cli("screen", sites, "-o", out, "--shape", "flat", "--standard", "EN 1991-1-3")
     assert bad.exit_code == 2
-    assert "accepted: asce7-16" in bad.output
+    assert "accepted: asce7-16, asce7-22" in bad.output
     assert not out.exists()
 
 

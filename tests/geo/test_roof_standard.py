@@ -57,3 +57,18 @@ def test_roof_on_a_provisional_ground_value_says_so(tmp_path):
     assert "ground_provisional" in res["roof"]["flags"]
     assert "provisional" in res["roof"]["cautions"][0]
     assert "elevation_needed" in res["roof"]["cautions"][0]
+
+
+def test_asce_7_22_layer_no_longer_says_roof_standard_unsupported(tmp_path):
+    # the invented 7-22 fixture of tests/geo/test_722_layers.py: Z1 pg_II = 24 psf
+    from neve.engine.standards import available
+    from tests.geo.test_722_layers import META_722, rows_722
+
+    if "asce7-22" not in available():
+        pytest.skip("the ASCE 7-22 engine is not registered")
+    path = write_layer(tmp_path / "g722.geojson", rows_722(), META_722)
+    roof = Roof.from_mapping({"shape": "flat"})
+    res = resolve_site(LAT0 + D / 2, LON0 + D / 2, layers=[path], roof=roof).to_json()
+    assert res["ground"]["pg"]["psf"] == pytest.approx(24.0)
+    assert res["roof"]["standard"] == "ASCE 7-22"
+    assert "roof_standard_unsupported" not in res["ground"]["flags"]

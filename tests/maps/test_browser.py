@@ -122,7 +122,7 @@ def test_site_map_offline_in_chromium(tmp_path):
         # a neighbouring zone's popup (the study zone)
         hatched.first.click()
         page.wait_for_function(
-            "document.querySelector('.leaflet-popup-content').textContent.includes('Zone V20')"
+            "(document.querySelector('.leaflet-popup-content') || {textContent: ''}).textContent.includes('Zone V20')"
         )
         # the second layer switched on draws too, its names still text
         labels.nth(1).locator("input").check()

@@ -54,3 +54,17 @@ def test_fully_described_flat_roof_adds_no_roof_flags(tmp_path):
     }
     res = screen(_sites().iloc[:1], layers=[path], roof=roof)
     assert res["flags"].iloc[0] == ""
+
+
+def test_asce_7_22_layer_gives_7_22_roof_loads_without_unsupported_flag(tmp_path):
+    # the invented 7-22 fixture of tests/geo/test_722_layers.py: Z1 pg_II = 24 psf
+    from neve.engine.standards import available
+    from tests.geo.test_722_layers import META_722, rows_722
+
+    if "asce7-22" not in available():
+        pytest.skip("the ASCE 7-22 engine is not registered")
+    path = write_layer(tmp_path / "g722.geojson", rows_722(), META_722)
+    res = screen(_sites().iloc[:1], layers=[path], roof={"shape": "flat", "ce": 1.0, "ct": 1.0})
+    # ASCE 7-22 Eq. 7.3-1, pf = 0.7 Ce Ct pg with no Is (from memory): 0.7 x 24 = 16.8 psf
+    assert res["pf_psf"].iloc[0] == pytest.approx(16.8)
+    assert "roof_standard_unsupported" not in res["flags"].iloc[0]

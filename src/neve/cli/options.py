@@ -61,6 +61,34 @@ def pg_option(f):
     )(f)
 
 
+def _w2(ctx, param, value):
+    """``--w2``: a plain number from 0 to 1 (the winter wind parameter W2), or None."""
+    if value is None:
+        return None
+    accepted = "a plain number from 0 to 1, e.g. 0.45 (the winter wind parameter W2)"
+    try:
+        w2 = float(str(value).strip())
+    except ValueError:
+        raise InputError("w2", f"{value!r} is not a number", accepted) from None
+    if not (0.0 <= w2 <= 1.0):  # also refuses nan
+        raise InputError("w2", f"{value!r} is outside 0 to 1", accepted)
+    return w2
+
+
+def w2_option(f):
+    """``--w2``: the site's winter wind parameter W2, a plain number in [0, 1] (ASCE 7-22)."""
+    return click.option(
+        "--w2",
+        "w2",
+        default=None,
+        callback=_w2,
+        metavar="FRACTION",
+        help="Winter wind parameter W2 of the site, a plain number from 0 to 1, e.g. 0.45, "
+        "for a standard that uses it (asce7-22: drifts and unbalanced loads; without it "
+        "those cases are not computed).",
+    )(f)
+
+
 # --- roof --------------------------------------------------------------------------
 
 
@@ -286,6 +314,45 @@ def self_contained_option(f):
 map_look_options = _stack(tiles_option, self_contained_option)
 
 
+def map_colour_option(f):
+    """``--map-colour ground|ratio``: what colours the sites of the portfolio map."""
+    return click.option(
+        "--map-colour",
+        "map_colour",
+        type=click.Choice(["ground", "ratio"], case_sensitive=False),
+        default="ground",
+        show_default=True,
+        help="Colour the portfolio map's sites by ground snow load band (ground), or by "
+        "load_ratio, today's design_uniform / snow_load_on_record (ratio).",
+    )(f)
+
+
+# --- the existing-roof check ---------------------------------------------------------
+
+
+def _on_record(ctx, param, values: tuple):
+    """``--on-record``: the roof snow load on record [psf] (given once), or None."""
+    value = once("on-record")(ctx, param, values)
+    if value is None:
+        return None
+    from neve.engine.on_record import parse_on_record
+
+    return parse_on_record(value, "on-record")
+
+
+def on_record_option(f):
+    """``--on-record LOAD``: the roof snow load an existing roof was designed for."""
+    return click.option(
+        "--on-record",
+        "on_record",
+        metavar="LOAD",
+        multiple=True,
+        callback=_on_record,
+        help="Roof snow load on record of an existing roof, with its unit (30psf, 1.44kPa): "
+        "reports load_ratio = today's design_uniform / this load, and exceeds_record above 1.0.",
+    )(f)
+
+
 def overwrite_option(help: str):
     """``--overwrite``: replace existing outputs; ``help`` names the command's outputs."""
     return click.option("--overwrite", is_flag=True, help=help)
@@ -315,7 +382,16 @@ def _standard(ctx, param, value):
     return get_standard(value, field="standard")
 
 
-def standard_option(f=None, *, default: str | None = "asce7-16", help: str | None = None):
+def _standards(ctx, param, values):
+    """The registered standards named by a repeated ``--standard`` (unknown: exit 2)."""
+    from neve.engine.standards import get_standard
+
+    return [get_standard(v, field="standard") for v in values or ()]
+
+
+def standard_option(
+    f=None, *, default: str | None = "asce7-16", help: str | None = None, multiple: bool = False
+):
     """``--standard ID``: the standard of the roof loads (ids and names of the registry).
 
     ``@standard_option`` defaults to ``asce7-16``; ``neve verify`` takes
@@ -329,9 +405,55 @@ def standard_option(f=None, *, default: str | None = "asce7-16", help: str | Non
         "--standard",
         "standard",
         metavar="ID",
-        default=default,
-        show_default=default is not None,
-        callback=_standard,
+        default=None if multiple else default,  # ``multiple``: neve compare (issue 10)
+        show_default=default is not None and not multiple,
+        multiple=multiple,
+        callback=_standards if multiple else _standard,
         help=(help or "Standard of the roof snow loads") + f": {known}.",
     )
     return opt if f is None else opt(f)
+
+
+def layer_standard_option(f):
+    """``--standard ID`` of ``neve site`` and ``neve screen``: default from the governing layer.
+
+    Omitted, the roof standard is the one that takes the governing layer's
+    edition (an ASCE 7-22 layer: asce7-22), else asce7-16; the command
+    receives None then.  Given, a layer of another edition is flagged
+    ``edition_mismatch`` (no roof loads from it).
+    """
+    return standard_option(
+        f,
+        default=None,
+        help="Standard of the roof snow loads (default: the one that takes the governing "
+        "layer's edition, else asce7-16; a layer of another edition than the one given is "
+        "flagged edition_mismatch)",
+    )
+
+
+# --- edition comparison (issue 10) -------------------------------------------------------
+
+
+def _compare(ctx, param, value):
+    """``--compare ID,ID[,...]``: two or more registered standards (unknown or one: exit 2)."""
+    if value is None:
+        return None
+    from neve.geo.site.compare import check_editions
+
+    names = [v.strip() for v in str(value).split(",") if v.strip()]
+    return check_editions(names, field_name="compare")
+
+
+def compare_option(f):
+    """``--compare asce7-16,asce7-22``: screen under each edition and join the results."""
+    return click.option(
+        "--compare",
+        "compare",
+        metavar="ID,ID",
+        default=None,
+        callback=_compare,
+        help="Screen under each of these standards (comma-separated ids, two or more, e.g. "
+        "asce7-16,asce7-22), each with its own layers: per-edition columns <column>__<id>, "
+        "pg_ratio and design_uniform_ratio (last / first), and the count of sites whose "
+        "governing uniform load rises by more than 10 %.",
+    )(f)

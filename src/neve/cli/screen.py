@@ -9,10 +9,13 @@ from pathlib import Path
 import click
 
 from neve.cli.options import (
+    compare_option,  # issue 10: edition comparison
     dem_options,
     gazetteer_option,
     geocoder_url_option,
+    layer_standard_option,
     layers_option,
+    map_colour_option,
     map_look_options,
     map_option,
     output_option,
@@ -20,7 +23,6 @@ from neve.cli.options import (
     quiet_option,
     roof_options,
     roofs_from_options,
-    standard_option,
 )
 from neve.engine.errors import InputError
 
@@ -39,6 +41,7 @@ def _terminate(signum, frame):  # pragma: no cover - exercised through a subproc
 @roof_options
 @map_option("Portfolio map (.html).")
 @map_look_options
+@map_colour_option
 @click.option(
     "--engine",
     type=click.Choice(["local", "dask"], case_sensitive=False),
@@ -82,16 +85,24 @@ def _terminate(signum, frame):  # pragma: no cover - exercised through a subproc
     type=click.Path(dir_okay=False),
     help="Also write the run summary as JSON to this file.",
 )
-@standard_option
+@layer_standard_option
+@compare_option
 def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, tiles, self_contained, engine, scheduler, staging, partitions,
-           gazetteer, geocoder_url, geocode_cache, quiet, overwrite, csv_raw, summary_json, standard, **roof_kw):  # fmt: skip
+           gazetteer, geocoder_url, geocode_cache, quiet, overwrite, csv_raw, summary_json, standard, map_colour="ground", compare=None, **roof_kw):  # fmt: skip
     """Screen a portfolio: ground snow load (and roof loads) for every site in SITES.
 
     SITES is a CSV, XLSX, GeoPackage or Parquet file with lat/lon (or
     latitude/longitude), an address, or point geometry; an optional
     elevation carries its unit in the cell (1200ft, 412m) or in the column
     name (elevation_ft, elevation_m).  Every row comes back in order with
-    status, flags and message.
+    status, flags and message.  An optional snow_load_on_record column (30psf,
+    1.44kPa; or snow_load_on_record_psf / _kpa with plain numbers) adds
+    load_ratio = today's design_uniform / the load on record, flagged
+    exceeds_record above 1.0 (uniform loads only; needs a roof).
+
+    --compare asce7-16,asce7-22 screens under each edition with its own layers:
+    columns <column>__<id>, pg_ratio and design_uniform_ratio (last / first),
+    and the summary's rises_over_10pct; --map shows the last edition.
 
     Results are an aid to, not a substitute for, a licensed design
     professional. Confirm ground snow loads with the authority having
@@ -131,13 +142,25 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
             "partitions", "given without --engine dask", "--engine dask --partitions N"
         )
     roof = roofs_from_options(roof_kw)
+    if compare is not None:
+        source = click.get_current_context().get_parameter_source("standard")
+        if source is click.core.ParameterSource.COMMANDLINE:
+            raise InputError("standard", "given together with --compare",
+                             "either --standard ID or --compare ID,ID")  # fmt: skip
     progress = not quiet and sys.stderr.isatty()
     try:  # a terminated run cleans up its temporary files like an interrupted one
         previous = signal.signal(signal.SIGTERM, _terminate)
     except ValueError:  # not the main thread: leave signals alone
         previous = None
     try:
-        run = run_screen(
+        screen_run = run_screen
+        if compare is not None:  # each edition screened, then joined (geo/screen/compare.py)
+            from functools import partial
+
+            from neve.geo.screen.compare import run_compare
+
+            screen_run = partial(run_compare, standards=compare)
+        run = screen_run(
             sites,
             layers=list(layers) or None,
             dem=dem,
@@ -155,6 +178,15 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
             progress=progress,
             standard=standard,
         )
+        map_run = run.runs[-1][1] if compare is not None else run  # the last edition's map
+        if map_path and map_colour.lower() == "ratio" and "load_ratio" not in map_run.results:
+            from neve.maps.portfolio import RATIO_NEEDS
+
+            raise InputError(
+                "map-colour",
+                "'ratio' given, but the site file has no snow_load_on_record column",
+                RATIO_NEEDS,
+            )  # refused before any output is written
         write_results(
             run.results,
             output,
@@ -164,21 +196,35 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
             csv_raw=csv_raw,
         )
         if map_path:
-            _write_map(run, map_path, overwrite, tiles=tiles, self_contained=self_contained)
+            _write_map(
+                map_run, map_path, overwrite, tiles=tiles, self_contained=self_contained,
+                colour=map_colour.lower(),
+            )  # fmt: skip
         if summary_json:
             text = json.dumps(run.summary, indent=2)
             write_text(summary_json, text, overwrite=overwrite, field="summary-json")
     finally:
         if previous is not None:
             signal.signal(signal.SIGTERM, previous)
-    click.echo(format_summary(run.summary))
+    if compare is not None:
+        from neve.geo.screen.compare import format_compare_summary
+
+        click.echo(format_compare_summary(run.summary))
+    else:
+        click.echo(format_summary(run.summary))
     click.echo(f"results: {output}")
     if map_path:
         click.echo(f"map: {map_path}")
 
 
 def _write_map(
-    run, map_path: str, overwrite: bool, *, tiles: str = "none", self_contained: bool = False
+    run,
+    map_path: str,
+    overwrite: bool,
+    *,
+    tiles: str = "none",
+    self_contained: bool = False,
+    colour: str = "ground",
 ) -> None:
     from neve.maps.portfolio import screen_view, write_portfolio_map
 
@@ -189,6 +235,7 @@ def _write_map(
         tiles=tiles,
         self_contained=self_contained,
         overwrite=overwrite,
+        colour=colour,
     )
 
 

@@ -9,13 +9,14 @@ from neve.cli.options import (
     format_option,
     gazetteer_option,
     geocoder_url_option,
+    layer_standard_option,
     layers_option,
     map_look_options,
     map_option,
+    on_record_option,
     overwrite_option,
     roof_from_options,
     roof_options,
-    standard_option,
 )
 from neve.engine.errors import InputError
 from neve.engine.jsonsafe import dumps, finite_copy
@@ -55,7 +56,8 @@ def _check_output(path: str | None, field: str, overwrite: bool, is_dir: bool = 
 @click.option("--user-agent", help="User agent sent to the geocoding server.")
 @click.option("--geocoder-timeout", type=float, default=10.0, show_default=True,
               help="Seconds to wait for the geocoding server.")  # fmt: skip
-@standard_option
+@layer_standard_option
+@on_record_option
 def site(**kw) -> None:
     """Ground snow load of a site from zone layers, and roof snow loads when a roof is given.
 
@@ -102,6 +104,7 @@ def site(**kw) -> None:
         given=given,
         elevation_source=kw["elevation_source"],
         standard=kw["standard"],
+        on_record_psf=kw.get("on_record"),
     )
     data = finite_copy(result.to_json())  # no NaN or infinity in any output: null + a flag
     if kw["map_path"] or kw["package_dir"]:
