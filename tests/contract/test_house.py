@@ -408,7 +408,8 @@ _ELEV_SOURCE = ("elevation_source", ("--elevation-source",), "Choice('larger', '
                 "larger", False, False)  # fmt: skip
 _LAYERS = ("layers", ("--layer",), _PATH, None, True, False)
 _TILES = ("tiles", ("--tiles",), "Choice('none', 'osm')", "none", False, False)
-_SELF_CONTAINED = ("self_contained", ("--self-contained",), "BoolParamType", False, False, False)
+_SELF_CONTAINED = ("self_contained", ("--self-contained", "--cdn"), "BoolParamType", True, False,
+                   False)  # issue 11: inlined by default, --cdn links  # fmt: skip
 _OVERWRITE = ("overwrite", ("--overwrite",), "BoolParamType", False, False, False)
 _MAP = ("map_path", ("--map",), _PATH, None, False, False)
 _GAZETTEER = ("gazetteer", ("--gazetteer",), _PATH, None, False, False)

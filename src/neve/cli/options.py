@@ -300,17 +300,23 @@ def tiles_option(f):
 
 
 def self_contained_option(f):
-    """``--self-contained``: one HTML file holding the map's scripts and styles."""
+    """``--self-contained`` (the default) / ``--cdn``: how a map page gets its scripts.
+
+    ``--self-contained`` inlines the map's scripts and styles, so the page opens
+    with no internet; it is the default and stays accepted.  ``--cdn`` opts into
+    the smaller page that loads them from the internet.
+    """
     return click.option(
-        "--self-contained",
+        "--self-contained/--cdn",
         "self_contained",
-        is_flag=True,
-        help="Inline the map's scripts and styles, so that the map opens with no internet "
-        "(with --tiles none).",
+        default=True,
+        help="--self-contained (the default): inline the map's scripts and styles, so the "
+        "page opens with no internet (with --tiles none). --cdn: a smaller page that "
+        "loads them from the internet.",
     )(f)
 
 
-#: ``--tiles`` and ``--self-contained``, in that order
+#: ``--tiles`` and ``--self-contained``/``--cdn``, in that order
 map_look_options = _stack(tiles_option, self_contained_option)
 
 
