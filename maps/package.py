@@ -188,6 +188,66 @@ def _on_record_rows(rec: dict | None) -> list[dict]:
     ]  # fmt: skip
 
 
+#: keys whose text value names a file: shown by its file name only in the package
+_FILE_KEYS = ("path", "file", "dem", "roof_file", "layer_path")
+
+
+def _file_name(text: str) -> str:
+    """``/home/ana/layers/zones.gpkg`` -> ``zones.gpkg`` (either separator)."""
+    return text.replace("\\", "/").rstrip("/").rsplit("/", 1)[-1]
+
+
+def _looks_like_machine_path(text: str) -> bool:
+    """Whether ``text`` is an absolute path of this machine (or a Windows one)."""
+    if len(text) < 2 or "\n" in text:
+        return False
+    if text[1:3] in (":\\", ":/"):  # C:\... or C:/...
+        return True
+    if not text.startswith(("/", "~")):
+        return False
+    prefixes = {os.path.expanduser("~"), os.getcwd(), str(Path(__file__).resolve().parents[1])}
+    return any(text.startswith(p) for p in prefixes if p not in ("", "/")) or os.path.exists(
+        os.path.expanduser(text)
+    )
+
+
+def strip_machine_paths(value):
+    """A copy of ``value`` without absolute paths of the user's machine.
+
+    A file named in the package (zone layers, a DEM, a ROOF.toml) is shown by
+    its file name only: the folder it sat in on the engineer's machine says
+    nothing to the reader and may say too much (a user name, a client folder).
+    The file's SHA-256 stays beside it, so the file is still identified.
+    Text under a file key (:data:`_FILE_KEYS`, ``*_path``, ``*_file``) and any
+    text that is an absolute path of this machine is cut to its last part.
+
+    >>> strip_machine_paths({"layer": {"path": "/home/ana/zones.gpkg", "sha256": "ab"}})
+    {'layer': {'path': 'zones.gpkg', 'sha256': 'ab'}}
+    >>> strip_machine_paths({"name": "North shed", "path": r"C:\\jobs\\z.geojson"})
+    {'name': 'North shed', 'path': 'z.geojson'}
+    """
+    if isinstance(value, dict):
+        out = {}
+        for k, v in value.items():
+            key = str(k)
+            if (
+                isinstance(v, str)
+                and (key in _FILE_KEYS or key.endswith(("_path", "_file")))
+                and ("/" in v or "\\" in v)
+            ):
+                out[k] = _file_name(v)
+            else:
+                out[k] = strip_machine_paths(v)
+        return out
+    if isinstance(value, list):
+        return [strip_machine_paths(v) for v in value]
+    if isinstance(value, tuple):
+        return tuple(strip_machine_paths(v) for v in value)
+    if isinstance(value, str) and _looks_like_machine_path(value):
+        return _file_name(value)
+    return value
+
+
 def _provenance(ground: dict) -> list[tuple[str, str]]:
     layer = ground.get("layer") or {}
     rows = [
@@ -261,7 +321,7 @@ def write_package(
     from neve import safe_write
 
     dest = Path(outdir)
-    data = copy.deepcopy(site_json)
+    data = strip_machine_paths(copy.deepcopy(site_json))  # file names only, never a folder
     data.setdefault("site", {})
     if project is not None:
         data["site"]["project"] = project
@@ -311,7 +371,7 @@ def write_package(
         if comparison is not None:  # the edition comparison page, last (neve compare --package)
             from neve.maps.compare_page import comparison_html
 
-            cmp = copy.deepcopy(comparison)
+            cmp = strip_machine_paths(copy.deepcopy(comparison))
             for key in ("project", "name"):
                 cmp["site"][key] = data["site"].get(key)
             files["comparison_json"] = safe_write.write_text(
