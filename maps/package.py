@@ -17,6 +17,7 @@ import json
 import os
 from pathlib import Path
 
+from neve.engine import format as fmt
 from neve.engine.format import is_quantity
 from neve.maps import assets, style
 from neve.maps.diagrams import write_case_diagrams
@@ -43,10 +44,31 @@ def _data_uri(path: Path) -> str:
     return f"data:{mime};base64," + base64.b64encode(path.read_bytes()).decode("ascii")
 
 
-def _value_text(value) -> str:
+def _load_text(load) -> str:
+    """A load in the package: 0.1 psf and 0.01 kPa, zeros kept (``32.0 psf (1.53 kPa)``)."""
+    return fmt.load_text(load, missing="none", missing_number="\u2014")
+
+
+def _rain_on_snow_text(load) -> str:
+    """The one statement of the rain-on-snow surcharge, in the summary and in the cases.
+
+    Missing (the provision does not apply) and zero read the same, so that the
+    summary never says "not applicable" above a case that says "0 psf".
+    """
+    psf = fmt._finite((load or {}).get("psf")) if isinstance(load, dict) else None
+    if not psf:
+        return "not applicable: no surcharge added (0.0 psf)"
+    return _load_text(load)
+
+
+def _value_text(value, key: str = "") -> str:
     """Render a case value generically: loads, lengths, line loads, numbers, text."""
+    if key == "rain_on_snow":
+        return _rain_on_snow_text(value)
     if isinstance(value, dict):
-        if is_quantity(value):  # load, length, line load, density: the one formatter
+        if "psf" in value:  # a load: fixed decimals (engineering rounding of a summary)
+            return _load_text(value)
+        if is_quantity(value):  # length, line load, density: the one formatter
             return style.quantity_text(value)
         return ", ".join(f"{k}: {_value_text(v)}" for k, v in value.items())
     if isinstance(value, (list, tuple)):
@@ -54,8 +76,19 @@ def _value_text(value) -> str:
     if isinstance(value, bool):
         return "yes" if value else "no"
     if isinstance(value, (int, float)):
-        return style.num(value, 3)
+        return fmt.significant(value)
     return "" if value is None else str(value)
+
+
+def _steps(steps) -> list[dict]:
+    """Calculation steps with their values to three significant figures (engineering rounding)."""
+    out = []
+    for st in steps or []:
+        row = dict(st)
+        if isinstance(row.get("value"), (int, float)) and not isinstance(row["value"], bool):
+            row["value"] = fmt.significant(row["value"])
+        out.append(row)
+    return out
 
 
 def _cases(roof: dict | None, diagrams: dict[str, Path]) -> list[dict]:
@@ -63,7 +96,7 @@ def _cases(roof: dict | None, diagrams: dict[str, Path]) -> list[dict]:
     for i, case in enumerate((roof or {}).get("cases") or []):
         name = str(case.get("name") or case.get("case") or f"case {i + 1}")
         values = [
-            (k.replace("_", " "), _value_text(v)) for k, v in case.items() if k not in _CASE_META
+            (k.replace("_", " "), _value_text(v, k)) for k, v in case.items() if k not in _CASE_META
         ]
         values = [(k, v) for k, v in values if v != ""]
         diag = diagrams.get(name) or diagrams.get(f"{name} ({i})")
@@ -72,7 +105,7 @@ def _cases(roof: dict | None, diagrams: dict[str, Path]) -> list[dict]:
                 "kind": str(case.get("case") or "case"),
                 "name": name,
                 "values": values,
-                "steps": list(case.get("steps") or []),
+                "steps": _steps(case.get("steps")),
                 "diagram": _data_uri(diag) if diag else None,
             }
         )
@@ -104,7 +137,7 @@ def _factors(roof: dict | None) -> list[dict]:
 _ROOF_LABELS = {
     "risk": "Risk category",
     "shape": "Roof shape",
-    "slope_deg": "Roof slope [deg]",
+    "slope_deg": "Roof slope",
     "surface": "Roof surface",
     "eave_to_ridge": "Eave to ridge W",
     "thermal": "Thermal condition",
@@ -120,7 +153,8 @@ def _roof_rows(roof: dict | None) -> list[tuple[str, str]]:
     for key, value in desc.items():
         if value is None or value == "" or key == "name":
             continue
-        rows.append((_ROOF_LABELS.get(key, key.replace("_", " ")), _value_text(value)))
+        text = fmt.pitch_text(value) if key == "slope_deg" else _value_text(value, key)
+        rows.append((_ROOF_LABELS.get(key, key.replace("_", " ")), text))
     return rows
 
 
@@ -145,11 +179,16 @@ def _summary(roof: dict | None) -> list[dict]:
     }
     for key, load in loads.items():
         label, ref = labels.get(key, key), provision(f"load.{key}")
-        rows.append({"label": label, "value": style.load_text(load) if load else "not applicable",
+        text = (
+            _rain_on_snow_text(load)
+            if key == "rain_on_snow"
+            else (_load_text(load) if load else "not applicable")
+        )
+        rows.append({"label": label, "value": text,
                      "ref": f"{std} {ref}".strip(), "governing": False})  # fmt: skip
     for case in roof.get("cases") or []:
         vals = [
-            f"{k.replace('_', ' ')} {_value_text(v)}"
+            f"{k.replace('_', ' ')} {_value_text(v, k)}"
             for k, v in case.items()
             if k not in _CASE_META and isinstance(v, dict) and ("psf" in v)
         ]
@@ -162,7 +201,7 @@ def _summary(roof: dict | None) -> list[dict]:
     rule = provision("design_uniform")
     rows.append({"label": "Governing uniform load (balanced or minimum; unbalanced, drift and "
                           "sliding cases act separately)",
-                 "value": style.load_text(roof.get("design_uniform")),
+                 "value": _load_text(roof.get("design_uniform")),
                  "ref": f"{std} larger of ps + rain-on-snow and pm"
                         f"{f' ({rule})' if rule else ''}".strip(),
                  "governing": True})  # fmt: skip
@@ -181,7 +220,7 @@ def _on_record_rows(rec: dict | None) -> list[dict]:
         verdict = f"{ratio:.3f}: {above}"
     ref = "neve existing-roof check: uniform loads only, drifts not included"
     return [
-        {"label": "Roof snow load on record", "value": style.load_text(rec.get("load")),
+        {"label": "Roof snow load on record", "value": _load_text(rec.get("load")),
          "ref": "as given (--on-record)", "governing": False},
         {"label": "Load ratio (design_uniform / load on record)", "value": verdict,
          "ref": ref, "governing": False},
@@ -362,7 +401,7 @@ def write_package(
             "not_required": list((data.get("roof") or {}).get("not_required") or []),
             "summary": _summary(data.get("roof")) + _on_record_rows(data.get("on_record")),
             "provenance": _provenance(ground),
-            "ground_steps": list(ground.get("steps") or []),
+            "ground_steps": _steps(ground.get("steps")),
             "static_map": _data_uri(png),
             "map_html": files["site_map"].read_text(encoding="utf-8"),
             "cases": _cases(data.get("roof"), diagrams),
