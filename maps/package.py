@@ -26,6 +26,9 @@ from neve.maps.static import write_static_map
 from neve.maps.target import MARKER, package_replaceable
 from neve.maps.templating import render
 
+#: the title block's fields given by the engineer (``--job`` .. ``--revision``)
+TITLE_BLOCK_FIELDS = ("job", "prepared_by", "checked_by", "revision")
+
 #: keys of a case that are not values to tabulate
 _CASE_META = ("case", "name", "steps")
 
@@ -328,6 +331,7 @@ def write_package(
     site_name: str | None = None,
     overwrite: bool = False,
     comparison: dict | None = None,
+    title_block: dict | None = None,
 ) -> dict[str, Path]:
     """Write the calculation package folder.
 
@@ -347,6 +351,10 @@ def write_package(
     comparison : dict, optional
         The ``neve compare`` JSON: adds ``comparison.json`` and the edition
         comparison page to the report (:mod:`neve.maps.compare_page`).
+    title_block : dict, optional
+        ``job``, ``prepared_by``, ``checked_by``, ``revision`` (text; missing
+        ones are shown as empty fields) of the title block at the foot of every
+        page, beside the project, site, date, sheet n of N and an empty seal box.
 
     Returns
     -------
@@ -385,12 +393,18 @@ def write_package(
         for name, p in diagrams.items():
             files[f"diagram:{name}"] = p
         ground = data.get("ground") or {}
+        today = _dt.date.today().isoformat()
+        given = {k: v for k, v in (title_block or {}).items() if k in TITLE_BLOCK_FIELDS}
+        tb = {k: "" if given.get(k) is None else str(given[k]) for k in TITLE_BLOCK_FIELDS}
+        tb.update(project=data["site"].get("project") or "",
+                  site=data["site"].get("name") or "Site", date=today)  # fmt: skip
         ctx = {
+            "tb": tb,
             "css": assets.package_text("report.css"),
             "project": data["site"].get("project") or "",
             "site_name": data["site"].get("name") or "Site",
             "s": data["site"],
-            "date": _dt.date.today().isoformat(),
+            "date": today,
             "version": _version(),
             "demo": is_demo(data, views),
             "cautions": cautions_of(data),

@@ -364,6 +364,33 @@ def overwrite_option(help: str):
     return click.option("--overwrite", is_flag=True, help=help)
 
 
+# --- the title block of the calculation package (issue 11) ----------------------------
+
+#: the title-block options' parameter names (the package's ``title_block`` fields)
+TITLE_BLOCK_KEYS = ("job", "prepared_by", "checked_by", "revision")
+
+
+def title_block_options(f):
+    """``--job``, ``--prepared-by``, ``--checked-by``, ``--revision``: the package's title block.
+
+    Free text, shown as given (escaped) in the title block at the foot of every
+    page of ``--package``; a field not given is shown empty, never left out.
+    """
+    return _stack(
+        click.option("--job", metavar="TEXT", help="Job number for the package's title block."),
+        click.option("--prepared-by", metavar="TEXT",
+                     help="Who prepared the calculation (title block)."),
+        click.option("--checked-by", metavar="TEXT",
+                     help="Who checked the calculation (title block)."),
+        click.option("--revision", metavar="TEXT", help="Revision of the package (title block)."),
+    )(f)  # fmt: skip
+
+
+def title_block_from_options(kwargs: dict) -> dict:
+    """The title-block fields given on the command line (missing ones as None)."""
+    return {k: kwargs.get(k) for k in TITLE_BLOCK_KEYS}
+
+
 def quiet_option(f):
     """``--quiet``: no progress bar."""
     return click.option("--quiet", is_flag=True, help="No progress bar.")(f)
