@@ -201,3 +201,62 @@ def slope_text(deg: object, *, trim: bool = False, missing: str = MISSING) -> st
     """
     text = number(deg, DECIMALS["deg"], trim=trim, missing=missing)
     return text if text == missing else f"{text} deg"
+
+
+#: significant figures of a calculation step's value in the package (engineering rounding)
+STEP_FIGURES = 3
+
+
+def significant(x: object, figures: int = STEP_FIGURES, *, missing: str = MISSING) -> str:
+    """A number to ``figures`` significant figures, trailing zeros kept, never in e-notation.
+
+    Engineering rounding of a calculation step (common practice: three
+    significant figures, so that the figures shown say the precision):
+
+    >>> significant(1479.5505), significant(49.591), significant(0.0), significant(1.0)
+    ('1480', '49.6', '0', '1.00')
+    >>> significant(20.4468), significant(0.49862), significant(-2.2123), significant(None)
+    ('20.4', '0.499', '-2.21', 'n/a')
+    >>> significant(999.6), significant(0.99996), significant(123456.0)
+    ('1000', '1.00', '123000')
+    """
+    v = _finite(x)
+    if v is None:
+        return missing
+    if v == 0:
+        return "0"
+    decimals = figures - 1 - math.floor(math.log10(abs(v)))
+    r = round(v, decimals)
+    if r != 0:  # rounding may carry into a new digit (999.6 -> 1000): count again
+        decimals = figures - 1 - math.floor(math.log10(abs(r)))
+        r = round(v, decimals)
+    if decimals > 0:
+        text = format(r, f".{decimals}f")
+    else:
+        text = str(int(r))
+    return text[1:] if text.startswith("-") and float(text) == 0 else text
+
+
+#: decimals of an angle in degrees beside a pitch
+PITCH_DEG_DECIMALS = 1
+
+
+def pitch_text(deg: object, *, missing: str = MISSING) -> str:
+    """A roof slope as rise on 12 with its angle: ``6:12 (26.6°)``.
+
+    The rise is quoted to three significant figures, trailing zeros dropped
+    (6:12, not 6.00:12), the angle to a tenth of a degree.  Rise on 12 is
+    12 tan(angle).
+
+    >>> pitch_text(26.565), pitch_text(0.0), pitch_text(5.0), pitch_text(45.0)
+    ('6:12 (26.6°)', '0:12 (0.0°)', '1.05:12 (5.0°)', '12:12 (45.0°)')
+    >>> pitch_text(None)
+    'n/a'
+    """
+    v = _finite(deg)
+    if v is None or not -90.0 < v < 90.0:
+        return missing
+    rise = significant(12.0 * math.tan(math.radians(v)))
+    if "." in rise:
+        rise = rise.rstrip("0").rstrip(".")
+    return f"{rise}:12 ({number(v, PITCH_DEG_DECIMALS)}\u00b0)"

@@ -15,8 +15,15 @@ import re
 import textwrap
 from pathlib import Path
 
+from neve.engine import format as fmt
 from neve.maps import style
 from neve.safe_write import write_bytes
+
+
+def _load(load) -> str:
+    """A load on a diagram as in the package's tables: 0.1 psf, 0.01 kPa, zeros kept."""
+    return fmt.load_text(load, missing="none", missing_number="\u2014")
+
 
 #: case kinds that get a diagram
 DIAGRAM_CASES = ("unbalanced", "drift", "sliding")
@@ -59,18 +66,18 @@ def _unbalanced(ax, case, scale):
     ax.plot([0, 4, 8], [-1.2, -0.4, -1.2], color=_ROOF, lw=2.5)
     ax.plot([0, 0], [-1.2, -1.9], color=_ROOF, lw=2)
     ax.plot([8, 8], [-1.2, -1.9], color=_ROOF, lw=2)
-    _block(ax, 0, 4, 0, ww * scale, label=f"windward {style.load_text(case.get('windward'))}")
+    _block(ax, 0, 4, 0, ww * scale, label=f"windward {_load(case.get('windward'))}")
     _block(ax, 4, 8, 0, lw * scale, label=None)
     e = 4 * 0.45 if ext else 0.0
     if sc > 0 and e > 0:
         _block(ax, 4, 4 + e, lw * scale, sc * scale, colour=_SURCHARGE)
-        ax.text(4 + e + 0.1, lw * scale + sc * scale * 0.5, f"surcharge {style.load_text(case.get('surcharge'))}",
+        ax.text(4 + e + 0.1, lw * scale + sc * scale * 0.5, f"surcharge {_load(case.get('surcharge'))}",
                 ha="left", va="center", fontsize=8)  # fmt: skip
         _dim(ax, 4, 4 + e, -0.15, f"extent {style.length_text(ext)}")
     ax.text(
         6.0,
         lw * scale * 0.5,
-        f"leeward\n{style.load_text(case.get('leeward'))}",
+        f"leeward\n{_load(case.get('leeward'))}",
         ha="center",
         va="center",
         fontsize=8,
@@ -95,12 +102,12 @@ def _drift(ax, case, scale, balanced, roof_loads=None):
     ax.text(
         0.15,
         (bal + pd) * scale + 0.08,
-        f"pd = {style.load_text(case.get('pd'))}",
+        f"pd = {_load(case.get('pd'))}",
         ha="left",
         va="bottom",
         fontsize=8,
     )
-    ax.text(6.0, bal * scale * 0.5, f"balanced\n{style.load_text((roof_loads or {}).get('ps')) if bal else 'none'}",
+    ax.text(6.0, bal * scale * 0.5, f"balanced\n{_load((roof_loads or {}).get('ps')) if bal else 'none'}",
             ha="center", va="center", fontsize=8)  # fmt: skip
     _dim(ax, 0, w, -0.2, f"w = {style.length_text(case.get('w'))}")
     ax.text(
@@ -131,12 +138,12 @@ def _sliding(ax, case, scale, balanced, roof_loads=None):
     _block(ax, 0, 8, 0, bal * scale)
     _block(ax, 0, 2.2, bal * scale, load * scale, colour=_SURCHARGE)
     ext = case.get("extent") or case.get("width") or case.get("w")
-    ax.text(2.35, (bal + load * 0.5) * scale, f"sliding {style.load_text(case.get('load') or case.get('surcharge'))}",
+    ax.text(2.35, (bal + load * 0.5) * scale, f"sliding {_load(case.get('load') or case.get('surcharge'))}",
             va="center", fontsize=8)  # fmt: skip
     if isinstance(ext, dict):
         _dim(ax, 0, 2.2, -0.2, style.length_text(ext))
     if bal:
-        ax.text(5.5, bal * scale * 0.5, f"balanced\n{style.load_text((roof_loads or {}).get('ps'))}",
+        ax.text(5.5, bal * scale * 0.5, f"balanced\n{_load((roof_loads or {}).get('ps'))}",
                 ha="center", va="center", fontsize=8)  # fmt: skip
     return bal + load
 

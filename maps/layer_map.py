@@ -60,7 +60,7 @@ def write_layer_map(
     path: str | os.PathLike,
     *,
     tiles: str = "none",
-    self_contained: bool = False,
+    self_contained: bool = True,
     overwrite: bool = False,
 ) -> Path:
     """Write a review map of one zone layer.
@@ -78,7 +78,8 @@ def write_layer_map(
     tiles : {"none", "osm"}
         Base tiles.
     self_contained : bool
-        Inline every script and stylesheet so the page works offline.
+        Inline every script and stylesheet so the page works offline (the
+        default); ``False`` links them from the internet (``--cdn``).
     overwrite : bool
         Replace an existing file (otherwise an ``InputError``, before any work).
 

@@ -17,6 +17,7 @@ import json
 import os
 from pathlib import Path
 
+from neve.engine import format as fmt
 from neve.engine.format import is_quantity
 from neve.maps import assets, style
 from neve.maps.diagrams import write_case_diagrams
@@ -24,6 +25,9 @@ from neve.maps.site_map import cautions_of, is_demo, summary_context, write_site
 from neve.maps.static import write_static_map
 from neve.maps.target import MARKER, package_replaceable
 from neve.maps.templating import render
+
+#: the title block's fields given by the engineer (``--job`` .. ``--revision``)
+TITLE_BLOCK_FIELDS = ("job", "prepared_by", "checked_by", "revision")
 
 #: keys of a case that are not values to tabulate
 _CASE_META = ("case", "name", "steps")
@@ -43,10 +47,31 @@ def _data_uri(path: Path) -> str:
     return f"data:{mime};base64," + base64.b64encode(path.read_bytes()).decode("ascii")
 
 
-def _value_text(value) -> str:
+def _load_text(load) -> str:
+    """A load in the package: 0.1 psf and 0.01 kPa, zeros kept (``32.0 psf (1.53 kPa)``)."""
+    return fmt.load_text(load, missing="none", missing_number="\u2014")
+
+
+def _rain_on_snow_text(load) -> str:
+    """The one statement of the rain-on-snow surcharge, in the summary and in the cases.
+
+    Missing (the provision does not apply) and zero read the same, so that the
+    summary never says "not applicable" above a case that says "0 psf".
+    """
+    psf = fmt._finite((load or {}).get("psf")) if isinstance(load, dict) else None
+    if not psf:
+        return "not applicable: no surcharge added (0.0 psf)"
+    return _load_text(load)
+
+
+def _value_text(value, key: str = "") -> str:
     """Render a case value generically: loads, lengths, line loads, numbers, text."""
+    if key == "rain_on_snow":
+        return _rain_on_snow_text(value)
     if isinstance(value, dict):
-        if is_quantity(value):  # load, length, line load, density: the one formatter
+        if "psf" in value:  # a load: fixed decimals (engineering rounding of a summary)
+            return _load_text(value)
+        if is_quantity(value):  # length, line load, density: the one formatter
             return style.quantity_text(value)
         return ", ".join(f"{k}: {_value_text(v)}" for k, v in value.items())
     if isinstance(value, (list, tuple)):
@@ -54,8 +79,19 @@ def _value_text(value) -> str:
     if isinstance(value, bool):
         return "yes" if value else "no"
     if isinstance(value, (int, float)):
-        return style.num(value, 3)
+        return fmt.significant(value)
     return "" if value is None else str(value)
+
+
+def _steps(steps) -> list[dict]:
+    """Calculation steps with their values to three significant figures (engineering rounding)."""
+    out = []
+    for st in steps or []:
+        row = dict(st)
+        if isinstance(row.get("value"), (int, float)) and not isinstance(row["value"], bool):
+            row["value"] = fmt.significant(row["value"])
+        out.append(row)
+    return out
 
 
 def _cases(roof: dict | None, diagrams: dict[str, Path]) -> list[dict]:
@@ -63,7 +99,7 @@ def _cases(roof: dict | None, diagrams: dict[str, Path]) -> list[dict]:
     for i, case in enumerate((roof or {}).get("cases") or []):
         name = str(case.get("name") or case.get("case") or f"case {i + 1}")
         values = [
-            (k.replace("_", " "), _value_text(v)) for k, v in case.items() if k not in _CASE_META
+            (k.replace("_", " "), _value_text(v, k)) for k, v in case.items() if k not in _CASE_META
         ]
         values = [(k, v) for k, v in values if v != ""]
         diag = diagrams.get(name) or diagrams.get(f"{name} ({i})")
@@ -72,7 +108,7 @@ def _cases(roof: dict | None, diagrams: dict[str, Path]) -> list[dict]:
                 "kind": str(case.get("case") or "case"),
                 "name": name,
                 "values": values,
-                "steps": list(case.get("steps") or []),
+                "steps": _steps(case.get("steps")),
                 "diagram": _data_uri(diag) if diag else None,
             }
         )
@@ -104,7 +140,7 @@ def _factors(roof: dict | None) -> list[dict]:
 _ROOF_LABELS = {
     "risk": "Risk category",
     "shape": "Roof shape",
-    "slope_deg": "Roof slope [deg]",
+    "slope_deg": "Roof slope",
     "surface": "Roof surface",
     "eave_to_ridge": "Eave to ridge W",
     "thermal": "Thermal condition",
@@ -120,7 +156,8 @@ def _roof_rows(roof: dict | None) -> list[tuple[str, str]]:
     for key, value in desc.items():
         if value is None or value == "" or key == "name":
             continue
-        rows.append((_ROOF_LABELS.get(key, key.replace("_", " ")), _value_text(value)))
+        text = fmt.pitch_text(value) if key == "slope_deg" else _value_text(value, key)
+        rows.append((_ROOF_LABELS.get(key, key.replace("_", " ")), text))
     return rows
 
 
@@ -145,11 +182,16 @@ def _summary(roof: dict | None) -> list[dict]:
     }
     for key, load in loads.items():
         label, ref = labels.get(key, key), provision(f"load.{key}")
-        rows.append({"label": label, "value": style.load_text(load) if load else "not applicable",
+        text = (
+            _rain_on_snow_text(load)
+            if key == "rain_on_snow"
+            else (_load_text(load) if load else "not applicable")
+        )
+        rows.append({"label": label, "value": text,
                      "ref": f"{std} {ref}".strip(), "governing": False})  # fmt: skip
     for case in roof.get("cases") or []:
         vals = [
-            f"{k.replace('_', ' ')} {_value_text(v)}"
+            f"{k.replace('_', ' ')} {_value_text(v, k)}"
             for k, v in case.items()
             if k not in _CASE_META and isinstance(v, dict) and ("psf" in v)
         ]
@@ -162,7 +204,7 @@ def _summary(roof: dict | None) -> list[dict]:
     rule = provision("design_uniform")
     rows.append({"label": "Governing uniform load (balanced or minimum; unbalanced, drift and "
                           "sliding cases act separately)",
-                 "value": style.load_text(roof.get("design_uniform")),
+                 "value": _load_text(roof.get("design_uniform")),
                  "ref": f"{std} larger of ps + rain-on-snow and pm"
                         f"{f' ({rule})' if rule else ''}".strip(),
                  "governing": True})  # fmt: skip
@@ -181,11 +223,71 @@ def _on_record_rows(rec: dict | None) -> list[dict]:
         verdict = f"{ratio:.3f}: {above}"
     ref = "neve existing-roof check: uniform loads only, drifts not included"
     return [
-        {"label": "Roof snow load on record", "value": style.load_text(rec.get("load")),
+        {"label": "Roof snow load on record", "value": _load_text(rec.get("load")),
          "ref": "as given (--on-record)", "governing": False},
         {"label": "Load ratio (design_uniform / load on record)", "value": verdict,
          "ref": ref, "governing": False},
     ]  # fmt: skip
+
+
+#: keys whose text value names a file: shown by its file name only in the package
+_FILE_KEYS = ("path", "file", "dem", "roof_file", "layer_path")
+
+
+def _file_name(text: str) -> str:
+    """``/home/ana/layers/zones.gpkg`` -> ``zones.gpkg`` (either separator)."""
+    return text.replace("\\", "/").rstrip("/").rsplit("/", 1)[-1]
+
+
+def _looks_like_machine_path(text: str) -> bool:
+    """Whether ``text`` is an absolute path of this machine (or a Windows one)."""
+    if len(text) < 2 or "\n" in text:
+        return False
+    if text[1:3] in (":\\", ":/"):  # C:\... or C:/...
+        return True
+    if not text.startswith(("/", "~")):
+        return False
+    prefixes = {os.path.expanduser("~"), os.getcwd(), str(Path(__file__).resolve().parents[1])}
+    return any(text.startswith(p) for p in prefixes if p not in ("", "/")) or os.path.exists(
+        os.path.expanduser(text)
+    )
+
+
+def strip_machine_paths(value):
+    """A copy of ``value`` without absolute paths of the user's machine.
+
+    A file named in the package (zone layers, a DEM, a ROOF.toml) is shown by
+    its file name only: the folder it sat in on the engineer's machine says
+    nothing to the reader and may say too much (a user name, a client folder).
+    The file's SHA-256 stays beside it, so the file is still identified.
+    Text under a file key (:data:`_FILE_KEYS`, ``*_path``, ``*_file``) and any
+    text that is an absolute path of this machine is cut to its last part.
+
+    >>> strip_machine_paths({"layer": {"path": "/home/ana/zones.gpkg", "sha256": "ab"}})
+    {'layer': {'path': 'zones.gpkg', 'sha256': 'ab'}}
+    >>> strip_machine_paths({"name": "North shed", "path": r"C:\\jobs\\z.geojson"})
+    {'name': 'North shed', 'path': 'z.geojson'}
+    """
+    if isinstance(value, dict):
+        out = {}
+        for k, v in value.items():
+            key = str(k)
+            if (
+                isinstance(v, str)
+                and (key in _FILE_KEYS or key.endswith(("_path", "_file")))
+                and ("/" in v or "\\" in v)
+            ):
+                out[k] = _file_name(v)
+            else:
+                out[k] = strip_machine_paths(v)
+        return out
+    if isinstance(value, list):
+        return [strip_machine_paths(v) for v in value]
+    if isinstance(value, tuple):
+        return tuple(strip_machine_paths(v) for v in value)
+    if isinstance(value, str) and _looks_like_machine_path(value):
+        return _file_name(value)
+    return value
 
 
 def _provenance(ground: dict) -> list[tuple[str, str]]:
@@ -229,6 +331,7 @@ def write_package(
     site_name: str | None = None,
     overwrite: bool = False,
     comparison: dict | None = None,
+    title_block: dict | None = None,
 ) -> dict[str, Path]:
     """Write the calculation package folder.
 
@@ -248,6 +351,10 @@ def write_package(
     comparison : dict, optional
         The ``neve compare`` JSON: adds ``comparison.json`` and the edition
         comparison page to the report (:mod:`neve.maps.compare_page`).
+    title_block : dict, optional
+        ``job``, ``prepared_by``, ``checked_by``, ``revision`` (text; missing
+        ones are shown as empty fields) of the title block at the foot of every
+        page, beside the project, site, date, sheet n of N and an empty seal box.
 
     Returns
     -------
@@ -261,7 +368,7 @@ def write_package(
     from neve import safe_write
 
     dest = Path(outdir)
-    data = copy.deepcopy(site_json)
+    data = strip_machine_paths(copy.deepcopy(site_json))  # file names only, never a folder
     data.setdefault("site", {})
     if project is not None:
         data["site"]["project"] = project
@@ -286,12 +393,18 @@ def write_package(
         for name, p in diagrams.items():
             files[f"diagram:{name}"] = p
         ground = data.get("ground") or {}
+        today = _dt.date.today().isoformat()
+        given = {k: v for k, v in (title_block or {}).items() if k in TITLE_BLOCK_FIELDS}
+        tb = {k: "" if given.get(k) is None else str(given[k]) for k in TITLE_BLOCK_FIELDS}
+        tb.update(project=data["site"].get("project") or "",
+                  site=data["site"].get("name") or "Site", date=today)  # fmt: skip
         ctx = {
+            "tb": tb,
             "css": assets.package_text("report.css"),
             "project": data["site"].get("project") or "",
             "site_name": data["site"].get("name") or "Site",
             "s": data["site"],
-            "date": _dt.date.today().isoformat(),
+            "date": today,
             "version": _version(),
             "demo": is_demo(data, views),
             "cautions": cautions_of(data),
@@ -302,7 +415,7 @@ def write_package(
             "not_required": list((data.get("roof") or {}).get("not_required") or []),
             "summary": _summary(data.get("roof")) + _on_record_rows(data.get("on_record")),
             "provenance": _provenance(ground),
-            "ground_steps": list(ground.get("steps") or []),
+            "ground_steps": _steps(ground.get("steps")),
             "static_map": _data_uri(png),
             "map_html": files["site_map"].read_text(encoding="utf-8"),
             "cases": _cases(data.get("roof"), diagrams),
@@ -311,7 +424,7 @@ def write_package(
         if comparison is not None:  # the edition comparison page, last (neve compare --package)
             from neve.maps.compare_page import comparison_html
 
-            cmp = copy.deepcopy(comparison)
+            cmp = strip_machine_paths(copy.deepcopy(comparison))
             for key in ("project", "name"):
                 cmp["site"][key] = data["site"].get(key)
             files["comparison_json"] = safe_write.write_text(

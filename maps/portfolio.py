@@ -187,7 +187,7 @@ def write_portfolio_map(
     *,
     demo: bool = False,
     tiles: str = "none",
-    self_contained: bool = False,
+    self_contained: bool = True,
     overwrite: bool = False,
     colour: str = "ground",
 ) -> Path:
@@ -207,7 +207,8 @@ def write_portfolio_map(
     tiles : {"none", "osm"}
         Base tiles.
     self_contained : bool
-        Inline every script and stylesheet so the page works offline.
+        Inline every script and stylesheet so the page works offline (the
+        default); ``False`` links them from the internet (``--cdn``).
     overwrite : bool
         Replace an existing file (otherwise an ``InputError``, before any work).
     colour : {"ground", "ratio"}

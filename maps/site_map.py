@@ -154,7 +154,7 @@ def write_site_map(
     path: str | os.PathLike,
     *,
     tiles: str = "none",
-    self_contained: bool = False,
+    self_contained: bool = True,
     overwrite: bool = False,
 ) -> Path:
     """Write the interactive site map as one HTML file.
@@ -172,7 +172,8 @@ def write_site_map(
     tiles : {"none", "osm"}
         Base tiles; ``none`` gives a plain background.
     self_contained : bool
-        Inline every script and stylesheet so the page works offline.
+        Inline every script and stylesheet so the page works offline (the
+        default); ``False`` links them from the internet (``--cdn``).
     overwrite : bool
         Replace an existing file (otherwise an ``InputError``, before any work).
 

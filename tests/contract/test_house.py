@@ -401,6 +401,13 @@ _ROOF_OPTS = [
     ("unobstructed", ("--unobstructed", "--obstructed"), "BoolParamType", None, True, False),
     ("ventilated", ("--ventilated", "--unventilated"), "BoolParamType", None, True, False),
 ]
+# issue 11: the package's title block, on neve site and neve compare
+_TITLE_BLOCK = [
+    ("job", ("--job",), "StringParamType", None, False, False),
+    ("prepared_by", ("--prepared-by",), "StringParamType", None, False, False),
+    ("checked_by", ("--checked-by",), "StringParamType", None, False, False),
+    ("revision", ("--revision",), "StringParamType", None, False, False),
+]
 _FORMAT = ("fmt", ("--format",), "Choice('text', 'json')", "text", False, False)
 _DEM = ("dem", ("--dem",), "DemPath", None, False, False)
 _DEM_UNITS = ("dem_units", ("--dem-units",), "DemUnitType", None, False, False)
@@ -408,7 +415,8 @@ _ELEV_SOURCE = ("elevation_source", ("--elevation-source",), "Choice('larger', '
                 "larger", False, False)  # fmt: skip
 _LAYERS = ("layers", ("--layer",), _PATH, None, True, False)
 _TILES = ("tiles", ("--tiles",), "Choice('none', 'osm')", "none", False, False)
-_SELF_CONTAINED = ("self_contained", ("--self-contained",), "BoolParamType", False, False, False)
+_SELF_CONTAINED = ("self_contained", ("--self-contained", "--cdn"), "BoolParamType", True, False,
+                   False)  # issue 11: inlined by default, --cdn links  # fmt: skip
 _OVERWRITE = ("overwrite", ("--overwrite",), "BoolParamType", False, False, False)
 _MAP = ("map_path", ("--map",), _PATH, None, False, False)
 _GAZETTEER = ("gazetteer", ("--gazetteer",), _PATH, None, False, False)
@@ -447,6 +455,7 @@ EXPECTED_OPTIONS = {
             ("site_name", ("--site-name",), "StringParamType", None, False, False),
             ("user_agent", ("--user-agent",), "StringParamType", None, False, False),
             ("on_record", ("--on-record",), "StringParamType", None, True, False),  # issue 10
+            *_TITLE_BLOCK,
         ]
     ),  # fmt: skip
     ("screen",): sorted(
@@ -503,6 +512,7 @@ EXPECTED_OPTIONS = {
             ("project", ("--project",), "StringParamType", None, False, False),
             ("site_name", ("--site-name",), "StringParamType", None, False, False),
             ("user_agent", ("--user-agent",), "StringParamType", None, False, False),
+            *_TITLE_BLOCK,
         ]
     ),  # fmt: skip
     ("layer", "check"): sorted(

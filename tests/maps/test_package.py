@@ -81,7 +81,8 @@ def test_pdf_has_pages_headers_and_the_governing_values(built):
     assert len(pages) >= 3
     for i, text in enumerate(pages, start=1):
         flat = " ".join(text.split())
-        assert f"Page {i} of {len(pages)}" in flat
+        # the title block at the foot of every page: sheet i of N
+        assert "SHEET" in flat.upper() and f"{i} of {len(pages)}" in flat
         assert "Fixture project 7" in flat and "Varda depot (east)" in flat  # running header
     everything = " ".join(" ".join(pages).split())
     # the governing values as the report prints them (fixture: pg 35 psf, design 26.95 psf)
@@ -147,3 +148,62 @@ def test_a_file_in_the_way_is_an_input_error(tmp_path):
     (tmp_path / "pkg").write_text("x")
     with pytest.raises(InputError, match="package"):
         write_package(make_site_json(), [make_view()], tmp_path / "pkg")
+
+
+# --- the title block (issue 11) -------------------------------------------------------
+
+TB_HOSTILE = {
+    "--job": "{{7*7}}",
+    "--prepared-by": "{% raw %}",
+    "--checked-by": "<b>x</b>",
+    "--revision": "&amp;",
+}
+
+
+def _site_package(tmp_path, *extra):
+    from click.testing import CliRunner
+
+    from neve.cli import main
+
+    out = tmp_path / "pkg"
+    r = CliRunner().invoke(main, [
+        "site", "--at", "47.52,-140.05", "--elevation", "450m", "--shape", "gable",
+        "--slope", "6:12", "--eave-to-ridge", "30ft", "--site-name", "North shed",
+        "--project", "Skerrow demo (invented)", "--package", str(out), *extra,
+    ])  # fmt: skip
+    assert r.exit_code == 0, r.output
+    return out
+
+
+def _title_block(html: str) -> str:
+    start = html.index('<table class="titleblock"')
+    return html[start : html.index("</table>", start)]
+
+
+def test_title_block_fields_empty_but_present(tmp_path):
+    tb = _title_block((_site_package(tmp_path) / "report.html").read_text(encoding="utf-8"))
+    for label in ("Project", "Job no.", "Site", "Date", "Prepared by", "Checked by",
+                  "Revision", "Sheet", "Seal"):  # fmt: skip
+        assert f'<span class="tb-label">{label}</span>' in tb, label
+    assert '<span class="tb-label">Job no.</span></td>' in tb  # not given: an empty field
+    assert '<span class="tb-label">Checked by</span></td>' in tb
+    assert "Skerrow demo (invented)" in tb and "North shed" in tb
+
+
+@pytest.mark.skipif(shutil.which("pdftotext") is None, reason="poppler-utils not installed")
+def test_title_block_hostile_text_stays_literal(tmp_path):
+    args = [a for kv in TB_HOSTILE.items() for a in kv]
+    out = _site_package(tmp_path, *args)
+    tb = _title_block((out / "report.html").read_text(encoding="utf-8"))
+    assert "{{7*7}}" in tb and "49" not in tb.replace("2026", "")  # not run as a template
+    assert "{% raw %}" in tb
+    assert "&lt;b&gt;x&lt;/b&gt;" in tb and "<b>x</b>" not in tb  # escaped, not markup
+    assert "&amp;amp;" in tb  # the text "&amp;" itself, escaped once
+    text = subprocess.run(["pdftotext", str(out / "report.pdf"), "-"], capture_output=True,
+                          text=True, check=True).stdout  # fmt: skip
+    pages = text.split("\f")[:-1] if text.endswith("\f") else text.split("\f")
+    assert len(pages) >= 3
+    for i, page in enumerate(pages, start=1):  # on every page, literally
+        for value in TB_HOSTILE.values():
+            assert value in page, (i, value)
+        assert f"{i} of {len(pages)}" in page

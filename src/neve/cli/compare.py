@@ -11,7 +11,7 @@ import copy
 
 import click
 
-from neve.cli.options import standard_option
+from neve.cli.options import standard_option, title_block_from_options
 from neve.cli.site import site as _site_command
 from neve.engine.errors import InputError
 from neve.engine.jsonsafe import dumps
@@ -23,6 +23,7 @@ SITE_PARAMS = (
     "risk", "eave_to_ridge", "r_value", "ventilated", "unobstructed", "prismatic",
     "site_name", "project", "package_dir", "overwrite", "fmt", "gazetteer", "geocoder_url",
     "user_agent", "geocoder_timeout",
+    "job", "prepared_by", "checked_by", "revision",  # the package's title block (issue 11)
 )  # fmt: skip
 _HELP = {
     "layers": "Zone layer (repeat, most local first); each edition takes the layers whose "
@@ -111,6 +112,7 @@ def _run(**kw) -> None:
             site_name=kw["site_name"],
             overwrite=kw["overwrite"],
             comparison=data,
+            title_block=title_block_from_options(kw),
         )
     if kw["fmt"] == "json":
         click.echo(dumps(data, indent=2, ensure_ascii=False))

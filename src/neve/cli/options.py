@@ -300,17 +300,23 @@ def tiles_option(f):
 
 
 def self_contained_option(f):
-    """``--self-contained``: one HTML file holding the map's scripts and styles."""
+    """``--self-contained`` (the default) / ``--cdn``: how a map page gets its scripts.
+
+    ``--self-contained`` inlines the map's scripts and styles, so the page opens
+    with no internet; it is the default and stays accepted.  ``--cdn`` opts into
+    the smaller page that loads them from the internet.
+    """
     return click.option(
-        "--self-contained",
+        "--self-contained/--cdn",
         "self_contained",
-        is_flag=True,
-        help="Inline the map's scripts and styles, so that the map opens with no internet "
-        "(with --tiles none).",
+        default=True,
+        help="--self-contained (the default): inline the map's scripts and styles, so the "
+        "page opens with no internet (with --tiles none). --cdn: a smaller page that "
+        "loads them from the internet.",
     )(f)
 
 
-#: ``--tiles`` and ``--self-contained``, in that order
+#: ``--tiles`` and ``--self-contained``/``--cdn``, in that order
 map_look_options = _stack(tiles_option, self_contained_option)
 
 
@@ -356,6 +362,33 @@ def on_record_option(f):
 def overwrite_option(help: str):
     """``--overwrite``: replace existing outputs; ``help`` names the command's outputs."""
     return click.option("--overwrite", is_flag=True, help=help)
+
+
+# --- the title block of the calculation package (issue 11) ----------------------------
+
+#: the title-block options' parameter names (the package's ``title_block`` fields)
+TITLE_BLOCK_KEYS = ("job", "prepared_by", "checked_by", "revision")
+
+
+def title_block_options(f):
+    """``--job``, ``--prepared-by``, ``--checked-by``, ``--revision``: the package's title block.
+
+    Free text, shown as given (escaped) in the title block at the foot of every
+    page of ``--package``; a field not given is shown empty, never left out.
+    """
+    return _stack(
+        click.option("--job", metavar="TEXT", help="Job number for the package's title block."),
+        click.option("--prepared-by", metavar="TEXT",
+                     help="Who prepared the calculation (title block)."),
+        click.option("--checked-by", metavar="TEXT",
+                     help="Who checked the calculation (title block)."),
+        click.option("--revision", metavar="TEXT", help="Revision of the package (title block)."),
+    )(f)  # fmt: skip
+
+
+def title_block_from_options(kwargs: dict) -> dict:
+    """The title-block fields given on the command line (missing ones as None)."""
+    return {k: kwargs.get(k) for k in TITLE_BLOCK_KEYS}
 
 
 def quiet_option(f):

@@ -17,6 +17,8 @@ from neve.cli.options import (
     overwrite_option,
     roof_from_options,
     roof_options,
+    title_block_from_options,
+    title_block_options,
 )
 from neve.engine.errors import InputError
 from neve.engine.jsonsafe import dumps, finite_copy
@@ -45,6 +47,7 @@ def _check_output(path: str | None, field: str, overwrite: bool, is_dir: bool = 
 @roof_options
 @click.option("--site-name", help="Name of the site for reports.")
 @click.option("--project", help="Project name for reports.")
+@title_block_options
 @map_option("Write a site map (HTML).")
 @click.option("--package", "package_dir", type=click.Path(file_okay=False),
               help="Write a calculation package into this folder.")  # fmt: skip
@@ -130,6 +133,7 @@ def site(**kw) -> None:
                 project=kw["project"],
                 site_name=kw["site_name"],
                 overwrite=kw["overwrite"],
+                title_block=title_block_from_options(kw),
             )
     if kw["fmt"] == "json":
         click.echo(dumps(data, indent=2, ensure_ascii=False))
