@@ -332,6 +332,7 @@ def write_package(
     overwrite: bool = False,
     comparison: dict | None = None,
     title_block: dict | None = None,
+    basemap=None,
 ) -> dict[str, Path]:
     """Write the calculation package folder.
 
@@ -355,6 +356,10 @@ def write_package(
         ``job``, ``prepared_by``, ``checked_by``, ``revision`` (text; missing
         ones are shown as empty fields) of the title block at the foot of every
         page, beside the project, site, date, sheet n of N and an empty seal box.
+    basemap : str or neve.maps.basemap.Basemap, optional
+        What lies under the zones of the site map and the static map
+        (:mod:`neve.maps.basemap`; the static map draws offline basemaps only);
+        by default the demo basemap for demo data, otherwise none.
 
     Returns
     -------
@@ -386,8 +391,15 @@ def write_package(
         files["site_json"] = safe_write.write_text(
             tmp / "site.json", json.dumps(data, indent=2, ensure_ascii=False) + "\n"
         )
-        files["site_map"] = write_site_map(data, views, tmp / "site_map.html", self_contained=True)
-        png, svg = write_static_map(data, views, tmp / "static_map.png", tmp / "static_map.svg")
+        from neve.maps.basemap import as_basemap
+
+        base = as_basemap(basemap, demo_data=is_demo(data, views), views=views)
+        files["site_map"] = write_site_map(
+            data, views, tmp / "site_map.html", self_contained=True, basemap=base
+        )
+        png, svg = write_static_map(
+            data, views, tmp / "static_map.png", tmp / "static_map.svg", basemap=base
+        )
         files["static_png"], files["static_svg"] = png, svg
         diagrams = write_case_diagrams(data.get("roof"), tmp / "diagrams")
         for name, p in diagrams.items():
@@ -433,6 +445,13 @@ def write_package(
             head, _, tail = html.rpartition("</body>")
             html = f"{head}{comparison_html(cmp)}</body>{tail}"
         files["report_html"] = safe_write.write_text(tmp / "report.html", html)
-        pdf = HTML(string=html, url_fetcher=_offline_fetcher(), base_url=str(tmp)).write_pdf()
+        # the PDF gets the page without the interactive map (a renderer of print cannot
+        # run it; the static map stands in for it): the same template, map left out
+        ctx["map_html"] = None
+        pdf_html = render("report.html.j2", **ctx)
+        if comparison is not None:
+            head, _, tail = pdf_html.rpartition("</body>")
+            pdf_html = f"{head}{comparison_html(cmp)}</body>{tail}"
+        pdf = HTML(string=pdf_html, url_fetcher=_offline_fetcher(), base_url=str(tmp)).write_pdf()
         files["report_pdf"] = safe_write.write_bytes(tmp / "report.pdf", pdf)
     return {k: dest / p.relative_to(tmp) for k, p in files.items()}

@@ -190,8 +190,9 @@ def write_portfolio_map(
     self_contained: bool = True,
     overwrite: bool = False,
     colour: str = "ground",
+    basemap=None,
 ) -> Path:
-    """Write the clustered portfolio map of screening results.
+    """Write the portfolio map of screening results.
 
     Parameters
     ----------
@@ -216,6 +217,9 @@ def write_portfolio_map(
         bands of ``load_ratio`` (today's ``design_uniform`` / the load on record,
         :data:`neve.engine.on_record.RATIO_BANDS`; needs a ``load_ratio``
         column); sites above 1.0 are those flagged ``exceeds_record``.
+    basemap : str or neve.maps.basemap.Basemap, optional
+        What lies under the sites (:mod:`neve.maps.basemap`); by default the
+        demo basemap for demo data, otherwise none.
 
     Returns
     -------
@@ -346,9 +350,14 @@ def write_portfolio_map(
         centre = (float(np.median(la)), float(np.median(lo)))
     else:
         centre = (0.0, 0.0)
-    m = leaflet.new_map(centre[0], centre[1], tiles, zoom=5)
+    from neve.maps.basemap import as_basemap, fit_zoom
+
+    base = as_basemap(basemap, tiles=tiles, demo_data=demo)
+    m = leaflet.new_map(centre[0], centre[1], base, zoom=5)
     if len(rows):
-        m.fit_bounds([[float(la.min()), float(lo.min())], [float(la.max()), float(lo.max())]])
+        bounds = [[float(la.min()), float(lo.min())], [float(la.max()), float(lo.max())]]
+        m.fit_bounds(bounds)
+        leaflet.add_basemap(m, base, bounds, fit_zoom(bounds))
     leaflet.add_defs(m, demo=demo)
     m.get_root().header.add_child(
         leaflet.fixed_html(f"<style>{_CLUSTER_CSS}</style>"), name="neve_cluster_css"

@@ -156,6 +156,7 @@ def write_site_map(
     tiles: str = "none",
     self_contained: bool = True,
     overwrite: bool = False,
+    basemap=None,
 ) -> Path:
     """Write the interactive site map as one HTML file.
 
@@ -170,12 +171,15 @@ def write_site_map(
     path : path-like
         Output ``.html`` file; written atomically.
     tiles : {"none", "osm"}
-        Base tiles; ``none`` gives a plain background.
+        Base tiles (the older choice; ``basemap`` takes precedence).
     self_contained : bool
         Inline every script and stylesheet so the page works offline (the
         default); ``False`` links them from the internet (``--cdn``).
     overwrite : bool
         Replace an existing file (otherwise an ``InputError``, before any work).
+    basemap : str or neve.maps.basemap.Basemap, optional
+        What lies under the zones (``--basemap``; :mod:`neve.maps.basemap`);
+        by default the demo basemap for demo data, otherwise none.
 
     Returns
     -------
@@ -184,16 +188,20 @@ def write_site_map(
     """
     import folium
 
+    from neve.maps.basemap import as_basemap
+
     out = leaflet.check_path(path, "map", overwrite=overwrite)
     lat, lon = site_lat_lon(site_json)
     ctx = summary_context(site_json)
-    m = leaflet.new_map(lat, lon, tiles, zoom=13)
+    base = as_basemap(basemap, tiles=tiles, demo_data=is_demo(site_json, views), views=views)
+    m = leaflet.new_map(lat, lon, base, zoom=13)
     # open on the neighbourhood: about 3 km either side of the site
     dlat = VIEW_HALF_WIDTH_M / 111_320.0
     dlon = dlat / max(math.cos(math.radians(lat)), 0.05)
     bounds = [[lat - dlat, lon - dlon], [lat + dlat, lon + dlon]]
     m.fit_bounds(bounds)
     leaflet.refit_on_load(m, bounds)
+    leaflet.add_basemap(m, base, bounds, 13)
     from shapely.geometry import box
 
     label_window = box(lon - 0.9 * dlon, lat - 0.9 * dlat, lon + 0.9 * dlon, lat + 0.9 * dlat)
@@ -234,10 +242,16 @@ def write_site_map(
             governing_ids=gov,
             label_window=label_window,
             avoid=(lat, lon, 0.06 * dlat),
+            see_through=base.drawn,
         )
         group.add_to(m)
         layer_groups.append(group)
 
+    # the neighbourhood whose zones are drawn, as the legend says
+    folium.Circle(
+        [lat, lon], radius=NEIGHBOUR_RADIUS_M, fill=False, color="#4a5068", weight=1.2,
+        dash_array="6 6", interactive=False,
+    ).add_to(m)  # fmt: skip
     leaflet.add_site_marker(m, lat, lon, _site_tip(ctx))
     leaflet.add_html(m, render("site_panel.html.j2", **ctx), "neve_summary")
     leaflet.add_html(
@@ -252,7 +266,8 @@ def write_site_map(
             governing=True,
             site=True,
             problems=False,
-            note=f"Zones within {NEIGHBOUR_RADIUS_M / 1000:.0f} km of the site are shown.",
+            note=f"Dashed circle: {NEIGHBOUR_RADIUS_M / 1000:.0f} km around the site; every "
+            "zone reaching into it is drawn whole.",
         ),
         "neve_legend",
     )

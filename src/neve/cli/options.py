@@ -316,8 +316,48 @@ def self_contained_option(f):
     )(f)
 
 
-#: ``--tiles`` and ``--self-contained``/``--cdn``, in that order
-map_look_options = _stack(tiles_option, self_contained_option)
+def basemap_option(f):
+    """``--basemap auto|none|demo|osm|URL-TEMPLATE|FILE.mbtiles``: what lies under the zones."""
+    return click.option(
+        "--basemap",
+        default="auto",
+        show_default=True,
+        metavar="auto|none|demo|osm|URL|FILE.mbtiles",
+        help="What lies under the zones of the maps: auto (the invented demo basemap for "
+        "demo data, otherwise none), none, demo, osm (needs internet), an http(s) tile URL "
+        "template with {z}/{x}/{y} (needs --basemap-attribution), or a raster .mbtiles "
+        "file (embedded: works offline; also drawn on the static map of the package). "
+        "--tiles osm is the older spelling of --basemap osm.",
+    )(f)
+
+
+def basemap_attribution_option(f):
+    """``--basemap-attribution TEXT``: the attribution shown with a basemap."""
+    return click.option(
+        "--basemap-attribution",
+        "basemap_attribution",
+        default=None,
+        metavar="TEXT",
+        help="Attribution shown with the basemap (required with a URL template; replaces "
+        "an MBTiles file's own).",
+    )(f)
+
+
+#: ``--tiles``, ``--basemap``, ``--basemap-attribution`` and ``--self-contained``/``--cdn``
+map_look_options = _stack(
+    tiles_option, basemap_option, basemap_attribution_option, self_contained_option
+)
+
+
+def resolve_basemap(kw: dict, *, demo_data: bool):
+    """The :class:`neve.maps.basemap.Basemap` asked by ``--basemap`` (and ``--tiles``)."""
+    from neve.geo.layers.model import demo_basemap_path
+    from neve.maps.basemap import resolve
+
+    return resolve(
+        kw.get("basemap"), kw.get("basemap_attribution"), demo_data=demo_data,
+        tiles=kw.get("tiles"), demo_file=demo_basemap_path(),
+    )  # fmt: skip
 
 
 def map_colour_option(f):

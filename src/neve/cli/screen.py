@@ -87,7 +87,7 @@ def _terminate(signum, frame):  # pragma: no cover - exercised through a subproc
 )
 @layer_standard_option
 @compare_option
-def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, tiles, self_contained, engine, scheduler, staging, partitions,
+def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, tiles, basemap, basemap_attribution, self_contained, engine, scheduler, staging, partitions,
            gazetteer, geocoder_url, geocode_cache, quiet, overwrite, csv_raw, summary_json, standard, map_colour="ground", compare=None, **roof_kw):  # fmt: skip
     """Screen a portfolio: ground snow load (and roof loads) for every site in SITES.
 
@@ -129,6 +129,10 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
         if Path(map_path).suffix.lower() not in (".html", ".htm"):
             raise InputError("map", f"{map_path!r} is not an .html path", "a path ending in .html")
         check_target(map_path, overwrite=overwrite, field="map")
+        from neve.cli.options import resolve_basemap
+
+        resolve_basemap({"basemap": basemap, "basemap_attribution": basemap_attribution,
+                         "tiles": tiles}, demo_data=False)  # refused before any work  # fmt: skip
     if summary_json:
         check_target(summary_json, overwrite=overwrite, field="summary-json")
     if scheduler and engine.lower() != "dask":
@@ -198,7 +202,7 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
         if map_path:
             _write_map(
                 map_run, map_path, overwrite, tiles=tiles, self_contained=self_contained,
-                colour=map_colour.lower(),
+                colour=map_colour.lower(), basemap=basemap, basemap_attribution=basemap_attribution,
             )  # fmt: skip
         if summary_json:
             text = json.dumps(run.summary, indent=2)
@@ -225,13 +229,19 @@ def _write_map(
     tiles: str = "none",
     self_contained: bool = False,
     colour: str = "ground",
+    basemap: str = "auto",
+    basemap_attribution: str | None = None,
 ) -> None:
+    from neve.cli.options import resolve_basemap
     from neve.maps.portfolio import screen_view, write_portfolio_map
 
+    demo = bool(run.summary.get("demo"))
+    look = {"basemap": basemap, "basemap_attribution": basemap_attribution, "tiles": tiles}
     write_portfolio_map(
         screen_view(run.results),
         map_path,
-        demo=bool(run.summary.get("demo")),
+        demo=demo,
+        basemap=resolve_basemap(look, demo_data=demo),
         tiles=tiles,
         self_contained=self_contained,
         overwrite=overwrite,
