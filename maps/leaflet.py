@@ -319,12 +319,15 @@ def add_zones(
     max_labels: int = 120,
     avoid: tuple[float, float, float] | None = None,
     see_through: bool = False,
+    colour_key: str = "pg",
 ) -> None:
     """Add zone polygons (and value labels) to a folium map or feature group.
 
     ``label_window`` (a shapely polygon in EPSG:4326) keeps the labels inside
     the part of the map that opens on screen; ``avoid`` = (lat, lon, gap)
-    [degrees] moves a label that would sit under the site marker.
+    [degrees] moves a label that would sit under the site marker;
+    ``colour_key`` is the column the ``classes`` colour (``pg_psf`` on the
+    portfolio map, whose bands are in psf whatever the layer's units).
     """
     import folium
 
@@ -336,7 +339,8 @@ def add_zones(
         rowd = row.to_dict()
         props = {
             "neve_style": zone_style(
-                rowd, classes, governing=zid in gov, problem=zid in bad, see_through=see_through
+                {**rowd, "pg": rowd.get(colour_key)}, classes, governing=zid in gov,
+                problem=zid in bad, see_through=see_through,
             ),
             "neve_tip": zone_tip(rowd, units, (extra_tips or {}).get(zid, "")),
             "zone_id": zid,
