@@ -88,7 +88,12 @@ def _step_line(s: Mapping, not_applicable_symbols: Collection[str] = ()) -> str:
 
 
 def _factor_text(value: object) -> str:
-    """A factor of the summary line: three significant figures; text (``none``) as it is."""
+    """A factor of the summary line: three significant figures; text as it is.
+
+    None (a factor the standard does not have: ASCE 7-22 has no Is) reads ``none``.
+    """
+    if value is None:
+        return "none"
     if isinstance(value, bool) or not isinstance(value, (int, float)):
         return str(value)
     return significant(value)
