@@ -61,7 +61,7 @@ def fmt(x, figures: int = STEP_FIGURES) -> str:
     >>> fmt(30.0), fmt(0.7), fmt(49.591), fmt(2.198), fmt(1479.55), fmt(0.04788026)
     ('30', '0.7', '49.6', '2.20', '1480', '0.0479')
     >>> fmt(1e-5), fmt(float("nan")), fmt([1.0, 2.0])
-    ('0.0000100', 'nan', '[2 values]')
+    ('0.00001', 'nan', '[2 values]')
     """
     arr = np.asarray(x)
     if arr.size != 1:
