@@ -118,8 +118,8 @@ def test_summary_loads_to_a_tenth_of_a_psf():
 
 
 def test_factors_line_three_figures():
-    # ASCE 7-16 Fig. 7.4-1a (from memory): Cs = (70 - slope)/40 on a slippery-free (other)
-    # cold roof line past 30 deg; 14:12 = atan(14/12) = 49.40 deg -> (70 - 49.40)/40 = 0.515
+    # ASCE 7-16 Fig. 7.4-1a (from memory): the Ct = 1.0 line for other surfaces is
+    # Cs = (70 - slope)/40 past 30 deg; 14:12 = atan(14/12) = 49.40 deg -> 20.60/40 = 0.515
     text = roof_out("--pg", "40psf", "--shape", "gable", "--slope", "14:12",
                     "--eave-to-ridge", "25ft")  # fmt: skip
     line = next(line for line in text.splitlines() if line.startswith("  Ce = "))
