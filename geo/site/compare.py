@@ -353,6 +353,20 @@ def governing_case(roof: Mapping | None) -> dict | None:
 # --- text ---------------------------------------------------------------------------
 
 
+def absent_loads(data: Mapping) -> dict[str, set[str]]:
+    """Per edition (standard id), the conditional loads that do not apply to its roof.
+
+    Shown as "not applicable", never as the zero (or null) the JSON holds for
+    them (:func:`neve.engine.roof_text.not_applicable`).
+    """
+    from neve.engine.roof_text import not_applicable
+
+    return {
+        r["standard"]: set(not_applicable(r["roof"])) if r.get("roof") else set()
+        for r in data["results"]
+    }
+
+
 def _show(value) -> str:
     from neve.engine.format import quantity_text
 
@@ -363,9 +377,21 @@ def _show(value) -> str:
     return str(value)
 
 
+def not_applicable_here(d: Mapping, sid: str, absent: Mapping) -> bool:
+    """Whether edition ``sid``'s value of the compared quantity ``d`` reads "not applicable".
+
+    A load of the roof (``d["case"]`` null) that does not apply, or its zero in a
+    case that edition has; an edition without the case shows no value at all.
+    """
+    if d["quantity"] not in absent[sid]:
+        return False
+    return d["case"] is None or d["values"].get(sid) is not None
+
+
 def comparison_text(data: Mapping) -> str:
     """``neve compare --format text``: one line per quantity, the editions side by side."""
     from neve.engine.printable import printable
+    from neve.engine.roof_text import NOT_APPLICABLE
 
     ids = [r["standard"] for r in data["results"]]
     site = data["site"]
@@ -387,6 +413,7 @@ def comparison_text(data: Mapping) -> str:
                 lines.append(f"    not worked: {what}: {n.get('reason')}")
     lines.append("")
     head = ["quantity"] + ids + [f"{ids[-1]} - {ids[0]}", "ratio"]
+    absent = absent_loads(data)
     rows: list = []
     case = None
     for d in data["differences"]:
@@ -394,10 +421,13 @@ def comparison_text(data: Mapping) -> str:
         if d["case"] is not None and key != case:
             rows.append(f"case {d['case']}: {d['name']}")  # a heading line
             case = key
-        diff = "-" if not d["difference"] else _show(d["difference"])
-        ratio = "-" if d["ratio"] is None else f"{d['ratio']:.3f}"
+        values = [NOT_APPLICABLE if not_applicable_here(d, i, absent) else _show(d["values"][i])
+                  for i in ids]  # fmt: skip
+        na = NOT_APPLICABLE in values  # no difference to a load that does not apply
+        diff = "-" if na or not d["difference"] else _show(d["difference"])
+        ratio = "-" if na or d["ratio"] is None else f"{d['ratio']:.3f}"
         label = d["quantity"] if d["case"] is None else f"  {d['quantity']}"
-        rows.append([label] + [_show(d["values"][i]) for i in ids] + [diff, ratio])
+        rows.append([label] + values + [diff, ratio])
     table = [head] + [r for r in rows if isinstance(r, list)]
     widths = [max(len(str(x[i])) for x in table) for i in range(len(head))]
     for row in [head, *rows]:

@@ -108,8 +108,10 @@ def test_steps_three_figures_and_json_unrounded():
 
 
 def test_summary_loads_to_a_tenth_of_a_psf():
-    for args in (("--pg", "30psf", *GABLE), ("--pg", "1.68kPa", "--roof",
-                                              str(ROOT / "examples" / "warehouse.toml"))):
+    for args in (
+        ("--pg", "30psf", *GABLE),
+        ("--pg", "1.68kPa", "--roof", str(ROOT / "examples" / "warehouse.toml")),
+    ):
         text = roof_out(*args)
         loads = LOAD.findall(text)
         assert len(loads) > 5, text
@@ -138,7 +140,9 @@ def test_rain_on_snow_not_applicable_never_zero():
     assert not re.search(r"p_ros = +0\b", text)
     assert "n/a" not in text
     rain_lines = [line for line in text.splitlines() if "rain" in line or "p_ros" in line]
-    assert not any(re.search(r"(?<![\d.])0(\.0+)? (psf|kPa)", line) for line in rain_lines), rain_lines
+    assert not any(re.search(r"(?<![\d.])0(\.0+)? (psf|kPa)", line) for line in rain_lines), (
+        rain_lines
+    )
     data = roof_json("--pg", "30psf", *GABLE)  # the JSON as the contract has it
     assert data["loads"]["rain_on_snow"] is None
     balanced = next(c for c in data["cases"] if c["case"] == "balanced")
@@ -158,11 +162,33 @@ def test_rain_on_snow_where_it_applies():
 @pytest.mark.parametrize(
     "args",
     [
-        ("--pg", "42.7psf", "--shape", "hip", "--slope", "8:12", "--eave-to-ridge", "33.3ft",
-         "--risk", "IV", "--ce", "0.9", "--ct", "1.1"),
+        (
+            "--pg",
+            "42.7psf",
+            "--shape",
+            "hip",
+            "--slope",
+            "8:12",
+            "--eave-to-ridge",
+            "33.3ft",
+            "--risk",
+            "IV",
+            "--ce",
+            "0.9",
+            "--ct",
+            "1.1",
+        ),
         ("--pg", "1.68kPa", "--roof", str(ROOT / "examples" / "warehouse.toml")),
-        ("--standard", "asce7-22", "--pg", "30psf", "--w2", "0.5", "--roof",
-         str(ROOT / "examples" / "warehouse.toml")),
+        (
+            "--standard",
+            "asce7-22",
+            "--pg",
+            "30psf",
+            "--w2",
+            "0.5",
+            "--roof",
+            str(ROOT / "examples" / "warehouse.toml"),
+        ),
         ("--standard", "asce7-22", "--pg", "37.3psf", "--w2", "0.45", *GABLE),
         ("--pg", "15psf", *LOW_SLOPE),
     ],
