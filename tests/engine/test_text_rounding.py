@@ -220,3 +220,17 @@ def test_site_text_rounding():
         assert too_precise(line) == [], line
     assert "rain-on-snow = not applicable" in text and "rain_on_snow =" not in text
     assert "Is = None" not in text
+
+
+def test_compare_text_rain_on_snow_not_applicable():
+    # ASCE 7-16 and 7-22 Sec. 7.10 (from memory): no surcharge where pg > 20 psf (the demo
+    # site's pg is about 50 psf in both editions): "not applicable", no 0.0 psf, no difference
+    res = CliRunner().invoke(main, ["compare", "--at", "47.52,-140.05", "--dem", "demo",
+                                    "--shape", "gable", "--slope", "6:12",
+                                    "--eave-to-ridge", "30ft", "--standard", "asce7-16",
+                                    "--standard", "asce7-22"])  # fmt: skip
+    assert res.exit_code == 0, res.output
+    rows = [line for line in res.output.splitlines() if line.strip().startswith("rain_on_snow")]
+    assert len(rows) == 2, res.output  # the roof's loads and the balanced case
+    for row in rows:
+        assert row.split()[1:] == ["not", "applicable", "not", "applicable", "-", "-"], row
