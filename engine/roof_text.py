@@ -41,6 +41,29 @@ def not_applicable(result: Mapping) -> dict[str, str]:
     return {k: sym for k, sym in CONDITIONAL_LOADS.items() if k in loads and not loads[k]}
 
 
+def absent_loads(data: Mapping) -> dict[str, set[str]]:
+    """Per edition of a ``neve compare`` object, the conditional loads that do not apply to its roof.
+
+    Shown as "not applicable", never as the zero (or null) the JSON holds for
+    them (:func:`neve.engine.roof_text.not_applicable`).
+    """
+    return {
+        r["standard"]: set(not_applicable(r["roof"])) if r.get("roof") else set()
+        for r in data["results"]
+    }
+
+
+def not_applicable_here(d: Mapping, sid: str, absent: Mapping) -> bool:
+    """Whether edition ``sid``'s value of the compared quantity ``d`` reads "not applicable".
+
+    A load of the roof (``d["case"]`` null) that does not apply, or its zero in a
+    case that edition has; an edition without the case shows no value at all.
+    """
+    if d["quantity"] not in absent[sid]:
+        return False
+    return d["case"] is None or d["values"].get(sid) is not None
+
+
 def case_values(case: Mapping, *, leave_out: Collection[str] = ()) -> list[str]:
     """``key = value`` lines of a load case's quantities (and which drift governs).
 

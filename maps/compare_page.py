@@ -13,8 +13,7 @@ from __future__ import annotations
 
 from collections.abc import Mapping
 
-from neve.engine.roof_text import NOT_APPLICABLE
-from neve.geo.site.compare import absent_loads, not_applicable_here
+from neve.engine.roof_text import NOT_APPLICABLE, absent_loads, not_applicable_here
 from neve.maps import style
 from neve.maps.templating import render
 

@@ -353,20 +353,6 @@ def governing_case(roof: Mapping | None) -> dict | None:
 # --- text ---------------------------------------------------------------------------
 
 
-def absent_loads(data: Mapping) -> dict[str, set[str]]:
-    """Per edition (standard id), the conditional loads that do not apply to its roof.
-
-    Shown as "not applicable", never as the zero (or null) the JSON holds for
-    them (:func:`neve.engine.roof_text.not_applicable`).
-    """
-    from neve.engine.roof_text import not_applicable
-
-    return {
-        r["standard"]: set(not_applicable(r["roof"])) if r.get("roof") else set()
-        for r in data["results"]
-    }
-
-
 def _show(value) -> str:
     from neve.engine.format import quantity_text
 
@@ -377,21 +363,10 @@ def _show(value) -> str:
     return str(value)
 
 
-def not_applicable_here(d: Mapping, sid: str, absent: Mapping) -> bool:
-    """Whether edition ``sid``'s value of the compared quantity ``d`` reads "not applicable".
-
-    A load of the roof (``d["case"]`` null) that does not apply, or its zero in a
-    case that edition has; an edition without the case shows no value at all.
-    """
-    if d["quantity"] not in absent[sid]:
-        return False
-    return d["case"] is None or d["values"].get(sid) is not None
-
-
 def comparison_text(data: Mapping) -> str:
     """``neve compare --format text``: one line per quantity, the editions side by side."""
     from neve.engine.printable import printable
-    from neve.engine.roof_text import NOT_APPLICABLE
+    from neve.engine.roof_text import NOT_APPLICABLE, absent_loads, not_applicable_here
 
     ids = [r["standard"] for r in data["results"]]
     site = data["site"]
