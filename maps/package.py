@@ -126,6 +126,15 @@ def _cases(roof: dict | None, diagrams: dict[str, Path]) -> list[dict]:
     return out
 
 
+def _ground_context(data: dict) -> dict:
+    """The site map's ground summary, its pg as every load of the package: ``30.0 psf (1.44 kPa)``."""
+    g = summary_context(data)
+    pg = (data.get("ground") or {}).get("pg")
+    if pg:
+        g["pg"] = _load_text(pg)
+    return g
+
+
 def _factors(roof: dict | None) -> list[dict]:
     if not roof:
         return []
@@ -431,7 +440,7 @@ def write_package(
             "version": _version(),
             "demo": is_demo(data, views),
             "cautions": cautions_of(data),
-            "g": summary_context(data),
+            "g": _ground_context(data),
             "roof": data.get("roof"),
             "factors": _factors(data.get("roof")),
             "roof_rows": _roof_rows(data.get("roof"), slope_pitch),
