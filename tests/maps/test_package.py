@@ -9,7 +9,7 @@ import subprocess
 import pytest
 
 from neve.engine.errors import InputError
-from neve.maps import assets, package, style
+from neve.maps import assets, package
 from neve.maps.package import write_package
 from tests.maps.conftest import HOSTILE, make_site_json, make_view
 
@@ -85,9 +85,10 @@ def test_pdf_has_pages_headers_and_the_governing_values(built):
         assert "SHEET" in flat.upper() and f"{i} of {len(pages)}" in flat
         assert "Fixture project 7" in flat and "Varda depot (east)" in flat  # running header
     everything = " ".join(" ".join(pages).split())
-    # the governing values as the report prints them (fixture: pg 35 psf, design 26.95 psf)
-    assert style.load_text({"psf": 35.0, "kPa": 1.6758}) in everything
-    assert style.load_text({"psf": 26.95, "kPa": 1.2904}) in everything
+    # the governing values as the report prints them (fixture: pg 35 psf, design 26.95 psf):
+    # loads to 0.1 psf and 0.01 kPa, zeros kept (issue 11)
+    assert "35.0 psf (1.68 kPa)" in everything
+    assert "26.9 psf (1.29 kPa)" in everything
     assert "DEMO DATA" in everything.upper()
     assert "licensed design professional" in everything
     assert "authority having jurisdiction" in everything
@@ -98,7 +99,7 @@ def test_pdf_text_with_poppler(built):
     _, files = built
     text = subprocess.run(["pdftotext", "-layout", str(files["report_pdf"]), "-"],
                           capture_output=True, text=True, check=True).stdout  # fmt: skip
-    assert "35 psf (1.68 kPa)" in text
+    assert "35.0 psf (1.68 kPa)" in text  # 0.1 psf, 0.01 kPa, zeros kept (issue 11)
     assert "site-specific case study" in text
 
 

@@ -113,6 +113,7 @@ def _run(**kw) -> None:
             overwrite=kw["overwrite"],
             comparison=data,
             title_block=title_block_from_options(kw),
+            slope_pitch=None if roof is None else roof.slope_pitch,
         )
     if kw["fmt"] == "json":
         click.echo(dumps(data, indent=2, ensure_ascii=False))

@@ -141,6 +141,7 @@ def site(**kw) -> None:
                 overwrite=kw["overwrite"],
                 title_block=title_block_from_options(kw),
                 basemap=base,
+                slope_pitch=None if roof is None else roof.slope_pitch,
             )
     if kw["fmt"] == "json":
         click.echo(dumps(data, indent=2, ensure_ascii=False))
