@@ -179,7 +179,7 @@ def write_static_map(
                     kw.update(facecolor=style.ELEVATION_COLOUR, linestyle=":")
                 else:
                     kw["facecolor"] = style.NO_VALUE_COLOUR
-                gpd.GeoSeries([row.geometry], crs=crs).plot(ax=ax, zorder=2, **kw)
+                _patch(ax, row.geometry, zorder=2, **kw)
                 inside = row.geometry.intersection(site_xy.buffer(WINDOW_M))
                 c = inside.representative_point()
                 if not c.is_empty and c.distance(site_xy) < 0.2 * WINDOW_M:
@@ -194,7 +194,9 @@ def write_static_map(
                                   "alpha": 0.75})  # fmt: skip
             g = proj[proj["zone_id"].astype(str).isin(gov)]
             if len(g):
-                g.boundary.plot(ax=ax, color=style.GOVERNING_COLOUR, linewidth=2.4, zorder=5)
+                for geom in g.geometry:
+                    _patch(ax, geom, facecolor="none", edgecolor=style.GOVERNING_COLOUR,
+                           linewidth=2.4, zorder=5)  # fmt: skip
         for c in classes:
             handles.append(
                 Patch(facecolor=c["colour"], edgecolor="#4a5068", label=f"{c['label']} {units}")
@@ -248,14 +250,16 @@ def write_static_map(
     fig.text(0.01, 0.01, foot, fontsize=7, color="#7a3e00" if "DEMO" in foot else "#444")
     fig.tight_layout(rect=(0, 0.03, 1, 1))
     written = []
+    # the legend beside the axes is never clipped: the tight box is measured once and
+    # used for both files (bbox_inches="tight" would draw the figure twice per file)
+    tight = fig.get_tightbbox(fig.canvas.get_renderer()).padded(0.12)
     for path, fmt in ((png_path, "png"), (svg_path, "svg")):
         if path is None:
             continue
         buf = io.BytesIO()
         # SVG keeps its text as text, so it can be searched and edited
         with matplotlib.rc_context({"svg.fonttype": "none"}):
-            # "tight": the legend beside the axes is never clipped
-            fig.savefig(buf, format=fmt, bbox_inches="tight", pad_inches=0.12,
+            fig.savefig(buf, format=fmt, bbox_inches=tight,
                         metadata={"Date": None} if fmt == "svg" else None)  # fmt: skip
         written.append(
             write_bytes(path, buf.getvalue(), overwrite=overwrite, field="static map", parents=True)
@@ -264,7 +268,23 @@ def write_static_map(
     return written
 
 
-def _draw_basemap(ax, base, site_xy, crs, lat: float, pixels: int = 1000) -> bool:
+def _patch(ax, geom, **kw) -> None:
+    """Add a (multi)polygon as one matplotlib patch.
+
+    Drawn directly rather than through ``GeoSeries.plot``, which redraws the
+    whole figure after every call (a full draw per zone).
+    """
+    from shapely.geometry import MultiPolygon, Polygon
+    from shapely.plotting import patch_from_polygon
+
+    if isinstance(geom, (Polygon, MultiPolygon)) and not geom.is_empty:
+        ax.add_patch(patch_from_polygon(geom, **kw))
+    elif hasattr(geom, "geoms"):  # a collection: its polygonal parts
+        for part in geom.geoms:
+            _patch(ax, part, **kw)
+
+
+def _draw_basemap(ax, base, site_xy, crs, lat: float, pixels: int = 900) -> bool:
     """Mosaic the basemap's tiles around the site, reproject them to ``crs``, draw them."""
     import numpy as np
     from pyproj import Transformer
@@ -290,7 +310,8 @@ def _draw_basemap(ax, base, site_xy, crs, lat: float, pixels: int = 1000) -> boo
         np.moveaxis(img, 2, 0), out, src_transform=src_t, src_crs="EPSG:3857",
         dst_transform=dst_t, dst_crs=crs, resampling=Resampling.bilinear,
     )  # fmt: skip
-    ax.imshow(np.moveaxis(out, 0, 2), extent=(x0, x1, y0, y1), zorder=1, interpolation="bilinear")
+    # already at about the axes' own resolution: no smoothing needed when drawn
+    ax.imshow(np.moveaxis(out, 0, 2), extent=(x0, x1, y0, y1), zorder=1, interpolation="nearest")
     return True
 
 
