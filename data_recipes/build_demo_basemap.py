@@ -231,7 +231,7 @@ def build(out: Path = DEFAULT_OUT, min_zoom: int = 8, max_zoom: int = 13) -> Pat
     """Write the MBTiles file; return its path."""
     from pyproj import Transformer
 
-    isl = build_demo.island_outline().buffer(6.0)  # a margin of sea around the coast
+    isl = build_demo.island_outline().buffer(25.0)  # a wide margin of sea around the coast
     t = Transformer.from_crs(build_demo.UTM, 4326, always_xy=True)
     cx, cy = Transformer.from_crs(4326, build_demo.UTM, always_xy=True).transform(
         build_demo.CENTER_LON, build_demo.CENTER_LAT
