@@ -470,10 +470,19 @@ def _draw_unbalanced(ax, case, roof_json):
         ("snow", "leeward", "leeward side", _load(case.get("leeward"))),
     ]
     if hs:
-        rows.append(("surcharge", "surcharge", "by the ridge, leeward", _load(case.get("surcharge"))))
+        rows.append(
+            ("surcharge", "surcharge", "by the ridge, leeward", _load(case.get("surcharge")))
+        )
     rows.append((None, "peak", "leeward + surcharge", _load(case.get("leeward_peak"))))
     if hs:
-        rows.append((None, "extent", "surcharge, from ridge", style.length_text(case.get("surcharge_extent"))))
+        rows.append(
+            (
+                None,
+                "extent",
+                "surcharge, from ridge",
+                style.length_text(case.get("surcharge_extent")),
+            )
+        )
     if w_roof:
         rows.append((None, "W", "eave to ridge", style.length_text(desc.get("eave_to_ridge"))))
     lu = fetch(case)
@@ -559,7 +568,7 @@ def _table(fig, renderer, rows, size):
     sw = size * 0.9 / 72 / fig.get_figwidth()
     made = []
     syms = []
-    for i, (swatch, sym, what, value) in enumerate(rows):
+    for i, (swatch, sym, _, _) in enumerate(rows):
         y = top - (i + 0.5) * row_h
         if swatch:
             made.append(fig.add_artist(Rectangle(

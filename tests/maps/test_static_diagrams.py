@@ -164,7 +164,9 @@ def _engine_roof(standard="asce7-16"):
 
     roof = neve.Roof.from_mapping(tomllib.loads(ROOF_TOML))
     extra = {"w2": 0.5} if standard == "asce7-22" else {}
-    return json.loads(json.dumps(neve.analyze_roof(35.0, roof, standard=standard, **extra).to_json()))
+    return json.loads(
+        json.dumps(neve.analyze_roof(35.0, roof, standard=standard, **extra).to_json())
+    )
 
 
 @pytest.fixture(scope="module", params=["asce7-16", "asce7-22"])
@@ -287,7 +289,9 @@ def test_drift_kinds_follow_the_source_key():
 
     for source in ("step", "adjacent", "parapet", "projection"):
         # the source decides, whatever the (user-given) name says
-        assert diagram_kind({"case": "drift", "source": source, "name": "drift at parapet"}) == source
+        assert (
+            diagram_kind({"case": "drift", "source": source, "name": "drift at parapet"}) == source
+        )
     assert diagram_kind({"case": "drift", "name": "drift at parapet 'n'"}) == "parapet"  # no source
     assert diagram_kind({"case": "drift", "name": "drift at high bay"}) == "step"
     assert diagram_kind({"case": "balanced", "name": "balanced"}) is None
@@ -301,7 +305,11 @@ def _scaled(case, loads=1.0, depths=1.0, widths=1.0):
         if isinstance(value, dict) and "psf" in value:
             out[key] = {"psf": value["psf"] * loads, "kPa": value["kPa"] * loads}
         elif isinstance(value, dict) and "ft" in value:
-            f = widths if key in ("w", "w_on_roof", "extent", "surcharge_extent", "overhang") else depths
+            f = (
+                widths
+                if key in ("w", "w_on_roof", "extent", "surcharge_extent", "overhang")
+                else depths
+            )
             out[key] = {"ft": value["ft"] * f, "m": value["m"] * f}
         elif isinstance(value, dict) and "plf" in value:
             out[key] = {"plf": value["plf"] * loads, "kN/m": value["kN/m"] * loads}
