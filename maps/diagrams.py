@@ -56,7 +56,7 @@ _DPI = 150
 _SKETCH = (0.008, 0.075, 0.575, 0.795)  # left, bottom, width, height [figure fraction]
 _TABLE = (0.6, 0.992, 0.86)  # left, right, top [figure fraction]
 _XLIM, _YLIM = (0.0, 10.0), (-0.85, 7.0)
-_FS_LABEL, _FS_TABLE, _FS_TITLE, _FS_NOTE = 7.5, 7.0, 9.5, 6.5
+_FS_LABEL, _FS_TABLE, _FS_TITLE, _FS_NOTE = 8.0, 7.5, 9.5, 6.5
 NOTE = "schematic; lengths not to scale; loads in psf (kPa), lengths in ft (m)"
 
 
@@ -235,11 +235,11 @@ def _drift_width(case, dd, lo, hi):
 # the load rows beside the sketch: (swatch role or None, symbol, description, value)
 
 
-def _drift_rows(case, where: str, lu_side: str) -> list[tuple]:
+def _drift_rows(case, lu_side: str) -> list[tuple]:
     rows = [
         ("snow", "ps", "balanced snow load", _load(case.get("balanced"))),
-        ("surcharge", "pd", f"drift surcharge at the {where}", _load(case.get("pd"))),
-        (None, "ps + pd", f"peak total at the {where}", _load(case.get("total_peak"))),
+        ("surcharge", "pd", "peak drift surcharge", _load(case.get("pd"))),
+        (None, "ps + pd", "peak total load", _load(case.get("total_peak"))),
         (None, "hb", "balanced snow depth", style.length_text(case.get("hb"))),
         (None, "hc", "clear height above it", style.length_text(case.get("hc"))),
         (None, "hd", f"drift height ({case.get('governs') or 'drift'})",
@@ -253,7 +253,7 @@ def _drift_rows(case, where: str, lu_side: str) -> list[tuple]:
         rows.append((None, "p edge", "surcharge at far edge", _load(case["pd_far_edge"])))
     lu = fetch(case)
     if lu is not None:
-        rows.append((None, "lu", f"upwind fetch ({lu_side})", style.length_text(lu)))
+        rows.append((None, "lu", f"fetch ({lu_side})", style.length_text(lu)))
     if case.get("gamma"):
         rows.append((None, "\u03b3", "snow density", style.quantity_text(case["gamma"])))
     return [r for r in rows if not r[3].startswith("none")]
@@ -312,7 +312,7 @@ def _draw_step(ax, case, roof_json, adjacent=False):
     else:
         _hdim(ax, 0.3, xw, yu + 0.38, "lu", below=False)
         _wind(ax, 0.95, 2.7, yu + 1.12)
-    rows = _drift_rows(case, "wall", "lower roof" if windward else "upper roof")
+    rows = _drift_rows(case, "lower roof" if windward else "upper roof")
     if adjacent:
         s = separation(case)
         if s is not None:
@@ -348,7 +348,7 @@ def _draw_parapet(ax, case, roof_json):
     _hdim(ax, xp - ww, xp, 0.35, "w")
     _hdim(ax, 0.4, xp, -0.3, "lu")
     _wind(ax, 1.0, 2.8, max(yu, yb + dd) + 0.45)
-    return _drift_rows(case, "parapet", "roof upwind"), []
+    return _drift_rows(case, "roof upwind"), []
 
 
 def _draw_projection(ax, case, roof_json):
@@ -383,7 +383,7 @@ def _draw_projection(ax, case, roof_json):
     _hdim(ax, 0.4, xa, -0.3, "lu")
     _wind(ax, 1.0, 2.8, max(yt, yb + dd) + 0.45)
     note = "dashed: the same drift on another side, with the wind from that side"
-    return _drift_rows(case, "unit", "roof upwind"), [note]
+    return _drift_rows(case, "roof upwind"), [note]
 
 
 def _draw_sliding(ax, case, roof_json):
@@ -423,8 +423,8 @@ def _draw_sliding(ax, case, roof_json):
         ("snow", "ps", "balanced snow load", _load(case.get("balanced"))),
         ("surcharge", "sliding", "sliding load, uniform", _load(case.get("load"))),
         (None, "ps + sliding", "total on the extent", _load(case.get("total"))),
-        (None, "line load", "sliding load per eave length", style.quantity_text(case.get("line_load"))),
-        (None, "extent", "from the upper roof's eave", style.length_text(case.get("extent"))),
+        (None, "line load", "per length of eave", style.quantity_text(case.get("line_load"))),
+        (None, "extent", "on the lower roof, from its edge", style.length_text(case.get("extent"))),
     ]  # fmt: skip
     if apart:
         rows.append((None, "s", "separation", style.length_text(s)))
@@ -644,7 +644,7 @@ def case_figure(case: dict, roof_json: dict | None = None):
         rows, notes = _DRAW[kind](ax, case, roof_json)
         name = str(case.get("name") or case.get("case"))
         _fit_title(fig, renderer, f"{DIAGRAM_KINDS[kind]}: {name}")
-        for size in (_FS_TABLE, 6.5, 6.0, 5.5, 5.0):
+        for size in (_FS_TABLE, 7.0, 6.5, 6.0, 5.5, 5.0):
             made, bottom = _table(fig, renderer, rows, size)
             if _table_fits(renderer, made, len(rows), bottom, fig) or size == 5.0:
                 break
