@@ -235,9 +235,15 @@ def _drift_width(case, dd, lo, hi):
 # the load rows beside the sketch: (swatch role or None, symbol, description, value)
 
 
-def _drift_rows(case, lu_side: str) -> list[tuple]:
+def _peak(case) -> str:
+    """The symbol at a drift's peak: the total where the case gives it, else the surcharge."""
+    return "ps + pd" if case.get("total_peak") else "pd"
+
+
+def _drift_rows(case, roof_json, lu_side: str) -> list[tuple]:
+    balanced = case.get("balanced") or ((roof_json or {}).get("loads") or {}).get("ps")
     rows = [
-        ("snow", "ps", "balanced snow load", _load(case.get("balanced"))),
+        ("snow", "ps", "balanced snow load", _load(balanced)),
         ("surcharge", "pd", "peak drift surcharge", _load(case.get("pd"))),
         (None, "ps + pd", "peak total load", _load(case.get("total_peak"))),
         (None, "hb", "balanced snow depth", style.length_text(case.get("hb"))),
@@ -291,7 +297,7 @@ def _draw_step(ax, case, roof_json, adjacent=False):
     _text(ax, 0.42, yu - 0.1, "upper roof", ha="left", va="top")
     _text(ax, x0 + 0.15, yl - 0.1, "lower roof", ha="left", va="top")
     _text(ax, xe - 0.12, (yl + yb) / 2, "ps", ha="right", style="italic")
-    _text(ax, x0 + 0.12, yb + dd + 0.06, "ps + pd", ha="left", va="bottom", style="italic")
+    _text(ax, x0 + 0.12, yb + dd + 0.06, _peak(case), ha="left", va="bottom", style="italic")
     # heights, in two columns inside the upper structure
     c1, c2 = xw - 0.32, xw - 1.08
     for y in (yb, yb + dd):
@@ -304,19 +310,20 @@ def _draw_step(ax, case, roof_json, adjacent=False):
         _vdim(ax, c2, yb, yu, "hc")
     # lengths along the roofs, each in its own lane
     _hdim(ax, x0, x0 + ww, 0.35, "w")
-    if adjacent:
+    gap = separation(case) if adjacent else None
+    if gap is not None:  # the gap is drawn in any case; its symbol where a step gives s
         _hdim(ax, xw, x0, 0.35, "s")
     if windward:
-        _hdim(ax, x0, xe, -0.3, "lu")
+        if fetch(case) is not None:
+            _hdim(ax, x0, xe, -0.3, "lu")
         _wind(ax, 8.9, 7.1, yu + 1.0)
     else:
-        _hdim(ax, 0.3, xw, yu + 0.38, "lu", below=False)
+        if fetch(case) is not None:
+            _hdim(ax, 0.3, xw, yu + 0.38, "lu", below=False)
         _wind(ax, 0.95, 2.7, yu + 1.12)
-    rows = _drift_rows(case, "lower roof" if windward else "upper roof")
-    if adjacent:
-        s = separation(case)
-        if s is not None:
-            rows.append((None, "s", "separation", style.length_text(s)))
+    rows = _drift_rows(case, roof_json, "lower roof" if windward else "upper roof")
+    if gap is not None:
+        rows.append((None, "s", "separation", style.length_text(gap)))
     return rows, []
 
 
@@ -334,7 +341,7 @@ def _draw_parapet(ax, case, roof_json):
     _text(ax, xp + t + 0.12, yu + 0.08, "parapet", ha="left", va="bottom")
     _text(ax, 0.5, yl - 0.1, "roof", ha="left", va="top")
     _text(ax, 0.55, (yl + yb) / 2, "ps", ha="left", style="italic")
-    _text(ax, xp - 0.12, yb + dd + 0.06, "ps + pd", ha="right", va="bottom", style="italic")
+    _text(ax, xp - 0.12, yb + dd + 0.06, _peak(case), ha="right", va="bottom", style="italic")
     c1, c2 = xp + t + 0.55, xp + t + 1.35
     _ext(ax, xp + t, c2, yb)
     _ext(ax, xp, c1, yb + dd)
@@ -346,9 +353,10 @@ def _draw_parapet(ax, case, roof_json):
         _vdim(ax, c2, yb, yu, "hc", side="right")
         _ext(ax, xp + t, c2, yu)
     _hdim(ax, xp - ww, xp, 0.35, "w")
-    _hdim(ax, 0.4, xp, -0.3, "lu")
+    if fetch(case) is not None:
+        _hdim(ax, 0.4, xp, -0.3, "lu")
     _wind(ax, 1.0, 2.8, max(yu, yb + dd) + 0.45)
-    return _drift_rows(case, "roof upwind"), []
+    return _drift_rows(case, roof_json, "roof upwind"), []
 
 
 def _draw_projection(ax, case, roof_json):
@@ -370,7 +378,7 @@ def _draw_projection(ax, case, roof_json):
     _text(ax, (xa + xb) / 2, yt + 0.08, "projection", va="bottom")
     _text(ax, 0.5, yl - 0.1, "roof", ha="left", va="top")
     _text(ax, 0.55, (yl + yb) / 2, "ps", ha="left", style="italic")
-    _text(ax, xa - 0.12, yb + dd + 0.06, "ps + pd", ha="right", va="bottom", style="italic")
+    _text(ax, xa - 0.12, yb + dd + 0.06, _peak(case), ha="right", va="bottom", style="italic")
     c1, c2 = xa + 0.42, xa + 1.18
     _ext(ax, xa, c2, yb)
     _ext(ax, xa, c1, yb + dd)
@@ -380,10 +388,11 @@ def _draw_projection(ax, case, roof_json):
     if case.get("hc"):
         _vdim(ax, c2, yb, yt, "hc", side="right")
     _hdim(ax, xa - ww, xa, 0.35, "w")
-    _hdim(ax, 0.4, xa, -0.3, "lu")
+    if fetch(case) is not None:
+        _hdim(ax, 0.4, xa, -0.3, "lu")
     _wind(ax, 1.0, 2.8, max(yt, yb + dd) + 0.45)
     note = "dashed: the same drift on another side, with the wind from that side"
-    return _drift_rows(case, "roof upwind"), [note]
+    return _drift_rows(case, roof_json, "roof upwind"), [note]
 
 
 def _draw_sliding(ax, case, roof_json):
@@ -473,7 +482,8 @@ def _draw_unbalanced(ax, case, roof_json):
         rows.append(
             ("surcharge", "surcharge", "by the ridge, leeward", _load(case.get("surcharge")))
         )
-    rows.append((None, "peak", "leeward + surcharge", _load(case.get("leeward_peak"))))
+    if hs:
+        rows.append((None, "peak", "leeward + surcharge", _load(case.get("leeward_peak"))))
     if hs:
         rows.append(
             (
