@@ -295,7 +295,8 @@ def _draw_step(ax, case, roof_json, adjacent=False):
         _patch(ax, [(x0, yb), (x0, yb + dd), (x0 + ww, yb)], "surcharge")
     # names
     _text(ax, 0.42, yu - 0.1, "upper roof", ha="left", va="top")
-    _text(ax, x0 + 0.15, yl - 0.1, "lower roof", ha="left", va="top")
+    # a short lower roof: its name beyond the far edge, clear of the edge's line
+    _text(ax, (xe if cut else x0) + 0.15, yl - 0.1, "lower roof", ha="left", va="top")
     _text(ax, xe - 0.12, (yl + yb) / 2, "ps", ha="right", style="italic")
     _text(ax, x0 + 0.12, yb + dd + 0.06, _peak(case), ha="left", va="bottom", style="italic")
     # heights, in two columns inside the upper structure
@@ -313,6 +314,8 @@ def _draw_step(ax, case, roof_json, adjacent=False):
     gap = separation(case) if adjacent else None
     if gap is not None:  # the gap is drawn in any case; its symbol where a step gives s
         _hdim(ax, xw, x0, 0.35, "s")
+    if cut and not windward:  # (windward, the fetch lu is this same length)
+        _hdim(ax, x0, xe, -0.3, "w roof")
     if windward:
         if fetch(case) is not None:
             _hdim(ax, x0, xe, -0.3, "lu")

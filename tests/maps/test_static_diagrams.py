@@ -300,6 +300,31 @@ def test_every_symbol_on_the_sketch_has_its_value_in_the_table(engine_roof, vari
         assert sketch and sketch <= table, (case["name"], sketch - table)
 
 
+@pytest.mark.parametrize("standard", ["asce7-16", "asce7-22"])
+def test_drift_cut_at_the_far_edge_of_a_short_lower_roof(standard):
+    """A lower roof shorter than the drift: the width on the roof and the edge surcharge."""
+    import neve
+    from neve.maps.diagrams import case_figure
+    from neve.maps.package import _value_text
+
+    roof = neve.Roof.from_mapping({"shape": "flat", "slope": "0.25:12", "step": [
+        {"name": "short canopy", "height": "10ft", "upper_length": "150ft",
+         "lower_length": "8ft"}]})  # fmt: skip
+    extra = {"w2": 0.5} if standard == "asce7-22" else {}
+    data = json.loads(
+        json.dumps(neve.analyze_roof(50.0, roof, standard=standard, **extra).to_json())
+    )
+    cut = [c for c in data["cases"] if c["case"] == "drift" and c["pd_far_edge"]["psf"] > 0]
+    assert cut  # an 8 ft lower roof is narrower than any of its drifts here
+    for case in cut:
+        fig = case_figure(case, data)
+        text = _all_text(fig)
+        assert _value_text(case["w_on_roof"]) == "8 ft (2.44 m)"  # lower_length above
+        for key in ("w_on_roof", "pd_far_edge", "w", "total_peak"):
+            assert _value_text(case[key], key) in text, key
+        assert _overlaps(fig) == ([], [])
+
+
 def test_drift_kinds_follow_the_source_key():
     from neve.maps.diagrams import diagram_kind
 
