@@ -40,6 +40,29 @@ PROBLEM_COLOUR = "#e03131"
 #: site marker
 SITE_COLOUR = "#1b1f3b"
 
+#: load diagrams of the roof cases (maps/diagrams.py): one visual language for every kind.
+#: Structure is dark slate like the site marker; snow is a pale tint of the value scale;
+#: any surcharge (drift, sliding, unbalanced, eave load) is amber with a hatch, so that
+#: balanced snow and surcharge still differ on a black-and-white print.
+DIAGRAM_COLOURS = {
+    "structure": SITE_COLOUR,  # roof lines, walls
+    "interior": "#f3f4f8",  # building section below a roof
+    "solid": "#b9bdcb",  # parapet wall, rooftop unit (drawn hatched)
+    "snow": "#d3e8f1",  # balanced snow
+    "snow_edge": VALUE_COLOURS[5],
+    "surcharge": "#f4c27f",  # drift, sliding, unbalanced surcharge, eave load
+    "surcharge_edge": "#9a5b12",
+    "ice": "#e8f4fb",  # ice dam and icicles
+    "ice_edge": "#5b8fb0",
+    "dimension": "#3d4256",  # dimension lines and their symbols
+    "wind": "#55607a",
+    "text": SITE_COLOUR,
+    "muted": "#5a5f70",  # notes, table descriptions
+    "rule": "#c9cdd8",  # table rules
+}
+#: hatches of the load diagrams (matplotlib hatch patterns)
+DIAGRAM_HATCHES = {"solid": "////", "surcharge": "\\\\", "ice": ".."}
+
 #: short, plain descriptions of the rule kinds
 RULE_LABELS = {
     "fixed": "fixed mapped value",

@@ -53,6 +53,19 @@ def test_site_json_carries_the_overrides(built):
     assert data["ground"]["pg"] == {"psf": 35.0, "kPa": 1.6758}
 
 
+def test_each_diagram_follows_its_case_heading(built):
+    """Sketch, then values, then steps: the figure comes right under the case's heading."""
+    import re
+
+    _, files = built
+    html = files["report_html"].read_text(encoding="utf-8")
+    for name in ("unbalanced (wind across ridge)", "drift at high bay"):
+        m = re.search(r"<h3>4\.\d+ [a-z_]+: " + re.escape(name) + r"</h3>\s*(?:\{#.*?#\}\s*)?"
+                      r'<figure class="diagram"><img src="data:image/png;base64,', html)  # fmt: skip
+        assert m, name
+    assert html.count('<figure class="diagram">') == 2  # balanced and the unknown case: none
+
+
 def test_report_html_is_self_contained(built):
     _, files = built
     html = files["report_html"].read_text(encoding="utf-8")
