@@ -10,10 +10,11 @@ first and its twin in brackets: ``35.0 psf (1.68 kPa)``.
 The decimals of each unit are set once, in :data:`DECIMALS`. Two presentations
 share them:
 
-- ``trim=False`` (terminal text): trailing zeros kept, so that the decimals
-  shown say the precision and columns line up: ``35.0 psf (1.68 kPa)``;
-- ``trim=True`` (maps, diagrams, the package): trailing zeros dropped:
-  ``35 psf (1.68 kPa)``.
+- ``trim=False`` (terminal text, the summaries and tables of the package and
+  of the site map's panel): trailing zeros kept, so that the decimals shown
+  say the precision and columns line up: ``35.0 psf (1.68 kPa)``;
+- ``trim=True`` (zone labels and legends of the maps, popups): trailing zeros
+  dropped where space is short: ``35 psf (1.68 kPa)``.
 
 Two scales differ from the table on purpose: elevations and distances on the
 ground (:func:`elevation_text`, whole feet and tenths of a metre) and a ground

@@ -9,7 +9,6 @@ apply (polar sites).
 from __future__ import annotations
 
 import functools
-
 import math
 
 from neve.engine.errors import InputError, LayerError

@@ -169,6 +169,22 @@ _ROOF_LABELS = {
 }
 
 
+def _inputs(inputs: dict | None, views) -> dict:
+    """The inputs echoed in the report: command, ROOF.toml, layers (names and SHA-256)."""
+    given = inputs or {}
+    roof_file = given.get("roof_file")
+    layers = [
+        {"name": str(v.get("name") or "layer"), "sha256": str(v.get("sha256") or "")}
+        for v in views or []
+    ]
+    return {
+        "command": strip_machine_paths(str(given.get("command") or "")),
+        "roof_name": _file_name(roof_file[0]) if roof_file else "",
+        "roof_text": str(roof_file[1]) if roof_file else "",
+        "layers": layers,
+    }
+
+
 def _roof_rows(roof: dict | None, pitch: bool | None = None) -> list[tuple[str, str]]:
     """The roof description (``roof_json["roof"]``) as label/value rows, generically.
 
@@ -362,6 +378,7 @@ def write_package(
     title_block: dict | None = None,
     basemap=None,
     slope_pitch: bool | None = None,
+    inputs: dict | None = None,
 ) -> dict[str, Path]:
     """Write the calculation package folder.
 
@@ -389,6 +406,11 @@ def write_package(
         What lies under the zones of the site map and the static map
         (:mod:`neve.maps.basemap`; the static map draws offline basemaps only);
         by default the demo basemap for demo data, otherwise none.
+    inputs : dict, optional
+        What was asked, echoed in the report's design criteria: ``command`` (the
+        command line, paths already cut to file names) and ``roof_file``
+        (``(file name, text)`` of the ROOF.toml, or None). The layers used are
+        listed from ``views`` with their SHA-256.
     slope_pitch : bool, optional
         The roof slope was given as a rise:run: shown as ``6:12 (26.6°)``; False:
         as its angle, ``26.6°``; None (not known): as the pitch with its angle.
@@ -456,6 +478,7 @@ def write_package(
             "roof": data.get("roof"),
             "factors": _factors(data.get("roof")),
             "roof_rows": _roof_rows(data.get("roof"), slope_pitch),
+            "inputs": _inputs(inputs, views),
             "not_required": list((data.get("roof") or {}).get("not_required") or []),
             "summary": _summary(data.get("roof")) + _on_record_rows(data.get("on_record")),
             "provenance": _provenance(ground),

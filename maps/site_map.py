@@ -88,6 +88,13 @@ def governing_ids(site_json: dict, view: dict, first: bool) -> list[str]:
     return []
 
 
+def _summary_load(load) -> str:
+    """A load in the summary panel and the report: 0.1 psf / 0.01 kPa, zeros kept."""
+    from neve.engine import format as fmt
+
+    return fmt.load_text(load, missing="none", missing_number="\u2014")
+
+
 def summary_context(site_json: dict) -> dict:
     """Plain values for the summary panel and the report (escaped by the templates)."""
     site = site_json.get("site") or {}
@@ -99,14 +106,14 @@ def summary_context(site_json: dict) -> dict:
     neighbours = []
     for n in ground.get("neighbours") or []:
         pg = n.get("pg")
-        pg_text = style.load_text(pg) if isinstance(pg, dict) else style.num(pg, 2)
+        pg_text = _summary_load(pg) if isinstance(pg, dict) else style.num(pg, 2)
         dist = n.get("distance")
         dist_text = style.elevation_text(dist) if isinstance(dist, dict) else style.num(dist, 0)
         neighbours.append(f"zone {n.get('zone_id')}: {pg_text} at {dist_text}")
     others = []
     for o in ground.get("other_layers") or []:
         pg = o.get("pg")
-        pg_text = style.load_text(pg) if isinstance(pg, dict) else style.num(pg, 2)
+        pg_text = _summary_load(pg) if isinstance(pg, dict) else style.num(pg, 2)
         zone = f"zone {o['zone_id']}" if o.get("zone_id") else "no zone"
         pg_text = pg_text if o.get("pg") else "no value"
         others.append(
@@ -120,7 +127,7 @@ def summary_context(site_json: dict) -> dict:
         "lon": site.get("lon"),
         "status": status.replace("_", " "),
         "status_class": status if status.replace("_", "").isalnum() else "error",
-        "pg": style.load_text(ground.get("pg")) if ground.get("pg") else "no value",
+        "pg": _summary_load(ground.get("pg")) if ground.get("pg") else "no value",
         "zone": ", ".join(str(z) for z in zone_ids) or "none",
         "rule": ground.get("rule") or "",
         "flags": [str(f) for f in ground.get("flags") or []],

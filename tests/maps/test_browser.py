@@ -92,7 +92,7 @@ def test_site_map_offline_in_chromium(tmp_path):
         text = summary.text_content()
         for field in ("site", "project", "address", "zone", "layer one", "jurisdiction", "source"):
             assert hostile(field) in text, field  # shown as text, exactly as typed
-        assert "35 psf (1.68 kPa)" in summary.inner_text()
+        assert "35.0 psf (1.68 kPa)" in summary.inner_text()  # 0.1 psf, zeros kept
         assert page.locator("#neve-legend").is_visible()
         assert page.locator("#neve-demo-banner").is_visible()
         assert page.locator(".leaflet-control-scale").is_visible()

@@ -13,6 +13,8 @@ differently (``--map`` is a site map in ``neve site`` and a portfolio map in
 
 from __future__ import annotations
 
+from pathlib import Path
+
 import click
 
 from neve.engine.errors import InputError
@@ -530,3 +532,53 @@ def compare_option(f):
         "pg_ratio and design_uniform_ratio (last / first), and the count of sites whose "
         "governing uniform load rises by more than 10 %.",
     )(f)
+
+
+#: options whose values are files or folders: echoed by file name only
+_PATH_PARAMS = {"layers", "dem", "roof_file", "gazetteer", "map_path", "package_dir",
+                "geocode_cache", "summary_json", "output", "sites"}  # fmt: skip
+
+
+def command_echo() -> str:
+    """The command being run, as the package echoes it: the options given, paths cut to
+    their file names (never a folder of the user's machine), quoted for a shell."""
+    import shlex
+    from pathlib import PureWindowsPath
+
+    from click.core import ParameterSource
+
+    ctx = click.get_current_context()
+    words = ["neve", *ctx.command_path.split()[1:]]  # the program, however it was started
+    for param in ctx.command.params:
+        name = param.name
+        if name is None or ctx.get_parameter_source(name) not in (
+            ParameterSource.COMMANDLINE, ParameterSource.ENVIRONMENT
+        ):
+            continue
+        value = ctx.params.get(name)
+        values = list(value) if isinstance(value, (list, tuple)) else [value]
+        for v in values:
+            if v is None:
+                continue
+            if isinstance(param, click.Option) and param.is_flag:
+                if param.secondary_opts and not v:
+                    words.append(param.secondary_opts[0])
+                elif v:
+                    words.append(param.opts[0])
+                continue
+            text = str(v)
+            if name in _PATH_PARAMS and text != "demo":
+                text = PureWindowsPath(text).name if "\\" in text else Path(text).name
+            words.extend([param.opts[0], text] if isinstance(param, click.Option) else [text])
+    return shlex.join(words)
+
+
+def roof_file_echo(kw: dict) -> tuple[str, str] | None:
+    """(file name, text) of the ``--roof`` file, for the package; None without one."""
+    path = kw.get("roof_file")
+    if not path:
+        return None
+    try:
+        return Path(path).name, Path(path).read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError):  # already read (and checked) by the roof reader
+        return Path(path).name, ""

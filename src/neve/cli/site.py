@@ -5,6 +5,7 @@ from __future__ import annotations
 import click
 
 from neve.cli.options import (
+    command_echo,
     dem_options,
     format_option,
     gazetteer_option,
@@ -12,10 +13,11 @@ from neve.cli.options import (
     layer_standard_option,
     layers_option,
     map_look_options,
-    resolve_basemap,
     map_option,
     on_record_option,
     overwrite_option,
+    resolve_basemap,
+    roof_file_echo,
     roof_from_options,
     roof_options,
     title_block_from_options,
@@ -140,6 +142,7 @@ def site(**kw) -> None:
                 site_name=kw["site_name"],
                 overwrite=kw["overwrite"],
                 title_block=title_block_from_options(kw),
+                inputs={"command": command_echo(), "roof_file": roof_file_echo(kw)},
                 basemap=base,
                 slope_pitch=None if roof is None else roof.slope_pitch,
             )
