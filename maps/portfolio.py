@@ -128,8 +128,9 @@ _TEMPLATE = """{% macro script(this, kwargs) %}
         if (d.name) { line(box, 'Name', d.name[i]); }
         line(box, 'Status', d.status_names[d.status[i]]);
         if (d.elev) {
+            var m = (d.elev_m && d.elev_m[i] !== null) ? d.elev_m[i] : d.elev[i] * 0.3048;
             line(box, 'Elevation', d.elev[i] === null ? null :
-                 Math.round(d.elev[i]) + ' ft (' + (d.elev[i] * 0.3048).toFixed(1) + ' m)');
+                 Math.round(d.elev[i]) + ' ft (' + m.toFixed(1) + ' m)');
         }
         line(box, 'pg', d.pg[i] === null ? 'no value' : load(d.pg[i]));
         if (d.design) { line(box, 'Design uniform load', load(d.design[i])); }
@@ -407,7 +408,8 @@ def write_portfolio_map(
         "kpa_per_psf": KPA_PER_PSF,
     }
 
-    for key, col, digits in (("elev", "site_elevation_ft", 0), ("design", "design_uniform_psf", 1)):
+    for key, col, digits in (("elev", "site_elevation_ft", 0), ("elev_m", "site_elevation_m", 1),
+                             ("design", "design_uniform_psf", 1)):  # fmt: skip
         if col in sub.columns:
             payload[key] = _numbers(pd.to_numeric(sub[col], errors="coerce"), digits)
     name_col = next((c for c in ("site_name", "name") if c in sub.columns), None)
