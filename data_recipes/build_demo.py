@@ -370,6 +370,8 @@ Built by `python data_recipes/build_demo.py` (deterministic).
   used with `--standard asce7-22` when no `--layer` is given
 - `skerrow_722_w2.geojson`: ASCE 7-22 winter wind parameter W2 (EPSG:4326, a fraction)
 - `skerrow_dem.tif`: synthetic DEM (UTM 7N, metres, nodata over the sea)
+- `skerrow_basemap.mbtiles`: invented raster basemap (sea, coast, terrain tints, roads,
+  towns; zooms 8-13), built by `python data_recipes/build_demo_basemap.py`
 """
 
 

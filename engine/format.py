@@ -10,10 +10,11 @@ first and its twin in brackets: ``35.0 psf (1.68 kPa)``.
 The decimals of each unit are set once, in :data:`DECIMALS`. Two presentations
 share them:
 
-- ``trim=False`` (terminal text): trailing zeros kept, so that the decimals
-  shown say the precision and columns line up: ``35.0 psf (1.68 kPa)``;
-- ``trim=True`` (maps, diagrams, the package): trailing zeros dropped:
-  ``35 psf (1.68 kPa)``.
+- ``trim=False`` (terminal text, the summaries and tables of the package and
+  of the site map's panel): trailing zeros kept, so that the decimals shown
+  say the precision and columns line up: ``35.0 psf (1.68 kPa)``;
+- ``trim=True`` (zone labels and legends of the maps, popups): trailing zeros
+  dropped where space is short: ``35 psf (1.68 kPa)``.
 
 Two scales differ from the table on purpose: elevations and distances on the
 ground (:func:`elevation_text`, whole feet and tenths of a metre) and a ground
@@ -54,7 +55,7 @@ DECIMALS: dict[str, int] = {
     "kN/m": 2,
     "pcf": 1,
     "kN/m3": 2,
-    "deg": 2,
+    "deg": 1,
 }
 
 #: elevations and distances on the ground: whole feet, tenths of a metre
@@ -193,14 +194,23 @@ def elevation_text(value: Mapping | None, **kw) -> str:
     return quantity_text(value, decimals=GROUND_DECIMALS, **kw)
 
 
-def slope_text(deg: object, *, trim: bool = False, missing: str = MISSING) -> str:
-    """A roof slope in degrees: ``26.57 deg``.
+def slope_text(
+    deg: object, *, pitch: bool = False, trim: bool = False, missing: str = MISSING
+) -> str:
+    """A roof slope: its angle to a tenth of a degree, ``26.6°``; ``pitch=True``: ``6:12 (26.6°)``.
 
-    >>> slope_text(26.565), slope_text(5.0, trim=True)
-    ('26.57 deg', '5 deg')
+    Show the pitch where the slope was given as a rise:run (``6:12``), so that
+    the reader finds the figure they typed; the angle otherwise.
+
+    >>> slope_text(26.565), slope_text(26.565, pitch=True), slope_text(5.0, trim=True)
+    ('26.6°', '6:12 (26.6°)', '5°')
+    >>> slope_text(None), slope_text(None, pitch=True)
+    ('n/a', 'n/a')
     """
+    if pitch:
+        return pitch_text(deg, missing=missing)
     text = number(deg, DECIMALS["deg"], trim=trim, missing=missing)
-    return text if text == missing else f"{text} deg"
+    return text if text == missing else f"{text}\u00b0"
 
 
 #: significant figures of a calculation step's value in the package (engineering rounding)

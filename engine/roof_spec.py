@@ -30,7 +30,7 @@ from neve.engine.roof_limits import (
     norm_keys,
     slope_check,
 )
-from neve.engine.units import parse_length, parse_load, parse_slope
+from neve.engine.units import parse_length, parse_load, parse_slope, slope_is_ratio
 
 __all__ = [
     "FLAT_SLOPE_MAX_DEG", "PG_MAX_PSF", "RANGES", "SHAPES", "Parapet", "Projection", "Roof",
@@ -169,6 +169,8 @@ class Roof:
     projections: tuple[Projection, ...] = field(default_factory=tuple)
     overhang: float | None = None  # overhang length beyond the exterior wall [ft]
     shape_stated: bool = True  # False when the shape defaulted to flat
+    #: the slope was given as a rise:run (``6:12``): text shows it as ``6:12 (26.6°)``
+    slope_pitch: bool = field(default=False, compare=False)
 
     def __post_init__(self):
         choose_key("shape", self.shape, SHAPES)
@@ -224,6 +226,7 @@ class Roof:
                 "slope", f"required for a {shape} roof", "rise:run such as 6:12, or 26.6deg"
             )
         kw: dict = {"shape": shape, "slope": slope, "shape_stated": "shape" in data}
+        kw["slope_pitch"] = "slope" in data and slope_is_ratio(data["slope"])
         kw["surface"] = choose_key("surface", data.get("surface", "other"), SURFACES)
         if "ct" in data and "thermal" in data:
             raise InputError("ct", "give ct or thermal, not both", "one of ct, thermal")

@@ -17,6 +17,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from neve.engine.format import STEP_FIGURES, significant
+
 
 @dataclass(frozen=True)
 class Step:
@@ -47,8 +49,20 @@ class Step:
         }
 
 
-def fmt(x, digits: int = 3) -> str:
-    """Format a number for a substituted equation; arrays print as ``[n values]``."""
+def fmt(x, figures: int = STEP_FIGURES) -> str:
+    """A number for a substituted equation: ``figures`` significant figures (engineering rounding).
+
+    A value that is exact at fewer figures prints short (``30``, ``0.7``,
+    ``1``: an input or a table factor is not padded with zeros); any other
+    value is rounded to ``figures`` significant figures with its trailing
+    zeros kept, so that the figures shown say the precision.  Arrays print
+    as ``[n values]``; the value a step stores is never rounded by this.
+
+    >>> fmt(30.0), fmt(0.7), fmt(49.591), fmt(2.198), fmt(1479.55), fmt(0.04788026)
+    ('30', '0.7', '49.6', '2.20', '1480', '0.0479')
+    >>> fmt(1e-5), fmt(float("nan")), fmt([1.0, 2.0])
+    ('0.00001', 'nan', '[2 values]')
+    """
     arr = np.asarray(x)
     if arr.size != 1:
         return f"[{arr.size} values]"
@@ -57,7 +71,21 @@ def fmt(x, digits: int = 3) -> str:
         return str(v)
     if v == int(v) and abs(v) < 1e9:
         return str(int(v))
-    return f"{v:.{digits}g}" if abs(v) < 1e-3 else f"{v:.{digits}f}".rstrip("0").rstrip(".")
+    text = significant(v, figures)
+    if "." in text:
+        short = text.rstrip("0").rstrip(".")
+        if math.isclose(float(short), v, rel_tol=1e-9, abs_tol=0.0):
+            return short
+    return text
+
+
+def fmt_deg(deg) -> str:
+    """A roof slope in a substituted equation: ``26.6°`` (:func:`fmt`, then the degree sign).
+
+    >>> fmt_deg(26.565), fmt_deg(30.0), fmt_deg(2.3859)
+    ('26.6°', '30°', '2.39°')
+    """
+    return f"{fmt(deg)}\u00b0"
 
 
 @dataclass

@@ -179,6 +179,18 @@ def parse_density(text: object, field: str) -> float:
     return value
 
 
+def slope_is_ratio(text: object) -> bool:
+    """Whether a slope is written as a rise:run (``6:12``, ``6 on 12``, ``6/12``).
+
+    Text output shows such a slope as its pitch, ``6:12 (26.6°)``, and an
+    angle as an angle.
+
+    >>> slope_is_ratio("6:12"), slope_is_ratio(" 0.25 on 12 "), slope_is_ratio("26.6deg")
+    (True, True, False)
+    """
+    return bool(re.match(rf"^({_NUM})\s*(?::|on|/)\s*({_NUM})$", str(text).strip().lower()))
+
+
 def parse_slope(text: object, field: str = "slope") -> float:
     """Parse a roof slope into degrees from horizontal.
 

@@ -13,6 +13,7 @@ from __future__ import annotations
 
 from collections.abc import Mapping
 
+from neve.engine.roof_text import NOT_APPLICABLE, absent_loads, not_applicable_here
 from neve.maps import style
 from neve.maps.templating import render
 
@@ -55,12 +56,15 @@ def _labelled(title: str, ref: str | None) -> str:
     return ref if ref.startswith(title) else f"{title}: {ref}"
 
 
-def _row(d: Mapping, ids: list[str], titles: Mapping, label: str) -> dict:
+def _row(d: Mapping, ids: list[str], titles: Mapping, label: str, absent: Mapping) -> dict:
+    values = [NOT_APPLICABLE if not_applicable_here(d, i, absent) else _text(d["values"].get(i))
+              for i in ids]  # fmt: skip
+    na = NOT_APPLICABLE in values  # no difference to a load that does not apply
     return {
         "label": label,
-        "values": [_text(d["values"].get(i)) for i in ids],
-        "difference": _text(d["difference"]),
-        "ratio": _ratio(d["ratio"]),
+        "values": values,
+        "difference": "\u2014" if na else _text(d["difference"]),
+        "ratio": "\u2014" if na else _ratio(d["ratio"]),
         "refs": [_labelled(titles[i], d["refs"].get(i)) for i in ids],
         "governing": d["quantity"] == "design_uniform",
     }
@@ -95,10 +99,12 @@ def comparison_context(data: Mapping) -> dict:
                 ],
             }
         )
+    absent = absent_loads(data)
     site_rows, cases, index = [], [], {}
     for d in data["differences"]:
         if d["case"] is None:
-            site_rows.append(_row(d, ids, titles, LABELS.get(d["quantity"], d["quantity"])))
+            label = LABELS.get(d["quantity"], d["quantity"])
+            site_rows.append(_row(d, ids, titles, label, absent))
             continue
         key = (d["case"], d["name"])
         if key not in index:
@@ -112,7 +118,8 @@ def comparison_context(data: Mapping) -> dict:
                     "rows": [],
                 }
             )
-        cases[index[key]]["rows"].append(_row(d, ids, titles, d["quantity"].replace("_", " ")))
+        label = d["quantity"].replace("_", " ")
+        cases[index[key]]["rows"].append(_row(d, ids, titles, label, absent))
     for c in cases:  # which editions have the case at all
         have = {i for row in c["rows"] for i, v in zip(ids, row["values"], strict=True)
                 if v != "\u2014"}  # fmt: skip

@@ -1,151 +1,673 @@
 """Load diagrams of the roof snow load cases (matplotlib, Agg, PNG).
 
-Schematic, not to scale along the roof: each diagram shows the roof line,
-the snow load as blocks with their values in psf and kPa, and the lengths
-that define them (surcharge extent, drift width and height), so that a
-reviewer can see the load case at a glance beside its step-by-step values.
-Drawn for the ``unbalanced``, ``drift`` and ``sliding`` cases of the
-``neve roof`` JSON object.
+One dimensioned diagram per kind of case: a roof step (or an adjacent,
+separate structure), a parapet, a rooftop projection, sliding snow, the
+unbalanced load of a gable or hip roof and the ice dam at the eave.  Each
+figure has two parts that cannot crowd each other:
+
+- the sketch, schematic and not to scale, that names every part (upper roof,
+  parapet, wind, ridge, eave ...) and every dimension by its symbol only
+  (``hb``, ``hc``, ``hd``, ``w``, ``lu``, ``s`` ...), each symbol in a lane of
+  its own;
+- a table beside it that gives each symbol its value, printed by the one
+  formatter of :mod:`neve.engine.format` as in the package's tables, with the
+  peak total (balanced + surcharge) and the line load where the case has one.
+
+Only values present in the case JSON are shown: the case's own keys, the
+roof's loads and description, and two lengths that the engine writes in its
+steps only (the upwind fetch ``lu`` and the separation ``s`` of an adjacent
+structure); a value that cannot be read from them is left out, never guessed.
+Heights are drawn in the ratio of the case's own depths within bounds (so a
+very small or very large ratio still leaves room for every label); lengths
+along the roof are schematic.
 """
 
 from __future__ import annotations
 
+import math
 import os
 import re
 import textwrap
 from pathlib import Path
 
 from neve.engine import format as fmt
+from neve.engine.units import length_json
 from neve.maps import style
 from neve.safe_write import write_bytes
 
+#: case kinds of the ``neve roof`` JSON (its ``case`` key) that get a diagram
+DIAGRAM_CASES = ("unbalanced", "drift", "sliding", "ice_dam")
 
-def _load(load) -> str:
-    """A load on a diagram as in the package's tables: 0.1 psf, 0.01 kPa, zeros kept."""
-    return fmt.load_text(load, missing="none", missing_number="\u2014")
+#: the diagram drawn for each kind (a drift by its ``source``), with its title
+DIAGRAM_KINDS = {
+    "step": "Drift at a roof step",
+    "adjacent": "Drift beside an adjacent structure",
+    "parapet": "Parapet drift",
+    "projection": "Projection drift",
+    "sliding": "Sliding snow",
+    "unbalanced": "Unbalanced load",
+    "ice_dam": "Ice dam at the eave",
+}
+
+_C = style.DIAGRAM_COLOURS
+_H = style.DIAGRAM_HATCHES
+_FIG_IN = (7.2, 3.5)  # inches: the package prints it at the full text width
+_DPI = 150
+_SKETCH = (0.008, 0.075, 0.575, 0.795)  # left, bottom, width, height [figure fraction]
+_TABLE = (0.6, 0.992, 0.86)  # left, right, top [figure fraction]
+_XLIM, _YLIM = (0.0, 10.0), (-0.85, 7.0)
+_FS_LABEL, _FS_TABLE, _FS_TITLE, _FS_NOTE = 8.0, 7.5, 9.5, 6.5
+NOTE = "schematic; lengths not to scale; loads in psf (kPa), lengths in ft (m)"
 
 
-#: case kinds that get a diagram
-DIAGRAM_CASES = ("unbalanced", "drift", "sliding")
-
-_SNOW = "#9ec5e8"
-_SNOW_EDGE = "#2f5d8a"
-_SURCHARGE = "#f2b66d"
-_ROOF = "#1b1f3b"
+def _load(q) -> str:
+    """A load as in the package's tables: 0.1 psf, 0.01 kPa, zeros kept."""
+    return fmt.load_text(q, missing="none", missing_number="\u2014")
 
 
-def _psf(load) -> float | None:
-    if isinstance(load, dict) and load.get("psf") is not None:
-        return float(load["psf"])
+def _ft(q) -> float | None:
+    v = fmt._finite(q.get("ft")) if isinstance(q, dict) else None
+    return v
+
+
+def _psf(q) -> float | None:
+    return fmt._finite(q.get("psf")) if isinstance(q, dict) else None
+
+
+def _clamp(x: float, lo: float, hi: float) -> float:
+    return min(max(x, lo), hi)
+
+
+def diagram_kind(case: dict) -> str | None:
+    """The diagram of a case (a key of :data:`DIAGRAM_KINDS`), or None for none.
+
+    Drifts are told apart by their ``source`` (``step``, ``adjacent``,
+    ``parapet``, ``projection``); a drift without one (an older JSON) by the
+    words of its name, a roof step otherwise.
+    """
+    kind = str(case.get("case", ""))
+    if kind not in DIAGRAM_CASES:
+        return None
+    if kind != "drift":
+        return kind
+    source = str(case.get("source") or "")
+    if source in DIAGRAM_KINDS:
+        return source
+    name = str(case.get("name") or "").lower()
+    for word, found in (("parapet", "parapet"), ("projection", "projection"),
+                        ("adjacent", "adjacent")):  # fmt: skip
+        if word in name:
+            return found
+    return "step"
+
+
+# lengths the engine gives in its steps only --------------------------------
+
+_FETCH = re.compile(r"\blu = (\d+(?:\.\d+)?) ft")
+_SEPARATION = (
+    re.compile(r"\(6 x \d+(?:\.\d+)? - (\d+(?:\.\d+)?)\)"),  # hd, w beside an adjacent structure
+    re.compile(r"\(15 - (\d+(?:\.\d+)?)\)/15"),  # sliding onto a separate structure
+)
+
+
+def fetch(case: dict) -> dict | None:
+    """The upwind fetch lu [ft, m] the case's drift height was computed from.
+
+    Read from the step that gives the drift height (its description names
+    ``lu``); for the windward drift of a step, the step of the windward
+    height.  None when no step names it.
+    """
+    windward = case.get("governs") == "windward" and case.get("source") in ("step", "adjacent")
+    found = []
+    for st in case.get("steps") or []:
+        m = _FETCH.search(str(st.get("description") or ""))
+        if m:
+            side = "windward" in str(st.get("symbol")) + str(st.get("description"))[:8]
+            found.append((side, float(m.group(1))))
+    for side, value in found:
+        if side == windward:
+            return length_json(value)
+    return length_json(found[0][1]) if found and not windward else None
+
+
+def separation(case: dict) -> dict | None:
+    """The separation s [ft, m] of an adjacent structure, from the substituted steps."""
+    for st in case.get("steps") or []:
+        for pattern in _SEPARATION:
+            m = pattern.search(str(st.get("substituted") or ""))
+            if m:
+                return length_json(float(m.group(1)))
     return None
 
 
-def _block(ax, x0, x1, y0, h, colour=_SNOW, label=None, base=0.0):
-    from matplotlib.patches import Rectangle
-
-    ax.add_patch(
-        Rectangle((x0, base + y0), x1 - x0, h, facecolor=colour, edgecolor=_SNOW_EDGE, lw=1)
-    )
-    if label:
-        ax.text((x0 + x1) / 2, base + y0 + h + 0.08, label, ha="center", va="bottom", fontsize=8)
+# drawing helpers ------------------------------------------------------------
 
 
-def _dim(ax, x0, x1, y, text):
-    ax.annotate(
-        "", xy=(x0, y), xytext=(x1, y), arrowprops={"arrowstyle": "<->", "color": "#444", "lw": 0.8}
-    )
-    ax.text((x0 + x1) / 2, y - 0.06, text, ha="center", va="top", fontsize=8, color="#333")
+def _text(ax, x, y, text, ha="center", va="center", colour=None, **kw):
+    return ax.text(x, y, text, ha=ha, va=va, fontsize=kw.pop("size", _FS_LABEL),
+                   color=colour or _C["text"], clip_on=False, **kw)  # fmt: skip
 
 
-def _unbalanced(ax, case, scale):
-    ww = _psf(case.get("windward")) or 0.0
-    lw = _psf(case.get("leeward")) or 0.0
-    sc = _psf(case.get("surcharge")) or 0.0
-    ext = case.get("surcharge_extent")
-    # roof: eaves at x=0 and x=8, ridge at x=4; snow drawn above a datum line
-    ax.plot([0, 4, 8], [-1.2, -0.4, -1.2], color=_ROOF, lw=2.5)
-    ax.plot([0, 0], [-1.2, -1.9], color=_ROOF, lw=2)
-    ax.plot([8, 8], [-1.2, -1.9], color=_ROOF, lw=2)
-    _block(ax, 0, 4, 0, ww * scale, label=f"windward {_load(case.get('windward'))}")
-    _block(ax, 4, 8, 0, lw * scale, label=None)
-    e = 4 * 0.45 if ext else 0.0
-    if sc > 0 and e > 0:
-        _block(ax, 4, 4 + e, lw * scale, sc * scale, colour=_SURCHARGE)
-        ax.text(4 + e + 0.1, lw * scale + sc * scale * 0.5, f"surcharge {_load(case.get('surcharge'))}",
-                ha="left", va="center", fontsize=8)  # fmt: skip
-        _dim(ax, 4, 4 + e, -0.15, f"extent {style.length_text(ext)}")
-    ax.text(
-        6.0,
-        lw * scale * 0.5,
-        f"leeward\n{_load(case.get('leeward'))}",
-        ha="center",
-        va="center",
-        fontsize=8,
-    )
-    ax.annotate("wind", xy=(1.6, -0.55), xytext=(0.2, -0.55), fontsize=9, va="center",
-                arrowprops={"arrowstyle": "-|>", "color": "#555", "lw": 1.4})  # fmt: skip
-    ax.text(4, -0.55, "ridge", ha="center", va="top", fontsize=7, color="#555")
-    return max(ww, lw + sc)
+def _line(ax, xs, ys, lw=2.2, colour=None, **kw):
+    ax.plot(xs, ys, color=colour or _C["structure"], lw=lw, solid_capstyle="butt",
+            solid_joinstyle="miter", **kw)  # fmt: skip
 
 
-def _drift(ax, case, scale, balanced, roof_loads=None):
+def _patch(ax, pts, role, dashed=False):
+    """A filled shape of the diagram's palette: snow, surcharge, ice, solid, interior."""
     from matplotlib.patches import Polygon
 
-    pd = _psf(case.get("pd")) or 0.0
-    bal = balanced or 0.0
-    # upper roof (or parapet/obstruction) on the left, lower roof to the right
-    ax.plot([-1.5, 0, 0, 8], [1.6, 1.6, -0.05, -0.05], color=_ROOF, lw=2.5)
-    w = 3.6
-    _block(ax, 0, 8, 0, bal * scale, label=None)
-    ax.add_patch(Polygon([(0, bal * scale), (0, (bal + pd) * scale), (w, bal * scale)],
-                         closed=True, facecolor=_SURCHARGE, edgecolor=_SNOW_EDGE, lw=1))  # fmt: skip
-    ax.text(
-        0.15,
-        (bal + pd) * scale + 0.08,
-        f"pd = {_load(case.get('pd'))}",
-        ha="left",
-        va="bottom",
-        fontsize=8,
-    )
-    ax.text(6.0, bal * scale * 0.5, f"balanced\n{_load((roof_loads or {}).get('ps')) if bal else 'none'}",
-            ha="center", va="center", fontsize=8)  # fmt: skip
-    _dim(ax, 0, w, -0.2, f"w = {style.length_text(case.get('w'))}")
-    ax.text(
-        w + 0.2,
-        (bal + pd * 0.55) * scale,
-        f"hd = {style.length_text(case.get('hd'))}",
-        fontsize=8,
-        va="center",
-    )
-    gov = case.get("governs")
-    if gov:
-        ax.text(
-            7.9,
-            (bal + pd) * scale,
-            f"governs: {gov}",
-            ha="right",
-            va="top",
-            fontsize=8,
-            color="#333",
+    edge = {"snow": _C["snow_edge"], "surcharge": _C["surcharge_edge"], "ice": _C["ice_edge"],
+            "solid": _C["structure"], "interior": _C["interior"]}[role]  # fmt: skip
+    if dashed:  # the same load elsewhere, or beyond the roof's edge: outline only
+        ax.add_patch(Polygon(pts, closed=True, fill=False, edgecolor=edge, lw=0.9, ls=(0, (3, 2))))
+        return
+    ax.add_patch(Polygon(pts, closed=True, facecolor=_C[role], edgecolor=edge,
+                         hatch=_H.get(role), lw=0))  # fmt: skip
+    if role != "interior":
+        ax.add_patch(Polygon(pts, closed=True, fill=False, edgecolor=edge, lw=0.9))
+
+
+def _rect(x0, x1, y0, y1):
+    return [(x0, y0), (x1, y0), (x1, y1), (x0, y1)]
+
+
+def _arrow(ax, x0, y0, x1, y1, style_="<|-|>", colour=None, lw=0.7, scale=7):
+    ax.annotate("", xy=(x1, y1), xytext=(x0, y0), annotation_clip=False,
+                arrowprops={"arrowstyle": style_, "color": colour or _C["dimension"], "lw": lw,
+                            "shrinkA": 0, "shrinkB": 0, "mutation_scale": scale})  # fmt: skip
+
+
+def _hdim(ax, x0, x1, y, label, below=True):
+    """A horizontal dimension from x0 to x1 with its symbol under (or over) the middle."""
+    _arrow(ax, x0, y, x1, y)
+    for x in (x0, x1):
+        _line(ax, [x, x], [y - 0.13, y + 0.13], lw=0.6, colour=_C["dimension"])
+    va, dy = ("top", -0.07) if below else ("bottom", 0.07)
+    _text(ax, (x0 + x1) / 2, y + dy, label, va=va, colour=_C["dimension"], style="italic")
+
+
+def _vdim(ax, x, y0, y1, label, side="left"):
+    """A vertical dimension at x from y0 to y1 with its symbol beside the middle."""
+    _arrow(ax, x, y0, x, y1)
+    for y in (y0, y1):
+        _line(ax, [x - 0.09, x + 0.09], [y, y], lw=0.6, colour=_C["dimension"])
+    ha, dx = ("right", -0.09) if side == "left" else ("left", 0.09)
+    _text(ax, x + dx, (y0 + y1) / 2, label, ha=ha, colour=_C["dimension"], style="italic")
+
+
+def _ext(ax, x0, x1, y):
+    """A thin extension line carrying a level to a dimension column."""
+    _line(ax, [x0, x1], [y, y], lw=0.5, colour=_C["dimension"], ls=(0, (1, 1.5)))
+
+
+def _wind(ax, x_tail, x_head, y):
+    """The wind arrow, its word at the tail."""
+    _arrow(ax, x_tail, y, x_head, y, style_="-|>", colour=_C["wind"], lw=1.4, scale=11)
+    right = x_head > x_tail
+    _text(ax, x_tail + (-0.1 if right else 0.1), y, "wind", ha="right" if right else "left",
+          colour=_C["wind"], weight="bold")  # fmt: skip
+
+
+def _depths(case, balanced):
+    """Drawn depths (hb, hd, hc) of a drift: the case's ratio within bounds."""
+    hb, hd, hc = _ft(case.get("hb")), _ft(case.get("hd")), _ft(case.get("hc"))
+    if hb is None:  # no depth given: from the balanced load and the density, else a sketch value
+        gamma = fmt._finite((case.get("gamma") or {}).get("pcf"))
+        hb = (balanced / gamma) if (balanced and gamma) else None
+    total = (hb or 0.0) + (hc if hc is not None else (hd or 0.0) * 1.5)
+    k = 3.4 / total if total > 0 else 1.0
+    bb = _clamp((hb or 0.4 / k) * k, 0.5, 1.05)
+    cc = _clamp((hc if hc is not None else (hd or 1.0) * 1.5) * k, 1.0, 3.6)
+    dd = _clamp((hd or 0.0) * k, 0.6, cc)
+    if hd is not None and hc is not None and hd < hc and dd >= cc:
+        dd = cc - 0.05
+    return bb, dd, cc
+
+
+def _drift_width(case, dd, lo, hi):
+    w, hd = _ft(case.get("w")), _ft(case.get("hd"))
+    if w and hd:
+        return _clamp(dd * w / hd * 0.55, lo, hi)
+    return (lo + hi) / 2
+
+
+# the load rows beside the sketch: (swatch role or None, symbol, description, value)
+
+
+def _peak(case) -> str:
+    """The symbol at a drift's peak: the total where the case gives it, else the surcharge."""
+    return "ps + pd" if case.get("total_peak") else "pd"
+
+
+def _drift_rows(case, roof_json, lu_side: str) -> list[tuple]:
+    balanced = case.get("balanced") or ((roof_json or {}).get("loads") or {}).get("ps")
+    rows = [
+        ("snow", "ps", "balanced snow load", _load(balanced)),
+        ("surcharge", "pd", "peak drift surcharge", _load(case.get("pd"))),
+        (None, "ps + pd", "peak total load", _load(case.get("total_peak"))),
+        (None, "hb", "balanced snow depth", style.length_text(case.get("hb"))),
+        (None, "hc", "clear height above it", style.length_text(case.get("hc"))),
+        (None, "hd", f"drift height ({case.get('governs') or 'drift'})",
+         style.length_text(case.get("hd"))),
+        (None, "w", "drift width", style.length_text(case.get("w"))),
+    ]  # fmt: skip
+    w, won = _ft(case.get("w")), _ft(case.get("w_on_roof"))
+    if won is not None and w is not None and won < w - 1e-9:
+        rows.append((None, "w roof", "width on this roof", style.length_text(case["w_on_roof"])))
+    if (_psf(case.get("pd_far_edge")) or 0.0) > 0:
+        rows.append((None, "p edge", "surcharge at far edge", _load(case["pd_far_edge"])))
+    lu = fetch(case)
+    if lu is not None:
+        rows.append((None, "lu", f"fetch ({lu_side})", style.length_text(lu)))
+    if case.get("gamma"):
+        rows.append((None, "\u03b3", "snow density", style.quantity_text(case["gamma"])))
+    return [r for r in rows if not r[3].startswith("none")]
+
+
+def _draw_step(ax, case, roof_json, adjacent=False):
+    bal = _psf(case.get("balanced")) or _psf(((roof_json or {}).get("loads") or {}).get("ps"))
+    bb, dd, cc = _depths(case, bal)
+    windward = case.get("governs") == "windward"
+    yl, xw = 1.0, 3.6
+    x0 = xw + (0.75 if adjacent else 0.0)
+    xe = 9.6
+    yb, yu = yl + bb, yl + bb + cc
+    ww = _drift_width(case, dd, 1.8, 3.6)
+    w, won = _ft(case.get("w")), _ft(case.get("w_on_roof"))
+    cut = (_psf(case.get("pd_far_edge")) or 0.0) > 0 and w and won is not None and won < w
+    if cut:
+        xe = x0 + max(ww * won / w, 1.3)
+    # structure
+    _patch(ax, [(0.3, yu), (xw, yu), (xw, yl - (1.35 if adjacent else 0.0)),
+                (0.3, yl - (1.35 if adjacent else 0.0))], "interior")  # fmt: skip
+    _line(ax, [0.3, xw, xw], [yu, yu, yl - (1.35 if adjacent else 0.0)])
+    _line(ax, [x0, xe, xe], [yl, yl, yl - 0.35])
+    if adjacent:
+        _line(ax, [x0, x0], [yl, yl - 1.35])
+    # snow: balanced strip, drift (cut at the far edge of the lower roof, the rest dashed)
+    _patch(ax, _rect(x0, xe, yl, yb), "snow")
+    if cut:
+        y_cut = yb + dd * (1 - (xe - x0) / ww)
+        _patch(ax, [(x0, yb), (x0, yb + dd), (xe, y_cut), (xe, yb)], "surcharge")
+        _patch(ax, [(xe, yb), (xe, y_cut), (x0 + ww, yb)], "surcharge", dashed=True)
+    else:
+        _patch(ax, [(x0, yb), (x0, yb + dd), (x0 + ww, yb)], "surcharge")
+    # names
+    _text(ax, 0.42, yu - 0.1, "upper roof", ha="left", va="top")
+    # a short lower roof: its name beyond the far edge, clear of the edge's line
+    _text(ax, (xe if cut else x0) + 0.15, yl - 0.1, "lower roof", ha="left", va="top")
+    _text(ax, xe - 0.12, (yl + yb) / 2, "ps", ha="right", style="italic")
+    _text(ax, x0 + 0.12, yb + dd + 0.06, _peak(case), ha="left", va="bottom", style="italic")
+    # heights, in two columns inside the upper structure
+    c1, c2 = xw - 0.32, xw - 1.08
+    for y in (yb, yb + dd):
+        _ext(ax, c2 if y == yb else c1, x0, y)
+    if case.get("hb"):
+        _vdim(ax, c1, yl, yb, "hb")
+        _ext(ax, c1, x0, yl)
+    _vdim(ax, c1, yb, yb + dd, "hd")
+    if case.get("hc"):
+        _vdim(ax, c2, yb, yu, "hc")
+    # lengths along the roofs, each in its own lane
+    _hdim(ax, x0, x0 + ww, 0.35, "w")
+    gap = separation(case) if adjacent else None
+    if gap is not None:  # the gap is drawn in any case; its symbol where a step gives s
+        _hdim(ax, xw, x0, 0.35, "s")
+    if cut and not windward:  # (windward, the fetch lu is this same length)
+        _hdim(ax, x0, xe, -0.3, "w roof")
+    if windward:
+        if fetch(case) is not None:
+            _hdim(ax, x0, xe, -0.3, "lu")
+        _wind(ax, 8.9, 7.1, yu + 1.0)
+    else:
+        if fetch(case) is not None:
+            _hdim(ax, 0.3, xw, yu + 0.38, "lu", below=False)
+        _wind(ax, 0.95, 2.7, yu + 1.12)
+    rows = _drift_rows(case, roof_json, "lower roof" if windward else "upper roof")
+    if gap is not None:
+        rows.append((None, "s", "separation", style.length_text(gap)))
+    return rows, []
+
+
+def _draw_parapet(ax, case, roof_json):
+    bal = _psf(case.get("balanced")) or _psf(((roof_json or {}).get("loads") or {}).get("ps"))
+    bb, dd, cc = _depths(case, bal)
+    yl, xp, t = 1.0, 6.9, 0.3
+    yb, yu = yl + bb, yl + bb + cc
+    ww = _drift_width(case, dd, 1.8, 3.6)
+    _patch(ax, _rect(0.4, xp + t, yl - 0.55, yl), "interior")
+    _line(ax, [0.4, xp + t], [yl, yl])
+    _patch(ax, _rect(xp, xp + t, yl, yu), "solid")
+    _patch(ax, _rect(0.4, xp, yl, yb), "snow")
+    _patch(ax, [(xp, yb), (xp, yb + dd), (xp - ww, yb)], "surcharge")
+    _text(ax, xp + t + 0.12, yu + 0.08, "parapet", ha="left", va="bottom")
+    _text(ax, 0.5, yl - 0.1, "roof", ha="left", va="top")
+    _text(ax, 0.55, (yl + yb) / 2, "ps", ha="left", style="italic")
+    _text(ax, xp - 0.12, yb + dd + 0.06, _peak(case), ha="right", va="bottom", style="italic")
+    c1, c2 = xp + t + 0.55, xp + t + 1.35
+    _ext(ax, xp + t, c2, yb)
+    _ext(ax, xp, c1, yb + dd)
+    if case.get("hb"):
+        _vdim(ax, c1, yl, yb, "hb", side="right")
+        _ext(ax, xp + t, c1, yl)
+    _vdim(ax, c1, yb, yb + dd, "hd", side="right")
+    if case.get("hc"):
+        _vdim(ax, c2, yb, yu, "hc", side="right")
+        _ext(ax, xp + t, c2, yu)
+    _hdim(ax, xp - ww, xp, 0.35, "w")
+    if fetch(case) is not None:
+        _hdim(ax, 0.4, xp, -0.3, "lu")
+    _wind(ax, 1.0, 2.8, max(yu, yb + dd) + 0.45)
+    return _drift_rows(case, roof_json, "roof upwind"), []
+
+
+def _draw_projection(ax, case, roof_json):
+    bal = _psf(case.get("balanced")) or _psf(((roof_json or {}).get("loads") or {}).get("ps"))
+    bb, dd, cc = _depths(case, bal)
+    yl, xa, xb = 1.0, 5.6, 7.4
+    yb, yt = yl + bb, yl + bb + cc
+    ww = _drift_width(case, dd, 1.4, 2.05)
+    _patch(ax, _rect(0.4, 9.6, yl - 0.55, yl), "interior")
+    _line(ax, [0.4, 9.6], [yl, yl])
+    _patch(ax, _rect(0.4, xa, yl, yb), "snow")
+    _patch(ax, _rect(xb, 9.6, yl, yb), "snow")
+    _patch(ax, [(xa, yb), (xa, yb + dd), (xa - ww, yb)], "surcharge")
+    _patch(ax, [(xb, yb), (xb, yb + dd), (xb + ww, yb)], "surcharge", dashed=True)
+    _patch(ax, _rect(xa, xb, yl, yt), "interior")  # the unit, hatched along its faces
+    _patch(ax, _rect(xa, xa + 0.16, yl, yt), "solid")
+    _patch(ax, _rect(xb - 0.16, xb, yl, yt), "solid")
+    _line(ax, [xa, xa, xb, xb], [yl, yt, yt, yl], lw=1.6)
+    _text(ax, (xa + xb) / 2, yt + 0.08, "projection", va="bottom")
+    _text(ax, 0.5, yl - 0.1, "roof", ha="left", va="top")
+    _text(ax, 0.55, (yl + yb) / 2, "ps", ha="left", style="italic")
+    _text(ax, xa - 0.12, yb + dd + 0.06, _peak(case), ha="right", va="bottom", style="italic")
+    c1, c2 = xa + 0.42, xa + 1.18
+    _ext(ax, xa, c2, yb)
+    _ext(ax, xa, c1, yb + dd)
+    if case.get("hb"):
+        _vdim(ax, c1, yl, yb, "hb", side="right")
+    _vdim(ax, c1, yb, yb + dd, "hd", side="right")
+    if case.get("hc"):
+        _vdim(ax, c2, yb, yt, "hc", side="right")
+    _hdim(ax, xa - ww, xa, 0.35, "w")
+    if fetch(case) is not None:
+        _hdim(ax, 0.4, xa, -0.3, "lu")
+    _wind(ax, 1.0, 2.8, max(yt, yb + dd) + 0.45)
+    note = "dashed: the same drift on another side, with the wind from that side"
+    return _drift_rows(case, roof_json, "roof upwind"), [note]
+
+
+def _draw_sliding(ax, case, roof_json):
+    bal = _psf(case.get("balanced"))
+    if bal is None:
+        bal = _psf(((roof_json or {}).get("loads") or {}).get("ps")) or 0.0
+    slide = _psf(case.get("load")) or 0.0
+    s = separation(case)
+    apart = s is not None and (_ft(s) or 0.0) > 0
+    k = 2.4 / (bal + slide) if bal + slide > 0 else 1.0
+    hb = _clamp(bal * k, 0.48, 1.3)
+    hs = _clamp(slide * k, 0.5, 1.8)
+    yl, xw = 1.0, 3.2
+    x0 = xw + (0.8 if apart else 0.0)
+    ye = 3.7  # upper eave
+    ext, up_w = _ft(case.get("extent")), 15.0
+    xx = _clamp(3.2 * (ext / up_w if ext else 1.0), 1.6, 3.2)
+    base = yl - (1.35 if apart else 0.0)
+    _patch(ax, [(0.3, 4.9), (xw, ye), (xw, base), (0.3, base)], "interior")
+    _line(ax, [0.3, xw, xw], [4.9, ye, base])
+    _line(ax, [x0, 9.6, 9.6], [yl, yl, yl - 0.35])
+    if apart:
+        _line(ax, [x0, x0], [yl, base])
+    _patch(ax, _rect(x0, 9.6, yl, yl + hb), "snow")
+    _patch(ax, _rect(x0, x0 + xx, yl + hb, yl + hb + hs), "surcharge")
+    # the snow sliding off the upper roof, parallel to it
+    _arrow(ax, 0.9, 5.25, 2.75, 4.42, style_="-|>", colour=_C["wind"], lw=1.4, scale=11)
+    _text(ax, 0.75, 5.48, "snow slides", ha="left", va="bottom", colour=_C["wind"], weight="bold")
+    _text(ax, 0.42, ye - 0.2, "upper roof", ha="left", va="top")
+    _text(ax, x0 + 0.15, yl - 0.1, "lower roof", ha="left", va="top")
+    _text(ax, 9.48, yl + hb / 2, "ps", ha="right", style="italic")
+    _text(ax, x0 + xx / 2, yl + hb + hs + 0.06, "ps + sliding", va="bottom", style="italic")
+    _hdim(ax, x0, x0 + xx, 0.35, "extent")
+    if apart:
+        _hdim(ax, xw, x0, 0.35, "s")
+    rows = [
+        ("snow", "ps", "balanced snow load", _load(case.get("balanced"))),
+        ("surcharge", "sliding", "sliding load, uniform", _load(case.get("load"))),
+        (None, "ps + sliding", "total on the extent", _load(case.get("total"))),
+        (None, "line load", "per length of eave", style.quantity_text(case.get("line_load"))),
+        (None, "extent", "on the lower roof, from its edge", style.length_text(case.get("extent"))),
+    ]  # fmt: skip
+    if apart:
+        rows.append((None, "s", "separation", style.length_text(s)))
+    return [r for r in rows if not r[3].startswith("none")], []
+
+
+def _draw_unbalanced(ax, case, roof_json):
+    desc = (roof_json or {}).get("roof") or {}
+    ww, lw, sc = (_psf(case.get(k)) or 0.0 for k in ("windward", "leeward", "surcharge"))
+    ext = _ft(case.get("surcharge_extent")) or 0.0
+    w_roof = _ft(desc.get("eave_to_ridge"))
+    xl, xr, xe = 0.6, 5.0, 9.4
+    slope = fmt._finite(desc.get("slope_deg"))
+    rise = _clamp((xr - xl) * math.tan(math.radians(slope)), 0.45, 2.0) if slope else 1.2
+    yr, y0 = 1.0 + rise, 3.7
+    k = 2.3 / max(ww, lw + sc, 1e-9)
+    hw = _clamp(ww * k, 0.3, 2.3) if ww > 0 else 0.0
+    hl = _clamp(lw * k, 0.5, 2.3)
+    hs = _clamp(sc * k, 0.45, 2.3) if sc > 0 and ext > 0 else 0.0
+    if hl + hs > 2.4:
+        hl = max(2.4 - hs, 0.5)
+    xx = _clamp((xe - xr) * (ext / w_roof if w_roof else 0.4), 1.3, 2.8) if hs else 0.0
+    _patch(ax, [(xl, 1.0), (xr, yr), (xe, 1.0), (xe, 0.25), (xl, 0.25)], "interior")
+    _line(ax, [xl, xl, xr, xe, xe], [0.25, 1.0, yr, 1.0, 0.25])
+    _line(ax, [xr, xr], [1.0, y0], lw=0.7, colour=_C["muted"], ls=(0, (4, 2)))
+    _text(ax, xr, 0.92, "ridge", va="top", colour=_C["muted"])
+    if hw:
+        _patch(ax, _rect(xl, xr, y0, y0 + hw), "snow")
+    else:
+        _line(ax, [xl, xr], [y0, y0], lw=0.9, colour=_C["snow_edge"], ls=(0, (3, 2)))
+    _patch(ax, _rect(xr, xe, y0, y0 + hl), "snow")
+    _text(ax, (xl + xr) / 2, y0 + hw + 0.06, "windward", va="bottom")
+    _text(ax, (xr + xx + xe) / 2, y0 + hl + 0.06, "leeward", va="bottom")
+    if hs:
+        _patch(ax, _rect(xr, xr + xx, y0 + hl, y0 + hl + hs), "surcharge")
+        _text(ax, xr + xx / 2, y0 + hl + hs + 0.06, "surcharge", va="bottom")
+        _hdim(ax, xr, xr + xx, y0 - 0.3, "extent")
+    _wind(ax, 1.05, 2.75, y0 - 0.55)
+    if w_roof:
+        _hdim(ax, xr, xe, 0.0, "W")
+    rows = [
+        ("snow", "windward", "windward side", _load(case.get("windward"))),
+        ("snow", "leeward", "leeward side", _load(case.get("leeward"))),
+    ]
+    if hs:
+        rows.append(
+            ("surcharge", "surcharge", "by the ridge, leeward", _load(case.get("surcharge")))
         )
-    return bal + pd
+    if hs:
+        rows.append((None, "peak", "leeward + surcharge", _load(case.get("leeward_peak"))))
+    if hs:
+        rows.append(
+            (
+                None,
+                "extent",
+                "surcharge, from ridge",
+                style.length_text(case.get("surcharge_extent")),
+            )
+        )
+    if w_roof:
+        rows.append((None, "W", "eave to ridge", style.length_text(desc.get("eave_to_ridge"))))
+    lu = fetch(case)
+    if lu is not None:
+        rows.append((None, "lu", "fetch of the surcharge", style.length_text(lu)))
+    if slope is not None:
+        rows.append((None, "slope", "roof slope", fmt.pitch_text(slope)))
+    return [r for r in rows if not r[3].startswith("none")], []
 
 
-def _sliding(ax, case, scale, balanced, roof_loads=None):
-    load = _psf(case.get("load") or case.get("surcharge") or case.get("ps")) or 0.0
-    bal = balanced or 0.0
-    ax.plot([-2.0, 0, 0, 8], [2.2, 0.9, -0.05, -0.05], color=_ROOF, lw=2.5)
-    _block(ax, 0, 8, 0, bal * scale)
-    _block(ax, 0, 2.2, bal * scale, load * scale, colour=_SURCHARGE)
-    ext = case.get("extent") or case.get("width") or case.get("w")
-    ax.text(2.35, (bal + load * 0.5) * scale, f"sliding {_load(case.get('load') or case.get('surcharge'))}",
-            va="center", fontsize=8)  # fmt: skip
-    if isinstance(ext, dict):
-        _dim(ax, 0, 2.2, -0.2, style.length_text(ext))
-    if bal:
-        ax.text(5.5, bal * scale * 0.5, f"balanced\n{_load((roof_loads or {}).get('ps'))}",
-                ha="center", va="center", fontsize=8)  # fmt: skip
-    return bal + load
+def _draw_ice_dam(ax, case, roof_json):
+    x_top, y_top, xw, xt = 0.4, 4.5, 6.0, 8.4
+    slope = (y_top - 1.6) / (xt - x_top)
+
+    def roof_y(x):
+        return y_top - slope * (x - x_top)
+
+    yw = roof_y(xw)
+    _patch(ax, [(x_top, y_top), (xw, yw), (xw, -0.25), (x_top, -0.25)], "interior")
+    _line(ax, [x_top, xt, xt], [y_top, roof_y(xt), roof_y(xt) - 0.18])
+    _line(ax, [xw, xw], [yw, -0.25])
+    # ice along the eave and icicles under its edge
+    xi = 7.1
+    _patch(ax, [(xi, roof_y(xi)), (xt, roof_y(xt)), (xt, roof_y(xt) + 0.3),
+                (xi + 0.35, roof_y(xi) + 0.22)], "ice")  # fmt: skip
+    for x in (7.55, 7.9, 8.25):
+        y = roof_y(x) - 0.05
+        _patch(ax, [(x - 0.07, y), (x + 0.07, y), (x, y - 0.42)], "ice")
+    y0, h = 4.5, 0.85
+    _patch(ax, _rect(xw, xt, y0, y0 + h), "surcharge")
+    for x in (xw, xt):
+        _line(ax, [x, x], [roof_y(x) + (0.35 if x == xt else 0.05), y0], lw=0.5,
+              colour=_C["dimension"], ls=(0, (1, 1.5)))  # fmt: skip
+    _text(ax, (xw + xt) / 2, y0 + h + 0.06, "eave load", va="bottom", style="italic")
+    _text(ax, xt + 0.14, roof_y(xt) + 0.05, "eave", ha="left")
+    _text(ax, 7.75, roof_y(7.75) + 0.45, "ice dam", va="bottom", colour=_C["ice_edge"])
+    _text(ax, xw - 0.1, 0.0, "exterior wall", ha="right", va="bottom")
+    _text(ax, 2.2, roof_y(2.2) + 0.12, "roof", va="bottom")
+    _hdim(ax, xw, xt, 0.75, "overhang")
+    rows = [
+        ("surcharge", "eave load", "uniform, on the overhang", _load(case.get("load"))),
+        (None, "overhang", "eave width beyond the wall", style.length_text(case.get("overhang"))),
+        (None, "pf", "flat roof snow load", _load(((roof_json or {}).get("loads") or {}).get("pf"))),
+    ]  # fmt: skip
+    combined = str(case.get("not_combined_with") or "")
+    notes = [f"not combined with: {combined}"] if combined else []
+    return [r for r in rows if not r[3].startswith("none")], notes
+
+
+_DRAW = {
+    "step": _draw_step,
+    "adjacent": lambda ax, case, roof: _draw_step(ax, case, roof, adjacent=True),
+    "parapet": _draw_parapet,
+    "projection": _draw_projection,
+    "sliding": _draw_sliding,
+    "unbalanced": _draw_unbalanced,
+    "ice_dam": _draw_ice_dam,
+}
+
+
+# layout: the title, the table and the notes fitted to the figure -----------
+
+
+def _fit_title(fig, renderer, text: str):
+    """The title, wrapped to at most two lines that fit the figure's width."""
+    limit = fig.bbox.width * 0.985
+    t = fig.text(0.008, 0.985, "", ha="left", va="top", fontsize=_FS_TITLE, weight="bold",
+                 color=_C["text"])  # fmt: skip
+    for width in range(110, 19, -6):
+        t.set_text(textwrap.fill(text, width, max_lines=2, placeholder=" \u2026"))
+        if t.get_window_extent(renderer).x1 <= limit:
+            break
+    return t
+
+
+def _table(fig, renderer, rows, size):
+    """The rows beside the sketch: swatch, symbol, description, value (right-aligned)."""
+    from matplotlib.lines import Line2D
+    from matplotlib.patches import Rectangle
+
+    left, right, top = _TABLE
+    row_h = size * 1.62 / 72 / fig.get_figheight()
+    sw = size * 0.9 / 72 / fig.get_figwidth()
+    made = []
+    syms = []
+    for i, (swatch, sym, _, _) in enumerate(rows):
+        y = top - (i + 0.5) * row_h
+        if swatch:
+            made.append(fig.add_artist(Rectangle(
+                (left, y - sw * fig.get_figwidth() / fig.get_figheight() / 2), sw,
+                sw * fig.get_figwidth() / fig.get_figheight(), transform=fig.transFigure,
+                facecolor=_C[swatch], edgecolor=_C[f"{swatch}_edge"], lw=0.6,
+                hatch=_H.get(swatch))))  # fmt: skip
+        syms.append(fig.text(left + sw * 1.6, y, sym, ha="left", va="center", fontsize=size,
+                             style="italic", color=_C["text"]))  # fmt: skip
+        made.append(fig.add_artist(Line2D([left, right], [y - row_h / 2] * 2, lw=0.4,
+                                          color=_C["rule"], transform=fig.transFigure)))  # fmt: skip
+    inv = fig.transFigure.inverted()
+    sym_right = max((inv.transform((s.get_window_extent(renderer).x1, 0))[0] for s in syms),
+                    default=left)  # fmt: skip
+    texts = list(syms)
+    for i, (_, _, what, value) in enumerate(rows):
+        y = top - (i + 0.5) * row_h
+        texts.append(fig.text(sym_right + 0.012, y, what, ha="left", va="center", fontsize=size,
+                              color=_C["muted"]))  # fmt: skip
+        texts.append(fig.text(right, y, value, ha="right", va="center", fontsize=size,
+                              color=_C["text"]))  # fmt: skip
+    return texts + made, top - len(rows) * row_h
+
+
+def _table_fits(renderer, texts, n_rows, bottom, fig) -> bool:
+    if bottom < 0.07:
+        return False
+    sym, rest = texts[:n_rows], texts[n_rows:]
+    for i in range(n_rows):
+        what, value = rest[2 * i], rest[2 * i + 1]
+        a, b = what.get_window_extent(renderer), value.get_window_extent(renderer)
+        if a.x1 + 4 > b.x0 or sym[i].get_window_extent(renderer).x1 > a.x0:
+            return False
+    return True
+
+
+@style.plain_figure_text
+def case_figure(case: dict, roof_json: dict | None = None):
+    """The load diagram of one case, as a matplotlib Figure (not saved, not closed).
+
+    Parameters
+    ----------
+    case : dict
+        One case of the ``neve roof`` JSON (``cases[i]``), of a kind in
+        :data:`DIAGRAM_CASES`.
+    roof_json : dict, optional
+        The whole ``neve roof`` JSON object, for the roof's loads (``ps``,
+        ``pf``) and description (``eave_to_ridge``, ``slope_deg``).
+
+    Returns
+    -------
+    matplotlib.figure.Figure or None
+        None for a case that has no diagram.
+    """
+    import matplotlib
+
+    matplotlib.use("Agg", force=True)
+    from matplotlib.figure import Figure
+
+    kind = diagram_kind(case)
+    if kind is None:
+        return None
+    with matplotlib.rc_context({"hatch.linewidth": 0.45, "font.family": "DejaVu Sans"}):
+        fig = Figure(figsize=_FIG_IN, dpi=_DPI)
+        from matplotlib.backends.backend_agg import FigureCanvasAgg
+
+        FigureCanvasAgg(fig)
+        renderer = fig.canvas.get_renderer()
+        ax = fig.add_axes(_SKETCH)
+        ax.set_xlim(*_XLIM)
+        ax.set_ylim(*_YLIM)
+        ax.axis("off")
+        rows, notes = _DRAW[kind](ax, case, roof_json)
+        name = str(case.get("name") or case.get("case"))
+        _fit_title(fig, renderer, f"{DIAGRAM_KINDS[kind]}: {name}")
+        for size in (_FS_TABLE, 7.0, 6.5, 6.0, 5.5, 5.0):
+            made, bottom = _table(fig, renderer, rows, size)
+            if _table_fits(renderer, made, len(rows), bottom, fig) or size == 5.0:
+                break
+            for artist in made:
+                artist.remove()
+        for j, note in enumerate([NOTE, *notes]):
+            fig.text(0.008, 0.012 + 0.036 * (len(notes) - j), note, ha="left", va="bottom",
+                     fontsize=_FS_NOTE, color=_C["muted"])  # fmt: skip
+        fig.canvas.draw()
+    return fig
 
 
 def _slug(text: str) -> str:
@@ -156,7 +678,7 @@ def _slug(text: str) -> str:
 def write_case_diagrams(
     roof_json: dict | None, outdir: str | os.PathLike, *, overwrite: bool = False
 ) -> dict[str, Path]:
-    """Draw a PNG load diagram for each unbalanced, drift and sliding case.
+    """Draw a PNG load diagram for each case of a kind in :data:`DIAGRAM_CASES`.
 
     Parameters
     ----------
@@ -175,51 +697,18 @@ def write_case_diagrams(
     """
     import io
 
-    import matplotlib
-
-    matplotlib.use("Agg", force=True)
-    import matplotlib.pyplot as plt
-
     out: dict[str, Path] = {}
     if not roof_json:
         return out
     folder = Path(outdir)
-    balanced = _psf((roof_json.get("loads") or {}).get("ps"))
     for i, case in enumerate(roof_json.get("cases") or []):
-        kind = str(case.get("case", ""))
-        if kind not in DIAGRAM_CASES:
+        fig = case_figure(case, roof_json)
+        if fig is None:
             continue
-        peak = max(
-            [_psf(case.get(k)) or 0.0 for k in ("windward", "leeward", "pd", "load")]
-            + [(_psf(case.get("leeward")) or 0.0) + (_psf(case.get("surcharge")) or 0.0)]
-            + [(balanced or 0.0) + (_psf(case.get("pd")) or _psf(case.get("load")) or 0.0)]
-        )
-        scale = 2.2 / peak if peak > 0 else 1.0
-        fig, ax = plt.subplots(figsize=(7.2, 3.3), dpi=150)
-        if kind == "unbalanced":
-            _unbalanced(ax, case, scale)
-        elif kind == "drift":
-            _drift(ax, case, scale, balanced, roof_json.get("loads"))
-        else:
-            _sliding(ax, case, scale, balanced, roof_json.get("loads"))
-        name = str(case.get("name") or kind)
-        title = textwrap.fill(f"{kind}: {name}", 100, max_lines=2, placeholder=" \u2026")
-        ax.set_title(title, fontsize=10, loc="left")
-        ax.set_xlim(-2.2, 8.6)
-        ax.set_ylim(-2.0, 3.0)
-        ax.set_aspect("auto")
-        ax.axis("off")
-        fig.text(
-            0.01,
-            0.01,
-            "schematic; lengths not to scale; loads in psf (kPa)",
-            fontsize=7,
-            color="#555",
-        )
-        fig.tight_layout()
         buf = io.BytesIO()
-        fig.savefig(buf, format="png")
-        plt.close(fig)
+        fig.savefig(buf, format="png", dpi=_DPI)
+        kind = str(case.get("case", ""))
+        name = str(case.get("name") or kind)
         key = name if name not in out else f"{name} ({i})"
         out[key] = write_bytes(
             folder / f"diagram_{i:02d}_{_slug(kind + '_' + name)}.png", buf.getvalue(),

@@ -8,6 +8,7 @@ apply (polar sites).
 
 from __future__ import annotations
 
+import functools
 import math
 
 from neve.engine.errors import InputError, LayerError
@@ -37,6 +38,8 @@ def site_lat_lon(site_json: dict) -> tuple[float, float]:
 def local_crs(lat: float, lon: float):
     """A projected CRS in metres for a site: its UTM zone, or local azimuthal equidistant.
 
+    Looked up once per site (pyproj's database query is slow): see :func:`_local_crs`.
+
     Parameters
     ----------
     lat, lon : float
@@ -46,6 +49,11 @@ def local_crs(lat: float, lon: float):
     -------
     pyproj.CRS
     """
+    return _local_crs(float(lat), float(lon))
+
+
+@functools.lru_cache(maxsize=64)
+def _local_crs(lat: float, lon: float):
     from pyproj import CRS
     from pyproj.aoi import AreaOfInterest
     from pyproj.database import query_utm_crs_info

@@ -62,6 +62,7 @@ def write_layer_map(
     tiles: str = "none",
     self_contained: bool = True,
     overwrite: bool = False,
+    basemap=None,
 ) -> Path:
     """Write a review map of one zone layer.
 
@@ -82,12 +83,17 @@ def write_layer_map(
         default); ``False`` links them from the internet (``--cdn``).
     overwrite : bool
         Replace an existing file (otherwise an ``InputError``, before any work).
+    basemap : str or neve.maps.basemap.Basemap, optional
+        What lies under the zones (:mod:`neve.maps.basemap`); by default the
+        demo basemap for a demo layer, otherwise none.
 
     Returns
     -------
     pathlib.Path
     """
     import folium
+
+    from neve.maps.basemap import as_basemap, fit_zoom
 
     out = leaflet.check_path(path, "map", overwrite=overwrite)
     probs = _check_problems(problems)
@@ -101,8 +107,11 @@ def write_layer_map(
         lat, lon = (miny + maxy) / 2, (minx + maxx) / 2
     else:
         lat, lon, minx, miny, maxx, maxy = 0.0, 0.0, -1, -1, 1, 1
-    m = leaflet.new_map(lat, lon, tiles, zoom=8)
-    m.fit_bounds([[miny, minx], [maxy, maxx]])
+    base = as_basemap(basemap, tiles=tiles, demo_data=demo, views=[view])
+    m = leaflet.new_map(lat, lon, base, zoom=8)
+    bounds = [[miny, minx], [maxy, maxx]]
+    m.fit_bounds(bounds)
+    leaflet.add_basemap(m, base, bounds, fit_zoom(bounds))
     leaflet.add_defs(m, demo=demo)
 
     draw = zones
@@ -132,6 +141,7 @@ def write_layer_map(
         label=len(zones) <= MAX_LABELS,
         max_labels=MAX_LABELS,
         extra_tips=tips,
+        see_through=base.drawn,
     )
     group.add_to(m)
 

@@ -51,11 +51,20 @@ def tiles_choice(tiles: str) -> str:
     return choose_key("tiles", tiles, TILES)
 
 
-def new_map(lat: float, lon: float, tiles: str = "none", zoom: int = 12):
-    """A folium map centred on ``(lat, lon)`` with a metric/imperial scale bar."""
+def new_map(lat: float, lon: float, tiles="none", zoom: int = 12):
+    """A folium map centred on ``(lat, lon)`` with a metric/imperial scale bar.
+
+    ``tiles`` is ``none`` or ``osm`` (the older choice) or a resolved
+    :class:`neve.maps.basemap.Basemap`; a basemap is added by :func:`add_basemap`.
+    """
     import folium
 
-    key = tiles_choice(tiles)
+    from neve.maps.basemap import Basemap
+
+    if isinstance(tiles, Basemap):
+        key = "none"
+    else:
+        key = tiles_choice(tiles)
     m = folium.Map(
         location=[lat, lon],
         zoom_start=zoom,
@@ -111,6 +120,74 @@ class SafeText:
         return _safe_text_class()(text, tooltip, popup)
 
 
+@functools.cache
+def _embedded_tiles_class():
+    from folium.template import Template
+
+    class EmbeddedTiles(data_macro()):
+        """A Leaflet tile layer whose tiles are ``data:`` URIs carried in the page (as data)."""
+
+        _template = Template(
+            """{% macro script(this, kwargs) %}
+            var {{ this.get_name() }} = (function () {
+                var tiles = {{ this.tiles|tojson }};
+                var blank = {{ this.blank|tojson }};
+                var Layer = L.TileLayer.extend({
+                    getTileUrl: function (c) {
+                        var key = this._getZoomForUrl() + '/' + c.x + '/' + c.y;
+                        return Object.prototype.hasOwnProperty.call(tiles, key) ? tiles[key] : blank;
+                    }
+                });
+                return new Layer('', {{ this.options|tojson }});
+            })().addTo({{ this._parent.get_name() }});
+            {% endmacro %}"""
+        )
+
+        def __init__(self, tiles: dict, options: dict, blank: str):
+            super().__init__()
+            self._name = "EmbeddedTiles"
+            self.tiles = tiles
+            self.options = options
+            self.blank = blank
+
+    return EmbeddedTiles
+
+
+def add_basemap(m, basemap, bounds, view_zoom: int) -> None:
+    """Add ``basemap`` under the zones of ``m``; ``bounds`` ``[[s, w], [n, e]]`` is what opens.
+
+    A URL basemap is a plain tile layer (the browser loads it); an MBTiles
+    basemap embeds its tiles (:func:`neve.maps.basemap.embedded_tiles`): a
+    coarse layer over the file's whole extent and a detailed one over
+    ``bounds``.  Attribution text is escaped: Leaflet shows it as HTML.
+    """
+    import folium
+
+    from neve.maps import basemap as bm
+
+    if basemap is None or not basemap.drawn or not bm.covers(basemap, bounds):
+        return  # an MBTiles file of another place adds nothing (not even its attribution)
+    attribution = style.esc(basemap.attribution)
+    if basemap.kind == "url":
+        data_macro(folium.TileLayer)(
+            tiles=basemap.url, attr=attribution, name=layer_label(basemap.label),
+            max_zoom=19, control=False, overlay=False,
+        ).add_to(m)  # fmt: skip
+        return
+    for tiles, low, top in bm.embedded_tiles(basemap, bounds, view_zoom):
+        options = {
+            "minZoom": 1,
+            "maxZoom": 19,
+            "minNativeZoom": low,
+            "maxNativeZoom": top,
+            "attribution": attribution,
+            "tileSize": 256,
+            "className": "neve-basemap",
+        }
+        attribution = ""  # said once
+        _embedded_tiles_class()(tiles, options, bm.BLANK_TILE).add_to(m)
+
+
 def layer_label(text: object) -> str:
     """A layer switcher name: Leaflet inserts it with ``innerHTML``, so it is escaped."""
     return style.esc(text)
@@ -123,8 +200,19 @@ def add_layer_control(m, **options) -> None:
     data_macro(folium.LayerControl)(**options).add_to(m)
 
 
-def zone_style(row, classes: list[dict], *, governing: bool = False, problem: bool = False) -> dict:
-    """Leaflet path style of one zone row (value colour, hatch, elevation or none)."""
+#: fill opacity of a zone over a basemap, relative to a plain background
+SEE_THROUGH = 0.62
+
+
+def zone_style(
+    row, classes: list[dict], *, governing: bool = False, problem: bool = False,
+    see_through: bool = False,
+) -> dict:
+    """Leaflet path style of one zone row (value colour, hatch, elevation or none).
+
+    ``see_through``: a basemap lies under the zones, so their fills are lighter
+    (:data:`SEE_THROUGH`) and the coast, roads and towns show through.
+    """
     rule = str(row.get("rule", ""))
     study = bool(row.get("study", False)) or rule == "study"
     colour = style.colour_for(row.get("pg"), classes)
@@ -148,6 +236,8 @@ def zone_style(row, classes: list[dict], *, governing: bool = False, problem: bo
         }
     else:
         s = {"fillColor": style.NO_VALUE_COLOUR, "fillOpacity": 0.6, "color": "#666", "weight": 1}
+    if see_through and not study:
+        s["fillOpacity"] = round(s["fillOpacity"] * SEE_THROUGH, 3)
     if problem:
         s.update({"color": style.PROBLEM_COLOUR, "weight": 3.0, "dashArray": None})
     if governing:
@@ -155,20 +245,42 @@ def zone_style(row, classes: list[dict], *, governing: bool = False, problem: bo
     return s
 
 
+def _finite_or_none(x) -> float | None:
+    try:
+        v = float(x)
+    except (TypeError, ValueError):
+        return None
+    return v if math.isfinite(v) else None
+
+
 def zone_value_text(row, units: str) -> str:
-    """Short label of a zone's value: ``35 psf``, ``study``, ``by elevation``."""
+    """Short label of a zone's value or rule: ``35 psf``, ``study``, ``30–120 psf by elevation``."""
     rule = str(row.get("rule", ""))
     if bool(row.get("study", False)) or rule == "study":
         return "study"
-    pg = row.get("pg")
-    try:
-        if pg is not None and math.isfinite(float(pg)):
-            return f"{style.num(pg, 2)} {units}"
-    except (TypeError, ValueError):
-        pass
+    pg = _finite_or_none(row.get("pg"))
+    if pg is not None:
+        return f"{style.num(pg, 2)} {units}"
     if rule in ("elevation_table", "formula"):
+        lo, hi = _finite_or_none(row.get("pg_lo")), _finite_or_none(row.get("pg_hi"))
+        if lo is not None and hi is not None and hi > lo:
+            return f"{style.num(lo, 2)}\u2013{style.num(hi, 2)} {units} by elevation"
+        if lo is not None:
+            return f"\u2265 {style.num(lo, 2)} {units} by elevation"
         return "by elevation"
     return "no value"
+
+
+def zone_label_text(row, units: str) -> str:
+    """A zone's label on a map: its id and value or rule (``SK-H · 30–120 psf by elevation``)."""
+    zid = str(row.get("zone_id", ""))
+    zid = zid if len(zid) <= LABEL_ID_CHARS else zid[: LABEL_ID_CHARS - 1] + "\u2026"
+    text = zone_value_text(row, units)
+    return f"{zid} \u00b7 {text}" if zid else text
+
+
+#: longest zone id written in a label [characters]; tooltips and the report give it whole
+LABEL_ID_CHARS = 24
 
 
 def zone_tip(row, units: str, extra: str = "") -> str:
@@ -206,12 +318,16 @@ def add_zones(
     label_window=None,
     max_labels: int = 120,
     avoid: tuple[float, float, float] | None = None,
+    see_through: bool = False,
+    colour_key: str = "pg",
 ) -> None:
     """Add zone polygons (and value labels) to a folium map or feature group.
 
     ``label_window`` (a shapely polygon in EPSG:4326) keeps the labels inside
     the part of the map that opens on screen; ``avoid`` = (lat, lon, gap)
-    [degrees] moves a label that would sit under the site marker.
+    [degrees] moves a label that would sit under the site marker;
+    ``colour_key`` is the column the ``classes`` colour (``pg_psf`` on the
+    portfolio map, whose bands are in psf whatever the layer's units).
     """
     import folium
 
@@ -222,7 +338,10 @@ def add_zones(
         zid = str(row["zone_id"])
         rowd = row.to_dict()
         props = {
-            "neve_style": zone_style(rowd, classes, governing=zid in gov, problem=zid in bad),
+            "neve_style": zone_style(
+                {**rowd, "pg": rowd.get(colour_key)}, classes, governing=zid in gov,
+                problem=zid in bad, see_through=see_through,
+            ),
             "neve_tip": zone_tip(rowd, units, (extra_tips or {}).get(zid, "")),
             "zone_id": zid,
         }
@@ -259,7 +378,7 @@ def add_zones(
 
                     moved = Point(a_lon, a_lat - 2.0 * gap)
                     pt = moved if geom.contains(moved) else pt
-            text = zone_value_text(row.to_dict(), units)
+            text = zone_label_text(row.to_dict(), units)
             folium.Marker(
                 [pt.y, pt.x],
                 icon=data_macro(folium.DivIcon)(
@@ -346,19 +465,18 @@ def refit_on_load(m, bounds) -> None:
     A map inside an ``iframe`` (the calculation package embeds the site map
     that way) can run its scripts before the frame has its size; Leaflet then
     keeps a zero size and draws every zone as a point.  This re-fits on
-    ``load`` and on ``resize``.
+    ``load`` and on ``resize``, with padding so that the summary panel (on
+    the right) never covers what is fitted: the site and its governing zone.
     """
     name = m.get_name()
     js = (
         "<script>(function(){var b=" + json.dumps(bounds) + ";"
-        "function refit(){if(typeof "
-        + name
-        + "==='undefined'){return;}"
-        + name
-        + ".invalidateSize(false);"
-        + name
-        + ".fitBounds(b);}"
+        "function refit(){if(typeof " + name + "==='undefined'){return;}"
+        "var p=document.getElementById('neve-summary');"
+        "var w=(p&&p.offsetWidth<0.6*window.innerWidth)?p.offsetWidth+20:0;"
+        + name + ".invalidateSize(false);"
+        + name + ".fitBounds(b,{paddingTopLeft:[20,20],paddingBottomRight:[w,20]});}"
         "window.addEventListener('load',refit);"
         "window.addEventListener('resize',refit);})();</script>"
-    )
+    )  # fmt: skip
     m.get_root().html.add_child(fixed_html(js), name="neve_refit")

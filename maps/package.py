@@ -19,6 +19,7 @@ from pathlib import Path
 
 from neve.engine import format as fmt
 from neve.engine.format import is_quantity
+from neve.engine.roof_text import NOT_APPLICABLE, not_applicable, step_value_text
 from neve.maps import assets, style
 from neve.maps.diagrams import write_case_diagrams
 from neve.maps.site_map import cautions_of, is_demo, summary_context, write_site_map
@@ -53,14 +54,15 @@ def _load_text(load) -> str:
 
 
 def _rain_on_snow_text(load) -> str:
-    """The one statement of the rain-on-snow surcharge, in the summary and in the cases.
+    """The rain-on-snow surcharge where it applies; "not applicable" (never with a zero) where not.
 
-    Missing (the provision does not apply) and zero read the same, so that the
-    summary never says "not applicable" above a case that says "0 psf".
+    Where it does not apply the summary says so once; the cases leave out the
+    zero the engine holds there (:func:`neve.engine.roof_text.not_applicable`)
+    and its step reads "not applicable" beside the conditions it checked.
     """
     psf = fmt._finite((load or {}).get("psf")) if isinstance(load, dict) else None
     if not psf:
-        return "not applicable: no surcharge added (0.0 psf)"
+        return NOT_APPLICABLE
     return _load_text(load)
 
 
@@ -83,23 +85,32 @@ def _value_text(value, key: str = "") -> str:
     return "" if value is None else str(value)
 
 
-def _steps(steps) -> list[dict]:
-    """Calculation steps with their values to three significant figures (engineering rounding)."""
+def _steps(steps, absent=()) -> list[dict]:
+    """Calculation steps with their values to three significant figures (engineering rounding).
+
+    ``absent``: symbols of the steps of loads that do not apply (their value reads
+    "not applicable", never 0).
+    """
     out = []
     for st in steps or []:
         row = dict(st)
         if isinstance(row.get("value"), (int, float)) and not isinstance(row["value"], bool):
-            row["value"] = fmt.significant(row["value"])
+            row["value"] = step_value_text(row, absent)
+            if row["value"] == NOT_APPLICABLE:  # words, not a number: a cell that wraps
+                row["unit"], row["applies"] = "-", False
         out.append(row)
     return out
 
 
 def _cases(roof: dict | None, diagrams: dict[str, Path]) -> list[dict]:
     out = []
+    absent = not_applicable(roof or {})
     for i, case in enumerate((roof or {}).get("cases") or []):
         name = str(case.get("name") or case.get("case") or f"case {i + 1}")
         values = [
-            (k.replace("_", " "), _value_text(v, k)) for k, v in case.items() if k not in _CASE_META
+            (k.replace("_", " "), _value_text(v, k))
+            for k, v in case.items()
+            if k not in _CASE_META and k not in absent
         ]
         values = [(k, v) for k, v in values if v != ""]
         diag = diagrams.get(name) or diagrams.get(f"{name} ({i})")
@@ -108,11 +119,20 @@ def _cases(roof: dict | None, diagrams: dict[str, Path]) -> list[dict]:
                 "kind": str(case.get("case") or "case"),
                 "name": name,
                 "values": values,
-                "steps": _steps(case.get("steps")),
+                "steps": _steps(case.get("steps"), absent.values()),
                 "diagram": _data_uri(diag) if diag else None,
             }
         )
     return out
+
+
+def _ground_context(data: dict) -> dict:
+    """The site map's ground summary, its pg as every load of the package: ``30.0 psf (1.44 kPa)``."""
+    g = summary_context(data)
+    pg = (data.get("ground") or {}).get("pg")
+    if pg:
+        g["pg"] = _load_text(pg)
+    return g
 
 
 def _factors(roof: dict | None) -> list[dict]:
@@ -149,14 +169,37 @@ _ROOF_LABELS = {
 }
 
 
-def _roof_rows(roof: dict | None) -> list[tuple[str, str]]:
-    """The roof description (``roof_json["roof"]``) as label/value rows, generically."""
+def _inputs(inputs: dict | None, views) -> dict:
+    """The inputs echoed in the report: command, ROOF.toml, layers (names and SHA-256)."""
+    given = inputs or {}
+    roof_file = given.get("roof_file")
+    layers = [
+        {"name": str(v.get("name") or "layer"), "sha256": str(v.get("sha256") or "")}
+        for v in views or []
+    ]
+    return {
+        "command": strip_machine_paths(str(given.get("command") or "")),
+        "roof_name": _file_name(roof_file[0]) if roof_file else "",
+        "roof_text": str(roof_file[1]) if roof_file else "",
+        "layers": layers,
+    }
+
+
+def _roof_rows(roof: dict | None, pitch: bool | None = None) -> list[tuple[str, str]]:
+    """The roof description (``roof_json["roof"]``) as label/value rows, generically.
+
+    ``pitch``: the slope as ``6:12 (26.6°)`` (given as a rise:run; also when not
+    known, None) or, False, as its angle ``26.6°``.
+    """
     desc = (roof or {}).get("roof") or {}
     rows = []
     for key, value in desc.items():
         if value is None or value == "" or key == "name":
             continue
-        text = fmt.pitch_text(value) if key == "slope_deg" else _value_text(value, key)
+        if key == "slope_deg":
+            text = fmt.slope_text(value, pitch=pitch is not False)
+        else:
+            text = _value_text(value, key)
         rows.append((_ROOF_LABELS.get(key, key.replace("_", " ")), text))
     return rows
 
@@ -173,6 +216,7 @@ def _summary(roof: dict | None) -> list[dict]:
         return standard.provision(key) if standard is not None else ""
 
     loads = roof.get("loads") or {}
+    absent = not_applicable(roof)
     rows = []
     labels = {
         "pf": "Flat roof snow load pf",
@@ -193,7 +237,7 @@ def _summary(roof: dict | None) -> list[dict]:
         vals = [
             f"{k.replace('_', ' ')} {_value_text(v, k)}"
             for k, v in case.items()
-            if k not in _CASE_META and isinstance(v, dict) and ("psf" in v)
+            if k not in _CASE_META and k not in absent and isinstance(v, dict) and ("psf" in v)
         ]
         ref = (standard.case_ref(case) if standard is not None else "") or (
             f"{std} {case.get('case') or ''}"
@@ -332,6 +376,9 @@ def write_package(
     overwrite: bool = False,
     comparison: dict | None = None,
     title_block: dict | None = None,
+    basemap=None,
+    slope_pitch: bool | None = None,
+    inputs: dict | None = None,
 ) -> dict[str, Path]:
     """Write the calculation package folder.
 
@@ -355,6 +402,18 @@ def write_package(
         ``job``, ``prepared_by``, ``checked_by``, ``revision`` (text; missing
         ones are shown as empty fields) of the title block at the foot of every
         page, beside the project, site, date, sheet n of N and an empty seal box.
+    basemap : str or neve.maps.basemap.Basemap, optional
+        What lies under the zones of the site map and the static map
+        (:mod:`neve.maps.basemap`; the static map draws offline basemaps only);
+        by default the demo basemap for demo data, otherwise none.
+    inputs : dict, optional
+        What was asked, echoed in the report's design criteria: ``command`` (the
+        command line, paths already cut to file names) and ``roof_file``
+        (``(file name, text)`` of the ROOF.toml, or None). The layers used are
+        listed from ``views`` with their SHA-256.
+    slope_pitch : bool, optional
+        The roof slope was given as a rise:run: shown as ``6:12 (26.6°)``; False:
+        as its angle, ``26.6°``; None (not known): as the pitch with its angle.
 
     Returns
     -------
@@ -386,8 +445,15 @@ def write_package(
         files["site_json"] = safe_write.write_text(
             tmp / "site.json", json.dumps(data, indent=2, ensure_ascii=False) + "\n"
         )
-        files["site_map"] = write_site_map(data, views, tmp / "site_map.html", self_contained=True)
-        png, svg = write_static_map(data, views, tmp / "static_map.png", tmp / "static_map.svg")
+        from neve.maps.basemap import as_basemap
+
+        base = as_basemap(basemap, demo_data=is_demo(data, views), views=views)
+        files["site_map"] = write_site_map(
+            data, views, tmp / "site_map.html", self_contained=True, basemap=base
+        )
+        png, svg = write_static_map(
+            data, views, tmp / "static_map.png", tmp / "static_map.svg", basemap=base
+        )
         files["static_png"], files["static_svg"] = png, svg
         diagrams = write_case_diagrams(data.get("roof"), tmp / "diagrams")
         for name, p in diagrams.items():
@@ -408,10 +474,11 @@ def write_package(
             "version": _version(),
             "demo": is_demo(data, views),
             "cautions": cautions_of(data),
-            "g": summary_context(data),
+            "g": _ground_context(data),
             "roof": data.get("roof"),
             "factors": _factors(data.get("roof")),
-            "roof_rows": _roof_rows(data.get("roof")),
+            "roof_rows": _roof_rows(data.get("roof"), slope_pitch),
+            "inputs": _inputs(inputs, views),
             "not_required": list((data.get("roof") or {}).get("not_required") or []),
             "summary": _summary(data.get("roof")) + _on_record_rows(data.get("on_record")),
             "provenance": _provenance(ground),
@@ -433,6 +500,13 @@ def write_package(
             head, _, tail = html.rpartition("</body>")
             html = f"{head}{comparison_html(cmp)}</body>{tail}"
         files["report_html"] = safe_write.write_text(tmp / "report.html", html)
-        pdf = HTML(string=html, url_fetcher=_offline_fetcher(), base_url=str(tmp)).write_pdf()
+        # the PDF gets the page without the interactive map (a renderer of print cannot
+        # run it; the static map stands in for it): the same template, map left out
+        ctx["map_html"] = None
+        pdf_html = render("report.html.j2", **ctx)
+        if comparison is not None:
+            head, _, tail = pdf_html.rpartition("</body>")
+            pdf_html = f"{head}{comparison_html(cmp)}</body>{tail}"
+        pdf = HTML(string=pdf_html, url_fetcher=_offline_fetcher(), base_url=str(tmp)).write_pdf()
         files["report_pdf"] = safe_write.write_bytes(tmp / "report.pdf", pdf)
     return {k: dest / p.relative_to(tmp) for k, p in files.items()}

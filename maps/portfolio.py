@@ -21,6 +21,7 @@ from collections import Counter
 from pathlib import Path
 
 from neve.engine.errors import InputError
+from neve.engine.units import KPA_PER_PSF
 from neve.maps import leaflet, style
 from neve.maps.site_map import DEFAULT_CAUTIONS
 
@@ -30,6 +31,11 @@ REQUIRED = ("lat", "lon", "site_id", "status", "pg_psf", "flags", "message", "zo
 DETAIL_LIMIT = 20_000
 #: above this many sites, ok sites are sampled down to this total
 MAX_POINTS = 250_000
+#: markers are clustered only above this many drawn sites (below it every site shows
+#: itself); study-required and error sites are never clustered
+CLUSTER_ABOVE = 2_000
+#: statuses drawn on their own, never inside a cluster
+ALWAYS_SHOWN = ("study_required", "error")
 #: status -> CSS class suffix and legend text
 STATUS_SYMBOLS = {
     "ok": ("ok", "value (colour = band)"),
@@ -74,7 +80,9 @@ _TEMPLATE = """{% macro script(this, kwargs) %}
         }
         return icons[code];
     }
-    var cluster = L.markerClusterGroup({
+    // clustering only where it helps (d.cluster: many sites); study-required and error
+    // sites are never clustered: they always show as themselves
+    var cluster = d.cluster ? L.markerClusterGroup({
         chunkedLoading: true, maxClusterRadius: 45, disableClusteringAtZoom: 15,
         showCoverageOnHover: false,
         iconCreateFunction: function (cl) {
@@ -89,14 +97,16 @@ _TEMPLATE = """{% macro script(this, kwargs) %}
             div.textContent = n >= 10000 ? Math.round(n / 1000) + 'k' : String(n);
             return L.divIcon({html: div.outerHTML, className: 'neve-cluster-icon', iconSize: [size, size]});
         }
-    });
-    var markers = new Array(d.lat.length);
+    }) : L.featureGroup();
+    var always = L.featureGroup();
+    var grouped = [], alone = [];
     for (var i = 0; i < d.lat.length; i++) {
         var code = d.code[i];
+        var c = d.codes[code];
         var m = L.marker([d.lat[i], d.lon[i]], {icon: icon(code), keyboard: false,
-                         neveFlagged: d.codes[code].flagged});
+                         neveFlagged: c.flagged, zIndexOffset: c.always ? 1000 : 0});
         m.neveIndex = i;
-        markers[i] = m;
+        if (c.always) { alone.push(m); } else { grouped.push(m); }
     }
     function line(box, label, value) {
         if (value === undefined || value === null || value === '') { return; }
@@ -107,21 +117,35 @@ _TEMPLATE = """{% macro script(this, kwargs) %}
         p.appendChild(document.createTextNode(String(value)));
         box.appendChild(p);
     }
-    cluster.on('click', function (e) {
+    function load(psf) {  // 0.1 psf and 0.01 kPa, as everywhere in neve
+        return psf === null ? null : psf.toFixed(1) + ' psf (' + (psf * d.kpa_per_psf).toFixed(2) + ' kPa)';
+    }
+    function popup(e) {
         var i = e.layer.neveIndex;
         var box = document.createElement('div');
-        box.className = 'neve-tip';
+        box.className = 'neve-tip neve-popup';
         line(box, 'Site', d.site_id[i]);
+        if (d.name) { line(box, 'Name', d.name[i]); }
         line(box, 'Status', d.status_names[d.status[i]]);
-        line(box, 'pg', d.pg[i] === null ? 'no value' : d.pg[i] + ' psf');
+        if (d.elev) {
+            var m = (d.elev_m && d.elev_m[i] !== null) ? d.elev_m[i] : d.elev[i] * 0.3048;
+            line(box, 'Elevation', d.elev[i] === null ? null :
+                 Math.round(d.elev[i]) + ' ft (' + m.toFixed(1) + ' m)');
+        }
+        line(box, 'pg', d.pg[i] === null ? 'no value' : load(d.pg[i]));
+        if (d.design) { line(box, 'Design uniform load', load(d.design[i])); }
         line(box, 'Zone', d.zone[i]);
         line(box, 'Flags', d.flags[i]);
         line(box, 'Message', d.message[i]);
         for (var k = 0; k < d.extra_names.length; k++) { line(box, d.extra_names[k], d.extra[k][i]); }
-        L.popup().setLatLng(e.layer.getLatLng()).setContent(box).openOn(map);
-    });
-    cluster.addLayers(markers);
+        L.popup({maxWidth: 300, minWidth: 180}).setLatLng(e.layer.getLatLng()).setContent(box).openOn(map);
+    }
+    cluster.on('click', popup);
+    always.on('click', popup);
+    if (d.cluster) { cluster.addLayers(grouped); } else { grouped.forEach(function (m) { cluster.addLayer(m); }); }
+    alone.forEach(function (m) { always.addLayer(m); });
     cluster.addTo(map);
+    always.addTo(map);
 })();
 {% endmacro %}"""
 
@@ -132,6 +156,8 @@ _CLUSTER_CSS = """
   box-shadow: 0 0 0 3px rgba(163, 214, 211, .8); }
 .neve-cluster-flagged { box-shadow: 0 0 0 3px #e8590c; }
 .neve-pt-icon { background: transparent; border: none; }
+.neve-popup { white-space: normal; overflow-wrap: anywhere; max-width: 300px; }
+.neve-popup div { margin: 1px 0; }
 """
 
 
@@ -154,11 +180,31 @@ def _clean(v, limit: int = 240) -> str:
 
 
 def _rounded(v, column: str):
-    """The ratio map's own popup numbers, rounded for reading (other cells as they are)."""
-    digits = RATIO_POPUP_DECIMALS.get(column)
-    if digits is None or isinstance(v, bool) or not isinstance(v, (int, float)):
+    """A popup number rounded for reading: the ratio's own decimals, 0.1 psf, 0.01 kPa,
+    otherwise three significant figures (text cells as they are)."""
+    if isinstance(v, bool) or not isinstance(v, (int, float)):
         return v
-    return "" if not math.isfinite(v) else f"{v:.{digits}f}"
+    if not math.isfinite(v):
+        return ""
+    digits = RATIO_POPUP_DECIMALS.get(column)
+    if digits is None and column.endswith("_psf"):
+        digits = 1
+    elif digits is None and column.lower().endswith("_kpa"):
+        digits = 2
+    if digits is None:
+        from neve.engine.format import significant
+
+        return significant(v, 3)
+    return f"{v:.{digits}f}"
+
+
+def _numbers(values, digits: int) -> list:
+    """Rounded numbers for the page (None where not finite)."""
+    import numpy as np
+
+    arr = np.asarray(values, dtype=float)
+    out = np.round(arr, digits).tolist()
+    return [v if math.isfinite(v) else None for v in out]
 
 
 def _layer_class():
@@ -190,8 +236,10 @@ def write_portfolio_map(
     self_contained: bool = True,
     overwrite: bool = False,
     colour: str = "ground",
+    basemap=None,
+    views: list[dict] | None = None,
 ) -> Path:
-    """Write the clustered portfolio map of screening results.
+    """Write the portfolio map of screening results.
 
     Parameters
     ----------
@@ -216,6 +264,13 @@ def write_portfolio_map(
         bands of ``load_ratio`` (today's ``design_uniform`` / the load on record,
         :data:`neve.engine.on_record.RATIO_BANDS`; needs a ``load_ratio``
         column); sites above 1.0 are those flagged ``exceeds_record``.
+    basemap : str or neve.maps.basemap.Basemap, optional
+        What lies under the sites (:mod:`neve.maps.basemap`); by default the
+        demo basemap for demo data, otherwise none.
+    views : list of dict, optional
+        The zone layers used (as for :func:`neve.maps.site_map.write_site_map`);
+        their zones around the sites are drawn under them, coloured by the
+        same bands (by ``pg_psf``).
 
     Returns
     -------
@@ -301,16 +356,25 @@ def write_portfolio_map(
             "page usable; every provisional, study, no-data and error site is drawn."
         )
     rows = np.flatnonzero(keep)
+    for c in codes:  # study-required and error sites are never hidden inside a cluster
+        c["always"] = c["cls"] in ALWAYS_SHOWN
+    clustered = len(rows) > CLUSTER_ABOVE
+    if clustered:
+        notes.append(
+            f"{len(rows):,} sites: nearby sites are grouped in clusters (zoom in to open them); "
+            "study-required and error sites always show on their own."
+        )
     trim = n_total > DETAIL_LIMIT
     if trim:
         notes.append(
             f"Large portfolio ({n_total:,} sites): messages of ok sites are left out of the "
             "popups; the results file has every row in full."
         )
+    shown = {"pg_psf", "design_uniform_psf", "site_elevation_ft"}
     extra_cols = [
         c
         for c in results.columns
-        if (c.startswith("roof_") or (c.endswith("_psf") and c != "pg_psf"))
+        if (c.startswith("roof_") or (c.endswith("_psf") and c not in shown))
     ][:4]
     if colour == "ratio":  # what the colour means comes first in the popups
         first = [c for c in RATIO_POPUP if c in results.columns]
@@ -330,40 +394,107 @@ def write_portfolio_map(
         "status": [s_index[s] for s in status[rows].tolist()],
         "status_names": statuses,
         "site_id": [_clean(v, POPUP_TEXT_LIMITS["site_id"]) for v in sub["site_id"].tolist()],
-        "pg": [None if not math.isfinite(v) else round(float(v), 2) for v in pg[rows]],
+        "pg": _numbers(pg[rows], 1),
         "zone": [_clean(v, POPUP_TEXT_LIMITS["zone"]) for v in sub["zone_id"].tolist()],
-        "flags": [_clean(v, POPUP_TEXT_LIMITS["flags"]) for v in flags[rows].tolist()],
+        # flags wrap at their separators
+        "flags": [_clean(v.replace(";", "; "), POPUP_TEXT_LIMITS["flags"]) for v in flags[rows].tolist()],
         "message": message,
         "extra_names": [c.replace("_", " ") for c in extra_cols],
         "extra": [
             [_clean(_rounded(v, c), POPUP_TEXT_LIMITS["extra"]) for v in sub[c].tolist()]
             for c in extra_cols
         ],
+        "cluster": clustered,
+        "kpa_per_psf": KPA_PER_PSF,
     }
 
+    for key, col, digits in (("elev", "site_elevation_ft", 0), ("elev_m", "site_elevation_m", 1),
+                             ("design", "design_uniform_psf", 1)):  # fmt: skip
+        if col in sub.columns:
+            payload[key] = _numbers(pd.to_numeric(sub[col], errors="coerce"), digits)
+    name_col = next((c for c in ("site_name", "name") if c in sub.columns), None)
+    if name_col:
+        payload["name"] = [_clean(v, POPUP_TEXT_LIMITS["site_id"]) for v in sub[name_col].tolist()]
     if len(rows):
         la, lo = lat[rows], lon[rows]
         centre = (float(np.median(la)), float(np.median(lo)))
     else:
         centre = (0.0, 0.0)
-    m = leaflet.new_map(centre[0], centre[1], tiles, zoom=5)
+    from neve.maps.basemap import as_basemap, fit_zoom
+
+    base = as_basemap(basemap, tiles=tiles, demo_data=demo)
+    m = leaflet.new_map(centre[0], centre[1], base, zoom=5)
     if len(rows):
-        m.fit_bounds([[float(la.min()), float(lo.min())], [float(la.max()), float(lo.max())]])
+        bounds = [[float(la.min()), float(lo.min())], [float(la.max()), float(lo.max())]]
+        m.fit_bounds(bounds)
+        leaflet.add_basemap(m, base, bounds, fit_zoom(bounds))
+        # zones in the pg bands under pg-coloured sites; a ratio map keeps one scale only
+        n_zones = _add_zone_layers(m, views or [] if colour == "ground" else [], bounds,
+                                   drawn=base.drawn)  # fmt: skip
+        if n_zones:
+            notes.append(
+                f"Under the sites: the {n_zones:,} zone(s) of the layers used around them, "
+                "lighter, in the same bands (by their value in psf); lavender: value by "
+                "elevation; hatched: case study required."
+            )
     leaflet.add_defs(m, demo=demo)
     m.get_root().header.add_child(
         leaflet.fixed_html(f"<style>{_CLUSTER_CSS}</style>"), name="neve_cluster_css"
     )
     layer = _layer_class()(payload)
     layer.add_to(m)
-    legend = _legend_html(counts, n_total, len(rows), notes, colour=colour)
+    legend = _legend_html(counts, n_total, len(rows), notes, colour=colour, clustered=clustered)
     leaflet.add_html(m, legend, "neve_legend")
     return leaflet.finish(
         m, out, overwrite=overwrite, self_contained=self_contained, elements=[layer], cluster=True
     )
 
 
+#: most zone vertices drawn under the portfolio (beyond it outlines are simplified)
+ZONE_VERTICES = 200_000
+
+
+def _add_zone_layers(m, views: list[dict], bounds, *, drawn: bool) -> int:
+    """Draw the zones of ``views`` within ``bounds`` (with a margin) under the sites."""
+    import folium
+    import shapely
+    from shapely.geometry import box
+
+    from neve.maps.geom import check_zones
+
+    (s, w), (n, e) = bounds
+    dy, dx = max(n - s, 0.02), max(e - w, 0.02)
+    window = box(w - dx, s - dy, e + dx, n + dy)  # the screen is wider than what is fitted
+    classes = style.portfolio_classes()
+    total = 0
+    for view in views:
+        zones = check_zones(view)
+        if not len(zones):
+            continue
+        zones = zones[zones.intersects(window)]
+        if not len(zones):
+            continue
+        if int(shapely.get_num_coordinates(zones.geometry.values).sum()) > ZONE_VERTICES:
+            zones = zones.copy()
+            zones["geometry"] = zones.geometry.simplify(max(dx, dy) / 2000.0, preserve_topology=True)
+        units = str(view.get("value_units") or (view.get("meta") or {}).get("value_units") or "")
+        group = folium.FeatureGroup(
+            name=leaflet.layer_label(f"zones: {view.get('name') or 'layer'}"), control=True
+        )
+        if "pg_psf" not in zones.columns:
+            zones = zones.assign(pg_psf=zones["pg"])
+        leaflet.add_zones(group, zones, classes, units, label=False, see_through=True,
+                          colour_key="pg_psf")  # fmt: skip
+        group.add_to(m)
+        total += len(zones)
+    if total:
+        leaflet.add_layer_control(m, collapsed=True, position="topleft")
+    return total
+
+
 def _legend_html(
-    counts: Counter, n_total: int, n_drawn: int, notes: list[str], colour: str = "ground"
+    counts: Counter, n_total: int, n_drawn: int, notes: list[str], colour: str = "ground",
+    clustered: bool = True,
 ) -> str:
     from neve.maps.templating import render
 
@@ -395,6 +526,8 @@ def _legend_html(
         notes=notes,
         cautions=list(DEFAULT_CAUTIONS),
         heading=heading,
+        sample_colour=style.PORTFOLIO_BAND_COLOURS[3],
+        clustered=clustered,
     )
 
 

@@ -88,6 +88,13 @@ def governing_ids(site_json: dict, view: dict, first: bool) -> list[str]:
     return []
 
 
+def _summary_load(load) -> str:
+    """A load in the summary panel and the report: 0.1 psf / 0.01 kPa, zeros kept."""
+    from neve.engine import format as fmt
+
+    return fmt.load_text(load, missing="none", missing_number="\u2014")
+
+
 def summary_context(site_json: dict) -> dict:
     """Plain values for the summary panel and the report (escaped by the templates)."""
     site = site_json.get("site") or {}
@@ -99,14 +106,14 @@ def summary_context(site_json: dict) -> dict:
     neighbours = []
     for n in ground.get("neighbours") or []:
         pg = n.get("pg")
-        pg_text = style.load_text(pg) if isinstance(pg, dict) else style.num(pg, 2)
+        pg_text = _summary_load(pg) if isinstance(pg, dict) else style.num(pg, 2)
         dist = n.get("distance")
         dist_text = style.elevation_text(dist) if isinstance(dist, dict) else style.num(dist, 0)
         neighbours.append(f"zone {n.get('zone_id')}: {pg_text} at {dist_text}")
     others = []
     for o in ground.get("other_layers") or []:
         pg = o.get("pg")
-        pg_text = style.load_text(pg) if isinstance(pg, dict) else style.num(pg, 2)
+        pg_text = _summary_load(pg) if isinstance(pg, dict) else style.num(pg, 2)
         zone = f"zone {o['zone_id']}" if o.get("zone_id") else "no zone"
         pg_text = pg_text if o.get("pg") else "no value"
         others.append(
@@ -120,7 +127,7 @@ def summary_context(site_json: dict) -> dict:
         "lon": site.get("lon"),
         "status": status.replace("_", " "),
         "status_class": status if status.replace("_", "").isalnum() else "error",
-        "pg": style.load_text(ground.get("pg")) if ground.get("pg") else "no value",
+        "pg": _summary_load(ground.get("pg")) if ground.get("pg") else "no value",
         "zone": ", ".join(str(z) for z in zone_ids) or "none",
         "rule": ground.get("rule") or "",
         "flags": [str(f) for f in ground.get("flags") or []],
@@ -156,6 +163,7 @@ def write_site_map(
     tiles: str = "none",
     self_contained: bool = True,
     overwrite: bool = False,
+    basemap=None,
 ) -> Path:
     """Write the interactive site map as one HTML file.
 
@@ -170,12 +178,15 @@ def write_site_map(
     path : path-like
         Output ``.html`` file; written atomically.
     tiles : {"none", "osm"}
-        Base tiles; ``none`` gives a plain background.
+        Base tiles (the older choice; ``basemap`` takes precedence).
     self_contained : bool
         Inline every script and stylesheet so the page works offline (the
         default); ``False`` links them from the internet (``--cdn``).
     overwrite : bool
         Replace an existing file (otherwise an ``InputError``, before any work).
+    basemap : str or neve.maps.basemap.Basemap, optional
+        What lies under the zones (``--basemap``; :mod:`neve.maps.basemap`);
+        by default the demo basemap for demo data, otherwise none.
 
     Returns
     -------
@@ -184,16 +195,20 @@ def write_site_map(
     """
     import folium
 
+    from neve.maps.basemap import as_basemap
+
     out = leaflet.check_path(path, "map", overwrite=overwrite)
     lat, lon = site_lat_lon(site_json)
     ctx = summary_context(site_json)
-    m = leaflet.new_map(lat, lon, tiles, zoom=13)
+    base = as_basemap(basemap, tiles=tiles, demo_data=is_demo(site_json, views), views=views)
+    m = leaflet.new_map(lat, lon, base, zoom=13)
     # open on the neighbourhood: about 3 km either side of the site
     dlat = VIEW_HALF_WIDTH_M / 111_320.0
     dlon = dlat / max(math.cos(math.radians(lat)), 0.05)
     bounds = [[lat - dlat, lon - dlon], [lat + dlat, lon + dlon]]
     m.fit_bounds(bounds)
     leaflet.refit_on_load(m, bounds)
+    leaflet.add_basemap(m, base, bounds, 13)
     from shapely.geometry import box
 
     label_window = box(lon - 0.9 * dlon, lat - 0.9 * dlat, lon + 0.9 * dlon, lat + 0.9 * dlat)
@@ -234,10 +249,16 @@ def write_site_map(
             governing_ids=gov,
             label_window=label_window,
             avoid=(lat, lon, 0.06 * dlat),
+            see_through=base.drawn,
         )
         group.add_to(m)
         layer_groups.append(group)
 
+    # the neighbourhood whose zones are drawn, as the legend says
+    folium.Circle(
+        [lat, lon], radius=NEIGHBOUR_RADIUS_M, fill=False, color="#4a5068", weight=1.2,
+        dash_array="6 6", interactive=False,
+    ).add_to(m)  # fmt: skip
     leaflet.add_site_marker(m, lat, lon, _site_tip(ctx))
     leaflet.add_html(m, render("site_panel.html.j2", **ctx), "neve_summary")
     leaflet.add_html(
@@ -252,7 +273,8 @@ def write_site_map(
             governing=True,
             site=True,
             problems=False,
-            note=f"Zones within {NEIGHBOUR_RADIUS_M / 1000:.0f} km of the site are shown.",
+            note=f"Dashed circle: {NEIGHBOUR_RADIUS_M / 1000:.0f} km around the site; every "
+            "zone reaching into it is drawn whole.",
         ),
         "neve_legend",
     )

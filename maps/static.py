@@ -101,6 +101,7 @@ def write_static_map(
     svg_path: str | os.PathLike | None = None,
     *,
     overwrite: bool = False,
+    basemap=None,
 ) -> list[Path]:
     """Draw the zones around the site to PNG (and SVG).
 
@@ -116,6 +117,10 @@ def write_static_map(
         Output SVG as well.
     overwrite : bool
         Replace files that exist already (otherwise an ``InputError``, before drawing).
+    basemap : str or neve.maps.basemap.Basemap, optional
+        Drawn under the zones when it is an MBTiles file (the demo basemap for
+        demo data by default): its tiles are mosaicked and reprojected to the
+        map's grid.  Online basemaps are not drawn: nothing is fetched.
 
     Returns
     -------
@@ -136,11 +141,16 @@ def write_static_map(
     for path in (png_path, svg_path):  # both refused before any drawing, or neither
         if path is not None:
             check_target(path, overwrite=overwrite, field="static map", parents=True)
+    from neve.maps.basemap import as_basemap
+
     lat, lon = site_lat_lon(site_json)
     crs = local_crs(lat, lon)
     site_xy = gpd.GeoSeries([Point(lon, lat)], crs=4326).to_crs(crs).iloc[0]
     units = "psf"
+    base = as_basemap(basemap, demo_data=is_demo(site_json, views), views=views)
     fig, ax = plt.subplots(figsize=(8.6, 6.0), dpi=150)
+    drawn_base = base.kind == "mbtiles" and _draw_basemap(ax, base, site_xy, crs, lat)
+    alpha = 0.62 if drawn_base else 1.0
     handles = []
     if views:
         view = views[governing_index(site_json, views)]
@@ -159,7 +169,7 @@ def write_static_map(
                 rule = str(row["rule"])
                 study = bool(row.get("study")) or rule == "study"
                 colour = style.colour_for(row["pg"], classes)
-                kw = {"edgecolor": "#4a5068", "linewidth": 0.6}
+                kw = {"edgecolor": "#4a5068", "linewidth": 0.6, "alpha": alpha}
                 if study:
                     kw = {"facecolor": "white", "edgecolor": style.STUDY_COLOUR, "hatch": "////",
                           "linewidth": 0.8, "linestyle": "--"}  # fmt: skip
@@ -169,7 +179,7 @@ def write_static_map(
                     kw.update(facecolor=style.ELEVATION_COLOUR, linestyle=":")
                 else:
                     kw["facecolor"] = style.NO_VALUE_COLOUR
-                gpd.GeoSeries([row.geometry], crs=crs).plot(ax=ax, zorder=2, **kw)
+                _patch(ax, row.geometry, zorder=2, **kw)
                 inside = row.geometry.intersection(site_xy.buffer(WINDOW_M))
                 c = inside.representative_point()
                 if not c.is_empty and c.distance(site_xy) < 0.2 * WINDOW_M:
@@ -184,7 +194,9 @@ def write_static_map(
                                   "alpha": 0.75})  # fmt: skip
             g = proj[proj["zone_id"].astype(str).isin(gov)]
             if len(g):
-                g.boundary.plot(ax=ax, color=style.GOVERNING_COLOUR, linewidth=2.4, zorder=5)
+                for geom in g.geometry:
+                    _patch(ax, geom, facecolor="none", edgecolor=style.GOVERNING_COLOUR,
+                           linewidth=2.4, zorder=5)  # fmt: skip
         for c in classes:
             handles.append(
                 Patch(facecolor=c["colour"], edgecolor="#4a5068", label=f"{c['label']} {units}")
@@ -231,19 +243,23 @@ def write_static_map(
     title = textwrap.fill(str(site.get("name") or "Site"), 90, max_lines=3, placeholder=" \u2026")
     ax.set_title(title, fontsize=10, loc="left")
     foot = f"{crs.name} \u00b7 {lat:.5f}, {lon:.5f}"
+    if drawn_base and base.attribution:
+        foot += f" \u00b7 basemap: {textwrap.shorten(base.attribution, 90)}"
     if is_demo(site_json, views):
         foot = "DEMO DATA \u2014 INVENTED VALUES, NEVER FOR DESIGN \u00b7 " + foot
     fig.text(0.01, 0.01, foot, fontsize=7, color="#7a3e00" if "DEMO" in foot else "#444")
     fig.tight_layout(rect=(0, 0.03, 1, 1))
     written = []
+    # the legend beside the axes is never clipped: the tight box is measured once and
+    # used for both files (bbox_inches="tight" would draw the figure twice per file)
+    tight = fig.get_tightbbox(fig.canvas.get_renderer()).padded(0.12)
     for path, fmt in ((png_path, "png"), (svg_path, "svg")):
         if path is None:
             continue
         buf = io.BytesIO()
         # SVG keeps its text as text, so it can be searched and edited
         with matplotlib.rc_context({"svg.fonttype": "none"}):
-            # "tight": the legend beside the axes is never clipped
-            fig.savefig(buf, format=fmt, bbox_inches="tight", pad_inches=0.12,
+            fig.savefig(buf, format=fmt, bbox_inches=tight,
                         metadata={"Date": None} if fmt == "svg" else None)  # fmt: skip
         written.append(
             write_bytes(path, buf.getvalue(), overwrite=overwrite, field="static map", parents=True)
@@ -252,19 +268,57 @@ def write_static_map(
     return written
 
 
-#: longest zone id written on the static map [characters]; the report lists it in full
-LABEL_ID_CHARS = 24
+def _patch(ax, geom, **kw) -> None:
+    """Add a (multi)polygon as one matplotlib patch.
+
+    Drawn directly rather than through ``GeoSeries.plot``, which redraws the
+    whole figure after every call (a full draw per zone).
+    """
+    from shapely.geometry import MultiPolygon, Polygon
+    from shapely.plotting import patch_from_polygon
+
+    if isinstance(geom, (Polygon, MultiPolygon)) and not geom.is_empty:
+        ax.add_patch(patch_from_polygon(geom, **kw))
+    elif hasattr(geom, "geoms"):  # a collection: its polygonal parts
+        for part in geom.geoms:
+            _patch(ax, part, **kw)
+
+
+def _draw_basemap(ax, base, site_xy, crs, lat: float, pixels: int = 900) -> bool:
+    """Mosaic the basemap's tiles around the site, reproject them to ``crs``, draw them."""
+    import numpy as np
+    from pyproj import Transformer
+    from rasterio.transform import from_bounds
+    from rasterio.warp import Resampling, reproject
+
+    from neve.maps import basemap as bm
+
+    x0, y0 = site_xy.x - WINDOW_M, site_xy.y - WINDOW_M
+    x1, y1 = site_xy.x + WINDOW_M, site_xy.y + WINDOW_M
+    to_ll = Transformer.from_crs(crs, 4326, always_xy=True)
+    lons, lats = to_ll.transform([x0, x1, x0, x1], [y0, y0, y1, y1])
+    bounds = [[min(lats), min(lons)], [max(lats), max(lons)]]
+    zoom = bm.static_zoom(base, 2 * WINDOW_M / pixels, lat)
+    got = bm.mosaic(base, bounds, zoom)
+    if got is None:
+        return False
+    img, (w, s, e, n) = got
+    src_t = from_bounds(w, s, e, n, img.shape[1], img.shape[0])
+    dst_t = from_bounds(x0, y0, x1, y1, pixels, pixels)
+    out = np.zeros((3, pixels, pixels), dtype=np.uint8)
+    reproject(
+        np.moveaxis(img, 2, 0), out, src_transform=src_t, src_crs="EPSG:3857",
+        dst_transform=dst_t, dst_crs=crs, resampling=Resampling.bilinear,
+    )  # fmt: skip
+    # already at about the axes' own resolution: no smoothing needed when drawn
+    ax.imshow(np.moveaxis(out, 0, 2), extent=(x0, x1, y0, y1), zorder=1, interpolation="nearest")
+    return True
 
 
 def _label(row, units: str) -> str:
+    """A zone's label: its id over its value or rule (as on the interactive maps)."""
+    from neve.maps.leaflet import LABEL_ID_CHARS, zone_value_text
+
     zid = str(row["zone_id"])
     zid = zid if len(zid) <= LABEL_ID_CHARS else zid[: LABEL_ID_CHARS - 1] + "\u2026"
-    rule = str(row["rule"])
-    if bool(row.get("study")) or rule == "study":
-        return f"{zid}\nstudy"
-    try:
-        if math.isfinite(float(row["pg"])):
-            return f"{zid}\n{style.num(row['pg'], 2)} {units}"
-    except (TypeError, ValueError):
-        pass
-    return f"{zid}\nby elevation" if rule in ("elevation_table", "formula") else zid
+    return f"{zid}\n{zone_value_text(row.to_dict(), units)}"

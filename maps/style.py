@@ -40,6 +40,29 @@ PROBLEM_COLOUR = "#e03131"
 #: site marker
 SITE_COLOUR = "#1b1f3b"
 
+#: load diagrams of the roof cases (maps/diagrams.py): one visual language for every kind.
+#: Structure is dark slate like the site marker; snow is a pale tint of the value scale;
+#: any surcharge (drift, sliding, unbalanced, eave load) is amber with a hatch, so that
+#: balanced snow and surcharge still differ on a black-and-white print.
+DIAGRAM_COLOURS = {
+    "structure": SITE_COLOUR,  # roof lines, walls
+    "interior": "#f3f4f8",  # building section below a roof
+    "solid": "#b9bdcb",  # parapet wall, rooftop unit (drawn hatched)
+    "snow": "#d3e8f1",  # balanced snow
+    "snow_edge": VALUE_COLOURS[5],
+    "surcharge": "#f4c27f",  # drift, sliding, unbalanced surcharge, eave load
+    "surcharge_edge": "#9a5b12",
+    "ice": "#e8f4fb",  # ice dam and icicles
+    "ice_edge": "#5b8fb0",
+    "dimension": "#3d4256",  # dimension lines and their symbols
+    "wind": "#55607a",
+    "text": SITE_COLOUR,
+    "muted": "#5a5f70",  # notes, table descriptions
+    "rule": "#c9cdd8",  # table rules
+}
+#: hatches of the load diagrams (matplotlib hatch patterns)
+DIAGRAM_HATCHES = {"solid": "////", "surcharge": "\\\\", "ice": ".."}
+
 #: short, plain descriptions of the rule kinds
 RULE_LABELS = {
     "fixed": "fixed mapped value",
@@ -58,15 +81,32 @@ PORTFOLIO_BANDS_PSF = (
     (100.0, "70 to under 100 psf"),
     (math.inf, "100 psf and over"),
 )
+#: fills of :data:`PORTFOLIO_BANDS_PSF`: neve's own sequential scale, pale straw through
+#: green and teal to deep indigo.  Lightness falls steadily from band to band and the
+#: hue turns as it falls, so the bands read in order and adjacent ones stay apart for
+#: readers with any of the three common colour-vision deficiencies (checked in
+#: tests/maps/test_palette.py with colorspacious: CAM02-UCS lightness strictly
+#: decreasing and adjacent delta E >= 8 under simulated protan, deutan and tritan
+#: vision, >= 12 with normal vision).  Chosen in CIELCh: lightness 95 to 24 in equal
+#: steps, hue 95 to 300 degrees.
 PORTFOLIO_BAND_COLOURS = (
-    "#eef7f6",
-    "#a3d6d3",
-    "#76bdc9",
-    "#4f9cbd",
-    "#3b78a8",
-    "#34548f",
-    "#2c3470",
+    "#fff0a7",
+    "#addd87",
+    "#50c296",
+    "#00a1a2",
+    "#007ea0",
+    "#005991",
+    "#36316e",
 )
+
+
+def portfolio_classes() -> list[dict]:
+    """The portfolio bands as value classes [psf] (for :func:`colour_for`): zones drawn alike."""
+    out, lo = [], 0.0
+    for (upper, label), colour in zip(PORTFOLIO_BANDS_PSF, PORTFOLIO_BAND_COLOURS, strict=True):
+        out.append({"lo": lo, "hi": upper, "colour": colour, "label": label})
+        lo = upper
+    return out
 
 
 def esc(value: object) -> str:

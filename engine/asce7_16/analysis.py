@@ -37,6 +37,7 @@ from neve.engine.asce7_16.cases import (
 )
 from neve.engine.asce7_16.factors import resolve_factors
 from neve.engine.errors import InputError
+from neve.engine.format import slope_text
 from neve.engine.roof import RoofResult
 from neve.engine.roof_spec import PG_MAX_PSF, Roof, as_roof
 from neve.engine.steps import StepLog
@@ -181,7 +182,7 @@ def analyze_roof(pg: float, roof: Roof) -> RoofResult:
         skipped.append(
             {
                 "case": "minimum",
-                "reason": f"slope {roof.slope:.1f} deg is not below 15 deg (Sec. 7.3.4)",
+                "reason": f"slope {slope_text(roof.slope)} is not below 15\u00b0 (Sec. 7.3.4)",
             }
         )
     unbalanced_cases(pg, ps, is_, roof, cases, skipped, flags)

@@ -11,6 +11,7 @@ from __future__ import annotations
 from neve.engine.asce7_16 import STANDARD, eaves, sliding, unbalanced
 from neve.engine.asce7_16 import drift as dr
 from neve.engine.errors import InputError
+from neve.engine.format import pitch_text
 from neve.engine.roof_spec import Roof
 from neve.engine.steps import StepLog, fmt
 from neve.engine.units import KNM3_PER_PCF, length_json, line_load_json, load_json
@@ -43,7 +44,7 @@ def unbalanced_cases(pg, ps, is_, roof: Roof, cases, skipped, flags) -> None:
         why = (
             f"{roof.shape} roofs have no hip/gable unbalanced case"
             if roof.shape not in ("gable", "hip")
-            else f"slope {roof.slope:.2f} deg is outside 1/2 on 12 to 7 on 12"
+            else f"slope {pitch_text(roof.slope)} is outside 1/2 on 12 to 7 on 12"
         )
         skipped.append({"case": "unbalanced", "reason": why + " (Sec. 7.6.1)"})
         return
@@ -173,7 +174,7 @@ def sliding_cases(pf, roof: Roof, ps, cases, skipped, flags) -> None:
                 {
                     "case": "sliding",
                     "name": st.name,
-                    "reason": f"upper roof slope {st.upper_slope:.2f} deg is not above {limit} (Sec. 7.9)",
+                    "reason": f"upper roof slope {pitch_text(st.upper_slope)} is not above {limit} (Sec. 7.9)",
                 }
             )
             continue

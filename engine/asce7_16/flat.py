@@ -13,7 +13,7 @@ from __future__ import annotations
 import numpy as np
 
 from neve.engine.asce7_16 import STANDARD
-from neve.engine.steps import StepLog, fmt
+from neve.engine.steps import StepLog, fmt, fmt_deg
 
 #: pg at or below which the minimum load is Is*pg, above which it is 20*Is [psf]
 #: (Sec. 7.3.4)
@@ -137,7 +137,7 @@ def rain_on_snow(pg, slope, eave_to_ridge, log: StepLog | None = None):
             "p_ros",
             "rain-on-snow surcharge (balanced case only)",
             "5 psf where 0 < pg <= 20 psf and slope < W/50 [deg, W in ft]",
-            f"pg = {fmt(pg)} psf, slope = {fmt(slope, 2)} deg, W = {w}, W/50 = {limit}",
+            f"pg = {fmt(pg)} psf, slope = {fmt_deg(slope)}, W = {w}, W/50 = {limit}",
             value,
             "psf",
             f"{STANDARD} Sec. 7.10",

@@ -14,7 +14,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from neve.engine.steps import StepLog, fmt
+from neve.engine.steps import StepLog, fmt, fmt_deg
 
 STANDARD = "ASCE 7-16"
 
@@ -120,11 +120,11 @@ def slope_factor(slope, ct: float, slippery: bool, log: StepLog | None = None):
         fig = {"warm": "7.4-1a", "cold-1.1": "7.4-1b", "cold-1.2": "7.4-1c"}[cls]
         label = "unobstructed slippery surface" if slippery else "all other surfaces"
         if np.ndim(slope) == 0 and slope <= knee:
-            sub = f"slope {fmt(slope, 2)} deg <= {fmt(knee)} deg, so Cs = 1"
+            sub = f"slope {fmt_deg(slope)} <= {fmt_deg(knee)}, so Cs = 1"
         elif np.ndim(slope) == 0 and slope >= CS_ZERO_SLOPE:
-            sub = f"slope {fmt(slope, 2)} deg >= 70 deg, so Cs = 0"
+            sub = f"slope {fmt_deg(slope)} >= 70°, so Cs = 0"
         else:
-            sub = f"Cs = (70 - {fmt(slope, 2)}) / (70 - {fmt(knee)})"
+            sub = f"Cs = (70 - {fmt(slope)}) / (70 - {fmt(knee)})"
         log.add(
             "Cs",
             f"roof slope factor, Ct = {fmt(ct)} line for {label}",

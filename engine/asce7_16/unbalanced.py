@@ -14,7 +14,7 @@ import numpy as np
 
 from neve.engine.asce7_16 import STANDARD
 from neve.engine.asce7_16.drift import drift_height, snow_density
-from neve.engine.steps import StepLog, fmt
+from neve.engine.steps import StepLog, fmt, fmt_deg
 
 #: unbalanced loads are not required below 1/2 on 12 or above 7 on 12
 LOW_SLOPE_DEG = math.degrees(math.atan2(0.5, 12.0))  # 2.386 deg, printed as 2.38
@@ -106,7 +106,7 @@ def general_case(pg, ps, slope, eave_to_ridge, log: StepLog | None = None) -> di
             "S",
             "roof slope run for a rise of one",
             "S = 1 / tan(slope)",
-            f"S = 1 / tan({fmt(slope, 2)} deg)",
+            f"S = 1 / tan({fmt_deg(slope)})",
             s_run,
             "-",
             ref,

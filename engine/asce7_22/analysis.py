@@ -35,6 +35,7 @@ from neve.engine.asce7_22.cases import (
 from neve.engine.asce7_22.drift import check_w2
 from neve.engine.asce7_22.factors import resolve_factors
 from neve.engine.errors import InputError
+from neve.engine.format import slope_text
 from neve.engine.roof import RoofResult
 from neve.engine.roof_spec import PG_MAX_PSF, Roof, as_roof
 from neve.engine.steps import StepLog, fmt
@@ -233,7 +234,7 @@ def analyze_roof(pg: float, roof: Roof, w2=None) -> RoofResult:
         skipped.append(
             {
                 "case": "minimum",
-                "reason": f"slope {roof.slope:.1f} deg is not below 15 deg (Sec. 7.3.3)",
+                "reason": f"slope {slope_text(roof.slope)} is not below 15\u00b0 (Sec. 7.3.3)",
             }
         )
     unbalanced_cases(pg, ps, roof, w2, cases, skipped, flags)

@@ -18,7 +18,7 @@ import numpy as np
 
 from neve.engine.asce7_22 import STANDARD
 from neve.engine.choices import choose
-from neve.engine.steps import StepLog, fmt
+from neve.engine.steps import StepLog, fmt, fmt_deg
 
 #: ASCE 7-22 Table 7.3-4: upper limit pm,max of the minimum snow load by risk
 #: category [psf].  The table itself is confirmed [PROSE: "Risk Category-specific
@@ -155,7 +155,7 @@ def rain_on_snow(pg, slope, eave_to_ridge, log: StepLog | None = None):
             "p_ros",
             "rain-on-snow surcharge (balanced case only)",
             "8 psf where 0 < pg <= 20 psf and slope < W/50 [deg, W in ft]",
-            f"pg = {fmt(pg)} psf, slope = {fmt(slope, 2)} deg, W = {w}, W/50 = {limit}",
+            f"pg = {fmt(pg)} psf, slope = {fmt_deg(slope)}, W = {w}, W/50 = {limit}",
             value,
             "psf",
             f"{STANDARD} Sec. 7.10",

@@ -29,6 +29,8 @@ DEMO_DIR = Path(__file__).resolve().parent.parent / "demo"
 #: the embedded demo stack, most local first
 DEMO_LAYER_FILES = ("port_hallin_amendment.geojson", "skerrow_base.gpkg")
 DEMO_DEM_FILE = "skerrow_dem.tif"
+#: the invented raster basemap of the demo island (built by data_recipes/build_demo_basemap.py)
+DEMO_BASEMAP_FILE = "skerrow_basemap.mbtiles"
 #: the embedded, invented ASCE 7-22 demo stack (per risk category, and W2), most local first;
 #: used when ``--standard asce7-22`` is asked with no ``--layer`` (:func:`demo_layers_for`)
 DEMO_722_LAYER_FILES = ("skerrow_722_pg.gpkg", "skerrow_722_w2.geojson")
@@ -333,10 +335,13 @@ class Layer:
         Returns
         -------
         dict
-            ``name``, ``meta``, ``sha256``, ``demo``, ``value_units`` and
+            ``name``, ``meta``, ``sha256``, ``demo``, ``value_units``,
+            ``demo_basemap`` (demo layers only: the invented demo basemap) and
             ``zones``: a GeoDataFrame in EPSG:4326 with ``zone_id``, ``rule``,
             ``pg`` [value_units, NaN where no single mapped value], ``pg_psf``,
-            ``elev_max``, ``note``, ``source``, ``study`` (bool) and geometry.
+            ``elev_max``, ``note``, ``source``, ``study`` (bool), ``pg_lo`` and
+            ``pg_hi`` (the smallest and largest value of an elevation table, a
+            formula's floor as ``pg_lo``; NaN otherwise) and geometry.
         """
         if self.is_raster:
             from neve.geo.layers.raster import raster_view
@@ -344,7 +349,7 @@ class Layer:
             zones = raster_view(self, center, radius_m)
         else:
             zones = self._vector_view(center, radius_m)
-        return {
+        view = {
             "name": self.name,
             "meta": dict(self.meta),
             "sha256": self.sha256,
@@ -352,12 +357,23 @@ class Layer:
             "value_units": self.meta["value_units"],
             "zones": zones,
         }
+        if self.demo and demo_basemap_path().is_file():  # the maps draw it under demo zones
+            view["demo_basemap"] = str(demo_basemap_path())
+        return view
 
     def _vector_view(self, center, radius_m):
         import geopandas as gpd
 
         zt = self.zones
         pg = np.where(zt.rule == RULE_CODE["fixed"], zt.value, np.nan)
+        # the range a rule by elevation gives (table values; a formula's floor) for labels
+        lo = np.full(len(zt), np.nan)
+        hi = np.full(len(zt), np.nan)
+        for j, (_, values) in zt.tables.items():
+            if len(values):
+                lo[j], hi[j] = float(np.min(values)), float(np.max(values))
+        formula = zt.rule == RULE_CODE["formula"]
+        lo = np.where(formula, zt.pg_min, lo)
         gdf = gpd.GeoDataFrame(
             {
                 "zone_id": zt.zone_id.astype(str),
@@ -368,6 +384,8 @@ class Layer:
                 "note": zt.note.astype(str),
                 "source": zt.source.astype(str),
                 "study": zt.rule == RULE_CODE["study"],
+                "pg_lo": lo,
+                "pg_hi": hi,
             },
             geometry=self.frame.geometry.values,
             crs=self.frame.crs,
@@ -479,6 +497,11 @@ def demo_layers_for(standard=None) -> list[Layer]:
 def demo_dem_path() -> Path:
     """Path of the embedded synthetic demo DEM (metres)."""
     return DEMO_DIR / DEMO_DEM_FILE
+
+
+def demo_basemap_path() -> Path:
+    """Path of the embedded invented demo basemap (raster MBTiles)."""
+    return DEMO_DIR / DEMO_BASEMAP_FILE
 
 
 def dem_argument(dem):

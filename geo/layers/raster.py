@@ -275,5 +275,8 @@ def raster_view(layer, center, radius_m: float):
     gdf["elev_max"] = np.nan
     gdf["note"] = ""
     gdf["source"] = ""
-    cols = ["zone_id", "rule", "pg", "pg_psf", "elev_max", "note", "source", "study", "geometry"]
+    gdf["pg_lo"] = np.nan  # a raster cell holds one value: no range by elevation
+    gdf["pg_hi"] = np.nan
+    cols = ["zone_id", "rule", "pg", "pg_psf", "elev_max", "note", "source", "study",
+            "pg_lo", "pg_hi", "geometry"]  # fmt: skip
     return gdf[cols].to_crs(4326)

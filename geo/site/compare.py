@@ -366,6 +366,7 @@ def _show(value) -> str:
 def comparison_text(data: Mapping) -> str:
     """``neve compare --format text``: one line per quantity, the editions side by side."""
     from neve.engine.printable import printable
+    from neve.engine.roof_text import NOT_APPLICABLE, absent_loads, not_applicable_here
 
     ids = [r["standard"] for r in data["results"]]
     site = data["site"]
@@ -387,6 +388,7 @@ def comparison_text(data: Mapping) -> str:
                 lines.append(f"    not worked: {what}: {n.get('reason')}")
     lines.append("")
     head = ["quantity"] + ids + [f"{ids[-1]} - {ids[0]}", "ratio"]
+    absent = absent_loads(data)
     rows: list = []
     case = None
     for d in data["differences"]:
@@ -394,10 +396,13 @@ def comparison_text(data: Mapping) -> str:
         if d["case"] is not None and key != case:
             rows.append(f"case {d['case']}: {d['name']}")  # a heading line
             case = key
-        diff = "-" if not d["difference"] else _show(d["difference"])
-        ratio = "-" if d["ratio"] is None else f"{d['ratio']:.3f}"
+        values = [NOT_APPLICABLE if not_applicable_here(d, i, absent) else _show(d["values"][i])
+                  for i in ids]  # fmt: skip
+        na = NOT_APPLICABLE in values  # no difference to a load that does not apply
+        diff = "-" if na or not d["difference"] else _show(d["difference"])
+        ratio = "-" if na or d["ratio"] is None else f"{d['ratio']:.3f}"
         label = d["quantity"] if d["case"] is None else f"  {d['quantity']}"
-        rows.append([label] + [_show(d["values"][i]) for i in ids] + [diff, ratio])
+        rows.append([label] + values + [diff, ratio])
     table = [head] + [r for r in rows if isinstance(r, list)]
     widths = [max(len(str(x[i])) for x in table) for i in range(len(head))]
     for row in [head, *rows]:

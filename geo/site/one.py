@@ -114,8 +114,8 @@ def _steps(layer, hits, pg: float, elev_ft: float, source: str) -> list[dict]:
         steps.extend(explain(layer.zones, j, elev_ft * scale, meta, ref))
     base = hits.base_psf[0]
     if meta["value_units"] == "kPa" and np.isfinite(base):
-        steps.append(Step("pg", "converted to psf", "pg [psf] = pg [kPa] / 0.04788",
-                          f"{fmt(base * KPA_PER_PSF)} / {fmt(KPA_PER_PSF, 5)}", base, "psf",
+        steps.append(Step("pg", "converted to psf", "pg [psf] = pg [kPa] / 0.0479",
+                          f"{fmt(base * KPA_PER_PSF)} / {fmt(KPA_PER_PSF)}", base, "psf",
                           "NIST SP 811 Appendix B (1 psf = 0.0478803 kPa)"))  # fmt: skip
     valued = int(hits.state[0]) in (R.OK, R.UNCHECKED) and np.isfinite(base)
     if hits.zone_ids[0] != zid and not valued and int(hits.state[0]) in (R.STUDY, R.ABOVE):

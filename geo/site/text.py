@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from neve.engine.format import elevation_text, load_text
+from neve.engine.format import elevation_text, load_text, significant
 from neve.engine.printable import printable
 from neve.engine.roof_text import roof_text
 
@@ -13,8 +13,12 @@ NONE = "—"
 
 
 def _load(x: dict | None) -> str:
-    """A ground load as the map gives it: ``35.0875 psf (1.68 kPa)`` (psf first)."""
-    return load_text(x, exact=True, missing=NONE)
+    """A load of the summary: 0.1 psf and 0.01 kPa, ``35.1 psf (1.68 kPa)`` (psf first).
+
+    The figures the layer gives are in the ground value steps (three significant
+    figures) and, unrounded, in the JSON output.
+    """
+    return load_text(x, missing=NONE)
 
 
 def _length(x: dict | None) -> str:
@@ -81,12 +85,14 @@ def site_text(result, show_steps: bool = True) -> str:
         lines.append("")
         lines.append("Ground value steps:")
         for st in g["steps"]:
-            value = "" if st["value"] is None else f" = {st['value']:g} {st['unit']}"
+            value = "" if st["value"] is None else f" = {significant(st['value'])} {st['unit']}"
             lines.append(f"  {st['symbol']}: {st['description']}: {st['substituted']}{value}")
     if roof is not None:
         lines.append("")
         lines.append(f"Roof ({roof['standard']}):")
-        body = roof_text(roof, show_steps=show_steps, show_cautions=False)
+        pitch = getattr(getattr(result, "roof_result", None), "roof", None)
+        pitch = getattr(pitch, "slope_pitch", None)  # given as a rise:run: 6:12 (26.6°)
+        body = roof_text(roof, show_steps=show_steps, show_cautions=False, pitch=pitch)
         lines += ["  " + line if line else "" for line in body.splitlines()]
         if "ground_provisional" in roof.get("flags", []):
             lines.append(f"  ! {roof['cautions'][0]}")

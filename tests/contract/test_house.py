@@ -349,7 +349,7 @@ def test_shared_options_live_in_options_py():
     """Options used by more than one command are defined in src/neve/cli/options.py only."""
     here = {s for s, _ in _option_decls(ROOT / "src" / "neve" / "cli" / "options.py")}
     for shared in ("--layer", "--dem", "--dem-units", "--elevation-source", "--format",
-                   "--overwrite", "--tiles", "--self-contained", "--map", "--gazetteer",
+                   "--overwrite", "--tiles", "--basemap", "--basemap-attribution", "--self-contained", "--map", "--gazetteer",
                    "--geocoder-url", "--roof", "--shape", "--slope"):  # fmt: skip
         assert shared in here, shared
 
@@ -415,6 +415,10 @@ _ELEV_SOURCE = ("elevation_source", ("--elevation-source",), "Choice('larger', '
                 "larger", False, False)  # fmt: skip
 _LAYERS = ("layers", ("--layer",), _PATH, None, True, False)
 _TILES = ("tiles", ("--tiles",), "Choice('none', 'osm')", "none", False, False)
+# issue 11: the basemap under the zones (--tiles stays, the older spelling)
+_BASEMAP = ("basemap", ("--basemap",), "StringParamType", "auto", False, False)
+_BASEMAP_ATTR = ("basemap_attribution", ("--basemap-attribution",), "StringParamType", None,
+                 False, False)  # fmt: skip
 _SELF_CONTAINED = ("self_contained", ("--self-contained", "--cdn"), "BoolParamType", True, False,
                    False)  # issue 11: inlined by default, --cdn links  # fmt: skip
 _OVERWRITE = ("overwrite", ("--overwrite",), "BoolParamType", False, False, False)
@@ -441,6 +445,8 @@ EXPECTED_OPTIONS = {
             _ELEV_SOURCE,
             _LAYERS,
             _TILES,
+            _BASEMAP,
+            _BASEMAP_ATTR,
             _SELF_CONTAINED,
             _OVERWRITE,
             _MAP,
@@ -466,6 +472,8 @@ EXPECTED_OPTIONS = {
             _ELEV_SOURCE,
             _LAYERS,
             _TILES,
+            _BASEMAP,
+            _BASEMAP_ATTR,
             _SELF_CONTAINED,
             _OVERWRITE,
             _MAP,
@@ -521,6 +529,8 @@ EXPECTED_OPTIONS = {
     ("layer", "show"): sorted(
         [
             _TILES,
+            _BASEMAP,
+            _BASEMAP_ATTR,
             _SELF_CONTAINED,
             _OVERWRITE,
             ("map_path", ("--map",), _PATH, None, False, True),

@@ -1,8 +1,9 @@
 """Run the doctest examples of the engine's public helpers.
 
 ``pytest --doctest-modules`` is not configured for the suite, so the examples
-in the docstrings of engine/units.py, engine/choices.py, engine/jsonsafe.py
-and engine/roof_limits.py are run here; a
+in the docstrings of engine/units.py, engine/choices.py, engine/jsonsafe.py,
+engine/roof_limits.py, engine/format.py, engine/steps.py, engine/roof_text.py
+(and of the tests' own tests/rounding.py) are run here; a
 broken example fails this test. (regression guard)
 """
 
@@ -13,11 +14,16 @@ import doctest
 import pytest
 
 import neve.engine.choices
+import neve.engine.format
 import neve.engine.jsonsafe
 import neve.engine.roof_limits
+import neve.engine.roof_text
+import neve.engine.steps
 import neve.engine.units
+import tests.rounding
 
-MODULES = [neve.engine.units, neve.engine.choices, neve.engine.jsonsafe, neve.engine.roof_limits]
+MODULES = [neve.engine.units, neve.engine.choices, neve.engine.jsonsafe, neve.engine.roof_limits,
+           neve.engine.format, neve.engine.steps, neve.engine.roof_text, tests.rounding]  # fmt: skip
 
 
 @pytest.mark.parametrize("module", MODULES, ids=lambda m: m.__name__)

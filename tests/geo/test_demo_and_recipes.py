@@ -39,7 +39,10 @@ def test_build_demo_is_deterministic_and_matches_the_shipped_files(tmp_path):
     a, b = tmp_path / "a", tmp_path / "b"
     build_into(a)
     build_into(b)
-    shipped = sorted(p.name for p in DEMO_DIR.iterdir() if p.is_file())
+    # the demo basemap has its own recipe and check (tests/maps/test_basemap.py)
+    shipped = sorted(
+        p.name for p in DEMO_DIR.iterdir() if p.is_file() and p.suffix != ".mbtiles"
+    )
     assert sorted(p.name for p in a.iterdir()) == shipped
     for name in shipped:  # two builds in one environment: byte for byte
         assert sha(a / name) == sha(b / name), name

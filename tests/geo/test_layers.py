@@ -12,7 +12,7 @@ from neve.geo.layers.model import demo_dem_path, demo_layers, load_layer
 from .conftest import FIXTURE_META, centre, fixture_rows, toml_text, write_layer
 
 VIEW_COLUMNS = ["zone_id", "rule", "pg", "pg_psf", "elev_max", "note", "source", "study",
-                "geometry"]  # fmt: skip
+                "pg_lo", "pg_hi", "geometry"]  # fmt: skip  (issue 11: the range a rule gives)
 
 
 @pytest.mark.parametrize("suffix", [".gpkg", ".geojson", ".shp", ".fgb"])
@@ -35,6 +35,9 @@ def test_view_contract(grid_layer):
     v = load_layer(grid_layer).view()
     assert set(v) == {"name", "meta", "sha256", "demo", "value_units", "zones"}
     z = v["zones"]
+    rows = z.set_index("zone_id")
+    table = rows[rows["rule"] == "elevation_table"]
+    assert len(table) and (table["pg_hi"] > table["pg_lo"]).all()  # a table's range
     assert list(z.columns) == VIEW_COLUMNS and z.crs.to_epsg() == 4326 and len(z) == 6
     assert z.set_index("zone_id").loc["Z3", "study"]
     assert z.set_index("zone_id")["pg"].isna().sum() == 3  # study, table, formula

@@ -123,7 +123,7 @@ def test_on_record_given_twice_exits_2(grid_layer):
 def test_text_output_shows_the_check(grid_layer):
     res = run(*_z2(), "--layer", str(grid_layer), *ROOF, "--on-record", "15psf")
     assert res.exit_code == 0, res.output
-    assert "On record:" in res.output and "15 psf" in res.output
+    assert "On record:   15.0 psf (0.72 kPa)" in res.output  # 0.1 psf, 0.01 kPa
     assert "Load ratio:  1.400  (above the record: exceeds_record)" in res.output
 
 

@@ -78,7 +78,7 @@ def test_neve_site_with_a_user_layer(tmp_path, user_layer):
     text = " ".join(
         " ".join(p.extract_text() for p in PdfReader(str(out / "report.pdf")).pages).split()
     )
-    assert "42 psf (2.01 kPa)" in text  # the fixture zone's value, as printed
+    assert "42.0 psf (2.01 kPa)" in text  # the fixture zone's value, 0.1 psf (issue 11)
     assert "Fixture layer (invented test data)" in text
     assert "INVENTED VALUES" not in text.upper()  # not a demo layer: no demo banner
 

@@ -9,7 +9,7 @@ import subprocess
 import pytest
 
 from neve.engine.errors import InputError
-from neve.maps import assets, package, style
+from neve.maps import assets, package
 from neve.maps.package import write_package
 from tests.maps.conftest import HOSTILE, make_site_json, make_view
 
@@ -53,6 +53,19 @@ def test_site_json_carries_the_overrides(built):
     assert data["ground"]["pg"] == {"psf": 35.0, "kPa": 1.6758}
 
 
+def test_each_diagram_follows_its_case_heading(built):
+    """Sketch, then values, then steps: the figure comes right under the case's heading."""
+    import re
+
+    _, files = built
+    html = files["report_html"].read_text(encoding="utf-8")
+    for name in ("unbalanced (wind across ridge)", "drift at high bay"):
+        m = re.search(r"<h3>4\.\d+ [a-z_]+: " + re.escape(name) + r"</h3>\s*(?:\{#.*?#\}\s*)?"
+                      r'<figure class="diagram"><img src="data:image/png;base64,', html)  # fmt: skip
+        assert m, name
+    assert html.count('<figure class="diagram">') == 2  # balanced and the unknown case: none
+
+
 def test_report_html_is_self_contained(built):
     _, files = built
     html = files["report_html"].read_text(encoding="utf-8")
@@ -85,9 +98,10 @@ def test_pdf_has_pages_headers_and_the_governing_values(built):
         assert "SHEET" in flat.upper() and f"{i} of {len(pages)}" in flat
         assert "Fixture project 7" in flat and "Varda depot (east)" in flat  # running header
     everything = " ".join(" ".join(pages).split())
-    # the governing values as the report prints them (fixture: pg 35 psf, design 26.95 psf)
-    assert style.load_text({"psf": 35.0, "kPa": 1.6758}) in everything
-    assert style.load_text({"psf": 26.95, "kPa": 1.2904}) in everything
+    # the governing values as the report prints them (fixture: pg 35 psf, design 26.95 psf):
+    # loads to 0.1 psf and 0.01 kPa, zeros kept (issue 11)
+    assert "35.0 psf (1.68 kPa)" in everything
+    assert "26.9 psf (1.29 kPa)" in everything
     assert "DEMO DATA" in everything.upper()
     assert "licensed design professional" in everything
     assert "authority having jurisdiction" in everything
@@ -98,7 +112,7 @@ def test_pdf_text_with_poppler(built):
     _, files = built
     text = subprocess.run(["pdftotext", "-layout", str(files["report_pdf"]), "-"],
                           capture_output=True, text=True, check=True).stdout  # fmt: skip
-    assert "35 psf (1.68 kPa)" in text
+    assert "35.0 psf (1.68 kPa)" in text  # 0.1 psf, 0.01 kPa, zeros kept (issue 11)
     assert "site-specific case study" in text
 
 

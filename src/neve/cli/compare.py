@@ -11,7 +11,12 @@ import copy
 
 import click
 
-from neve.cli.options import standard_option, title_block_from_options
+from neve.cli.options import (
+    command_echo,
+    roof_file_echo,
+    standard_option,
+    title_block_from_options,
+)
 from neve.cli.site import site as _site_command
 from neve.engine.errors import InputError
 from neve.engine.jsonsafe import dumps
@@ -113,6 +118,8 @@ def _run(**kw) -> None:
             overwrite=kw["overwrite"],
             comparison=data,
             title_block=title_block_from_options(kw),
+            inputs={"command": command_echo(), "roof_file": roof_file_echo(kw)},
+            slope_pitch=None if roof is None else roof.slope_pitch,
         )
     if kw["fmt"] == "json":
         click.echo(dumps(data, indent=2, ensure_ascii=False))

@@ -6,7 +6,13 @@ import json
 
 import click
 
-from neve.cli.options import format_option, map_look_options, map_option, overwrite_option
+from neve.cli.options import (
+    format_option,
+    map_look_options,
+    map_option,
+    overwrite_option,
+    resolve_basemap,
+)
 from neve.engine.printable import printable
 
 
@@ -36,17 +42,22 @@ def check(layer_path: str, fmt: str) -> None:
 @map_option("HTML map to write.", required=True)
 @map_look_options
 @overwrite_option("Replace an existing map.")
-def show(layer_path: str, map_path: str, tiles: str, self_contained: bool, overwrite: bool) -> None:
+def show(layer_path: str, map_path: str, tiles: str, self_contained: bool, overwrite: bool,
+         basemap: str = "auto", basemap_attribution: str | None = None) -> None:  # fmt: skip
     """Draw LAYER and the problems `neve layer check` finds on an HTML map."""
     from neve.geo.layers.check import check_layer
     from neve.geo.layers.model import load_layer
     from neve.safe_write import check_target
 
     check_target(map_path, overwrite=overwrite, field="map", parents=True)  # before any work
+    look = {"basemap": basemap, "basemap_attribution": basemap_attribution, "tiles": tiles}
+    resolve_basemap(look, demo_data=False)  # a bad --basemap is refused before any work
     report = check_layer(layer_path)
-    view = load_layer(layer_path).view(center=None)
+    layer = load_layer(layer_path)
+    view = layer.view(center=None)
+    base = resolve_basemap(look, demo_data=bool(view.get("demo")))
     from neve.maps.layer_map import write_layer_map
 
-    write_layer_map(view, report["problems"], map_path, tiles=tiles,
+    write_layer_map(view, report["problems"], map_path, basemap=base,
                     self_contained=self_contained, overwrite=overwrite)  # fmt: skip
     click.echo(f"Wrote map: {map_path} ({len(report['problems'])} problem(s) marked)")

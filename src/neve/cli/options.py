@@ -13,6 +13,8 @@ differently (``--map`` is a site map in ``neve site`` and a portfolio map in
 
 from __future__ import annotations
 
+from pathlib import Path
+
 import click
 
 from neve.engine.errors import InputError
@@ -316,8 +318,48 @@ def self_contained_option(f):
     )(f)
 
 
-#: ``--tiles`` and ``--self-contained``/``--cdn``, in that order
-map_look_options = _stack(tiles_option, self_contained_option)
+def basemap_option(f):
+    """``--basemap auto|none|demo|osm|URL-TEMPLATE|FILE.mbtiles``: what lies under the zones."""
+    return click.option(
+        "--basemap",
+        default="auto",
+        show_default=True,
+        metavar="auto|none|demo|osm|URL|FILE.mbtiles",
+        help="What lies under the zones of the maps: auto (the invented demo basemap for "
+        "demo data, otherwise none), none, demo, osm (needs internet), an http(s) tile URL "
+        "template with {z}/{x}/{y} (needs --basemap-attribution), or a raster .mbtiles "
+        "file (embedded: works offline; also drawn on the static map of the package). "
+        "--tiles osm is the older spelling of --basemap osm.",
+    )(f)
+
+
+def basemap_attribution_option(f):
+    """``--basemap-attribution TEXT``: the attribution shown with a basemap."""
+    return click.option(
+        "--basemap-attribution",
+        "basemap_attribution",
+        default=None,
+        metavar="TEXT",
+        help="Attribution shown with the basemap (required with a URL template; replaces "
+        "an MBTiles file's own).",
+    )(f)
+
+
+#: ``--tiles``, ``--basemap``, ``--basemap-attribution`` and ``--self-contained``/``--cdn``
+map_look_options = _stack(
+    tiles_option, basemap_option, basemap_attribution_option, self_contained_option
+)
+
+
+def resolve_basemap(kw: dict, *, demo_data: bool):
+    """The :class:`neve.maps.basemap.Basemap` asked by ``--basemap`` (and ``--tiles``)."""
+    from neve.geo.layers.model import demo_basemap_path
+    from neve.maps.basemap import resolve
+
+    return resolve(
+        kw.get("basemap"), kw.get("basemap_attribution"), demo_data=demo_data,
+        tiles=kw.get("tiles"), demo_file=demo_basemap_path(),
+    )  # fmt: skip
 
 
 def map_colour_option(f):
@@ -490,3 +532,53 @@ def compare_option(f):
         "pg_ratio and design_uniform_ratio (last / first), and the count of sites whose "
         "governing uniform load rises by more than 10 %.",
     )(f)
+
+
+#: options whose values are files or folders: echoed by file name only
+_PATH_PARAMS = {"layers", "dem", "roof_file", "gazetteer", "map_path", "package_dir",
+                "geocode_cache", "summary_json", "output", "sites"}  # fmt: skip
+
+
+def command_echo() -> str:
+    """The command being run, as the package echoes it: the options given, paths cut to
+    their file names (never a folder of the user's machine), quoted for a shell."""
+    import shlex
+    from pathlib import PureWindowsPath
+
+    from click.core import ParameterSource
+
+    ctx = click.get_current_context()
+    words = ["neve", *ctx.command_path.split()[1:]]  # the program, however it was started
+    for param in ctx.command.params:
+        name = param.name
+        if name is None or ctx.get_parameter_source(name) not in (
+            ParameterSource.COMMANDLINE, ParameterSource.ENVIRONMENT
+        ):
+            continue
+        value = ctx.params.get(name)
+        values = list(value) if isinstance(value, (list, tuple)) else [value]
+        for v in values:
+            if v is None:
+                continue
+            if isinstance(param, click.Option) and param.is_flag:
+                if param.secondary_opts and not v:
+                    words.append(param.secondary_opts[0])
+                elif v:
+                    words.append(param.opts[0])
+                continue
+            text = str(v)
+            if name in _PATH_PARAMS and text != "demo":
+                text = PureWindowsPath(text).name if "\\" in text else Path(text).name
+            words.extend([param.opts[0], text] if isinstance(param, click.Option) else [text])
+    return shlex.join(words)
+
+
+def roof_file_echo(kw: dict) -> tuple[str, str] | None:
+    """(file name, text) of the ``--roof`` file, for the package; None without one."""
+    path = kw.get("roof_file")
+    if not path:
+        return None
+    try:
+        return Path(path).name, Path(path).read_text(encoding="utf-8")
+    except (OSError, UnicodeDecodeError):  # already read (and checked) by the roof reader
+        return Path(path).name, ""

@@ -64,7 +64,7 @@ def roof(pg, w2, fmt, no_steps, standard, **kwargs):
         shown = dict(data)
         if shown["factors"].get("Is") is None:  # ASCE 7-22: no snow importance factor
             shown["factors"] = {**shown["factors"], "Is": "none"}
-        text = roof_text(shown, show_steps=not no_steps)
+        text = roof_text(shown, show_steps=not no_steps, pitch=roof_.slope_pitch)
         extra = _extra_text(data)
         click.echo(printable(text + ("\n\n" + extra if extra else "")))
 

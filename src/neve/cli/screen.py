@@ -87,7 +87,7 @@ def _terminate(signum, frame):  # pragma: no cover - exercised through a subproc
 )
 @layer_standard_option
 @compare_option
-def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, tiles, self_contained, engine, scheduler, staging, partitions,
+def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, tiles, basemap, basemap_attribution, self_contained, engine, scheduler, staging, partitions,
            gazetteer, geocoder_url, geocode_cache, quiet, overwrite, csv_raw, summary_json, standard, map_colour="ground", compare=None, **roof_kw):  # fmt: skip
     """Screen a portfolio: ground snow load (and roof loads) for every site in SITES.
 
@@ -129,6 +129,10 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
         if Path(map_path).suffix.lower() not in (".html", ".htm"):
             raise InputError("map", f"{map_path!r} is not an .html path", "a path ending in .html")
         check_target(map_path, overwrite=overwrite, field="map")
+        from neve.cli.options import resolve_basemap
+
+        resolve_basemap({"basemap": basemap, "basemap_attribution": basemap_attribution,
+                         "tiles": tiles}, demo_data=False)  # refused before any work  # fmt: skip
     if summary_json:
         check_target(summary_json, overwrite=overwrite, field="summary-json")
     if scheduler and engine.lower() != "dask":
@@ -198,7 +202,7 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
         if map_path:
             _write_map(
                 map_run, map_path, overwrite, tiles=tiles, self_contained=self_contained,
-                colour=map_colour.lower(),
+                colour=map_colour.lower(), basemap=basemap, basemap_attribution=basemap_attribution,
             )  # fmt: skip
         if summary_json:
             text = json.dumps(run.summary, indent=2)
@@ -225,18 +229,49 @@ def _write_map(
     tiles: str = "none",
     self_contained: bool = False,
     colour: str = "ground",
+    basemap: str = "auto",
+    basemap_attribution: str | None = None,
 ) -> None:
+    from neve.cli.options import resolve_basemap
     from neve.maps.portfolio import screen_view, write_portfolio_map
 
+    demo = bool(run.summary.get("demo"))
+    look = {"basemap": basemap, "basemap_attribution": basemap_attribution, "tiles": tiles}
+    view = screen_view(run.results)
     write_portfolio_map(
-        screen_view(run.results),
+        view,
         map_path,
-        demo=bool(run.summary.get("demo")),
+        demo=demo,
+        basemap=resolve_basemap(look, demo_data=demo),
+        views=_zone_views(getattr(run, "layers", None) or [], view),
         tiles=tiles,
         self_contained=self_contained,
         overwrite=overwrite,
         colour=colour,
     )
+
+
+def _zone_views(layers, results) -> list[dict]:
+    """The views of the layers used, around the screened sites (for the portfolio map)."""
+    import math
+
+    import numpy as np
+
+    lat = np.asarray(results["lat"], dtype=float)
+    lon = np.asarray(results["lon"], dtype=float)
+    ok = np.isfinite(lat) & np.isfinite(lon)
+    if not ok.any():
+        return []
+    s, n, w, e = lat[ok].min(), lat[ok].max(), lon[ok].min(), lon[ok].max()
+    centre = ((s + n) / 2, (w + e) / 2)
+    half = max(n - s, (e - w) * math.cos(math.radians(centre[0]))) / 2 * 111_320.0
+    radius = min(half * 1.3 + 5_000.0, 3_000_000.0)
+    views = []
+    for layer in layers:
+        if getattr(layer, "quantity", "pg") not in (None, "pg"):
+            continue  # a W2 layer is not a load: not drawn under the load bands
+        views.append(layer.view(center=centre, radius_m=radius))
+    return views
 
 
 def map_frame(results):

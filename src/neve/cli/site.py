@@ -5,6 +5,7 @@ from __future__ import annotations
 import click
 
 from neve.cli.options import (
+    command_echo,
     dem_options,
     format_option,
     gazetteer_option,
@@ -15,6 +16,8 @@ from neve.cli.options import (
     map_option,
     on_record_option,
     overwrite_option,
+    resolve_basemap,
+    roof_file_echo,
     roof_from_options,
     roof_options,
     title_block_from_options,
@@ -78,6 +81,8 @@ def site(**kw) -> None:
     roof = roof_from_options(kw)
     _check_output(kw["map_path"], "map", kw["overwrite"])
     _check_output(kw["package_dir"], "package", kw["overwrite"], is_dir=True)
+    if kw["map_path"] or kw["package_dir"]:
+        resolve_basemap(kw, demo_data=False)  # a bad --basemap is refused before any work
     address = None
     if kw["at"]:
         lat, lon = parse_latlon(kw["at"])
@@ -112,6 +117,9 @@ def site(**kw) -> None:
     data = finite_copy(result.to_json())  # no NaN or infinity in any output: null + a flag
     if kw["map_path"] or kw["package_dir"]:
         views = result.views()
+        from neve.maps.site_map import is_demo
+
+        base = resolve_basemap(kw, demo_data=is_demo(data, views))
         if kw["map_path"]:
             from neve.maps.site_map import write_site_map
 
@@ -119,7 +127,7 @@ def site(**kw) -> None:
                 data,
                 views,
                 kw["map_path"],
-                tiles=kw["tiles"],
+                basemap=base,
                 self_contained=kw["self_contained"],
                 overwrite=kw["overwrite"],
             )
@@ -134,6 +142,9 @@ def site(**kw) -> None:
                 site_name=kw["site_name"],
                 overwrite=kw["overwrite"],
                 title_block=title_block_from_options(kw),
+                inputs={"command": command_echo(), "roof_file": roof_file_echo(kw)},
+                basemap=base,
+                slope_pitch=None if roof is None else roof.slope_pitch,
             )
     if kw["fmt"] == "json":
         click.echo(dumps(data, indent=2, ensure_ascii=False))
