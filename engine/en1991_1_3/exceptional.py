@@ -13,7 +13,7 @@ References
 ----------
 .. [1] EN 1991-1-3:2003 + A1:2015, Annex B (informative; a national annex
    may modify it, 1.1(4)).  B4 behind parapets as worked in [SSB03]
-   Appendix A 3.5.2 and 3.5.3: ``mu1 = min(2h/sk; 2 b2/ls; 8)`` with
+   Appendix A 3.5.2 and 3.5.3: ``mu1 = min(2h/sk; 2b/ls; 8)`` with
    ``ls = min(5h; b1; 15 m)``.  B3 and the local projections of B4 are
    from memory.
 """
@@ -59,11 +59,13 @@ def step_drift(h, b1, b2, sk, params: ParameterSet, log: StepLog | None = None) 
 def parapet_drift(h, b1, b2, sk, params: ParameterSet, log: StepLog | None = None) -> dict:
     """Exceptional drift behind a parapet (Annex B4) [-].
 
-    ``mu1 = min(2h / sk; 2 b2 / ls; 8)`` with ``ls = min(5h; b1; 15 m)``.
-    Reading of the two widths (as [SSB03] uses them): b2 is the roof width
-    from which the snow drifts to the parapet (``upwind_length``) and b1 the
-    roof length beside the parapet over which the drift can lie
-    (``drift_space``; the roof's own length where the drift is not stopped).
+    ``mu1 = min(2h / sk; 2b / ls; 8)`` with b the larger of b1 and b2 and
+    ``ls = min(5h; b1; 15 m)``.  Reading of the two widths (as [SSB03] works
+    them: its 2b/ls is 2 x 25 / 12.5 at the eaves and 2 x 40 / 15 at the
+    gable, the larger width each time): b2 is the roof width from which the
+    snow drifts to the parapet (``upwind_length``) and b1 the roof length
+    beside the parapet over which the drift can lie (``drift_space``; the
+    upwind length where not given).
 
     References
     ----------
@@ -73,13 +75,14 @@ def parapet_drift(h, b1, b2, sk, params: ParameterSet, log: StepLog | None = Non
     top = float(params["annex_b_mu_max_parapet"])
     cap = float(params["annex_b_ls_max"])
     ls = min(ANNEX_B_LS_FACTOR * h, b1, cap)
-    mu = min(2.0 * h / sk, 2.0 * b2 / ls, top) if sk > 0 else top
+    b = max(b1, b2)
+    mu = min(2.0 * h / sk, 2.0 * b / ls, top) if sk > 0 else top
     if log is not None:
         log.add("ls", "length of the exceptional drift", f"ls = min(5h; b1; {fmt(cap)} m)",
                 f"ls = min(5 x {fmt(h)}; {fmt(b1)}; {fmt(cap)})", ls, "m", ref)  # fmt: skip
         log.add("mu1", "shape coefficient of the exceptional drift behind the parapet",
-                f"mu1 = min(2h / sk; 2 b2 / ls; {fmt(top)})",
-                f"mu1 = min(2 x {fmt(h)} / {fmt(sk)}; 2 x {fmt(b2)} / {fmt(ls)}; {fmt(top)})",
+                f"mu1 = min(2h / sk; 2b / ls; {fmt(top)}), b = max(b1, b2)",
+                f"mu1 = min(2 x {fmt(h)} / {fmt(sk)}; 2 x {fmt(b)} / {fmt(ls)}; {fmt(top)})",
                 mu, "-", ref)  # fmt: skip
     return {"mu1": mu, "ls": ls}
 

@@ -53,13 +53,24 @@ def once(field: str):
 
 
 def pg_option(f):
-    """``--pg``: the ground snow load with its unit, given once."""
+    """``--pg``: the ground snow load with its unit, given once (ASCE 7)."""
     return click.option(
         "--pg",
-        required=True,
         multiple=True,
         callback=once("pg"),
-        help="Ground snow load with its unit, e.g. 35psf or 1.68kPa.",
+        help="Ground snow load with its unit, e.g. 35psf or 1.68kPa (ASCE 7; required with "
+        "a standard whose ground quantity is pg).",
+    )(f)
+
+
+def sk_option(f):
+    """``--sk``: the characteristic ground snow load with its unit, given once (EN 1991-1-3)."""
+    return click.option(
+        "--sk",
+        multiple=True,
+        callback=once("sk"),
+        help="Characteristic ground snow load with its unit, e.g. 0.65kPa or 0.65kN/m2 "
+        "(en1991-1-3; required with a standard whose ground quantity is sk).",
     )(f)
 
 
@@ -116,6 +127,17 @@ def _roof_help(name: str) -> str:
     return get_standard().roof_option(name).help
 
 
+def _own_help(name: str) -> str:
+    """The help of a roof option some registered standard declares (the first that does)."""
+    from neve.engine.standards import standards
+
+    for std in standards():
+        for opt in std.roof_options:
+            if opt.name == name:
+                return opt.help + f" ({std.id} only)"
+    return ""
+
+
 roof_options = _stack(
     click.option(
         "--roof",
@@ -123,7 +145,8 @@ roof_options = _stack(
         type=click.Path(dir_okay=False),
         help="ROOF.toml describing the roof (options below override it).",
     ),
-    click.option("--shape", help="Roof shape: flat, monoslope, gable, hip."),
+    click.option("--shape", help="Roof shape: flat, monoslope, gable, hip, multi-span, "
+                 "cylindrical (monopitch = monoslope, duopitch = gable)."),
     click.option("--slope", help="Roof slope, e.g. 6:12 or 26.6deg."),
     click.option("--surface", help=_roof_help("surface")),
     click.option("--ct", help=_roof_help("ct")),
@@ -141,6 +164,16 @@ roof_options = _stack(
     _pair("--ventilated/--unventilated", "ventilated", _roof_help("ventilated")),
     _pair("--unobstructed/--obstructed", "unobstructed", _roof_help("unobstructed")),
     _pair("--prismatic/--non-prismatic", "prismatic", _roof_help("prismatic")),
+    click.option("--topography", help=_own_help("topography")),
+    click.option("--annex", metavar="NAME|FILE.toml", help=_own_help("annex")),
+    click.option("--snow-case", "snow_case", help=_own_help("snow_case")),
+    click.option("--return-period", "return_period", metavar="YEARS", help=_own_help("return_period")),
+    click.option("--cov", metavar="V", help=_own_help("cov")),
+    click.option("--other-slope", "other_slope", help=_own_help("other_slope")),
+    click.option("--rise", help=_own_help("rise")),
+    click.option("--span", help=_own_help("span")),
+    click.option("--altitude", help=_own_help("altitude")),
+    click.option("--guard-width", "guard_width", help=_own_help("guard_width")),
 )
 roof_options.__doc__ = "Decorate a click command with the roof options and ``--roof ROOF.toml``."
 
