@@ -226,7 +226,7 @@ def analyze_roof(sk: float, roof: Roof) -> EnRoofResult:
     cs.abutting_cases(sit, roof, params, cases, skipped, flags)
     cs.obstruction_cases(sit, roof, params, cases)
     cs.overhang_case(roof, s_max, params, roof.option("altitude"), cases, skipped, flags)
-    s_slope = sit.load(float(shapes.mu1(alphas[0])), None) if roof.shape != "cylindrical" else s_max
+    s_slope = sit.snow(float(shapes.mu1(alphas[0])), None) if roof.shape != "cylindrical" else s_max
     cs.snow_guard_case(roof, s_slope, alphas[0], roof.option("guard_width"), cases)
     loads = {"s": s_max, "sAd": None}
     cesl = None

@@ -96,7 +96,7 @@ class Situation:
     def name(self, text: str) -> str:
         return text if self.kind == "persistent" else f"exceptional snow on the ground: {text}"
 
-    def load(self, mu, log, symbol="s", what=""):
+    def snow(self, mu, log, symbol="s", what=""):
         return float(roof_load(mu, self.ce, self.ct, self.ground, log, symbol=symbol, what=what,
                                situation=self.kind))  # fmt: skip
 
@@ -121,7 +121,7 @@ def slope_cases(sit: Situation, roof, alphas: tuple[float, float], retained: boo
     log = head if head is not None else StepLog()
     a1, a2 = alphas
     if shape == "cylindrical":
-        s = sit.load(shapes.MU1_LOW, log, what="undrifted load, slopes up to 60 degrees")
+        s = sit.snow(shapes.MU1_LOW, log, what="undrifted load, slopes up to 60 degrees")
         cases.append(_record(sit, "undrifted", "undrifted, cylindrical roof", log,
                              mu1=shapes.MU1_LOW, load=kpa(s), ls=metres(geometry["ls"]),
                              note="on the part of the roof whose slope is at most 60 degrees "
@@ -129,8 +129,8 @@ def slope_cases(sit: Situation, roof, alphas: tuple[float, float], retained: boo
         dlog = StepLog()
         mu3 = float(shapes.cylinder_coefficient(geometry["rise"], geometry["span"],
                                                 params["mu3_max"], dlog))  # fmt: skip
-        s_low = sit.load(0.5 * mu3, dlog, symbol="s_1", what="drifted load, windward half (0.5 mu3)")
-        s_high = sit.load(mu3, dlog, symbol="s_2", what="drifted load, leeward half (mu3)")
+        s_low = sit.snow(0.5 * mu3, dlog, symbol="s_1", what="drifted load, windward half (0.5 mu3)")
+        s_high = sit.snow(mu3, dlog, symbol="s_2", what="drifted load, leeward half (mu3)")
         cases.append(_record(sit, "drifted", "drifted, cylindrical roof", dlog, mu3=mu3,
                              windward=kpa(s_low), leeward=kpa(s_high), ls=metres(geometry["ls"]),
                              note="0.5 mu3 on the windward and mu3 on the leeward half of ls "
@@ -138,29 +138,29 @@ def slope_cases(sit: Situation, roof, alphas: tuple[float, float], retained: boo
         return s
     m1 = float(shapes.slope_coefficient(a1, retained, log, "mu1"))
     if shape in ("flat", "monoslope"):
-        s = sit.load(m1, log, what="undrifted load")
+        s = sit.snow(m1, log, what="undrifted load")
         cases.append(_record(sit, "undrifted", f"undrifted, {shape} roof", log, mu1=m1,
                              load=kpa(s), note="a monopitch roof has one arrangement: the "
                              "drifted one is the same (5.3.2)"))  # fmt: skip
         return s
     m2 = float(shapes.slope_coefficient(a2, retained, log, "mu1_2")) if a2 != a1 else m1
-    s1 = sit.load(m1, log, symbol="s_1", what="undrifted load, slope 1")
-    s2 = sit.load(m2, log, symbol="s_2", what="undrifted load, slope 2")
+    s1 = sit.snow(m1, log, symbol="s_1", what="undrifted load, slope 1")
+    s2 = sit.snow(m2, log, symbol="s_2", what="undrifted load, slope 2")
     what = "pitched (duopitch)" if shape == "gable" else "multi-span"
     cases.append(_record(sit, "undrifted", f"undrifted, {what} roof (i)", log, mu1=m1, mu1_2=m2,
                          slope_1=kpa(s1), slope_2=kpa(s2)))  # fmt: skip
     if shape == "gable":
         for label, f1, f2 in (("(ii)", 0.5, 1.0), ("(iii)", 1.0, 0.5)):
             dlog = StepLog()
-            d1 = sit.load(f1 * m1, dlog, symbol="s_1", what=f"drifted {label}, slope 1 ({f1:g} mu1)")
-            d2 = sit.load(f2 * m2, dlog, symbol="s_2", what=f"drifted {label}, slope 2 ({f2:g} mu1)")
+            d1 = sit.snow(f1 * m1, dlog, symbol="s_1", what=f"drifted {label}, slope 1 ({f1:g} mu1)")
+            d2 = sit.snow(f2 * m2, dlog, symbol="s_2", what=f"drifted {label}, slope 2 ({f2:g} mu1)")
             cases.append(_record(sit, "drifted", f"drifted, pitched (duopitch) roof {label}", dlog,
                                  arrangement_of_slopes=label, mu_1=f1 * m1, mu_2=f2 * m2,
                                  slope_1=kpa(d1), slope_2=kpa(d2)))  # fmt: skip
         return max(s1, s2)
     dlog = StepLog()
     mv = shapes.valley_coefficient(a1, a2, dlog)
-    sv = sit.load(mv, dlog, symbol="s_valley", what="drifted load at the valley (mu2)")
+    sv = sit.snow(mv, dlog, symbol="s_valley", what="drifted load at the valley (mu2)")
     cases.append(_record(sit, "drifted", "drifted, multi-span roof (ii): the valley", dlog,
                          mu2=mv, valley=kpa(sv), mu1=m1, mu1_2=m2,
                          note="mu2 at the valley, falling to mu1 of each slope at the ridges "
@@ -184,9 +184,9 @@ def abutting_cases(sit: Situation, roof, params: ParameterSet, cases, skipped, f
         if st.upper_slope is None and sit.kind == "persistent":
             flags.append("upper_slope_unstated")
         v = local.abutting(h, b1, b2, sit.mu_ground, params, slope, run, log)
-        base = sit.load(v["mu1"], log, symbol="s_1", what="load beyond the drift (mu1)")
-        peak = sit.load(v["mu2"], log, symbol="s_2", what="load at the taller construction (mu2)")
-        far = sit.load(v["mu_far"], StepLog(), symbol="s_far")
+        base = sit.snow(v["mu1"], log, symbol="s_1", what="load beyond the drift (mu1)")
+        peak = sit.snow(v["mu2"], log, symbol="s_2", what="load at the taller construction (mu2)")
+        far = sit.snow(v["mu_far"], StepLog(), symbol="s_far")
         cases.append(_record(sit, "abutting", f"drift at taller construction '{st.name}'", log,
                              source="step", mu1=v["mu1"], mu_s=v["mu_s"], mu_w=v["mu_w"],
                              mu2=v["mu2"], ls=metres(v["ls"]), base=kpa(base), peak=kpa(peak),
@@ -208,8 +208,8 @@ def obstruction_cases(sit: Situation, roof, params: ParameterSet, cases) -> None
         log = StepLog()
         h = p.height * M_PER_FT
         v = local.obstruction(h, sit.mu_ground, params, log)
-        base = sit.load(v["mu1"], log, symbol="s_1", what="load beyond the drift (mu1)")
-        peak = sit.load(v["mu2"], log, symbol="s_2", what="load at the obstruction (mu2)")
+        base = sit.snow(v["mu1"], log, symbol="s_1", what="load beyond the drift (mu1)")
+        peak = sit.snow(v["mu2"], log, symbol="s_2", what="load at the obstruction (mu2)")
         sides = "each side the wind can reach" if kind == "projection" else "the roof side"
         cases.append(_record(sit, "obstruction", f"drift at {kind} '{p.name}'", log, source=kind,
                              mu1=v["mu1"], mu2=v["mu2"], ls=metres(v["ls"]), base=kpa(base),

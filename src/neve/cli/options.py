@@ -58,8 +58,8 @@ def pg_option(f):
         "--pg",
         multiple=True,
         callback=once("pg"),
-        help="Ground snow load with its unit, e.g. 35psf or 1.68kPa (ASCE 7; required with "
-        "a standard whose ground quantity is pg).",
+        help="Ground snow load with its unit, e.g. 35psf or 1.68kPa (required with a standard "
+        "whose ground quantity is pg: asce7-16, asce7-22).",
     )(f)
 
 
