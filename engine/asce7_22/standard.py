@@ -147,9 +147,7 @@ def analyze(quantities, roof):
 
 def uniform(quantities, roof) -> dict:
     """The uniform loads for arrays of ``pg`` [psf] (screening); ``w2`` is not needed."""
-    return uniform_loads(
-        _take(quantities, "pg", True), _roof(roof), _take(quantities, "w2", False)
-    )
+    return uniform_loads(_take(quantities, "pg", True), _roof(roof), _take(quantities, "w2", False))
 
 
 def _screening_flags(roof) -> list:

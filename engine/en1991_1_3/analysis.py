@@ -20,7 +20,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from neve.engine.en1991_1_3 import STANDARD, cases as cs, factors, shapes
+from neve.engine.en1991_1_3 import STANDARD, factors, shapes
+from neve.engine.en1991_1_3 import cases as cs
 from neve.engine.en1991_1_3.parameters import DESIGN_CASES, ParameterSet, parameter_set
 from neve.engine.errors import InputError
 from neve.engine.roof_spec import PG_MAX_PSF, Roof, as_roof

@@ -129,7 +129,9 @@ def slope_cases(sit: Situation, roof, alphas: tuple[float, float], retained: boo
         dlog = StepLog()
         mu3 = float(shapes.cylinder_coefficient(geometry["rise"], geometry["span"],
                                                 params["mu3_max"], dlog))  # fmt: skip
-        s_low = sit.snow(0.5 * mu3, dlog, symbol="s_1", what="drifted load, windward half (0.5 mu3)")
+        s_low = sit.snow(
+            0.5 * mu3, dlog, symbol="s_1", what="drifted load, windward half (0.5 mu3)"
+        )
         s_high = sit.snow(mu3, dlog, symbol="s_2", what="drifted load, leeward half (mu3)")
         cases.append(_record(sit, "drifted", "drifted, cylindrical roof", dlog, mu3=mu3,
                              windward=kpa(s_low), leeward=kpa(s_high), ls=metres(geometry["ls"]),
@@ -152,8 +154,12 @@ def slope_cases(sit: Situation, roof, alphas: tuple[float, float], retained: boo
     if shape == "gable":
         for label, f1, f2 in (("(ii)", 0.5, 1.0), ("(iii)", 1.0, 0.5)):
             dlog = StepLog()
-            d1 = sit.snow(f1 * m1, dlog, symbol="s_1", what=f"drifted {label}, slope 1 ({f1:g} mu1)")
-            d2 = sit.snow(f2 * m2, dlog, symbol="s_2", what=f"drifted {label}, slope 2 ({f2:g} mu1)")
+            d1 = sit.snow(
+                f1 * m1, dlog, symbol="s_1", what=f"drifted {label}, slope 1 ({f1:g} mu1)"
+            )
+            d2 = sit.snow(
+                f2 * m2, dlog, symbol="s_2", what=f"drifted {label}, slope 2 ({f2:g} mu1)"
+            )
             cases.append(_record(sit, "drifted", f"drifted, pitched (duopitch) roof {label}", dlog,
                                  arrangement_of_slopes=label, mu_1=f1 * m1, mu_2=f2 * m2,
                                  slope_1=kpa(d1), slope_2=kpa(d2)))  # fmt: skip
@@ -259,8 +265,18 @@ def exceptional_drift_cases(roof, sk: float, params: ParameterSet, cases, skippe
         log = StepLog()
         h, b1, b2 = (x * M_PER_FT for x in (st.height, st.upper_length, st.lower_length))
         v = exceptional.step_drift(h, b1, b2, sk, params, log)
-        peak = float(roof_load(v["mu1"], 1.0, 1.0, sk, log, symbol="s_1",
-                               what="exceptional drift at the wall", situation="exceptional_drift"))
+        peak = float(
+            roof_load(
+                v["mu1"],
+                1.0,
+                1.0,
+                sk,
+                log,
+                symbol="s_1",
+                what="exceptional drift at the wall",
+                situation="exceptional_drift",
+            )
+        )
         cases.append(case_record("exceptional_drift", f"exceptional drift at taller construction "
                                  f"'{st.name}'", ACCIDENTAL, log, source="step", mu1=v["mu1"],
                                  ls=metres(v["ls"]), peak=kpa(peak),
@@ -279,10 +295,19 @@ def exceptional_drift_cases(roof, sk: float, params: ParameterSet, cases, skippe
         peak = float(roof_load(v["mu1"], 1.0, 1.0, sk, log, symbol="s_1",
                                what=f"exceptional drift at the {kind}",
                                situation="exceptional_drift"))  # fmt: skip
-        cases.append(case_record("exceptional_drift", f"exceptional drift at {kind} '{p.name}'",
-                                 ACCIDENTAL, log, source=kind, mu1=v["mu1"], ls=metres(v["ls"]),
-                                 peak=kpa(peak),
-                                 note="mu1 at the " + kind + ", falling linearly to 0 at ls"))
+        cases.append(
+            case_record(
+                "exceptional_drift",
+                f"exceptional drift at {kind} '{p.name}'",
+                ACCIDENTAL,
+                log,
+                source=kind,
+                mu1=v["mu1"],
+                ls=metres(v["ls"]),
+                peak=kpa(peak),
+                note="mu1 at the " + kind + ", falling linearly to 0 at ls",
+            )
+        )
     if roof.shape == "multi-span":
         skipped.append({"case": "exceptional_drift", "name": "valley",
                         "reason": "not computed: the exceptional valley drift of multi-span roofs "

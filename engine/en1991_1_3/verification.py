@@ -43,6 +43,7 @@ SSB03_AT = "https://infosteel.be/images/Steel-Buildings-in-Europe/SSB03/"
 def _ssb(clause: str, sheets: str, pages: str) -> str:
     return f"EN 1991-1-3 {clause}, {SSB03}, {sheets}, {SSB03_AT}{pages}"
 
+
 HAND = "hand calculation"
 MEMORY = "(from memory)"
 

@@ -145,8 +145,11 @@ roof_options = _stack(
         type=click.Path(dir_okay=False),
         help="ROOF.toml describing the roof (options below override it).",
     ),
-    click.option("--shape", help="Roof shape: flat, monoslope, gable, hip, multi-span, "
-                 "cylindrical (monopitch = monoslope, duopitch = gable)."),
+    click.option(
+        "--shape",
+        help="Roof shape: flat, monoslope, gable, hip, multi-span, "
+        "cylindrical (monopitch = monoslope, duopitch = gable).",
+    ),
     click.option("--slope", help="Roof slope, e.g. 6:12 or 26.6deg."),
     click.option("--surface", help=_roof_help("surface")),
     click.option("--ct", help=_roof_help("ct")),
@@ -167,7 +170,9 @@ roof_options = _stack(
     click.option("--topography", help=_own_help("topography")),
     click.option("--annex", metavar="NAME|FILE.toml", help=_own_help("annex")),
     click.option("--snow-case", "snow_case", help=_own_help("snow_case")),
-    click.option("--return-period", "return_period", metavar="YEARS", help=_own_help("return_period")),
+    click.option(
+        "--return-period", "return_period", metavar="YEARS", help=_own_help("return_period")
+    ),
     click.option("--cov", metavar="V", help=_own_help("cov")),
     click.option("--other-slope", "other_slope", help=_own_help("other_slope")),
     click.option("--rise", help=_own_help("rise")),
@@ -585,7 +590,8 @@ def command_echo() -> str:
     for param in ctx.command.params:
         name = param.name
         if name is None or ctx.get_parameter_source(name) not in (
-            ParameterSource.COMMANDLINE, ParameterSource.ENVIRONMENT
+            ParameterSource.COMMANDLINE,
+            ParameterSource.ENVIRONMENT,
         ):
             continue
         value = ctx.params.get(name)

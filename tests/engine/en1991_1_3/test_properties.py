@@ -56,14 +56,16 @@ def test_obstruction_within_bounds(h, sk):
 
 
 @FAST
-@given(st.sampled_from(["flat", "monoslope", "gable", "multi-span"]), st.floats(0.0, 59.0),
-       sks, sks)
+@given(
+    st.sampled_from(["flat", "monoslope", "gable", "multi-span"]), st.floats(0.0, 59.0), sks, sks
+)
 def test_loads_non_decreasing_in_sk(shape, alpha, a, b):
     lo, hi = sorted((a, b))
     slope = "0deg" if shape == "flat" else f"{alpha}deg"
     steps = [{"name": "t", "height": "3m", "upper_length": "10m", "lower_length": "20m"}]
-    roof = Roof.from_mapping({"shape": shape, "slope": slope, "step": steps, "snow_case": "B3",
-                              "unobstructed": True})
+    roof = Roof.from_mapping(
+        {"shape": shape, "slope": slope, "step": steps, "snow_case": "B3", "unobstructed": True}
+    )
     r_lo, r_hi = analyze_roof(lo, roof), analyze_roof(hi, roof)
     assert r_lo.design_uniform <= r_hi.design_uniform + 1e-12
     for c_lo, c_hi in zip(r_lo.cases, r_hi.cases, strict=True):

@@ -62,8 +62,10 @@ def test_monopitch_slides_unless_retained():
     unstated = analyze_roof(1.0, _roof(shape="monopitch", slope="45deg"))
     assert unstated.cases[0]["mu1"] == pytest.approx(0.8)
     assert "snow_retention_unstated" in unstated.flags
-    assert "snow_retention_unstated" not in analyze_roof(1.0, _roof(shape="monopitch",
-                                                                    slope="20deg")).flags
+    assert (
+        "snow_retention_unstated"
+        not in analyze_roof(1.0, _roof(shape="monopitch", slope="20deg")).flags
+    )
 
 
 def test_duopitch_arrangements_ssb03():
@@ -116,6 +118,7 @@ def test_cylinder_needs_rise_and_span_and_a_real_arc():
 
 # --- Ce, Ct, sAd, Annex D ---------------------------------------------------------------------
 
+
 @pytest.mark.parametrize(("topography", "ce"), [("windswept", 0.8), ("normal", 1.0),
                                                 ("sheltered", 1.2)])  # fmt: skip
 def test_exposure_table_5_1(topography, ce):
@@ -158,13 +161,19 @@ def test_return_period_annex_d():
     assert r.sn == pytest.approx(0.65 * expected)
     assert r.return_period["years"] == 100.0
     assert analyze_roof(1.0, _roof(return_period="10y", cov=0.4)).sn < 1.0
-    for bad in ({"return_period": "100y"}, {"cov": 0.4}, {"return_period": "2y", "cov": 0.4},
-                {"return_period": "100y", "cov": 0.0}, {"return_period": "soon", "cov": 0.3}):
+    for bad in (
+        {"return_period": "100y"},
+        {"cov": 0.4},
+        {"return_period": "2y", "cov": 0.4},
+        {"return_period": "100y", "cov": 0.0},
+        {"return_period": "soon", "cov": 0.3},
+    ):
         with pytest.raises(InputError):
             analyze_roof(1.0, _roof(**bad))
 
 
 # --- 5.3.6 and Section 6 ------------------------------------------------------------------------
+
 
 def _step(h, b1="10m", b2="40m", **more):
     return {"name": "tower", "height": h, "upper_length": b1, "lower_length": b2, **more}
@@ -248,6 +257,7 @@ def test_annex_b_only_in_cases_b2_b3():
 
 # --- parameter sets -----------------------------------------------------------------------------
 
+
 def test_recommended_file_is_the_engines_table():
     # the shipped recommended.toml and the engine's recommended values cannot drift apart
     path = resources.files("neve.engine.en1991_1_3").joinpath("annexes/recommended.toml")
@@ -260,8 +270,11 @@ def test_recommended_file_is_the_engines_table():
 def test_a_users_parameter_set_file(tmp_path):
     # invented values (test fixture, not any country's annex)
     f = tmp_path / "mine.toml"
-    f.write_text('name = "mine"\ntitle = "invented"\nsource = "test fixture"\ndemo = true\n'
-                 '[values]\nCe_normal = 1.1\nCesl = 3.0\ndesign_case = "B1"\n', encoding="utf-8")
+    f.write_text(
+        'name = "mine"\ntitle = "invented"\nsource = "test fixture"\ndemo = true\n'
+        '[values]\nCe_normal = 1.1\nCesl = 3.0\ndesign_case = "B1"\n',
+        encoding="utf-8",
+    )
     r = _cli("roof", "--standard", "en1991-1-3", "--sk", "1kPa", "--annex", f, "--format",
              "json")  # fmt: skip
     assert r.exit_code == 0, r.output
@@ -279,6 +292,7 @@ def test_a_users_parameter_set_file(tmp_path):
 
 
 # --- the CLI contract ---------------------------------------------------------------------------
+
 
 def test_issue_command_prints_the_contract():
     r = _cli("roof", "--standard", "en1991-1-3", "--sk", "0.65kPa", "--shape", "gable", "--slope",
