@@ -110,6 +110,13 @@ FLAG_TABLE: tuple[Flag, ...] = (
     Flag("upper_pf_assumed", 36, "roof", "the upper roof's pf taken as this roof's"),
     Flag("w2_needed", 37, "roof", "cases that need the winter wind parameter W2 not computed"),
     Flag("thermal_upper_bound", 38, "roof", "Ct is the upper bound of the heated-roof table"),
+    # EN 1991-1-3 (issue 13)
+    Flag("topography_assumed", 39, "roof", "Ce from the default (normal) topography"),
+    Flag("ct_reduced", 40, "roof", "a thermal coefficient below 1.0 given: to be justified"),
+    Flag("snow_retention_unstated", 41, "roof", "whether snow can slide off not stated"),
+    Flag("upper_slope_unstated", 42, "roof", "the upper roof's slope not given: no sliding snow"),
+    Flag("altitude_unstated", 43, "roof", "site altitude not given: overhanging snow applied"),
+    Flag("demo_parameters", 44, "roof", "the parameter set is invented (demo)"),
     Flag("bad_coordinates", 56, "note", "coordinates missing or out of range: no look-up"),
     Flag("near_unknown", 57, "note", "a zone within the tolerance has no usable value"),
     Flag("near_valued", 58, "note", "a zone within the tolerance has another usable value"),
