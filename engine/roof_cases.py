@@ -278,7 +278,7 @@ def _name_governing(mine: list[dict]) -> None:
     best = max(mine, key=key)
     best["governing"] = True
     best["name"] += " (governs)"
-    best["note"] += "; governs: the larger leeward peak of the two wind directions (check both)"
+    best["note"] += "; governs: the largest leeward peak of the cases of both wind directions (check all)"
 
 
 # --- drifts at parapets and projections ---------------------------------------------
