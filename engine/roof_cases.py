@@ -129,8 +129,11 @@ def place_labels(roof: Roof) -> dict[tuple[str, int], Label]:
     """
     parts = [
         (kind, i, p)
-        for kind, group in (("step", roof.steps), ("parapet", roof.parapets),
-                            ("projection", roof.projections))  # fmt: skip
+        for kind, group in (
+            ("step", roof.steps),
+            ("parapet", roof.parapets),
+            ("projection", roof.projections),
+        )  # fmt: skip
         for i, p in enumerate(group)
     ]
     names = [p.name for _, _, p in parts]
@@ -216,7 +219,11 @@ def unbalanced_cases(
                     flags.append(flag)
                 name = "general method" + (f", wind from side {side}" if side else "")
                 skipped.append(
-                    {"case": "unbalanced", "name": name, "reason": f"{reason} ({clauses.unbalanced})"}
+                    {
+                        "case": "unbalanced",
+                        "name": name,
+                        "reason": f"{reason} ({clauses.unbalanced})",
+                    }
                 )
                 continue
             log = StepLog()
@@ -278,7 +285,9 @@ def _name_governing(mine: list[dict]) -> None:
     best = max(mine, key=key)
     best["governing"] = True
     best["name"] += " (governs)"
-    best["note"] += "; governs: the largest leeward peak of the cases of both wind directions (check all)"
+    best["note"] += (
+        "; governs: the largest leeward peak of the cases of both wind directions (check all)"
+    )
 
 
 # --- drifts at parapets and projections ---------------------------------------------
@@ -333,8 +342,11 @@ def projection_cases(
             entry = {"case": "drift", "name": plain, "place": place}
             if bool(exempt(face)):
                 skipped.append(
-                    dict(entry, reason=f"side {fmt(face)} ft long is under "
-                         f"{fmt(exempt_length)} ft ({clauses.obstruction})")  # fmt: skip
+                    dict(
+                        entry,
+                        reason=f"side {fmt(face)} ft long is under "
+                        f"{fmt(exempt_length)} ft ({clauses.obstruction})",
+                    )  # fmt: skip
                 )
                 continue
             log = StepLog()
@@ -354,7 +366,9 @@ def projection_cases(
                     w_on_roof=length_json(w_on),
                     pd_far_edge=load_json(pd_far),
                 )
-            cases.append(drift_case(f"drift at projection {name}", "projection", d, ps, log, **extra))
+            cases.append(
+                drift_case(f"drift at projection {name}", "projection", d, ps, log, **extra)
+            )
 
 
 def _log_fetch(log, side, length, opposite, lu, clauses) -> None:

@@ -198,7 +198,9 @@ def ice_dam_case(pf, warm: bool, roof: Roof, cases, skipped, flags) -> None:
     """Ice dams on the overhang of a warm roof (Sec. 7.4.5)."""
     if roof.overhang is None:
         return
-    applies, f = (False, []) if pf <= 0 else eaves.ice_dam_applies(warm, roof.ventilated, roof.r_value)
+    applies, f = (
+        (False, []) if pf <= 0 else eaves.ice_dam_applies(warm, roof.ventilated, roof.r_value)
+    )
     flags += f
     rc.ice_dam_case(pf, applies, lambda log: eaves.ice_dam_load(pf, log), roof, CLAUSES, cases,
                     skipped)  # fmt: skip
