@@ -76,6 +76,8 @@ def drift_cases(pg, ps, roof: Roof, cases, skipped) -> None:
         kind = "adjacent structure" if st.separation > 0 else "roof step"
         d = dict(d, reason=rc.join_notes(d.get("reason", ""), rc.existing_note(st, CLAUSES)))
         extra = {"lower_roof": "existing"} if st.lower_roof == "existing" else {}
+        if st.upper_parapet is not None:
+            extra["upper_parapet"] = length_json(st.upper_parapet)
         cases.append(
             rc.drift_case(
                 f"drift at {kind} {label.quoted}",

@@ -98,6 +98,8 @@ def drift_cases(pg, ps, roof: Roof, w2, cases, skipped, flags) -> None:
             continue
         kind = "adjacent structure" if st.separation > 0 else "roof step"
         extra = {"lower_roof": "existing"} if st.lower_roof == "existing" else {}
+        if st.upper_parapet is not None:
+            extra["upper_parapet"] = length_json(st.upper_parapet)
         for d in v["drifts"]:
             d = dict(d, reason=rc.join_notes(d.get("reason", ""), rc.existing_note(st, CLAUSES)))
             cases.append(
