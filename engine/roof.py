@@ -61,6 +61,9 @@ class RoofResult:
                 "surface": r.surface,
                 "risk": self.factors["risk"],
                 "eave_to_ridge": length_json(r.eave_to_ridge),
+                "eave_to_ridge_sides": None
+                if r.eave_to_ridge_sides is None
+                else [length_json(w) for w in r.eave_to_ridge_sides],
             },
             "factors": {k: self.factors[k] for k in ("Ce", "Ct", "Is", "Cs")},
             "loads": {k: load_json(v) for k, v in self.loads.items()},

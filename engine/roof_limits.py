@@ -55,11 +55,20 @@ RANGES: dict[str, Bound] = {
     "step.separation": Bound(0.0, 5000.0, "ft", why="0 for a step in one structure; drifts stop at 20 ft (adjacent structures)"),
     "step.upper_eave_to_ridge": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
     "step.upper_pf": Bound(0.0, PG_MAX_PSF, "psf", why="the ground snow load bound"),
+    "step.upper_parapet": Bound(0.0, 50.0, "ft", lo_open=True, why="taller walls are a roof step"),
+    "step.upper_ce": Bound(0.7, 1.2, why="the extremes of the standard's exposure factor table"),
+    "step.upper_ct": Bound(0.85, 1.3, why="the extremes of the standard's thermal factor table"),
+    "step.upper_is": Bound(0.8, 1.2, why="the extremes of the standard's snow importance factors"),
     "parapet.height": Bound(0.0, 50.0, "ft", lo_open=True, why="taller walls are a roof step"),
     "parapet.upwind_length": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
     "projection.height": Bound(0.0, 100.0, "ft", lo_open=True, why="a rooftop penthouse"),
     "projection.plan_length": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
     "projection.upwind_length": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
+    "projection.length_left": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
+    "projection.length_right": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
+    "projection.plan_width": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
+    "projection.length_front": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
+    "projection.length_back": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
 }  # fmt: skip
 
 #: yes/no keys and the key that says the opposite (``unventilated = true`` is

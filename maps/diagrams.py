@@ -278,10 +278,22 @@ def _draw_step(ax, case, roof_json, adjacent=False):
     cut = (_psf(case.get("pd_far_edge")) or 0.0) > 0 and w and won is not None and won < w
     if cut:
         xe = x0 + max(ww * won / w, 1.3)
-    # structure
-    _patch(ax, [(0.3, yu), (xw, yu), (xw, yl - (1.35 if adjacent else 0.0)),
+    # structure; a parapet on the upper roof at the step stands on its edge, its top at yu
+    hp_ft, hb_ft, hc_ft = (_ft(case.get(k)) for k in ("upper_parapet", "hb", "hc"))
+    pp = 0.0
+    if hp_ft and hb_ft is not None and hc_ft:
+        pp = _clamp((bb + cc) * hp_ft / (hb_ft + hc_ft), 0.3, 0.6 * cc)
+    yr = yu - pp  # the upper roof's surface
+    _patch(ax, [(0.3, yr), (xw, yr), (xw, yl - (1.35 if adjacent else 0.0)),
                 (0.3, yl - (1.35 if adjacent else 0.0))], "interior")  # fmt: skip
-    _line(ax, [0.3, xw, xw], [yu, yu, yl - (1.35 if adjacent else 0.0)])
+    _line(ax, [0.3, xw, xw], [yr, yr, yl - (1.35 if adjacent else 0.0)])
+    if pp:
+        _patch(ax, _rect(xw - 0.22, xw, yr, yu), "solid")
+        # hp between the hb/hd column (xw - 0.32) and the hc column (xw - 1.08); the word
+        # beyond the hc column
+        _vdim(ax, xw - 0.62, yr, yu, "hp")
+        _ext(ax, xw - 0.62, xw - 0.22, yu)
+        _text(ax, xw - 1.25, (yr + yu) / 2, "parapet", ha="right")
     _line(ax, [x0, xe, xe], [yl, yl, yl - 0.35])
     if adjacent:
         _line(ax, [x0, x0], [yl, yl - 1.35])
@@ -294,7 +306,7 @@ def _draw_step(ax, case, roof_json, adjacent=False):
     else:
         _patch(ax, [(x0, yb), (x0, yb + dd), (x0 + ww, yb)], "surcharge")
     # names
-    _text(ax, 0.42, yu - 0.1, "upper roof", ha="left", va="top")
+    _text(ax, 0.42, yr - 0.1, "upper roof", ha="left", va="top")
     # a short lower roof: its name beyond the far edge, clear of the edge's line
     _text(ax, (xe if cut else x0) + 0.15, yl - 0.1, "lower roof", ha="left", va="top")
     _text(ax, xe - 0.12, (yl + yb) / 2, "ps", ha="right", style="italic")
@@ -327,6 +339,9 @@ def _draw_step(ax, case, roof_json, adjacent=False):
     rows = _drift_rows(case, roof_json, "lower roof" if windward else "upper roof")
     if gap is not None:
         rows.append((None, "s", "separation", style.length_text(gap)))
+    if pp:
+        rows.append((None, "hp", "parapet on the upper roof (in hc)",
+                     style.length_text(case["upper_parapet"])))  # fmt: skip
     return rows, []
 
 
@@ -391,9 +406,17 @@ def _draw_projection(ax, case, roof_json):
     if case.get("hc"):
         _vdim(ax, c2, yb, yt, "hc", side="right")
     _hdim(ax, xa - ww, xa, 0.35, "w")
-    if fetch(case) is not None:
+    side, length = case.get("side"), case.get("roof_length")
+    if side and length:  # a drift per side: the roof length of this side; lu the greater one
+        _hdim(ax, 0.4, xa, -0.3, "l")
+    elif fetch(case) is not None:
         _hdim(ax, 0.4, xa, -0.3, "lu")
     _wind(ax, 1.0, 2.8, max(yt, yb + dd) + 0.45)
+    if side and length:
+        rows = _drift_rows(case, roof_json, "the greater roof length of the two sides")
+        rows.append((None, "l", f"roof length, {side} side", style.length_text(length)))
+        note = f"the {side} side; dashed: the drift on the opposite side, from the same lu"
+        return rows, [note]
     note = "dashed: the same drift on another side, with the wind from that side"
     return _drift_rows(case, roof_json, "roof upwind"), [note]
 
@@ -447,11 +470,20 @@ def _draw_unbalanced(ax, case, roof_json):
     desc = (roof_json or {}).get("roof") or {}
     ww, lw, sc = (_psf(case.get(k)) or 0.0 for k in ("windward", "leeward", "surcharge"))
     ext = _ft(case.get("surcharge_extent")) or 0.0
-    w_roof = _ft(desc.get("eave_to_ridge"))
+    # an asymmetric roof: each case knows its leeward side's W (the side drawn dimensioned)
+    w_lee = case.get("leeward_eave_to_ridge") or desc.get("eave_to_ridge")
+    w_roof = _ft(w_lee)
     xl, xr, xe = 0.6, 5.0, 9.4
+    w_wind = _ft(case.get("windward_eave_to_ridge"))
+    if w_wind and w_roof:  # an asymmetric roof: the ridge off the middle, within bounds
+        xr = xl + (xe - xl) * _clamp(w_wind / (w_wind + w_roof), 0.3, 0.7)
     slope = fmt._finite(desc.get("slope_deg"))
-    rise = _clamp((xr - xl) * math.tan(math.radians(slope)), 0.45, 2.0) if slope else 1.2
-    yr, y0 = 1.0 + rise, 3.7
+    t = math.tan(math.radians(slope)) if slope else 0.0
+    rise_l, rise_r = ((xr - xl) * t, (xe - xr) * t) if t else (1.2, 1.2)
+    top = max(rise_l, rise_r)
+    k_rise = _clamp(top, 0.45, 2.0) / top  # the higher side within bounds, the other alike
+    yr, y0 = 1.0 + top * k_rise, 3.7
+    ye_l, ye_r = yr - rise_l * k_rise, yr - rise_r * k_rise
     k = 2.3 / max(ww, lw + sc, 1e-9)
     hw = _clamp(ww * k, 0.3, 2.3) if ww > 0 else 0.0
     hl = _clamp(lw * k, 0.5, 2.3)
@@ -459,8 +491,8 @@ def _draw_unbalanced(ax, case, roof_json):
     if hl + hs > 2.4:
         hl = max(2.4 - hs, 0.5)
     xx = _clamp((xe - xr) * (ext / w_roof if w_roof else 0.4), 1.3, 2.8) if hs else 0.0
-    _patch(ax, [(xl, 1.0), (xr, yr), (xe, 1.0), (xe, 0.25), (xl, 0.25)], "interior")
-    _line(ax, [xl, xl, xr, xe, xe], [0.25, 1.0, yr, 1.0, 0.25])
+    _patch(ax, [(xl, ye_l), (xr, yr), (xe, ye_r), (xe, 0.25), (xl, 0.25)], "interior")
+    _line(ax, [xl, xl, xr, xe, xe], [0.25, ye_l, yr, ye_r, 0.25])
     _line(ax, [xr, xr], [1.0, y0], lw=0.7, colour=_C["muted"], ls=(0, (4, 2)))
     _text(ax, xr, 0.92, "ridge", va="top", colour=_C["muted"])
     if hw:
@@ -496,14 +528,23 @@ def _draw_unbalanced(ax, case, roof_json):
                 style.length_text(case.get("surcharge_extent")),
             )
         )
-    if w_roof:
-        rows.append((None, "W", "eave to ridge", style.length_text(desc.get("eave_to_ridge"))))
+    if w_roof and case.get("wind_from"):
+        rows.append((None, "W", "eave to ridge, leeward side", style.length_text(w_lee)))
+        rows.append((None, "W wind", "eave to ridge, windward side",
+                     style.length_text(case.get("windward_eave_to_ridge"))))  # fmt: skip
+    elif w_roof:
+        rows.append((None, "W", "eave to ridge", style.length_text(w_lee)))
     lu = fetch(case)
     if lu is not None:
         rows.append((None, "lu", "fetch of the surcharge", style.length_text(lu)))
     if slope is not None:
         rows.append((None, "slope", "roof slope", fmt.pitch_text(slope)))
-    return [r for r in rows if not r[3].startswith("none")], []
+    notes = []
+    if case.get("wind_from") in ("A", "B"):
+        a = case["wind_from"]
+        b = "B" if a == "A" else "A"
+        notes.append(f"wind from side {a}: side {a} is drawn windward (left), side {b} leeward")
+    return [r for r in rows if not r[3].startswith("none")], notes
 
 
 def _draw_ice_dam(ax, case, roof_json):

@@ -181,3 +181,26 @@ def seismic_snow_weight(pf, design_uniform):
     pf = np.asarray(pf, dtype=float)
     base = np.fmax(pf, np.asarray(design_uniform, dtype=float))
     return np.where(pf > SEISMIC_PF_THRESHOLD, SEISMIC_SHARE * base, 0.0)
+
+
+#: slope below which a roof's deflections under the full snow load are to be
+#: investigated for ponding instability [deg]: 1/4 on 12 (Sec. 7.11, with the rain
+#: chapter's Sec. 8.4; from memory)
+PONDING_SLOPE_DEG = float(np.degrees(np.arctan2(0.25, 12.0)))
+
+
+def ponding_check_required(slope) -> np.ndarray:
+    """Whether a roof needs a ponding-instability check [bool].
+
+    Roofs with a slope under 1/4 on 12 (1.19 degrees) are to be checked for
+    ponding instability from rain-on-snow or snow meltwater: their
+    deflections under the full snow load are investigated as the rain
+    provisions require.  neve flags the roof (``ponding_check_required``);
+    it does not work the check, which needs the roof's stiffness.  A slope
+    of exactly 1/4 on 12 is not under it.
+
+    References
+    ----------
+    ASCE 7-22 Sec. 7.11 and Sec. 8.4 (from memory).
+    """
+    return np.asarray(slope, dtype=float) < PONDING_SLOPE_DEG - 1e-9

@@ -164,7 +164,9 @@ def test_text_format_shows_steps_flags_and_cautions():
         (["--pg", "35psf", "--shape", "curved"], "shape", "flat, monoslope, gable, hip"),
         (["--pg", "35psf", "--shape", "sawtooth"], "shape", "flat, monoslope, gable, hip"),
         (["--pg", "35psf", "--ct", "abc"], "ct", "number"),
-        (["--pg", "35psf", "--shape", "gable", "--slope", "6:12"], "eave_to_ridge", "30ft"),
+        # issue 12: a gable without W is worked (unbalanced not computed); an asymmetric
+        # gable with one W of its two is refused
+        (["--pg", "35psf", *GABLE[:4], "--eave-to-ridge", "30ft,"], "eave_to_ridge", "30ft,20ft"),
         (["--pg", "35psf", "--roof", "/nonexistent/ROOF.toml"], "roof", "TOML"),
     ],
 )

@@ -135,7 +135,8 @@ roof_options = _stack(
     click.option(
         "--eave-to-ridge",
         "eave_to_ridge",
-        help="Horizontal eave-to-ridge distance W, e.g. 30ft.",
+        help="Horizontal eave-to-ridge distance W, e.g. 30ft; an asymmetric gable or hip "
+        "roof: one per side, 30ft,20ft.",
     ),
     click.option("--r-value", "r_value", help=_roof_help("r_value")),
     _pair("--ventilated/--unventilated", "ventilated", _roof_help("ventilated")),
