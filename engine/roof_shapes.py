@@ -30,12 +30,13 @@ read for a curved roof), its ``eave_to_ridge`` the eave-to-crown distance
 
 from __future__ import annotations
 
+import math
 from collections.abc import Mapping
 
 from neve.engine.errors import InputError
 from neve.engine.roof_geometry import arc_from, ridge_to_valley
 from neve.engine.roof_limits import RANGES
-from neve.engine.units import parse_length, parse_slope
+from neve.engine.units import length_json, parse_length, parse_slope
 
 #: shapes whose profile is a circular arc
 CURVED_SHAPES = ("curved", "dome")
@@ -44,7 +45,7 @@ MULTISPAN_SHAPES = ("sawtooth",)
 #: other names accepted for the new shapes -> the shape neve works them as
 SHAPE_ALIASES = {"arch": "curved", "folded-plate": "sawtooth", "barrel-vault": "sawtooth"}
 #: the ROOF.toml keys (and option names, ``-`` for ``_``) of the new shapes
-SHAPE_KEYS = ("rise", "chord", "diameter", "eave_slope", "ridge_height", "spans")
+SHAPE_KEYS = ("rise", "chord", "diameter", "eave_slope", "eave_abutted", "ridge_height", "spans")
 #: which shapes each key (and Roof attribute) belongs to
 _KEY_SHAPES = {
     "rise": CURVED_SHAPES,
@@ -67,15 +68,18 @@ def _not_for(key: str, shape: str) -> InputError:
 
 
 def _spans(value) -> int:
+    """A whole number of spans (``3``, ``"3"``, ``3.0``) checked against ``RANGES["spans"]``."""
     bound = RANGES["spans"]
-    if isinstance(value, bool) or (isinstance(value, float) and not value.is_integer()):
+    if isinstance(value, bool):
         raise InputError("spans", f"{value!r} is not a whole number", bound.text())
     try:
-        n = int(str(value).strip())
+        x = float(str(value).strip())
     except ValueError:
-        raise InputError("spans", f"{value!r} is not a whole number", bound.text()) from None
-    bound.check(n, "spans")
-    return n
+        x = math.nan
+    if not (math.isfinite(x) and x.is_integer()):
+        raise InputError("spans", f"{value!r} is not a whole number", bound.text())
+    bound.check(x, "spans")
+    return int(x)
 
 
 def shape_fields(shape: str, data: Mapping) -> dict:
@@ -115,7 +119,7 @@ def shape_fields(shape: str, data: Mapping) -> dict:
     if shape in CURVED_SHAPES:  # missing lengths are named before the roof is built
         arc_from(out.get("rise"), out.get("chord"), out.get("eave_slope"),
                  chord_name="diameter" if shape == "dome" else "chord", roof_word=shape)  # fmt: skip
-    if shape in MULTISPAN_SHAPES and "ridge_height" not in out:
+    if shape in MULTISPAN_SHAPES and "ridge_height" not in out and "slope" in data:
         raise InputError(
             "ridge_height",
             f"needed for a {shape} roof (the ridge-to-valley height hr, which limits the "
@@ -169,3 +173,39 @@ def check_shape_fields(roof) -> dict:
             if w is not None and RANGES["eave_to_ridge"].contains(w):
                 out["eave_to_ridge"] = w
     return {k: v for k, v in out.items() if getattr(roof, k) != v}
+
+
+def shape_json(roof) -> dict:
+    """The roof description keys of the new shapes (``{}`` for a plane roof).
+
+    Curved roof or dome: ``rise``, ``chord`` (a dome's base diameter),
+    ``eave_slope_deg`` (the arc's) and ``eave_abutted``; multi-span roof:
+    ``ridge_height`` and ``spans``.
+    """
+    if roof.shape in CURVED_SHAPES:
+        arc = roof_arc(roof)
+        return {"rise": length_json(arc.rise), "chord": length_json(arc.chord),
+                "eave_slope_deg": round(arc.eave_slope, 3), "eave_abutted": roof.eave_abutted}  # fmt: skip
+    if roof.shape in MULTISPAN_SHAPES:
+        return {"ridge_height": length_json(roof.ridge_height), "spans": roof.spans}
+    return {}
+
+
+def shape_text(roof_json: Mapping) -> str | None:
+    """One line describing a curved, dome or multi-span roof's geometry (None for others)."""
+    from neve.engine.format import quantity_text, slope_text
+
+    if roof_json.get("rise"):
+        word = "diameter" if roof_json.get("shape") == "dome" else "chord"
+        abut = {True: "ground or a roof abuts the eave", False: "eave clear",
+                None: "abutment at the eave not stated"}[roof_json.get("eave_abutted")]  # fmt: skip
+        return (f"  arc: rise {quantity_text(roof_json['rise'])}, {word} "
+                f"{quantity_text(roof_json.get('chord'))}, eave slope "
+                f"{slope_text(roof_json.get('eave_slope_deg'))} (the slope above is the line "
+                f"from eave to crown); {abut}")  # fmt: skip
+    if roof_json.get("ridge_height"):
+        spans = roof_json.get("spans")
+        return (f"  multi-span: ridge height hr {quantity_text(roof_json['ridge_height'])}, "
+                f"ridge to valley {quantity_text(roof_json.get('eave_to_ridge'))}"
+                + (f", {spans} spans" if spans else ""))  # fmt: skip
+    return None

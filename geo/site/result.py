@@ -110,6 +110,8 @@ FLAG_TABLE: tuple[Flag, ...] = (
     Flag("upper_pf_assumed", 36, "roof", "the upper roof's pf taken as this roof's"),
     Flag("w2_needed", 37, "roof", "cases that need the winter wind parameter W2 not computed"),
     Flag("thermal_upper_bound", 38, "roof", "Ct is the upper bound of the heated-roof table"),
+    # issue 12 (curved roofs); bits from 52 down, so that other roof flags can take 39 up
+    Flag("eave_abutment_unstated", 52, "roof", "curved roof: abutment at the eave not stated"),
     Flag("bad_coordinates", 56, "note", "coordinates missing or out of range: no look-up"),
     Flag("near_unknown", 57, "note", "a zone within the tolerance has no usable value"),
     Flag("near_valued", 58, "note", "a zone within the tolerance has another usable value"),

@@ -46,6 +46,18 @@ WHERE = {
     "projection.height": ("projection", "height", "ft"),
     "projection.plan_length": ("projection", "plan_length", "ft"),
     "projection.upwind_length": ("projection", "upwind_length", "ft"),
+    # issue 12: curved, dome and multi-span roofs
+    "rise": ("--rise", None, "ft"),
+    "chord": ("--chord", None, "ft"),
+    "ridge_height": ("--ridge-height", None, "ft"),
+    "spans": ("--spans", None, ""),
+}
+#: the rest of a roof that each issue-12 option needs (a long chord: any rise in range fits)
+SHAPED = {
+    "--rise": ["--shape", "curved", "--chord", "5000ft"],
+    "--chord": ["--shape", "curved", "--rise", "1ft"],
+    "--ridge-height": ["--shape", "sawtooth", "--slope", "3:12"],
+    "--spans": ["--shape", "sawtooth", "--slope", "3:12", "--ridge-height", "6ft"],
 }
 TABLES = {
     "step": dict(BASE_STEP),
@@ -71,6 +83,7 @@ def roof_args(key: str, text: str, tmp_path) -> list[str]:
         return pg
     if where.startswith("--"):
         shape = ["--shape", "gable", "--slope", "6:12"] if where == "--eave-to-ridge" else []
+        shape = SHAPED.get(where, shape)
         return [*pg, *shape, where, text]
     table = dict(TABLES[where], **{inner: text})
     doc = {"shape": "flat", where: table if where == "overhang" else [table]}
