@@ -19,8 +19,8 @@ from neve.cli.options import (
 )
 from neve.cli.site import site as _site_command
 from neve.engine.errors import InputError
-from neve.engine.roof_shapes import SHAPE_KEYS
 from neve.engine.jsonsafe import dumps
+from neve.engine.roof_shapes import SHAPE_KEYS
 
 #: the parameters of ``neve site`` that ``neve compare`` takes as they are
 SITE_PARAMS = (
