@@ -635,7 +635,7 @@ def _arc_sketch(ax, case, unbalanced: bool):
             _hdim(ax, xc, at(x_ft), next(lanes), sym)
             rows.append((None, sym, what, style.length_text(case.get(q))))
     rows.append((None, "h", "rise, eave to crown", style.length_text(case.get("rise"))))
-    cond = case.get("eave_condition")
+    cond = str(case.get("eave_condition") or "").split(":")[0]
     rows.append((None, "\u03b8e", f"slope at the eave (condition {cond})" if cond else
                  "slope at the eave", _deg(case.get("eave_slope_deg"))))  # fmt: skip
     return rows, y0, top * k

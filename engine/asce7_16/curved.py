@@ -182,7 +182,7 @@ def balanced(arc: Arc, pf, ct, slippery: bool, abutted: bool | None = None,
            "x_30": None, "x_70": None}  # fmt: skip
     ref = f"{STANDARD} Sec. 7.4.3"
     if log is not None:
-        log.add("p_crown", "balanced load at the crown", "p = Cs pf, Cs = 1",
+        log.add("p_cr", "balanced load at the crown", "p = Cs pf, Cs = 1",
                 f"p = 1 x {fmt(pf)}", pf, "psf", ref)  # fmt: skip
     if cond >= 2:
         cs = _point_cs(POINT_30_DEG, ct, slippery, log, "30")
@@ -270,7 +270,7 @@ def unbalanced(arc: Arc, pf, ce, ct, slippery: bool, abutted: bool | None = None
     if log is not None:
         log.add("p_wind", "unbalanced: windward side free of snow", "p = 0", "p = 0", 0.0,
                 "psf", ref)  # fmt: skip
-        log.add("p_crown", "unbalanced: leeward load at the crown", "p = 0.5 pf",
+        log.add("p_cr", "unbalanced: leeward load at the crown", "p = 0.5 pf",
                 f"p = 0.5 x {fmt(pf)}", out["leeward_crown"], "psf", _FIG)  # fmt: skip
     if cond >= 2:
         out["leeward_30"] = LEEWARD_FACTOR * pf / ce

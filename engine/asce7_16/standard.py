@@ -135,8 +135,9 @@ def uniform(quantities, roof) -> dict:
 
 def _verification():
     from neve.engine.asce7_16.verification import CASES
+    from neve.engine.asce7_16.verification_shapes import CASES as SHAPE_CASES  # issue 12
 
-    return CASES
+    return CASES + SHAPE_CASES
 
 
 ASCE_7_16 = register(

@@ -86,7 +86,7 @@ def _curved_values(v: dict, prefix: str, arc) -> dict:
     out["half_chord"] = length_json(arc.half_chord)
     out["rise"] = length_json(arc.rise)
     out["eave_slope_deg"] = round(arc.eave_slope, 3)
-    out["eave_condition"] = v["condition"]
+    out["eave_condition"] = f"{v['condition']}: {curved.EAVE_CONDITIONS_FIG_7_4_2[v['condition']]}"
     return out
 
 

@@ -146,8 +146,9 @@ def uniform(quantities, roof) -> dict:
 
 def _verification():
     from neve.engine.asce7_22.verification import CASES
+    from neve.engine.asce7_22.verification_shapes import CASES as SHAPE_CASES  # issue 12
 
-    return CASES
+    return CASES + SHAPE_CASES
 
 
 ASCE_7_22 = register(
