@@ -650,7 +650,7 @@ def _draw_curved_balanced(ax, case, roof_json):
         ("snow", "p 70", "at the 70\u00b0 point", _load(case.get("at_70"))),
         ("snow", "p eave", "at the eave", _load(case.get("eave"))),
     ]
-    notes = ["between the points the load follows Cs of the tangent slope (Fig. 7.4-1)"]
+    notes = ["between the points the load follows Cs of the tangent slope there"]
     return [r for r in loads + rows if not r[3].startswith("none")], notes
 
 
