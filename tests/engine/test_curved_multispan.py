@@ -373,3 +373,23 @@ def test_case_refs_through_the_registry():
         assert "Sec. 7.6.3" in std.case_ref({"case": "unbalanced", "method": "sawtooth"})
         assert "Sec. 7.6.4" in std.case_ref({"case": "unbalanced", "method": "dome"})
         assert "Sec. 7.6.1" in std.case_ref({"case": "unbalanced", "method": "general"})
+
+
+def test_the_readme_hangar_example():
+    # README: `neve roof --pg 35psf --roof examples/hangar.toml` (an invented roof).
+    # Hand calculation: pf = 0.7 x 0.9 x 1.2 x 35 = 26.46 psf (Ce fully exposed C, Ct
+    # unheated); c = 40, h = 18: R = (40^2 + 18^2) / 36 = 53.44 ft, eave slope
+    # asin(40 / 53.44) = 48.46 deg (condition 2); leeward 2 pf / Ce = 58.8 psf held to the
+    # abutted eave (Sec. 7.6.2, Fig. 7.4-2, from memory)
+    from pathlib import Path
+
+    path = Path(__file__).resolve().parents[2] / "examples" / "hangar.toml"
+    if not path.exists():
+        pytest.skip("examples/hangar.toml not in this checkout")
+    res = _run("--roof", str(path), "--format", "json")
+    assert res.exit_code == 0, res.output
+    data = json.loads(res.stdout)
+    assert data["roof"]["eave_slope_deg"] == pytest.approx(48.46, abs=0.01)
+    unb = only(data, "unbalanced", "curved")
+    assert psf(unb["leeward_30"]) == pytest.approx(2 * 26.46 / 0.9, abs=2e-3)
+    assert psf(unb["leeward_eave"]) == psf(unb["leeward_30"])
