@@ -57,6 +57,9 @@ class Arc:
             v = getattr(self, name)
             if not (isinstance(v, (int, float)) and math.isfinite(v) and v > 0):
                 raise InputError(name, f"{v!r} is not a positive length", "a length above 0 ft")
+        if not math.isfinite(self.radius):
+            raise InputError("rise", f"{self.rise!r} ft is too small beside the chord "
+                             f"{self.chord:g} ft to work as an arc", "a larger rise")  # fmt: skip
         if self.rise > self.chord / 2.0 * (1 + 1e-9):
             raise InputError(
                 "rise",
@@ -178,6 +181,8 @@ def ridge_to_valley(ridge_height: float, slope: float) -> float | None:
     >>> round(ridge_to_valley(6.0, math.degrees(math.atan2(3, 12))), 6)
     24.0
     """
-    if slope <= 0:
+    t = math.tan(math.radians(slope)) if slope > 0 else 0.0
+    if not t > 0:  # level, or so near level that the tangent underflows
         return None
-    return ridge_height / math.tan(math.radians(slope))
+    w = ridge_height / t
+    return w if math.isfinite(w) else None

@@ -83,6 +83,12 @@ def test_two_of_rise_chord_and_eave_slope_fix_the_arc():
 def test_ridge_to_valley():
     assert ridge_to_valley(6.0, math.degrees(math.atan2(3, 12))) == pytest.approx(24.0)
     assert ridge_to_valley(6.0, 0.0) is None
+    assert ridge_to_valley(1.0, 5e-324) is None  # the tangent underflows (found by hypothesis)
+
+
+def test_an_arc_too_flat_to_work_is_refused():
+    with pytest.raises(InputError, match="rise"):
+        Arc(1e-308, 5000.0)
 
 
 # --- Sec. 7.4.3 and 7.6.2: curved roofs -----------------------------------------------------
