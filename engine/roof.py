@@ -15,6 +15,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
+from neve.engine.roof_shapes import shape_json
 from neve.engine.roof_spec import Roof
 from neve.engine.units import length_json, load_json
 
@@ -73,6 +74,7 @@ class RoofResult:
             "flags": sorted(set(self.flags)),
             "cautions": list(self.cautions),
         }
+        out["roof"].update(shape_json(r))  # curved, dome, multi-span roofs only (issue 12)
         for key, value in self.extra.items():
             out.setdefault(key, value)
         return out

@@ -69,12 +69,17 @@ RANGES: dict[str, Bound] = {
     "projection.plan_width": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
     "projection.length_front": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
     "projection.length_back": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
+    # curved, dome and multi-span (sawtooth) roofs (issue 12)
+    "rise": Bound(0.0, 1000.0, "ft", lo_open=True, why="an arched hangar; at most half the chord"),
+    "chord": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
+    "ridge_height": Bound(0.0, 200.0, "ft", lo_open=True, why="the ridge-to-valley height of a multi-span roof"),
+    "spans": Bound(2.0, 1000.0, why="a multi-span roof has two spans or more"),
 }  # fmt: skip
 
 #: yes/no keys and the key that says the opposite (``unventilated = true`` is
 #: ``ventilated = false``); both of a pair on one level contradict each other
 BOOL_PAIRS = {"ventilated": "unventilated", "unobstructed": "obstructed",
-              "prismatic": "non_prismatic"}  # fmt: skip
+              "prismatic": "non_prismatic", "eave_abutted": "eave_clear"}  # fmt: skip
 #: keys that say the same thing in two ways: one level may use only one side,
 #: and a later level's side replaces an earlier level's other side
 _ALTERNATIVES = (

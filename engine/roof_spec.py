@@ -30,6 +30,14 @@ from neve.engine.roof_limits import (
     norm_keys,
     slope_check,
 )
+from neve.engine.roof_shapes import (
+    CURVED_SHAPES,
+    MULTISPAN_SHAPES,
+    SHAPE_ALIASES,
+    SHAPE_KEYS,
+    check_shape_fields,
+    shape_fields,
+)
 from neve.engine.units import parse_length, parse_load, parse_slope, slope_is_ratio
 
 __all__ = [
@@ -38,9 +46,10 @@ __all__ = [
 ]  # fmt: skip
 
 #: roof shapes covered by the engine
-SHAPES = ("flat", "monoslope", "gable", "hip")
+SHAPES = ("flat", "monoslope", "gable", "hip", *CURVED_SHAPES, *MULTISPAN_SHAPES)
 #: shapes that ASCE 7-16 covers but neve does not yet: refused with a clear message
-UNSUPPORTED_SHAPES = ("curved", "sawtooth", "folded-plate", "barrel-vault", "dome", "arch")
+#: (none since issue 12; kept for callers that ask)
+UNSUPPORTED_SHAPES: tuple[str, ...] = ()
 SURFACES = ("slippery", "other")
 #: shapes with two sides, each with its own eave-to-ridge distance
 TWO_SIDED = ("gable", "hip")
@@ -55,6 +64,7 @@ _ROOF_KEYS = {
     "shape", "slope", "surface", "ct", "thermal", "ce", "terrain", "exposure", "risk",
     "eave_to_ridge", "r_value", "ventilated", "unobstructed", "prismatic", "name",
     "step", "parapet", "projection", "overhang", *BOOL_PAIRS.values(),
+    *SHAPE_KEYS,
 }  # fmt: skip
 
 
@@ -337,6 +347,14 @@ class Roof:
     #: side B's eave-to-ridge distance W of an asymmetric gable or hip roof [ft]
     #: (``eave_to_ridge = ["30ft", "20ft"]``); None for a symmetric roof
     eave_to_ridge_b: float | None = None
+    # curved and dome roofs (a circular arc; see neve.engine.roof_shapes) and multi-span
+    # (sawtooth, folded plate, barrel vault) roofs, issue 12
+    rise: float | None = None  # eave to crown [ft]
+    chord: float | None = None  # eave to eave [ft]; a dome: its base diameter
+    eave_slope: float | None = None  # tangent slope at the eave [deg]
+    eave_abutted: bool | None = None  # ground or another roof at or within 3 ft of the eave
+    ridge_height: float | None = None  # ridge-to-valley height hr [ft]
+    spans: int | None = None  # number of spans of a multi-span roof
 
     def __post_init__(self):
         choose_key("shape", self.shape, SHAPES)
@@ -359,6 +377,8 @@ class Roof:
             RANGES["overhang.length"].check(self.overhang, "overhang.length")
         if self.shape == "flat" and self.slope > FLAT_SLOPE_MAX_DEG:
             flat_too_steep(self.slope, self.shape_stated)
+        for attr, value in check_shape_fields(self).items():  # derived: slope, W, the arc
+            object.__setattr__(self, attr, value)
 
     def replace(self, **changes) -> Roof:
         return replace(self, **changes)
@@ -402,6 +422,7 @@ class Roof:
                 "roof", f"unknown key(s) {', '.join(unknown)}", ", ".join(sorted(_ROOF_KEYS))
             )
         shape = str(data.get("shape", "flat")).strip().lower()
+        shape = SHAPE_ALIASES.get(shape.replace("_", "-").replace(" ", "-"), shape)
         if shape in UNSUPPORTED_SHAPES:
             from neve.engine.standards import get_standard
 
@@ -410,7 +431,18 @@ class Roof:
                 "shape", f"{shape!r} roofs are not covered by neve yet ({ref})", ", ".join(SHAPES)
             )
         shape = choose_key("shape", shape, SHAPES)
-        if "slope" in data:
+        shaped = shape_fields(shape, data)  # rise, chord, ridge_height ... (issue 12)
+        if "slope" in data and shape in CURVED_SHAPES:
+            raise InputError(
+                "slope",
+                f"a {shape} roof's slopes follow from its rise and "
+                f"{'diameter' if shape == 'dome' else 'chord'}",
+                "rise with " + ("diameter" if shape == "dome" else "chord")
+                + " (and eave_slope), without slope",
+            )
+        if shape in CURVED_SHAPES:
+            slope = 0.0  # the eave-to-crown line, set from the arc when the roof is built
+        elif "slope" in data:
             slope = parse_slope(data["slope"], "slope")
             if shape == "flat" and slope > FLAT_SLOPE_MAX_DEG:
                 flat_too_steep(slope, "shape" in data, data["slope"])
@@ -469,6 +501,7 @@ class Roof:
                     raise InputError("overhang.length", "missing", "a length such as 2ft")
                 oh = oh["length"]
             kw["overhang"] = _length({"length": oh}, "length", "overhang", "overhang.length")
+        kw.update(shaped)
         return cls(**kw)
 
 

@@ -21,6 +21,10 @@ MINIMUM_PG_LIMIT = 20.0
 #: slope below which a monoslope, hip or gable roof is "low-slope" for the
 #: minimum load [deg] (Sec. 7.3.4)
 MINIMUM_SLOPE_LIMIT = 15.0
+#: curved roofs and domes get the minimum load where the vertical angle from the
+#: eaves to the crown is under this [deg] (Sec. 7.3.4)
+MINIMUM_CROWN_ANGLE = 10.0
+CURVED_MINIMUM_SHAPES = ("curved", "dome")
 #: the rain-on-snow surcharge [psf] (Sec. 7.10)
 RAIN_ON_SNOW_SURCHARGE = 5.0
 #: pg at or below which (but above zero) the surcharge is considered [psf]
@@ -65,11 +69,18 @@ def minimum_applies(shape: str, slope) -> np.ndarray:
 
     It applies to monoslope, hip and gable roofs with a slope under 15
     degrees.  A roof given as ``flat`` is read as a low-slope monoslope roof
-    (common practice), so the minimum applies to it too.  Curved roofs are
-    outside the engine.
+    (common practice), so the minimum applies to it too.
+
+    Curved roofs and domes: where the vertical angle from the eaves to the
+    crown is under 10 degrees; ``slope`` is then that angle (the eave-to-crown
+    line, :mod:`neve.engine.roof_shapes`).  Multi-span (sawtooth, folded
+    plate, barrel vault) roofs are read as monoslope and gable faces: under 15
+    degrees (the clause names neither; applying it is conservative).
     """
     slope = np.asarray(slope, dtype=float)
-    if shape not in ("flat", "monoslope", "hip", "gable"):
+    if shape in CURVED_MINIMUM_SHAPES:
+        return slope < MINIMUM_CROWN_ANGLE
+    if shape not in ("flat", "monoslope", "hip", "gable", "sawtooth"):
         return np.zeros_like(slope, dtype=bool)
     return slope < MINIMUM_SLOPE_LIMIT
 

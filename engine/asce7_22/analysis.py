@@ -23,7 +23,7 @@ import math
 
 import numpy as np
 
-from neve.engine.asce7_22 import STANDARD, flat, slope, unbalanced
+from neve.engine.asce7_22 import STANDARD, flat, shape_cases, slope, unbalanced
 from neve.engine.asce7_22.cases import (
     case_record,
     drift_cases,
@@ -93,7 +93,12 @@ def _uniform(pg, roof: Roof, log: StepLog | None):
         roof.surface, ct_line, roof.unobstructed, roof.ventilated, roof.r_value
     )
     flags += sflags
-    cs = slope.slope_factor(roof.slope, ct_line, slippery, log)
+    # --- hook (issue 12): curved, dome and multi-span roofs, engine/asce7_22/shape_cases.py ---
+    if roof.shape in shape_cases.SHAPES:
+        cs = shape_cases.uniform_cs(roof, log)
+    else:
+        cs = slope.slope_factor(roof.slope, ct_line, slippery, log)
+    # --- end of hook ---
     factors["Cs"] = round(float(cs), 4)
     ps = slope.sloped_roof_load(pf, cs, log)
     # an asymmetric roof: the longer W (rain-on-snow then applies to more roofs: conservative)
@@ -170,6 +175,10 @@ def screening_flags(roof: Roof) -> list[str]:
         flags.append("roof_cases_not_screened")
     if unbalanced_needed and roof.eave_to_ridge is None:
         flags.append("eave_to_ridge_needed")
+    # --- hook (issue 12): curved, dome and multi-span roofs, engine/asce7_22/shape_cases.py ---
+    if shape_cases.has_more_cases(roof):
+        flags.append("roof_cases_not_screened")
+    # --- end of hook ---
     return sorted(set(flags))
 
 
@@ -254,6 +263,9 @@ def analyze_roof(pg: float, roof: Roof, w2=None) -> RoofResult:
     sliding_cases(pg, pf, factors, roof, ps, cases, skipped, flags)
     ice_dam_case(pf, _warm(roof), roof, cases, skipped, flags)
     partial_case(ps, roof, cases, skipped)
+    # --- hook (issue 12): curved, dome and multi-span roofs, engine/asce7_22/shape_cases.py ---
+    shape_cases.add_cases(pg, pf, factors, roof, cases, skipped, flags)
+    # --- end of hook ---
     design = max(ps + ros, pm if pm is not None else 0.0)
     loads = {"pf": pf, "ps": ps, "pm": pm, "rain_on_snow": ros if ros > 0 else None}
     extra = {"w2": w2, "seismic_weight": _seismic_note(pf, design)}

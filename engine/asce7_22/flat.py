@@ -32,6 +32,10 @@ MINIMUM_MAX_TABLE_7_3_4 = {"I": 25.0, "II": 30.0, "III": 35.0, "IV": 40.0}
 #: slope below which a monoslope, hip or gable roof is "low-slope" [deg]
 #: (Sec. 7.3.3; from memory, unchanged from ASCE 7-16)
 MINIMUM_SLOPE_LIMIT = 15.0
+#: curved roofs and domes get the minimum load where the vertical angle from the
+#: eaves to the crown is under this [deg] (Sec. 7.3.3; from memory)
+MINIMUM_CROWN_ANGLE = 10.0
+CURVED_MINIMUM_SHAPES = ("curved", "dome")
 #: the rain-on-snow surcharge [psf] (Sec. 7.10): 8 psf confirmed [PROSE:
 #: "Rain-on-snow went from 5 psf to 8 psf where it applies"]
 RAIN_ON_SNOW_SURCHARGE = 8.0
@@ -86,9 +90,18 @@ def minimum_applies(shape: str, slope) -> np.ndarray:
     It applies to monoslope, hip and gable roofs with a slope under 15
     degrees; a roof given as ``flat`` is read as a low-slope monoslope roof
     (common practice).
+
+    Curved roofs and domes (from memory, as in ASCE 7-16): where the vertical
+    angle from the eaves to the crown is under 10 degrees; ``slope`` is then
+    that angle (the eave-to-crown line, :mod:`neve.engine.roof_shapes`).
+    Multi-span (sawtooth, folded plate, barrel vault) roofs are read as
+    monoslope and gable faces: under 15 degrees (the clause names neither;
+    applying it is conservative).
     """
     slope = np.asarray(slope, dtype=float)
-    if shape not in ("flat", "monoslope", "hip", "gable"):
+    if shape in CURVED_MINIMUM_SHAPES:
+        return slope < MINIMUM_CROWN_ANGLE
+    if shape not in ("flat", "monoslope", "hip", "gable", "sawtooth"):
         return np.zeros_like(slope, dtype=bool)
     return slope < MINIMUM_SLOPE_LIMIT
 

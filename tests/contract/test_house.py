@@ -401,6 +401,16 @@ _ROOF_OPTS = [
     ("unobstructed", ("--unobstructed", "--obstructed"), "BoolParamType", None, True, False),
     ("ventilated", ("--ventilated", "--unventilated"), "BoolParamType", None, True, False),
 ]
+# issue 12: curved, dome and multi-span roofs (neve.engine.roof_shapes), on every roof command
+_ROOF_OPTS += [
+    ("chord", ("--chord",), "StringParamType", None, False, False),
+    ("diameter", ("--diameter",), "StringParamType", None, False, False),
+    ("eave_abutted", ("--eave-abutted", "--eave-clear"), "BoolParamType", None, True, False),
+    ("eave_slope", ("--eave-slope",), "StringParamType", None, False, False),
+    ("ridge_height", ("--ridge-height",), "StringParamType", None, False, False),
+    ("rise", ("--rise",), "StringParamType", None, False, False),
+    ("spans", ("--spans",), "StringParamType", None, False, False),
+]
 # issue 11: the package's title block, on neve site and neve compare
 _TITLE_BLOCK = [
     ("job", ("--job",), "StringParamType", None, False, False),

@@ -56,6 +56,18 @@ WHERE = {
     "projection.plan_width": ("projection", "plan_width", "ft"),
     "projection.length_front": ("projection", "length_front", "ft"),
     "projection.length_back": ("projection", "length_back", "ft"),
+    # issue 12: curved, dome and multi-span roofs
+    "rise": ("--rise", None, "ft"),
+    "chord": ("--chord", None, "ft"),
+    "ridge_height": ("--ridge-height", None, "ft"),
+    "spans": ("--spans", None, ""),
+}
+#: the rest of a roof that each issue-12 option needs (a long chord: any rise in range fits)
+SHAPED = {
+    "--rise": ["--shape", "curved", "--chord", "5000ft"],
+    "--chord": ["--shape", "curved", "--rise", "1ft"],
+    "--ridge-height": ["--shape", "sawtooth", "--slope", "3:12"],
+    "--spans": ["--shape", "sawtooth", "--slope", "3:12", "--ridge-height", "6ft"],
 }
 TABLES = {
     "step": dict(BASE_STEP),
@@ -89,6 +101,7 @@ def roof_args(key: str, text: str, tmp_path) -> list[str]:
         return pg
     if where.startswith("--"):
         shape = ["--shape", "gable", "--slope", "6:12"] if where == "--eave-to-ridge" else []
+        shape = SHAPED.get(where, shape)
         return [*pg, *shape, where, text]
     table = dict(TABLE_FOR.get(key, TABLES[where]), **{inner: text})
     doc = {"shape": "flat", where: table if where == "overhang" else [table]}
