@@ -10,6 +10,7 @@ each may not be combined with (ASCE 7-16 Sec. 7.3.4, 7.4.5, 7.5, 7.9, 7.10).
 
 from __future__ import annotations
 
+from neve.engine import drift_cases as dc
 from neve.engine import roof_cases as rc
 from neve.engine.asce7_16 import STANDARD, eaves, flat, sliding, slope, unbalanced
 from neve.engine.asce7_16 import drift as dr
@@ -79,7 +80,7 @@ def drift_cases(pg, ps, roof: Roof, cases, skipped) -> None:
         if st.upper_parapet is not None:
             extra["upper_parapet"] = length_json(st.upper_parapet)
         cases.append(
-            rc.drift_case(
+            dc.drift_case(
                 f"drift at {kind} {label.quoted}",
                 "adjacent" if st.separation > 0 else "step",
                 d,
@@ -97,12 +98,12 @@ def drift_cases(pg, ps, roof: Roof, cases, skipped) -> None:
     def obstruction(ps_, height, lu, log, what):
         return dr.obstruction_drift(pg, ps_, height, lu, log, what)
 
-    rc.parapet_cases(roof, ps, obstruction, labels, cases, skipped)
-    rc.projection_cases(
+    dc.parapet_cases(roof, ps, obstruction, labels, cases, skipped)
+    dc.projection_cases(
         roof, ps, obstruction, dr.projection_exempt, dr.PROJECTION_EXEMPT_LENGTH, CLAUSES,
         labels, cases, skipped,
     )  # fmt: skip
-    rc.inside_corners(roof, labels, cases, CLAUSES)
+    dc.inside_corners(roof, labels, cases, CLAUSES)
 
 
 def _upper_pf(pg, pf, factors, flags):

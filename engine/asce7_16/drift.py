@@ -16,7 +16,7 @@ from __future__ import annotations
 import numpy as np
 
 from neve.engine.asce7_16 import STANDARD
-from neve.engine.roof_cases import log_step_height
+from neve.engine.drift_cases import log_step_height
 from neve.engine.steps import StepLog, fmt
 
 #: the largest snow density Eq. 7.7-1 gives [pcf]
@@ -345,7 +345,7 @@ def obstruction_drift(
     The drift height is 0.75 hd with lu the fetch the caller gives (for a
     parapet the roof length upwind of it; for a projection the greater of
     the roof lengths on either side, Sec. 7.8, worked out by
-    :func:`neve.engine.roof_cases.projection_cases`), shaped as in
+    :func:`neve.engine.drift_cases.projection_cases`), shaped as in
     Sec. 7.7.1 with hc = height - hb.
 
     References

@@ -14,6 +14,7 @@ computed when W2 is not given, with the flag ``w2_needed``.
 
 from __future__ import annotations
 
+from neve.engine import drift_cases as dc
 from neve.engine import roof_cases as rc
 from neve.engine.asce7_22 import STANDARD, eaves, flat, sliding, slope, unbalanced
 from neve.engine.asce7_22 import drift as dr
@@ -103,7 +104,7 @@ def drift_cases(pg, ps, roof: Roof, w2, cases, skipped, flags) -> None:
         for d in v["drifts"]:
             d = dict(d, reason=rc.join_notes(d.get("reason", ""), rc.existing_note(st, CLAUSES)))
             cases.append(
-                rc.drift_case(
+                dc.drift_case(
                     f"{d['governs']} drift at {kind} {label.quoted}",
                     "adjacent" if st.separation > 0 else "step",
                     d,
@@ -119,12 +120,12 @@ def drift_cases(pg, ps, roof: Roof, w2, cases, skipped, flags) -> None:
     def obstruction(ps_, height, lu, log, what):
         return dr.obstruction_drift(pg, ps_, height, lu, w2, log, what)
 
-    rc.parapet_cases(roof, ps, obstruction, labels, cases, skipped)
-    rc.projection_cases(
+    dc.parapet_cases(roof, ps, obstruction, labels, cases, skipped)
+    dc.projection_cases(
         roof, ps, obstruction, dr.projection_exempt, dr.PROJECTION_EXEMPT_LENGTH, CLAUSES,
         labels, cases, skipped,
     )  # fmt: skip
-    rc.inside_corners(roof, labels, cases, CLAUSES)
+    dc.inside_corners(roof, labels, cases, CLAUSES)
 
 
 def _upper_pf(pg, pf, factors, flags):

@@ -29,8 +29,8 @@ from __future__ import annotations
 import numpy as np
 
 from neve.engine.asce7_22 import STANDARD
+from neve.engine.drift_cases import log_step_height
 from neve.engine.errors import InputError
-from neve.engine.roof_cases import log_step_height
 from neve.engine.steps import StepLog, fmt
 
 #: the largest snow density Eq. 7.7-1 gives [pcf] (confirmed [STR-CAN])
@@ -333,7 +333,7 @@ def obstruction_drift(
 
     Height 0.75 hd with lu the fetch the caller gives (a parapet's upwind
     roof length; for a projection the greater of the roof lengths on either
-    side, Sec. 7.8, from :func:`neve.engine.roof_cases.projection_cases`),
+    side, Sec. 7.8, from :func:`neve.engine.drift_cases.projection_cases`),
     width 8 hd, limited by hc = height - hb as in Sec. 7.7.1.
 
     References
