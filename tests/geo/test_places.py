@@ -107,7 +107,9 @@ def test_no_match_names_the_nearest_candidates():
 def test_hostile_addresses_exit_2_without_a_traceback(text):
     r = CliRunner().invoke(main, ["site", "--address", text])
     assert r.exit_code == 2, r.output
-    assert "Traceback" not in r.output and r.exception is None or isinstance(r.exception, SystemExit)
+    assert (
+        "Traceback" not in r.output and r.exception is None or isinstance(r.exception, SystemExit)
+    )
 
 
 def test_coordinates_carry_their_precision():

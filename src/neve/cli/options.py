@@ -563,7 +563,8 @@ def command_echo() -> str:
     for param in ctx.command.params:
         name = param.name
         if name is None or ctx.get_parameter_source(name) not in (
-            ParameterSource.COMMANDLINE, ParameterSource.ENVIRONMENT
+            ParameterSource.COMMANDLINE,
+            ParameterSource.ENVIRONMENT,
         ):
             continue
         value = ctx.params.get(name)
