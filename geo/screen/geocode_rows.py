@@ -187,7 +187,10 @@ def make_geocoder(
         try:
             return locate(address)
         except InputError as exc:
-            raise GeocodeMiss(exc.problem) from None
+            raise GeocodeMiss(
+                f"{exc.problem} (give a US ZIP code or a place with its region, --gazetteer "
+                "FILE.csv, --geocoder-url URL, or lat/lon columns)"
+            ) from None
 
     if gazette is None and url is None:
         return CachedGeocoder(offline, cache=cache)

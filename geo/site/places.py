@@ -417,7 +417,7 @@ def locate(
     where = "".join(f", {k} {v!r}" for k, v in (("country", country), ("region", region)) if v)
     raise InputError(
         "address",
-        f"{text!r} matches no ZIP code or place in the shipped gazetteer{where}{hint}",
+        f"{text!r} was not found: no ZIP code or place of the shipped gazetteer matches it{where}{hint}",
         "a US ZIP code, a place name (with region and country), --gazetteer FILE.csv, "
         "--geocoder-url URL, or --at LAT,LON",
     )

@@ -189,3 +189,44 @@ def test_exact_coordinates_there_keep_the_mapped_value(zip_layer):
 
 
 assert D == 0.01  # the fixture grid's cell size the distances above assume
+
+
+# ---------------------------------------------------------------- neve screen, per row
+def test_screen_locates_rows_offline_with_precision_radius_and_the_circle(zip_layer, tmp_path):
+    import pandas as pd
+
+    z = _zip_record("05401")
+    sites = tmp_path / "s.csv"
+    pd.DataFrame(
+        {
+            "site_id": ["zip", "ambiguous", "template", "html", "place", "zip again"],
+            "address": ["05401", "Springfield", "{{7*7}}", "<script>alert(1)</script>",
+                        "Burlington, VT", "123 Main St, Burlington, VT 05401"],
+        }  # fmt: skip
+    ).to_csv(sites, index=False)
+    out, cache = tmp_path / "r.csv", tmp_path / "cache.json"
+    args = ["screen", str(sites), "-o", str(out), "--layer", str(zip_layer),
+            "--geocode-cache", str(cache)]  # fmt: skip
+    r = CliRunner().invoke(main, args)
+    assert r.exit_code == 0, r.output
+    res = pd.read_csv(out).set_index("site_id")
+    row = res.loc["zip"]
+    assert row["location_precision"] == "postal_code"
+    assert row["site_lat"] == pytest.approx(float(z["lat"]))
+    assert row["location_radius_m"] == pytest.approx(places.locate("05401").radius_m)
+    assert "location_approximate" in row["flags"] and "near_boundary" in row["flags"]
+    assert row["pg_psf"] == pytest.approx(40.0)  # the larger value within the circle governs
+    assert res.loc["zip again", "location_precision"] == "postal_code"
+    assert res.loc["ambiguous", "status"] == "error"
+    assert "Springfield, IL, US" in res.loc["ambiguous", "message"]
+    for bad in ("template", "html"):
+        assert res.loc[bad, "status"] == "error"
+    assert res.loc["place", "location_precision"] == "place"
+    # the look-ups are cached with their precision and radius
+    kept = json.loads(cache.read_text(encoding="utf-8"))
+    assert kept["05401"][2] == "postal_code"
+    r2 = CliRunner().invoke(main, [*args, "--overwrite"])
+    assert r2.exit_code == 0, r2.output
+    again = pd.read_csv(out).set_index("site_id")
+    assert again.loc["zip", "location_radius_m"] == pytest.approx(row["location_radius_m"])
+    assert again.loc["zip", "pg_psf"] == pytest.approx(40.0)
