@@ -200,8 +200,14 @@ def test_screen_locates_rows_offline_with_precision_radius_and_the_circle(zip_la
     pd.DataFrame(
         {
             "site_id": ["zip", "ambiguous", "template", "html", "place", "zip again"],
-            "address": ["05401", "Springfield", "{{7*7}}", "<script>alert(1)</script>",
-                        "Burlington, VT", "123 Main St, Burlington, VT 05401"],
+            "address": [
+                "05401",
+                "Springfield",
+                "{{7*7}}",
+                "<script>alert(1)</script>",
+                "Burlington, VT",
+                "123 Main St, Burlington, VT 05401",
+            ],
         }  # fmt: skip
     ).to_csv(sites, index=False)
     out, cache = tmp_path / "r.csv", tmp_path / "cache.json"

@@ -287,7 +287,9 @@ def test_address_rows_with_a_gazetteer(tmp_path, grid_layer):
     assert res["status"][4] == "error" and "address: missing" in res["message"][4]
 
 
-def test_address_rows_without_a_geocoder_use_the_shipped_gazetteer(tmp_path, grid_layer, monkeypatch):
+def test_address_rows_without_a_geocoder_use_the_shipped_gazetteer(
+    tmp_path, grid_layer, monkeypatch
+):
     """Issue 14: with no geocoder configured, address rows are looked up in the shipped
     gazetteer; an address it does not hold is that row's error, naming the other ways."""
     monkeypatch.delenv("NEVE_GEOCODER_URL", raising=False)
