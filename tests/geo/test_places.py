@@ -236,3 +236,22 @@ def test_screen_locates_rows_offline_with_precision_radius_and_the_circle(zip_la
     again = pd.read_csv(out).set_index("site_id")
     assert again.loc["zip", "location_radius_m"] == pytest.approx(row["location_radius_m"])
     assert again.loc["zip", "pg_psf"] == pytest.approx(40.0)
+
+
+def test_elevation_is_sampled_over_the_circle(grid_layer, tmp_path):
+    """The fixture DEM rises 10 m per 100 m eastward: over a 400 m circle the maximum is
+    about 80 m above the minimum, and the maximum is the elevation used (regression guard
+    of the sampling; the rise is the fixture's own, tests/geo/conftest.py)."""
+    from neve.geo.site.one import resolve_site
+    from tests.geo.conftest import write_dem
+
+    dem = write_dem(tmp_path / "dem.tif")
+    lat, lon = centre(0, 0)
+    r = resolve_site(lat, lon, layers=[grid_layer], dem=dem, location_precision="place",
+                     location_radius_m=400.0)  # fmt: skip
+    over = r.ground["elevation_over_radius"]
+    assert over["used"] == over["max"]
+    assert 70.0 <= over["max"]["m"] - over["min"]["m"] <= 90.0
+    assert r.ground["elevation"]["m"] == pytest.approx(over["max"]["m"], abs=0.01)
+    exact = resolve_site(lat, lon, layers=[grid_layer], dem=dem)
+    assert exact.ground["elevation_over_radius"] is None
