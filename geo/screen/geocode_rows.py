@@ -127,7 +127,11 @@ def _cached(v) -> tuple:
         from neve.geo.site.places import PRECISIONS
 
         if str(v[2]) not in PRECISIONS:
-            raise ValueError(v[2])
+            raise InputError(
+                "geocode-cache",
+                f"an entry has the unknown precision {v[2]!r}",
+                ", ".join(PRECISIONS),
+            )
         return float(v[0]), float(v[1]), str(v[2]), float(v[3])
     return float(v[0]), float(v[1])
 
