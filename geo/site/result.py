@@ -90,6 +90,12 @@ FLAG_TABLE: tuple[Flag, ...] = (
     Flag("cell_truncated", 19, "row", "a cell was cut to fit the output format"),
     Flag("exceeds_record", 20, "row", "today's uniform roof load is above the load on record"),
     Flag(
+        "location_approximate",
+        21,
+        "site",
+        "the site was located at a postal code or place centroid: its uncertainty circle was searched",
+    ),  # fmt: skip
+    Flag(
         "edition_mismatch",
         22,
         "site",

@@ -436,6 +436,12 @@ _MAP = ("map_path", ("--map",), _PATH, None, False, False)
 _GAZETTEER = ("gazetteer", ("--gazetteer",), _PATH, None, False, False)
 _GEOCODER_URL = ("geocoder_url", ("--geocoder-url",), "StringParamType", None, False, False)
 
+# issue 14: --country and --region narrow the shipped gazetteer's place search
+_NARROW = [
+    ("country", ("--country",), "StringParamType", None, False, False),
+    ("region", ("--region",), "StringParamType", None, False, False),
+]
+
 EXPECTED_OPTIONS = {
     ("roof",): sorted(
         [
@@ -472,6 +478,7 @@ EXPECTED_OPTIONS = {
             ("user_agent", ("--user-agent",), "StringParamType", None, False, False),
             ("on_record", ("--on-record",), "StringParamType", None, True, False),  # issue 10
             *_TITLE_BLOCK,
+            *_NARROW,  # issue 14
         ]
     ),  # fmt: skip
     ("screen",): sorted(

@@ -279,6 +279,17 @@ def gazetteer_option(f):
     )(f)
 
 
+def narrow_options(f):
+    """``--country`` and ``--region``: narrow the shipped gazetteer's place search."""
+    f = click.option(
+        "--region",
+        help="Region (US state, or the gazetteer's region code) that narrows a place name.",
+    )(f)
+    return click.option(
+        "--country", help="Country (ISO code or name) that narrows a place name, e.g. US, CH."
+    )(f)
+
+
 def geocoder_url_option(f):
     """``--geocoder-url``: a geocoding server for addresses the gazetteer does not hold."""
     return click.option(
@@ -578,7 +589,8 @@ def command_echo() -> str:
     for param in ctx.command.params:
         name = param.name
         if name is None or ctx.get_parameter_source(name) not in (
-            ParameterSource.COMMANDLINE, ParameterSource.ENVIRONMENT
+            ParameterSource.COMMANDLINE,
+            ParameterSource.ENVIRONMENT,
         ):
             continue
         value = ctx.params.get(name)
