@@ -277,10 +277,11 @@ class Standard:
         return f"{self.title} {clause}" if clause else ""
 
     def case_ref(self, case: Mapping) -> str:
-        """The provision a load case of ``analyze`` comes from (its ``case`` and ``source``)."""
+        """The provision a load case of ``analyze`` comes from (its ``case``, ``source``, ``method``)."""
         kind = str(case.get("case") or "")
         source = str(case.get("source") or "")
-        for key in (f"case.{kind}.{source}", f"case.{kind}"):
+        method = str(case.get("method") or "")
+        for key in (f"case.{kind}.{source}", f"case.{kind}.{method}", f"case.{kind}"):
             if key in self.provisions:
                 return self.ref(key)
         return ""

@@ -21,13 +21,14 @@ from collections.abc import Mapping
 from pathlib import Path
 
 from neve.engine.errors import InputError
+from neve.engine.roof_shapes import SHAPE_KEYS
 from neve.engine.roof_spec import Roof, merge_roof_levels
 
 #: the roof options' names as keyword arguments, and as ROOF.toml keys
 ROOF_KEYS = (
     "shape", "slope", "surface", "ct", "thermal", "ce", "terrain", "exposure", "risk",
     "eave_to_ridge", "r_value", "ventilated", "unobstructed", "prismatic",
-)  # fmt: skip
+) + SHAPE_KEYS  # fmt: skip  (curved, dome and multi-span roofs: neve.engine.roof_shapes)
 
 
 def read_toml(path: str | Path, field: str) -> dict:

@@ -401,6 +401,16 @@ _ROOF_OPTS = [
     ("unobstructed", ("--unobstructed", "--obstructed"), "BoolParamType", None, True, False),
     ("ventilated", ("--ventilated", "--unventilated"), "BoolParamType", None, True, False),
 ]
+# issue 12: curved, dome and multi-span roofs (neve.engine.roof_shapes), on every roof command
+_ROOF_OPTS += [
+    ("chord", ("--chord",), "StringParamType", None, False, False),
+    ("diameter", ("--diameter",), "StringParamType", None, False, False),
+    ("eave_abutted", ("--eave-abutted", "--eave-clear"), "BoolParamType", None, True, False),
+    ("eave_slope", ("--eave-slope",), "StringParamType", None, False, False),
+    ("ridge_height", ("--ridge-height",), "StringParamType", None, False, False),
+    ("rise", ("--rise",), "StringParamType", None, False, False),
+    ("spans", ("--spans",), "StringParamType", None, False, False),
+]
 # issue 11: the package's title block, on neve site and neve compare
 _TITLE_BLOCK = [
     ("job", ("--job",), "StringParamType", None, False, False),
@@ -425,6 +435,12 @@ _OVERWRITE = ("overwrite", ("--overwrite",), "BoolParamType", False, False, Fals
 _MAP = ("map_path", ("--map",), _PATH, None, False, False)
 _GAZETTEER = ("gazetteer", ("--gazetteer",), _PATH, None, False, False)
 _GEOCODER_URL = ("geocoder_url", ("--geocoder-url",), "StringParamType", None, False, False)
+
+# issue 14: --country and --region narrow the shipped gazetteer's place search
+_NARROW = [
+    ("country", ("--country",), "StringParamType", None, False, False),
+    ("region", ("--region",), "StringParamType", None, False, False),
+]
 
 EXPECTED_OPTIONS = {
     ("roof",): sorted(
@@ -462,6 +478,7 @@ EXPECTED_OPTIONS = {
             ("user_agent", ("--user-agent",), "StringParamType", None, False, False),
             ("on_record", ("--on-record",), "StringParamType", None, True, False),  # issue 10
             *_TITLE_BLOCK,
+            *_NARROW,  # issue 14
         ]
     ),  # fmt: skip
     ("screen",): sorted(

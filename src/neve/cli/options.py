@@ -123,7 +123,11 @@ roof_options = _stack(
         type=click.Path(dir_okay=False),
         help="ROOF.toml describing the roof (options below override it).",
     ),
-    click.option("--shape", help="Roof shape: flat, monoslope, gable, hip."),
+    click.option(
+        "--shape",
+        help="Roof shape: flat, monoslope, gable, hip, curved (or arch), dome, "
+        "sawtooth (or folded-plate, barrel-vault).",
+    ),
     click.option("--slope", help="Roof slope, e.g. 6:12 or 26.6deg."),
     click.option("--surface", help=_roof_help("surface")),
     click.option("--ct", help=_roof_help("ct")),
@@ -135,12 +139,34 @@ roof_options = _stack(
     click.option(
         "--eave-to-ridge",
         "eave_to_ridge",
-        help="Horizontal eave-to-ridge distance W, e.g. 30ft.",
+        help="Horizontal eave-to-ridge distance W, e.g. 30ft; an asymmetric gable or hip "
+        "roof: one per side, 30ft,20ft.",
     ),
     click.option("--r-value", "r_value", help=_roof_help("r_value")),
     _pair("--ventilated/--unventilated", "ventilated", _roof_help("ventilated")),
     _pair("--unobstructed/--obstructed", "unobstructed", _roof_help("unobstructed")),
     _pair("--prismatic/--non-prismatic", "prismatic", _roof_help("prismatic")),
+    # curved, dome and multi-span roofs (issue 12): neve.engine.roof_shapes
+    click.option("--rise", help="Curved roof or dome: rise from eave to crown, e.g. 12ft."),
+    click.option("--chord", help="Curved roof: horizontal chord from eave to eave, e.g. 60ft."),
+    click.option("--diameter", help="Dome: base diameter, e.g. 80ft."),
+    click.option(
+        "--eave-slope",
+        "eave_slope",
+        help="Curved roof or dome: tangent slope at the eave, e.g. 40deg (two of rise, "
+        "chord and eave slope fix the arc; all three are checked).",
+    ),
+    _pair(
+        "--eave-abutted/--eave-clear",
+        "eave_abutted",
+        "Curved roof: the ground or another roof meets it at or within 3 ft of the eave.",
+    ),
+    click.option(
+        "--ridge-height",
+        "ridge_height",
+        help="Sawtooth, folded plate or barrel vault roof: ridge-to-valley height hr, e.g. 6ft.",
+    ),
+    click.option("--spans", help="Sawtooth, folded plate or barrel vault roof: number of spans."),
 )
 roof_options.__doc__ = "Decorate a click command with the roof options and ``--roof ROOF.toml``."
 
@@ -250,6 +276,17 @@ def gazetteer_option(f):
         "--gazetteer",
         type=click.Path(dir_okay=False),
         help="Offline address list: CSV with address,lat,lon (looked at before --geocoder-url).",
+    )(f)
+
+
+def narrow_options(f):
+    """``--country`` and ``--region``: narrow the shipped gazetteer's place search."""
+    f = click.option(
+        "--region",
+        help="Region (US state, or the gazetteer's region code) that narrows a place name.",
+    )(f)
+    return click.option(
+        "--country", help="Country (ISO code or name) that narrows a place name, e.g. US, CH."
     )(f)
 
 
@@ -552,7 +589,8 @@ def command_echo() -> str:
     for param in ctx.command.params:
         name = param.name
         if name is None or ctx.get_parameter_source(name) not in (
-            ParameterSource.COMMANDLINE, ParameterSource.ENVIRONMENT
+            ParameterSource.COMMANDLINE,
+            ParameterSource.ENVIRONMENT,
         ):
             continue
         value = ctx.params.get(name)
