@@ -15,6 +15,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass, field
 
+from neve.engine.roof_shapes import shape_json
 from neve.engine.roof_spec import Roof
 from neve.engine.units import length_json, load_json
 
@@ -61,6 +62,9 @@ class RoofResult:
                 "surface": r.surface,
                 "risk": self.factors["risk"],
                 "eave_to_ridge": length_json(r.eave_to_ridge),
+                "eave_to_ridge_sides": None
+                if r.eave_to_ridge_sides is None
+                else [length_json(w) for w in r.eave_to_ridge_sides],
             },
             "factors": {k: self.factors[k] for k in ("Ce", "Ct", "Is", "Cs")},
             "loads": {k: load_json(v) for k, v in self.loads.items()},
@@ -70,6 +74,7 @@ class RoofResult:
             "flags": sorted(set(self.flags)),
             "cautions": list(self.cautions),
         }
+        out["roof"].update(shape_json(r))  # curved, dome, multi-span roofs only (issue 12)
         for key, value in self.extra.items():
             out.setdefault(key, value)
         return out

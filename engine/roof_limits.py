@@ -55,6 +55,10 @@ RANGES: dict[str, Bound] = {
     "step.separation": Bound(0.0, 5000.0, "ft", why="0 for a step in one structure; drifts stop at 20 ft (adjacent structures)"),
     "step.upper_eave_to_ridge": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
     "step.upper_pf": Bound(0.0, PG_MAX_PSF, "psf", why="the ground snow load bound"),
+    "step.upper_parapet": Bound(0.0, 50.0, "ft", lo_open=True, why="taller walls are a roof step"),
+    "step.upper_ce": Bound(0.7, 1.2, why="the extremes of the standard's exposure factor table"),
+    "step.upper_ct": Bound(0.85, 1.3, why="the extremes of the standard's thermal factor table"),
+    "step.upper_is": Bound(0.8, 1.2, why="the extremes of the standard's snow importance factors"),
     "parapet.height": Bound(0.0, 50.0, "ft", lo_open=True, why="taller walls are a roof step"),
     "parapet.upwind_length": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
     "parapet.drift_space": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
@@ -62,12 +66,22 @@ RANGES: dict[str, Bound] = {
     "projection.height": Bound(0.0, 100.0, "ft", lo_open=True, why="a rooftop penthouse"),
     "projection.plan_length": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
     "projection.upwind_length": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
+    "projection.length_left": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
+    "projection.length_right": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
+    "projection.plan_width": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
+    "projection.length_front": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
+    "projection.length_back": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
+    # curved, dome and multi-span (sawtooth) roofs (issue 12)
+    "rise": Bound(0.0, 1000.0, "ft", lo_open=True, why="an arched hangar; at most half the chord"),
+    "chord": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
+    "ridge_height": Bound(0.0, 200.0, "ft", lo_open=True, why="the ridge-to-valley height of a multi-span roof"),
+    "spans": Bound(2.0, 1000.0, why="a multi-span roof has two spans or more"),
 }  # fmt: skip
 
 #: yes/no keys and the key that says the opposite (``unventilated = true`` is
 #: ``ventilated = false``); both of a pair on one level contradict each other
 BOOL_PAIRS = {"ventilated": "unventilated", "unobstructed": "obstructed",
-              "prismatic": "non_prismatic"}  # fmt: skip
+              "prismatic": "non_prismatic", "eave_abutted": "eave_clear"}  # fmt: skip
 #: keys that say the same thing in two ways: one level may use only one side,
 #: and a later level's side replaces an earlier level's other side
 _ALTERNATIVES = (

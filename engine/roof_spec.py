@@ -30,6 +30,14 @@ from neve.engine.roof_limits import (
     norm_keys,
     slope_check,
 )
+from neve.engine.roof_shapes import (
+    CURVED_SHAPES,
+    MULTISPAN_SHAPES,
+    SHAPE_ALIASES,
+    SHAPE_KEYS,
+    check_shape_fields,
+    shape_fields,
+)
 from neve.engine.units import parse_length, parse_load, parse_slope, slope_is_ratio
 
 __all__ = [
@@ -38,25 +46,37 @@ __all__ = [
 ]  # fmt: skip
 
 #: roof shapes of the shared roof vocabulary (each standard says which it covers:
-#: ``Standard.shapes``; ASCE 7 covers the first four, EN 1991-1-3 all but hip)
-SHAPES = ("flat", "monoslope", "gable", "hip", "multi-span", "cylindrical")
-#: other words for the shapes: the Eurocode's (monopitch, duopitch) and spellings
-SHAPE_ALIASES = {"monopitch": "monoslope", "mono-pitch": "monoslope", "duopitch": "gable",
-                 "duo-pitch": "gable", "pitched": "gable", "multispan": "multi-span",
-                 "multi-pitch": "multi-span", "barrel": "cylindrical"}  # fmt: skip
+#: ``Standard.shapes``): ASCE 7 the first seven, EN 1991-1-3 flat, monoslope, gable,
+#: multi-span and cylindrical
+SHAPES = ("flat", "monoslope", "gable", "hip", *CURVED_SHAPES, *MULTISPAN_SHAPES,
+          "multi-span", "cylindrical")  # fmt: skip
+#: other words for the shapes: the Eurocode's (monopitch, duopitch), spellings, and the
+#: family names of issue 12 (arch, folded plate, barrel vault)
+SHAPE_ALIASES = {**SHAPE_ALIASES, "monopitch": "monoslope", "mono-pitch": "monoslope",
+                 "duopitch": "gable", "duo-pitch": "gable", "pitched": "gable",
+                 "multispan": "multi-span", "multi-pitch": "multi-span"}  # fmt: skip
 #: shapes whose slope is not given but follows from their own geometry
 SLOPE_FREE_SHAPES = ("cylindrical",)
 #: shapes that ASCE 7-16 covers but neve does not yet: refused with a clear message
-UNSUPPORTED_SHAPES = ("curved", "sawtooth", "folded-plate", "barrel-vault", "dome", "arch")
+#: (none since issue 12; kept for callers that ask)
+UNSUPPORTED_SHAPES: tuple[str, ...] = ()
 #: the kinds of a standard's own roof option (``RoofOption.kind``) and how each is read
 OPTION_KINDS = ("choice", "number", "yes/no", "length", "slope", "text", "parameter set")
 SURFACES = ("slippery", "other")
+#: shapes with two sides, each with its own eave-to-ridge distance
+TWO_SIDED = ("gable", "hip")
+#: what a roof step says of this, lower, roof: new, or an existing roof beside a new,
+#: higher structure
+LOWER_ROOFS = ("new", "existing")
+_ONE_W = "an asymmetric roof needs two distances, one per side, and only one was given"
+_TWO_W = 'two lengths such as 30ft,20ft (ROOF.toml: ["30ft", "20ft"]), or one for a symmetric roof'
 RISKS = ("I", "II", "III", "IV")
 
 _ROOF_KEYS = {
     "shape", "slope", "surface", "ct", "thermal", "ce", "terrain", "exposure", "risk",
     "eave_to_ridge", "r_value", "ventilated", "unobstructed", "prismatic", "name",
     "step", "parapet", "projection", "overhang", *BOOL_PAIRS.values(),
+    *SHAPE_KEYS,
 }  # fmt: skip
 
 
@@ -105,6 +125,55 @@ def _bool(value, name: str) -> bool | None:
     raise InputError(name, f"{value!r} is not true or false", "true, false")
 
 
+def _eave_to_ridge(value) -> tuple[float | None, float | None]:
+    """W [ft], or W of side A and side B of an asymmetric roof.
+
+    One length (``30ft``) is a symmetric roof, as it always was; two, as a
+    TOML array (``["30ft", "20ft"]``) or a comma-separated text
+    (``30ft,20ft``), are the two sides of an asymmetric gable or hip roof.
+    An array or text with one length only, or more than two, is refused.
+    """
+    if value is None:
+        return None, None
+    if isinstance(value, str) and "," in value:
+        value = [v.strip() for v in value.split(",")]
+    if isinstance(value, (list, tuple)):
+        parts = [v for v in value if not (isinstance(v, str) and not v.strip())]
+        if len(parts) == 1 or (len(parts) == 2 and len(value) > 2):
+            raise InputError("eave_to_ridge", _ONE_W, _TWO_W)
+        if len(parts) != 2:
+            raise InputError(
+                "eave_to_ridge", f"{len(parts)} distances given, at most two (one per side)", _TWO_W
+            )
+        bound = RANGES["eave_to_ridge"]
+        a, b = (parse_length(v, "eave_to_ridge", bound=bound) for v in parts)
+        return a, b
+    return parse_length(value, "eave_to_ridge", bound=RANGES["eave_to_ridge"]), None
+
+
+def _meets_check(meets, name: str) -> None:
+    if not isinstance(meets, tuple) or not all(isinstance(m, str) for m in meets):
+        raise InputError(name, f"{meets!r} is not a list of names", "names of steps and parapets")
+
+
+def _places_check(roof) -> None:
+    """Each ``meets`` names one other step or parapet of the roof, by a name used once."""
+    walls = [p.name for p in (*roof.steps, *roof.parapets)]
+    for kind, parts in (("step", roof.steps), ("parapet", roof.parapets)):
+        for i, part in enumerate(parts):
+            for other in part.meets:
+                where = f"{kind}[{i}].meets"
+                accepted = ", ".join(repr(w) for w in walls if w != part.name) or "none"
+                if other == part.name:
+                    raise InputError(where, f"{other!r} is this {kind} itself", accepted)
+                if walls.count(other) == 0:
+                    raise InputError(where, f"no step or parapet is named {other!r}", accepted)
+                if walls.count(other) > 1:
+                    raise InputError(
+                        where, f"{other!r} names more than one step or parapet", "unique names"
+                    )
+
+
 @dataclass(frozen=True)
 class RoofStep:
     """A higher roof (or adjacent higher structure) beside this, lower, roof.
@@ -122,14 +191,46 @@ class RoofStep:
     upper_eave_to_ridge: float | None = None  # W of the upper roof [ft], for sliding
     upper_slides_toward: bool = True  # the upper roof's eave is at the step
     upper_pf: float | None = None  # flat roof load of the upper roof [psf], for sliding
+    #: a parapet on the upper roof at the step [ft]: added to ``height`` for the drift
+    upper_parapet: float | None = None
+    #: the upper roof's own exposure, thermal and importance factors [-], for its pf
+    #: (sliding); a factor not given is taken from this roof
+    upper_ce: float | None = None
+    upper_ct: float | None = None
+    upper_is: float | None = None
+    #: ``existing``: this lower roof is an existing roof and the higher structure is
+    #: new (an addition or a new building beside it); ``new`` otherwise
+    lower_roof: str = "new"
+    #: names of the steps and parapets whose drifts meet this one at an inside corner
+    meets: tuple[str, ...] = ()
 
     def __post_init__(self):
         _check(self, "step.", {a: f"step.{a}" for a in (
             "height", "upper_length", "lower_length", "separation", "upper_eave_to_ridge",
-            "upper_pf")})  # fmt: skip
+            "upper_pf", "upper_parapet", "upper_ce", "upper_ct", "upper_is")})  # fmt: skip
         if self.upper_slope is not None:
             slope_check(self.upper_slope, "step.upper_slope")
         choose_key("step.upper_surface", self.upper_surface, SURFACES)
+        choose_key("step.lower_roof", self.lower_roof, LOWER_ROOFS)
+        _meets_check(self.meets, "step.meets")
+        if self.upper_pf is not None and self.upper_factors:
+            given = ", ".join(f"upper_{k.lower()}" for k in self.upper_factors)
+            raise InputError(
+                "step.upper_pf",
+                f"give upper_pf or the upper roof's factors ({given}), not both",
+                "upper_pf, or upper_ce / upper_ct / upper_is",
+            )
+
+    @property
+    def step_height(self) -> float:
+        """The height the drift forms against [ft]: ``height`` plus any ``upper_parapet``."""
+        return self.height + (self.upper_parapet or 0.0)
+
+    @property
+    def upper_factors(self) -> dict[str, float]:
+        """The upper roof's own factors that were given (``Ce``, ``Ct``, ``Is``)."""
+        pairs = (("Ce", self.upper_ce), ("Ct", self.upper_ct), ("Is", self.upper_is))
+        return {k: v for k, v in pairs if v is not None}
 
 
 @dataclass(frozen=True)
@@ -137,6 +238,8 @@ class Parapet:
     name: str
     height: float  # parapet height above the roof surface [ft]
     upwind_length: float  # roof length upwind of the parapet [ft]
+    #: names of the steps and parapets whose drifts meet this one at an inside corner
+    meets: tuple[str, ...] = ()
     #: roof length beside the parapet over which a drift can lie [ft] (EN 1991-1-3
     #: exceptional drifts; None: the upwind length)
     drift_space: float | None = None
@@ -144,18 +247,91 @@ class Parapet:
     def __post_init__(self):
         names = ("height", "upwind_length", "drift_space")
         _check(self, "parapet.", {a: f"parapet.{a}" for a in names})
+        _meets_check(self.meets, "parapet.meets")
+
+
+#: the sides of a projection in plan: (side, the key of the roof length beside it,
+#: the attribute holding the length of the projection's face on that side)
+PROJECTION_SIDES = (
+    ("left", "length_left", "plan_length"),
+    ("right", "length_right", "plan_length"),
+    ("front", "length_front", "plan_width"),
+    ("back", "length_back", "plan_width"),
+)
 
 
 @dataclass(frozen=True)
 class Projection:
+    """A rooftop projection (a penthouse, a mechanical unit) seen in plan.
+
+    Its two faces of length ``plan_length`` look onto the roof lengths
+    ``length_left`` and ``length_right``; optionally its two faces of length
+    ``plan_width`` look onto ``length_front`` and ``length_back``.  Lengths
+    in [ft].  ``upwind_length`` is the older name of ``length_left``: a
+    projection with one roof length only is worked as before, with that
+    length as its fetch.
+    """
+
     name: str
     height: float  # projection height above the roof surface [ft]
-    plan_length: float  # plan length of the projection's side [ft]
-    upwind_length: float  # roof length upwind of the projection [ft]
+    plan_length: float  # length of the faces toward length_left / length_right [ft]
+    upwind_length: float | None = None  # the older name of length_left [ft]
+    length_left: float | None = None  # roof length beside the left face [ft]
+    length_right: float | None = None  # roof length beside the right face [ft]
+    plan_width: float | None = None  # length of the faces toward length_front / length_back [ft]
+    length_front: float | None = None
+    length_back: float | None = None
 
     def __post_init__(self):
-        names = ("height", "plan_length", "upwind_length")
+        if self.upwind_length is not None and self.length_left is not None:
+            if self.upwind_length != self.length_left:
+                raise InputError(
+                    "projection.upwind_length",
+                    "upwind_length is the older name of length_left: give one of them",
+                    "length_left and length_right",
+                )
+        left = self.length_left if self.length_left is not None else self.upwind_length
+        object.__setattr__(self, "length_left", left)  # one value, both names
+        object.__setattr__(self, "upwind_length", left)
+        names = ("height", "plan_length", "length_left", "length_right", "plan_width",
+                 "length_front", "length_back")  # fmt: skip
         _check(self, "projection.", {a: f"projection.{a}" for a in names})
+        if self.length_left is None and self.length_right is None:
+            raise InputError(
+                "projection.length_left",
+                "missing: the roof length on at least one side of the projection",
+                "length_left and length_right (or upwind_length), lengths such as 80ft",
+            )
+        front = self.length_front is not None or self.length_back is not None
+        if self.plan_width is not None and not front:
+            raise InputError(
+                "projection.length_front",
+                "missing: plan_width needs the roof length in front of or behind the projection",
+                "length_front and length_back, lengths such as 40ft",
+            )
+        if front and self.plan_width is None:
+            raise InputError(
+                "projection.plan_width",
+                "missing: length_front / length_back need the width of those faces",
+                "a length such as 10ft",
+            )
+
+    @property
+    def one_sided(self) -> bool:
+        """Described as before sides were: one roof length only, no plan_width."""
+        given = [getattr(self, key) for _, key, _ in PROJECTION_SIDES]
+        return sum(v is not None for v in given) == 1
+
+    def sides(self) -> list[tuple[str, float, float, float | None]]:
+        """``(side, face length, roof length beside it, roof length opposite)`` per side given [ft]."""
+        opposite = {"left": "length_right", "right": "length_left",
+                    "front": "length_back", "back": "length_front"}  # fmt: skip
+        out = []
+        for side, key, face in PROJECTION_SIDES:
+            length = getattr(self, key)
+            if length is not None:
+                out.append((side, getattr(self, face), length, getattr(self, opposite[side])))
+        return out
 
 
 @dataclass(frozen=True)
@@ -171,7 +347,7 @@ class Roof:
     terrain: str | None = None
     exposure: str | None = None
     risk: str | None = None
-    eave_to_ridge: float | None = None  # W [ft]
+    eave_to_ridge: float | None = None  # W [ft]; side A's of an asymmetric roof
     r_value: float | None = None  # [ft2.h.F/Btu]
     ventilated: bool | None = None
     unobstructed: bool | None = None
@@ -194,19 +370,62 @@ class Roof:
         """A standard's own roof option (``extra``), or ``default`` when not given."""
         return self.extra.get(name, default)
 
+    #: side B's eave-to-ridge distance W of an asymmetric gable or hip roof [ft]
+    #: (``eave_to_ridge = ["30ft", "20ft"]``); None for a symmetric roof
+    eave_to_ridge_b: float | None = None
+    # curved and dome roofs (a circular arc; see neve.engine.roof_shapes) and multi-span
+    # (sawtooth, folded plate, barrel vault) roofs, issue 12
+    rise: float | None = None  # eave to crown [ft]
+    chord: float | None = None  # eave to eave [ft]; a dome: its base diameter
+    eave_slope: float | None = None  # tangent slope at the eave [deg]
+    eave_abutted: bool | None = None  # ground or another roof at or within 3 ft of the eave
+    ridge_height: float | None = None  # ridge-to-valley height hr [ft]
+    spans: int | None = None  # number of spans of a multi-span roof
+
     def __post_init__(self):
         choose_key("shape", self.shape, SHAPES)
         choose_key("surface", self.surface, SURFACES)
         slope_check(self.slope, "slope")
         _check(self, "", {"ce": "ce", "ct": "ct", "r_value": "r_value",
-                          "eave_to_ridge": "eave_to_ridge"})  # fmt: skip
+                          "eave_to_ridge": "eave_to_ridge",
+                          "eave_to_ridge_b": "eave_to_ridge"})  # fmt: skip
+        if self.eave_to_ridge_b is not None:
+            if self.eave_to_ridge is None:
+                raise InputError("eave_to_ridge", _ONE_W, _TWO_W)
+            if self.shape not in TWO_SIDED:
+                raise InputError(
+                    "eave_to_ridge",
+                    f"two distances are for a gable or hip roof, not a {self.shape} roof",
+                    "one length such as 30ft",
+                )
+        _places_check(self)
         if self.overhang is not None:
             RANGES["overhang.length"].check(self.overhang, "overhang.length")
         if self.shape == "flat" and self.slope > FLAT_SLOPE_MAX_DEG:
             flat_too_steep(self.slope, self.shape_stated)
+        for attr, value in check_shape_fields(self).items():  # derived: slope, W, the arc
+            object.__setattr__(self, attr, value)
 
     def replace(self, **changes) -> Roof:
         return replace(self, **changes)
+
+    @property
+    def asymmetric(self) -> bool:
+        """Whether the roof was given two eave-to-ridge distances, one per side."""
+        return self.eave_to_ridge_b is not None
+
+    @property
+    def eave_to_ridge_sides(self) -> tuple[float, float] | None:
+        """``(W of side A, W of side B)`` [ft] of an asymmetric roof, else None."""
+        if self.eave_to_ridge_b is None or self.eave_to_ridge is None:
+            return None
+        return (self.eave_to_ridge, self.eave_to_ridge_b)
+
+    @property
+    def eave_to_ridge_max(self) -> float | None:
+        """The longer W [ft] (the one W of a symmetric roof); None when W is not given."""
+        sides = self.eave_to_ridge_sides
+        return max(sides) if sides else self.eave_to_ridge
 
     @classmethod
     def from_mapping(cls, data: Mapping) -> Roof:
@@ -239,7 +458,18 @@ class Roof:
                 "shape", f"{shape!r} roofs are not covered by neve yet ({ref})", ", ".join(SHAPES)
             )
         shape = choose_key("shape", shape, SHAPES)
-        if "slope" in data:
+        shaped = shape_fields(shape, data)  # rise, chord, ridge_height ... (issue 12)
+        if "slope" in data and shape in CURVED_SHAPES:
+            raise InputError(
+                "slope",
+                f"a {shape} roof's slopes follow from its rise and "
+                f"{'diameter' if shape == 'dome' else 'chord'}",
+                "rise with " + ("diameter" if shape == "dome" else "chord")
+                + " (and eave_slope), without slope",
+            )
+        if shape in CURVED_SHAPES:
+            slope = 0.0  # the eave-to-crown line, set from the arc when the roof is built
+        elif "slope" in data:
             slope = parse_slope(data["slope"], "slope")
             if shape == "flat" and slope > FLAT_SLOPE_MAX_DEG:
                 flat_too_steep(slope, "shape" in data, data["slope"])
@@ -276,7 +506,7 @@ class Roof:
                 kw[key] = choose_key(key, data[key], list(words[key]))
         if "risk" in data:
             kw["risk"] = choose_key("risk", str(data["risk"]).upper(), RISKS)
-        kw["eave_to_ridge"] = _length(data, "eave_to_ridge", "", "eave_to_ridge")
+        kw["eave_to_ridge"], kw["eave_to_ridge_b"] = _eave_to_ridge(data.get("eave_to_ridge"))
         if "r_value" in data:
             kw["r_value"] = _float(data["r_value"], "r_value")
         for key, opposite in BOOL_PAIRS.items():
@@ -299,6 +529,7 @@ class Roof:
                     raise InputError("overhang.length", "missing", "a length such as 2ft")
                 oh = oh["length"]
             kw["overhang"] = _length({"length": oh}, "length", "overhang", "overhang.length")
+        kw.update(shaped)
         return cls(**kw)
 
 
@@ -377,7 +608,8 @@ def _part(cls, where: str, **kw):
 def _steps(value) -> list[RoofStep]:
     out = []
     keys = {"name", "height", "upper_length", "lower_length", "separation", "upper_slope",
-            "upper_surface", "upper_eave_to_ridge", "upper_slides_toward", "upper_pf"}  # fmt: skip
+            "upper_surface", "upper_eave_to_ridge", "upper_slides_toward", "upper_pf",
+            "upper_parapet", "upper_ce", "upper_ct", "upper_is", "lower_roof", "meets"}  # fmt: skip
     for i, e in enumerate(_table_list(value, "step")):
         w = f"step[{i}]"
         e = {str(k).replace("-", "_"): v for k, v in e.items()}
@@ -405,16 +637,47 @@ def _steps(value) -> list[RoofStep]:
                 upper_slides_toward=bool(
                     _bool(e.get("upper_slides_toward", True), f"{w}.upper_slides_toward")
                 ),
+                upper_parapet=_length(e, "upper_parapet", w, "step.upper_parapet"),
+                upper_ce=_number(e, "upper_ce", w, "step.upper_ce"),
+                upper_ct=_number(e, "upper_ct", w, "step.upper_ct"),
+                upper_is=_number(e, "upper_is", w, "step.upper_is"),
+                lower_roof=choose_key(f"{w}.lower_roof", e.get("lower_roof", "new"), LOWER_ROOFS),
+                meets=_names(e.get("meets"), f"{w}.meets"),
             )
         )
     return out
+
+
+def _number(entry: Mapping, key: str, where: str, range_key: str) -> float | None:
+    """A plain number of a roof part (``upper_ce``), checked against ``RANGES[range_key]``."""
+    if entry.get(key) is None:
+        return None
+    value, name, bound = entry[key], f"{where}.{key}", RANGES[range_key]
+    if isinstance(value, bool):
+        raise InputError(name, f"{value!r} is not a number", bound.text())
+    try:
+        x = float(value)
+    except (TypeError, ValueError):
+        raise InputError(name, f"{value!r} is not a number", bound.text()) from None
+    return bound.check(x, name, value if isinstance(value, str) else None)
+
+
+def _names(value, name: str) -> tuple[str, ...]:
+    """A name or a list of names (``meets``)."""
+    if value is None:
+        return ()
+    if isinstance(value, str):
+        value = [value]
+    if not isinstance(value, (list, tuple)) or not all(isinstance(v, str) for v in value):
+        raise InputError(name, f"{value!r} is not a name or a list of names", '["east parapet"]')
+    return tuple(value)
 
 
 def _parapets(value) -> list[Parapet]:
     out = []
     for i, e in enumerate(_table_list(value, "parapet")):
         w = f"parapet[{i}]"
-        _check_keys(e, w, {"name", "height", "upwind_length", "drift_space"})
+        _check_keys(e, w, {"name", "height", "upwind_length", "meets", "drift_space"})
         out.append(
             _part(
                 Parapet,
@@ -422,6 +685,7 @@ def _parapets(value) -> list[Parapet]:
                 name=str(e.get("name", f"parapet {i + 1}")),
                 height=_length(e, "height", w, "parapet.height", need="3ft"),
                 upwind_length=_length(e, "upwind_length", w, "parapet.upwind_length", need="100ft"),
+                meets=_names(e.get("meets"), f"{w}.meets"),
                 drift_space=_length(e, "drift_space", w, "parapet.drift_space"),
             )
         )
@@ -432,7 +696,20 @@ def _projections(value) -> list[Projection]:
     out = []
     for i, e in enumerate(_table_list(value, "projection")):
         w = f"projection[{i}]"
-        _check_keys(e, w, {"name", "height", "plan_length", "upwind_length"})
+        keys = {"name", "height", "plan_length", "upwind_length", "length_left", "length_right",
+                "plan_width", "length_front", "length_back"}  # fmt: skip
+        _check_keys(e, w, keys)
+        if "upwind_length" in e and "length_left" in e:
+            raise InputError(
+                f"{w}.upwind_length",
+                "upwind_length is the older name of length_left: give one of them",
+                "length_left and length_right",
+            )
+        left_key = "upwind_length" if "upwind_length" in e else "length_left"
+        lengths = {
+            k: _length(e, k, w, f"projection.{k}")
+            for k in ("length_right", "plan_width", "length_front", "length_back")
+        }
         out.append(
             _part(
                 Projection,
@@ -440,9 +717,8 @@ def _projections(value) -> list[Projection]:
                 name=str(e.get("name", f"projection {i + 1}")),
                 height=_length(e, "height", w, "projection.height", need="4ft"),
                 plan_length=_length(e, "plan_length", w, "projection.plan_length", need="20ft"),
-                upwind_length=_length(
-                    e, "upwind_length", w, "projection.upwind_length", need="80ft"
-                ),
+                length_left=_length(e, left_key, w, f"projection.{left_key}"),
+                **lengths,
             )
         )
     return out

@@ -12,6 +12,7 @@ from __future__ import annotations
 from collections.abc import Collection, Mapping
 
 from neve.engine.format import is_quantity, quantity_text, significant, slope_text
+from neve.engine.roof_shapes import shape_text
 
 #: keys of a case that are not values to list under it
 _CASE_META = {"case", "name", "steps", "not_combined_with", "note", "method", "source", "governs",
@@ -249,6 +250,7 @@ def roof_text(
         f"Roof snow loads, {result['standard']}",
         f"  roof: {roof['shape']}, slope {slope}, "
         f"surface {roof['surface']}, risk category {roof['risk']}",
+        *filter(None, [shape_text(roof)]),  # curved, dome, multi-span roofs (issue 12)
         f"  pg = {quantity_text(result['pg'])}",
         f"  Ce = {f['Ce']}, Ct = {f['Ct']}, Is = {f['Is']}, Cs = {f['Cs']}",
         f"  pf = {quantity_text(loads['pf'])}   ps = {quantity_text(loads['ps'])}"

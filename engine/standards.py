@@ -215,6 +215,12 @@ class VerificationCase:
         return out
 
 
+#: shapes of one physical form that the standards name differently (ASCE 7's curved
+#: and sawtooth families, EN 1991-1-3's cylindrical and multi-span roofs)
+_SAME_FORM = {"cylindrical": "curved", "curved": "cylindrical", "multi-span": "sawtooth",
+              "sawtooth": "multi-span"}  # fmt: skip
+
+
 @dataclass(frozen=True)
 class Standard:
     """What a standard declares to the registry (see the module docstring).
@@ -240,8 +246,8 @@ class Standard:
     screening_flags: Callable[..., list]
     verification: Callable[[], Sequence[VerificationCase]]
     summary: str = ""
-    #: the roof shapes of the shared vocabulary the standard covers
-    shapes: tuple[str, ...] = ("flat", "monoslope", "gable", "hip")
+    #: the roof shapes of the shared vocabulary the standard covers (ASCE 7's by default)
+    shapes: tuple[str, ...] = ("flat", "monoslope", "gable", "hip", "curved", "dome", "sawtooth")
     #: the package holding the standard's parameter sets (``<name>.toml`` files; read
     #: by ``neve.roof_file``, never by the engine); "" for none
     parameter_sets: str = ""
@@ -258,8 +264,11 @@ class Standard:
 
         shape = getattr(roof, "shape", None)
         if shape is not None and shape not in self.shapes:
+            other = _SAME_FORM.get(shape)
+            hint = (f"; a roof of this form is {other!r} in {self.title}"
+                    if other in self.shapes else "")  # fmt: skip
             raise UnsupportedError(
-                "shape", f"{self.title} in neve does not cover {shape!r} roofs",
+                "shape", f"{self.title} in neve does not cover {shape!r} roofs{hint}",
                 ", ".join(self.shapes),
             )  # fmt: skip
         names = {o.name for o in self.roof_options}
@@ -311,10 +320,11 @@ class Standard:
         return f"{self.title} {clause}" if clause else ""
 
     def case_ref(self, case: Mapping) -> str:
-        """The provision a load case of ``analyze`` comes from (its ``case`` and ``source``)."""
+        """The provision a load case of ``analyze`` comes from (its ``case``, ``source``, ``method``)."""
         kind = str(case.get("case") or "")
         source = str(case.get("source") or "")
-        for key in (f"case.{kind}.{source}", f"case.{kind}"):
+        method = str(case.get("method") or "")
+        for key in (f"case.{kind}.{source}", f"case.{kind}.{method}", f"case.{kind}"):
             if key in self.provisions:
                 return self.ref(key)
         return ""

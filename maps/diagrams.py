@@ -47,6 +47,19 @@ DIAGRAM_KINDS = {
     "sliding": "Sliding snow",
     "unbalanced": "Unbalanced load",
     "ice_dam": "Ice dam at the eave",
+    # curved, dome and multi-span roofs (issue 12): told apart by the case's ``method``
+    "curved_balanced": "Balanced load on a curved roof",
+    "curved": "Unbalanced load on a curved roof",
+    "dome": "Unbalanced load on a dome",
+    "sawtooth": "Unbalanced load in the valleys",
+}
+#: (case, method) of the cases of curved, dome and multi-span roofs -> their diagram
+SHAPE_DIAGRAMS = {
+    ("balanced", "curved"): "curved_balanced",
+    ("balanced", "dome"): "curved_balanced",
+    ("unbalanced", "curved"): "curved",
+    ("unbalanced", "dome"): "dome",
+    ("unbalanced", "sawtooth"): "sawtooth",
 }
 
 _C = style.DIAGRAM_COLOURS
@@ -83,9 +96,14 @@ def diagram_kind(case: dict) -> str | None:
 
     Drifts are told apart by their ``source`` (``step``, ``adjacent``,
     ``parapet``, ``projection``); a drift without one (an older JSON) by the
-    words of its name, a roof step otherwise.
+    words of its name, a roof step otherwise.  The cases of curved, dome and
+    multi-span roofs by their ``method`` (:data:`SHAPE_DIAGRAMS`; a curved
+    roof's balanced case too).
     """
     kind = str(case.get("case", ""))
+    shaped = SHAPE_DIAGRAMS.get((kind, str(case.get("method") or "")))
+    if shaped is not None:
+        return shaped
     if kind not in DIAGRAM_CASES:
         return None
     if kind != "drift":
@@ -278,10 +296,22 @@ def _draw_step(ax, case, roof_json, adjacent=False):
     cut = (_psf(case.get("pd_far_edge")) or 0.0) > 0 and w and won is not None and won < w
     if cut:
         xe = x0 + max(ww * won / w, 1.3)
-    # structure
-    _patch(ax, [(0.3, yu), (xw, yu), (xw, yl - (1.35 if adjacent else 0.0)),
+    # structure; a parapet on the upper roof at the step stands on its edge, its top at yu
+    hp_ft, hb_ft, hc_ft = (_ft(case.get(k)) for k in ("upper_parapet", "hb", "hc"))
+    pp = 0.0
+    if hp_ft and hb_ft is not None and hc_ft:
+        pp = _clamp((bb + cc) * hp_ft / (hb_ft + hc_ft), 0.3, 0.6 * cc)
+    yr = yu - pp  # the upper roof's surface
+    _patch(ax, [(0.3, yr), (xw, yr), (xw, yl - (1.35 if adjacent else 0.0)),
                 (0.3, yl - (1.35 if adjacent else 0.0))], "interior")  # fmt: skip
-    _line(ax, [0.3, xw, xw], [yu, yu, yl - (1.35 if adjacent else 0.0)])
+    _line(ax, [0.3, xw, xw], [yr, yr, yl - (1.35 if adjacent else 0.0)])
+    if pp:
+        _patch(ax, _rect(xw - 0.22, xw, yr, yu), "solid")
+        # hp between the hb/hd column (xw - 0.32) and the hc column (xw - 1.08); the word
+        # beyond the hc column
+        _vdim(ax, xw - 0.62, yr, yu, "hp")
+        _ext(ax, xw - 0.62, xw - 0.22, yu)
+        _text(ax, xw - 1.25, (yr + yu) / 2, "parapet", ha="right")
     _line(ax, [x0, xe, xe], [yl, yl, yl - 0.35])
     if adjacent:
         _line(ax, [x0, x0], [yl, yl - 1.35])
@@ -294,7 +324,7 @@ def _draw_step(ax, case, roof_json, adjacent=False):
     else:
         _patch(ax, [(x0, yb), (x0, yb + dd), (x0 + ww, yb)], "surcharge")
     # names
-    _text(ax, 0.42, yu - 0.1, "upper roof", ha="left", va="top")
+    _text(ax, 0.42, yr - 0.1, "upper roof", ha="left", va="top")
     # a short lower roof: its name beyond the far edge, clear of the edge's line
     _text(ax, (xe if cut else x0) + 0.15, yl - 0.1, "lower roof", ha="left", va="top")
     _text(ax, xe - 0.12, (yl + yb) / 2, "ps", ha="right", style="italic")
@@ -327,6 +357,9 @@ def _draw_step(ax, case, roof_json, adjacent=False):
     rows = _drift_rows(case, roof_json, "lower roof" if windward else "upper roof")
     if gap is not None:
         rows.append((None, "s", "separation", style.length_text(gap)))
+    if pp:
+        rows.append((None, "hp", "parapet on the upper roof (in hc)",
+                     style.length_text(case["upper_parapet"])))  # fmt: skip
     return rows, []
 
 
@@ -391,9 +424,17 @@ def _draw_projection(ax, case, roof_json):
     if case.get("hc"):
         _vdim(ax, c2, yb, yt, "hc", side="right")
     _hdim(ax, xa - ww, xa, 0.35, "w")
-    if fetch(case) is not None:
+    side, length = case.get("side"), case.get("roof_length")
+    if side and length:  # a drift per side: the roof length of this side; lu the greater one
+        _hdim(ax, 0.4, xa, -0.3, "l")
+    elif fetch(case) is not None:
         _hdim(ax, 0.4, xa, -0.3, "lu")
     _wind(ax, 1.0, 2.8, max(yt, yb + dd) + 0.45)
+    if side and length:
+        rows = _drift_rows(case, roof_json, "the greater roof length of the two sides")
+        rows.append((None, "l", f"roof length, {side} side", style.length_text(length)))
+        note = f"the {side} side; dashed: the drift on the opposite side, from the same lu"
+        return rows, [note]
     note = "dashed: the same drift on another side, with the wind from that side"
     return _drift_rows(case, roof_json, "roof upwind"), [note]
 
@@ -447,11 +488,20 @@ def _draw_unbalanced(ax, case, roof_json):
     desc = (roof_json or {}).get("roof") or {}
     ww, lw, sc = (_psf(case.get(k)) or 0.0 for k in ("windward", "leeward", "surcharge"))
     ext = _ft(case.get("surcharge_extent")) or 0.0
-    w_roof = _ft(desc.get("eave_to_ridge"))
+    # an asymmetric roof: each case knows its leeward side's W (the side drawn dimensioned)
+    w_lee = case.get("leeward_eave_to_ridge") or desc.get("eave_to_ridge")
+    w_roof = _ft(w_lee)
     xl, xr, xe = 0.6, 5.0, 9.4
+    w_wind = _ft(case.get("windward_eave_to_ridge"))
+    if w_wind and w_roof:  # an asymmetric roof: the ridge off the middle, within bounds
+        xr = xl + (xe - xl) * _clamp(w_wind / (w_wind + w_roof), 0.3, 0.7)
     slope = fmt._finite(desc.get("slope_deg"))
-    rise = _clamp((xr - xl) * math.tan(math.radians(slope)), 0.45, 2.0) if slope else 1.2
-    yr, y0 = 1.0 + rise, 3.7
+    t = math.tan(math.radians(slope)) if slope else 0.0
+    rise_l, rise_r = ((xr - xl) * t, (xe - xr) * t) if t else (1.2, 1.2)
+    top = max(rise_l, rise_r)
+    k_rise = _clamp(top, 0.45, 2.0) / top  # the higher side within bounds, the other alike
+    yr, y0 = 1.0 + top * k_rise, 3.7
+    ye_l, ye_r = yr - rise_l * k_rise, yr - rise_r * k_rise
     k = 2.3 / max(ww, lw + sc, 1e-9)
     hw = _clamp(ww * k, 0.3, 2.3) if ww > 0 else 0.0
     hl = _clamp(lw * k, 0.5, 2.3)
@@ -459,8 +509,8 @@ def _draw_unbalanced(ax, case, roof_json):
     if hl + hs > 2.4:
         hl = max(2.4 - hs, 0.5)
     xx = _clamp((xe - xr) * (ext / w_roof if w_roof else 0.4), 1.3, 2.8) if hs else 0.0
-    _patch(ax, [(xl, 1.0), (xr, yr), (xe, 1.0), (xe, 0.25), (xl, 0.25)], "interior")
-    _line(ax, [xl, xl, xr, xe, xe], [0.25, 1.0, yr, 1.0, 0.25])
+    _patch(ax, [(xl, ye_l), (xr, yr), (xe, ye_r), (xe, 0.25), (xl, 0.25)], "interior")
+    _line(ax, [xl, xl, xr, xe, xe], [0.25, ye_l, yr, ye_r, 0.25])
     _line(ax, [xr, xr], [1.0, y0], lw=0.7, colour=_C["muted"], ls=(0, (4, 2)))
     _text(ax, xr, 0.92, "ridge", va="top", colour=_C["muted"])
     if hw:
@@ -496,14 +546,23 @@ def _draw_unbalanced(ax, case, roof_json):
                 style.length_text(case.get("surcharge_extent")),
             )
         )
-    if w_roof:
-        rows.append((None, "W", "eave to ridge", style.length_text(desc.get("eave_to_ridge"))))
+    if w_roof and case.get("wind_from"):
+        rows.append((None, "W", "eave to ridge, leeward side", style.length_text(w_lee)))
+        rows.append((None, "W wind", "eave to ridge, windward side",
+                     style.length_text(case.get("windward_eave_to_ridge"))))  # fmt: skip
+    elif w_roof:
+        rows.append((None, "W", "eave to ridge", style.length_text(w_lee)))
     lu = fetch(case)
     if lu is not None:
         rows.append((None, "lu", "fetch of the surcharge", style.length_text(lu)))
     if slope is not None:
         rows.append((None, "slope", "roof slope", fmt.pitch_text(slope)))
-    return [r for r in rows if not r[3].startswith("none")], []
+    notes = []
+    if case.get("wind_from") in ("A", "B"):
+        a = case["wind_from"]
+        b = "B" if a == "A" else "A"
+        notes.append(f"wind from side {a}: side {a} is drawn windward (left), side {b} leeward")
+    return [r for r in rows if not r[3].startswith("none")], notes
 
 
 def _draw_ice_dam(ax, case, roof_json):
@@ -545,7 +604,202 @@ def _draw_ice_dam(ax, case, roof_json):
     return [r for r in rows if not r[3].startswith("none")], notes
 
 
+# curved, dome and multi-span roofs (issue 12) -------------------------------------
+
+
+def _deg(value) -> str:
+    v = fmt._finite(value)
+    return "none" if v is None else f"{fmt.significant(v)}\u00b0".replace(".0\u00b0", "\u00b0")
+
+
+def _arc_sketch(ax, case, unbalanced: bool):
+    """A curved roof's section, its key points and load profile; returns rows of the lengths.
+
+    The arc is drawn with the case's rise-to-half-chord ratio within bounds; the
+    30° and 70° points at their share of the half chord; loads above the roof on
+    a baseline, in the ratio of the case's values.
+    """
+    c, h = _ft(case.get("half_chord")), _ft(case.get("rise"))
+    x30, x70 = _ft(case.get("x_30")), _ft(case.get("x_70"))
+    xc, cw, ye = 5.0, 4.1, 1.25
+    hd = _clamp(cw * (h / c if c and h else 0.4), 0.55, 2.3)
+    rd = (cw * cw + hd * hd) / (2.0 * hd)
+    yc0 = ye + hd - rd
+
+    def arc_y(x):
+        return yc0 + math.sqrt(max(rd * rd - (x - xc) ** 2, 0.0))
+
+    def at(x_ft):  # drawn x of a point x_ft from the crown, leeward (right) side
+        return xc + cw * _clamp((x_ft or 0.0) / c, 0.0, 1.0) if c else xc + cw
+
+    xs = [xc - cw + 2 * cw * i / 60 for i in range(61)]
+    _patch(ax, [(xc - cw, 0.85), *[(x, arc_y(x)) for x in xs], (xc + cw, 0.85)], "interior")
+    _line(ax, [xc - cw, xc - cw], [0.85, ye])
+    _line(ax, [xc + cw, xc + cw], [0.85, ye])
+    _line(ax, xs, [arc_y(x) for x in xs])
+    y0 = ye + hd + 0.55
+    pre = "leeward_" if unbalanced else ""
+    names = ("crown", "30", "70", "eave") if unbalanced else ("crown", "at_30", "at_70", "eave")
+    where = {names[0]: 0.0, names[1]: x30, names[2]: x70, names[3]: c}
+    points = [(at(where[n]), _psf(case.get(pre + n))) for n in names
+              if _psf(case.get(pre + n)) is not None and (n in (names[0], names[3]) or where[n])]  # fmt: skip
+    top = max([v for _, v in points] + [1e-9])
+    k = 2.0 / top
+    prof = [(x, _clamp(v * k, 0.0, 2.0)) for x, v in points]
+    right = [(x, y0 + hh) for x, hh in prof]
+    _patch(ax, [(xc, y0), *right, (xc + cw, y0)], "snow")
+    if unbalanced:
+        _line(ax, [xc - cw, xc], [y0, y0], lw=0.9, colour=_C["snow_edge"], ls=(0, (3, 2)))
+    else:
+        left = [(2 * xc - x, y) for x, y in reversed(right)]
+        _patch(ax, [(xc - cw, y0), *left, (xc, y0)], "snow")
+    # the key points: a dashed line from the roof to the load, named below the roof
+    for n, label in ((names[1], "30\u00b0"), (names[2], "70\u00b0")):
+        if where[n] and _psf(case.get(pre + n)) is not None:
+            x = at(where[n])
+            _line(ax, [x, x], [arc_y(x), y0], lw=0.6, colour=_C["muted"], ls=(0, (3, 2)))
+            _text(ax, x - 0.08, arc_y(x) - 0.12, label, ha="right", va="top", colour=_C["muted"])
+    _line(ax, [xc, xc], [ye + hd, y0], lw=0.6, colour=_C["muted"], ls=(0, (3, 2)))
+    _text(ax, xc, ye + hd - 0.12, "crown", va="top", colour=_C["muted"])
+    _text(ax, xc + cw + 0.12, ye - 0.05, "eave", ha="left", va="top")
+    # lengths: the rise at the windward wall, the points' distances from the crown in lanes
+    _ext(ax, 0.45, xc, ye + hd)
+    _vdim(ax, 0.45, ye, ye + hd, "h", side="right")
+    lanes = iter((0.6, 0.17, -0.26))
+    _ext(ax, xc, xc, ye)
+    _line(ax, [xc, xc], [ye + hd, -0.3], lw=0.5, colour=_C["dimension"], ls=(0, (1, 1.5)))
+    rows = []
+    for sym, x_ft, what, q in (("c", c, "crown to eave (half chord)", "half_chord"),
+                               ("x70", x70, "crown to the 70\u00b0 point", "x_70"),
+                               ("x30", x30, "crown to the 30\u00b0 point", "x_30")):  # fmt: skip
+        if x_ft:
+            _hdim(ax, xc, at(x_ft), next(lanes), sym)
+            rows.append((None, sym, what, style.length_text(case.get(q))))
+    rows.append((None, "h", "rise, eave to crown", style.length_text(case.get("rise"))))
+    cond = str(case.get("eave_condition") or "").split(":")[0]
+    rows.append((None, "\u03b8e", f"slope at the eave (condition {cond})" if cond else
+                 "slope at the eave", _deg(case.get("eave_slope_deg"))))  # fmt: skip
+    return rows, y0, top * k
+
+
+def _draw_curved_balanced(ax, case, roof_json):
+    rows, y0, hmax = _arc_sketch(ax, case, unbalanced=False)
+    _text(ax, 7.0, y0 + hmax + 0.06, "Cs pf", va="bottom", style="italic")
+    loads = [
+        ("snow", "Cs pf", "load at the crown", _load(case.get("crown"))),
+        ("snow", "p 30", "at the 30\u00b0 point", _load(case.get("at_30"))),
+        ("snow", "p 70", "at the 70\u00b0 point", _load(case.get("at_70"))),
+        ("snow", "p eave", "at the eave", _load(case.get("eave"))),
+    ]
+    notes = ["between the points the load follows Cs of the tangent slope there"]
+    return [r for r in loads + rows if not r[3].startswith("none")], notes
+
+
+def _curved_load_rows(case) -> list[tuple]:
+    return [
+        ("snow", "p crown", "leeward, at the crown", _load(case.get("leeward_crown"))),
+        ("snow", "p 30", "leeward, at the 30\u00b0 point", _load(case.get("leeward_30"))),
+        ("snow", "p 70", "leeward, at the 70\u00b0 point", _load(case.get("leeward_70"))),
+        ("snow", "p eave", "leeward, at the eave", _load(case.get("leeward_eave"))),
+        (None, "windward", "windward side", _load(case.get("windward"))),
+    ]
+
+
+def _draw_curved(ax, case, roof_json):
+    rows, y0, hmax = _arc_sketch(ax, case, unbalanced=True)
+    _text(ax, 2.95, y0 + 0.08, "windward", va="bottom")
+    _text(ax, 7.1, y0 + hmax + 0.06, "leeward", va="bottom")
+    _wind(ax, 1.35, 3.1, y0 + 0.95)
+    out = _curved_load_rows(case) + rows
+    return [r for r in out if not r[3].startswith("none")], []
+
+
+def _draw_dome(ax, case, roof_json):
+    from matplotlib.patches import Circle, Wedge
+
+    rows, y0, hmax = _arc_sketch(ax, case, unbalanced=True)
+    _text(ax, 2.95, y0 + 0.08, "section", va="bottom", colour=_C["muted"])
+    _text(ax, 7.1, y0 + hmax + 0.06, "leeward", va="bottom")
+    _wind(ax, 1.35, 3.1, y0 + 0.95)
+    full = fmt._finite(case.get("sector_deg")) or 90.0
+    taper = fmt._finite(case.get("taper_deg")) or 22.5
+    r, cx, cy = 0.62, 1.55, min(y0 + 2.05, 6.25)
+    ax.add_patch(Circle((cx, cy), r, facecolor=_C["interior"], edgecolor=_C["structure"], lw=1.0))
+    ax.add_patch(Wedge((cx, cy), r, -full / 2, full / 2, facecolor=_C["snow"],
+                       edgecolor=_C["snow_edge"], lw=0.8))  # fmt: skip
+    for a0 in (full / 2, -full / 2 - taper):
+        ax.add_patch(Wedge((cx, cy), r, a0, a0 + taper, facecolor=_C["snow"], alpha=0.45,
+                           edgecolor=_C["snow_edge"], lw=0.6, ls=(0, (2, 2))))  # fmt: skip
+    _text(ax, cx + r + 0.15, cy, "plan", ha="left", colour=_C["muted"])
+    out = (
+        _curved_load_rows(case)
+        + rows
+        + [
+            (None, "sector", "downwind, full load (plan)", _deg(full)),
+            (None, "taper", "each side, falling to zero", _deg(taper)),
+        ]
+    )
+    return [r for r in out if not r[3].startswith("none")], []
+
+
+def _draw_sawtooth(ax, case, roof_json):
+    ridge, valley = _psf(case.get("ridge")) or 0.0, _psf(case.get("valley")) or 0.0
+    unlimited = _psf(case.get("valley_unlimited")) or valley
+    hr, w = _ft(case.get("ridge_height")), _ft(case.get("ridge_to_valley"))
+    yv, bay, x0 = 1.0, 4.2, 0.9
+    hh = _clamp(bay * (hr / w if hr and w else 0.3), 0.7, 1.9)
+    pts = []
+    for i in range(2):
+        xa = x0 + i * bay
+        pts += [(xa, yv), (xa + bay, yv + hh)]
+    profile = [(x0, yv - 0.45), *pts, (x0 + 2 * bay, yv - 0.45)]
+    _patch(ax, profile, "interior")
+    _line(ax, [x0, x0], [yv - 0.45, yv])
+    _line(ax, [p[0] for p in pts] + [x0 + 2 * bay], [p[1] for p in pts] + [yv - 0.45])
+    y0 = yv + hh + 0.55
+    k = 2.3 / max(unlimited, ridge, 1e-9)
+    hv, hrd, hu = (_clamp(v * k, 0.15, 2.3) for v in (valley, ridge, unlimited))
+    for i in range(2):
+        xa = x0 + i * bay
+        _patch(ax, [(xa, y0), (xa, y0 + hv), (xa + bay, y0 + hrd), (xa + bay, y0)], "snow")
+        if unlimited > valley + 1e-9 and i == 0:  # the valley load before the limit, once
+            _patch(ax, [(xa, y0 + hv), (xa, y0 + hu), (xa + bay, y0 + hrd)], "snow", dashed=True)
+        _line(ax, [xa, xa], [yv, y0], lw=0.6, colour=_C["muted"], ls=(0, (3, 2)))
+    _text(ax, x0 + 0.1, y0 + max(hv, hu) + 0.06, "p valley", ha="left", va="bottom",
+          style="italic")  # fmt: skip
+    _text(ax, x0 + 2 * bay - 0.1, y0 + hrd + 0.06, "p ridge", ha="right", va="bottom",
+          style="italic")  # fmt: skip
+    _text(ax, x0 + 0.1, yv - 0.08, "valley", ha="left", va="top", colour=_C["muted"])
+    _text(ax, x0 + bay + 0.1, yv - 0.08, "valley", ha="left", va="top", colour=_C["muted"])
+    _text(ax, x0 + bay - 0.1, yv + hh + 0.05, "ridge", ha="right", va="bottom",
+          colour=_C["muted"])  # fmt: skip
+    xd = x0 + 2 * bay + 0.3
+    _ext(ax, x0 + 2 * bay, xd, yv + hh)
+    _ext(ax, x0 + 2 * bay, xd, yv)
+    _vdim(ax, xd, yv, yv + hh, "hr", side="right")
+    _hdim(ax, x0 + bay, x0 + 2 * bay, 0.1, "W")
+    rows = [
+        ("snow", "p ridge", "at the ridge, 0.5 pf", _load(case.get("ridge"))),
+        ("snow", "p valley", f"in the valley ({case.get('governs') or 'valley'})",
+         _load(case.get("valley"))),
+        (None, "2 pf/Ce", "valley, before the limit", _load(case.get("valley_unlimited"))),
+        (None, "p max", "valley snow level with the ridge's", _load(case.get("valley_limit"))),
+        (None, "hr", "ridge height above the valley", style.length_text(case.get("ridge_height"))),
+        (None, "W", "ridge to valley", style.length_text(case.get("ridge_to_valley"))),
+    ]  # fmt: skip
+    if case.get("gamma"):
+        rows.append((None, "\u03b3", "snow density", style.quantity_text(case["gamma"])))
+    notes = ["drawn as a sawtooth; folded plates and barrel vaults load alike"]
+    if unlimited > valley + 1e-9:
+        notes = ["dashed: 2 pf/Ce, cut where the valley snow would rise above the ridge's"]
+    return [r for r in rows if not r[3].startswith("none")], notes
+
+
 _DRAW = {
+    "curved_balanced": _draw_curved_balanced,
+    "curved": _draw_curved,
+    "dome": _draw_dome,
+    "sawtooth": _draw_sawtooth,
     "step": _draw_step,
     "adjacent": lambda ax, case, roof: _draw_step(ax, case, roof, adjacent=True),
     "parapet": _draw_parapet,

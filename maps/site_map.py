@@ -123,6 +123,8 @@ def summary_context(site_json: dict) -> dict:
         "title": site.get("name") or "Site",
         "project": site.get("project") or "",
         "address": site.get("address") or "",
+        "precision": _precision_text(site),
+        "radius_m": location_radius_m(site_json),
         "lat": site.get("lat"),
         "lon": site.get("lon"),
         "status": status.replace("_", " "),
@@ -146,6 +148,28 @@ def summary_context(site_json: dict) -> dict:
         "roof": style.load_text(roof.get("design_uniform")) if roof else "",
         "cautions": cautions_of(site_json),
     }
+
+
+def location_radius_m(site_json: dict) -> float:
+    """The site's location uncertainty radius [m] from ``site.location_radius`` (0 if none)."""
+    r = (site_json.get("site") or {}).get("location_radius") or {}
+    try:
+        m = float(r.get("m") or 0.0)
+    except (TypeError, ValueError, AttributeError):
+        return 0.0
+    return m if math.isfinite(m) and m > 0 else 0.0
+
+
+def _precision_text(site: dict) -> str:
+    """``postal_code, within 2.8 km (zipcodes 3.0.0)``; "" for coordinates."""
+    precision = str(site.get("location_precision") or "")
+    if not precision or precision == "coordinates":
+        return ""
+    radius = (
+        style.elevation_text(site.get("location_radius")) if site.get("location_radius") else ""
+    )
+    source = f" ({site['location_source']})" if site.get("location_source") else ""
+    return f"{precision.replace('_', ' ')}, uncertain within {radius}{source}"
 
 
 def _site_tip(ctx: dict) -> str:
@@ -202,8 +226,11 @@ def write_site_map(
     ctx = summary_context(site_json)
     base = as_basemap(basemap, tiles=tiles, demo_data=is_demo(site_json, views), views=views)
     m = leaflet.new_map(lat, lon, base, zoom=13)
-    # open on the neighbourhood: about 3 km either side of the site
-    dlat = VIEW_HALF_WIDTH_M / 111_320.0
+    # open on the neighbourhood: about 3 km either side of the site, or the whole
+    # uncertainty circle of an approximate location
+    radius_m = ctx["radius_m"]
+    near_m = max(NEIGHBOUR_RADIUS_M, 1.2 * radius_m)
+    dlat = max(VIEW_HALF_WIDTH_M, 1.15 * radius_m) / 111_320.0
     dlon = dlat / max(math.cos(math.radians(lat)), 0.05)
     bounds = [[lat - dlat, lon - dlon], [lat + dlat, lon + dlon]]
     m.fit_bounds(bounds)
@@ -228,7 +255,7 @@ def write_site_map(
             view.get("value_units") or (view.get("meta") or {}).get("value_units") or "psf"
         )
         gov = governing_ids(site_json, view, first=(i == g_index))
-        near = zones_near(zones, lat, lon, NEIGHBOUR_RADIUS_M, keep_ids=gov)
+        near = zones_near(zones, lat, lon, near_m, keep_ids=gov)
         classes = style.value_classes(near["pg"]) if len(near) else []
         if i == g_index:
             all_classes, units = classes, v_units
@@ -256,9 +283,14 @@ def write_site_map(
 
     # the neighbourhood whose zones are drawn, as the legend says
     folium.Circle(
-        [lat, lon], radius=NEIGHBOUR_RADIUS_M, fill=False, color="#4a5068", weight=1.2,
+        [lat, lon], radius=near_m, fill=False, color="#4a5068", weight=1.2,
         dash_array="6 6", interactive=False,
     ).add_to(m)  # fmt: skip
+    if radius_m > 0:  # the location's uncertainty: every zone within it was considered
+        folium.Circle(
+            [lat, lon], radius=radius_m, fill=True, fill_opacity=0.08, color="#b3541e",
+            weight=2.5, interactive=False, class_name="neve-location-circle",
+        ).add_to(m)  # fmt: skip
     leaflet.add_site_marker(m, lat, lon, _site_tip(ctx))
     leaflet.add_html(m, render("site_panel.html.j2", **ctx), "neve_summary")
     leaflet.add_html(
@@ -273,8 +305,15 @@ def write_site_map(
             governing=True,
             site=True,
             problems=False,
-            note=f"Dashed circle: {NEIGHBOUR_RADIUS_M / 1000:.0f} km around the site; every "
-            "zone reaching into it is drawn whole.",
+            note=f"Dashed circle: {near_m / 1000:.0f} km around the site; every "
+            "zone reaching into it is drawn whole."
+            + (
+                f" Solid circle: the location is uncertain within {radius_m / 1000:.1f} km"
+                " (an approximate location); every zone within it was considered and the"
+                " larger value governs."
+                if radius_m > 0
+                else ""
+            ),
         ),
         "neve_legend",
     )

@@ -93,6 +93,10 @@ def true_north_angle(lat: float, lon: float, crs) -> float:
     return math.degrees(math.atan2(-(x1 - x0), y1 - y0))
 
 
+#: the colour of an approximate location's uncertainty circle (as on the site map)
+LOCATION_COLOUR = "#b3541e"
+
+
 @style.plain_figure_text
 def write_static_map(
     site_json: dict,
@@ -209,6 +213,16 @@ def write_static_map(
                              label="case study required (no value)"))  # fmt: skip
         handles.append(Patch(facecolor="none", edgecolor=style.GOVERNING_COLOUR, linewidth=2.4,
                              label="governing zone"))  # fmt: skip
+    from neve.maps.site_map import location_radius_m
+
+    radius_m = location_radius_m(site_json)
+    if radius_m > 0:  # an approximate location: its uncertainty circle (local CRS, metres)
+        from matplotlib.patches import Circle
+
+        ax.add_patch(Circle((site_xy.x, site_xy.y), radius_m, facecolor="none",
+                            edgecolor=LOCATION_COLOUR, linewidth=2.0, zorder=7))  # fmt: skip
+        handles.append(Line2D([], [], color=LOCATION_COLOUR, linewidth=2.0,
+                              label=f"location uncertain within {radius_m:,.0f} m"))  # fmt: skip
     ax.plot(site_xy.x, site_xy.y, marker="o", markersize=10, color=style.SITE_COLOUR,
             markeredgecolor="white", markeredgewidth=2, zorder=8)  # fmt: skip
     ax.plot(site_xy.x, site_xy.y, marker="+", markersize=18, color=style.SITE_COLOUR, zorder=8)

@@ -305,7 +305,11 @@ def test_roof_json_keys_are_in_the_contract():
     gable = ["--shape", "gable", "--slope", "6:12"]
     _keys(_run_json("roof", "--pg", "35psf", *gable, "--eave-to-ridge", "30ft"), keys)
     _keys(_run_json("roof", "--pg", "35psf", *gable, "--eave-to-ridge", "15ft"), keys)
+    # issue 12: an asymmetric gable, and a roof with every kind of place (invented example)
+    _keys(_run_json("roof", "--pg", "35psf", *gable, "--eave-to-ridge", "40ft,12ft"), keys)
+    _keys(_run_json("roof", "--pg", "35psf", "--roof", str(ROOT / "examples" / "annex.toml")), keys)
     assert {"design_uniform", "surcharge_extent", "governs", "ref"} <= keys  # not vacuous
+    assert {"wind_from", "inside_corners", "roof_length", "place", "lower_roof"} <= keys
     _missing(keys, "`neve roof` JSON key(s)")
 
 

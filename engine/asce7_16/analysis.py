@@ -26,7 +26,7 @@ import math
 
 import numpy as np
 
-from neve.engine.asce7_16 import STANDARD, flat, slope, unbalanced
+from neve.engine.asce7_16 import STANDARD, flat, shape_cases, slope, unbalanced
 from neve.engine.asce7_16.cases import (
     case_record,
     drift_cases,
@@ -78,12 +78,20 @@ def _uniform(pg, roof: Roof, log: StepLog | None):
         roof.surface, ct, roof.unobstructed, roof.ventilated, roof.r_value
     )
     flags += sflags
-    cs = slope.slope_factor(roof.slope, ct, slippery, log)
+    # --- hook (issue 12): curved, dome and multi-span roofs, engine/asce7_16/shape_cases.py ---
+    if roof.shape in shape_cases.SHAPES:
+        cs = shape_cases.uniform_cs(roof, log)
+    else:
+        cs = slope.slope_factor(roof.slope, ct, slippery, log)
+    # --- end of hook ---
     factors["Cs"] = round(float(cs), 4)
     ps = slope.sloped_roof_load(pf, cs, log)
-    ros = flat.rain_on_snow(pg, roof.slope, roof.eave_to_ridge, log)
+    # an asymmetric roof: the longer W (rain-on-snow then applies to more roofs: conservative)
+    ros = flat.rain_on_snow(pg, roof.slope, roof.eave_to_ridge_max, log)
     if roof.eave_to_ridge is None and np.any(ros > 0) and roof.slope > 0:
         flags.append("rain_on_snow_eave_to_ridge_unknown")
+    if bool(flat.ponding_check_required(roof.slope)):
+        flags.append("ponding_check_required")
     pm_applies = bool(flat.minimum_applies(roof.shape, roof.slope))
     pm = flat.minimum_load(pg, is_, None) if pm_applies else None  # logged in its own case
     return factors, flags, pf, cs, ps, pm, ros, slippery
@@ -122,17 +130,26 @@ def screening_flags(roof: Roof) -> list[str]:
     """Flags that go with :func:`uniform_loads` results of ``roof``.
 
     The flags of the roof description (defaults assumed, slippery line not
-    used, rain-on-snow with W unknown) plus ``roof_cases_not_screened`` where
-    the roof has load cases beyond the uniform ones that can govern
-    (unbalanced, drifts, sliding, ice dams): screening reports uniform loads
-    only, and those cases need :func:`analyze_roof` (``neve site``).
+    used, rain-on-snow with W unknown, a ponding check required) plus
+    ``roof_cases_not_screened`` where the roof has load cases beyond the
+    uniform ones that can govern (unbalanced, drifts, sliding, ice dams):
+    screening reports uniform loads only, and those cases need
+    :func:`analyze_roof` (``neve site``).  ``eave_to_ridge_needed``: a gable
+    or hip roof whose unbalanced load needs W, not given.
     """
     roof = as_roof(roof)
     # at pg = 10 psf rain-on-snow is in range, so its W-unknown flag shows too
     _, flags, *_ = _uniform(np.array([10.0]), roof, None)
     more = bool(roof.steps or roof.parapets or roof.projections or roof.overhang is not None)
-    if more or bool(unbalanced.unbalanced_required(roof.shape, roof.slope)):
+    unbalanced_needed = bool(unbalanced.unbalanced_required(roof.shape, roof.slope))
+    if more or unbalanced_needed:
         flags.append("roof_cases_not_screened")
+    if unbalanced_needed and roof.eave_to_ridge is None:
+        flags.append("eave_to_ridge_needed")
+    # --- hook (issue 12): curved, dome and multi-span roofs, engine/asce7_16/shape_cases.py ---
+    if shape_cases.has_more_cases(roof):
+        flags.append("roof_cases_not_screened")
+    # --- end of hook ---
     return sorted(set(flags))
 
 
@@ -187,9 +204,12 @@ def analyze_roof(pg: float, roof: Roof) -> RoofResult:
         )
     unbalanced_cases(pg, ps, is_, roof, cases, skipped, flags)
     drift_cases(pg, ps, roof, cases, skipped)
-    sliding_cases(pf, roof, ps, cases, skipped, flags)
+    sliding_cases(pg, pf, factors, roof, ps, cases, skipped, flags)
     ice_dam_case(pf, factors["Ct"], roof, cases, skipped, flags)
     partial_case(ps, roof, cases, skipped)
+    # --- hook (issue 12): curved, dome and multi-span roofs, engine/asce7_16/shape_cases.py ---
+    shape_cases.add_cases(pg, pf, factors, roof, cases, skipped, flags)
+    # --- end of hook ---
     design = max(ps + ros, pm if pm is not None else 0.0)
     loads = {"pf": pf, "ps": ps, "pm": pm, "rain_on_snow": ros if ros > 0 else None}
     return RoofResult(

@@ -16,12 +16,11 @@ from __future__ import annotations
 import numpy as np
 
 from neve.engine.asce7_16 import STANDARD
+from neve.engine.drift_cases import log_step_height
 from neve.engine.steps import StepLog, fmt
 
 #: the largest snow density Eq. 7.7-1 gives [pcf]
 DENSITY_CAP = 30.0
-#: the shortest fetch the drift-height relation is used with [ft] (Fig. 7.6-1)
-MIN_FETCH = 20.0
 #: drifts are not required where hc/hb is below this (Sec. 7.7.1)
 HC_HB_LIMIT = 0.2
 #: factor on hd for windward drifts and for parapets/projections (Sec. 7.7.1, 7.8)
@@ -62,15 +61,21 @@ def snow_density(pg, log: StepLog | None = None):
 def drift_height(pg, lu, log: StepLog | None = None, symbol: str = "hd", what: str = "drift"):
     """Drift height hd from the upwind fetch lu [ft].
 
-    ``hd = 0.43 lu^(1/3) (pg + 10)^(1/4) - 1.5`` with lu not taken below
-    20 ft, and hd not below zero; hd is zero where pg is zero (no snow to
-    drift; a reading, the figure starts at pg > 0).
+    ``hd = 0.43 lu^(1/3) (pg + 10)^(1/4) - 1.5``, not below zero; hd is
+    zero where pg is zero (no snow to drift; a reading, the figure starts at
+    pg > 0).
+
+    The fetch is used as given.  Reading (from memory): the one least fetch
+    the provisions state is that of the unbalanced load of hip and gable
+    roofs, where a W under 20 ft is taken as 20 ft (Sec. 7.6.1; applied by
+    :func:`neve.engine.asce7_16.unbalanced.general_case`); the drift
+    provisions (Sec. 7.7.1, 7.8) take the roof lengths as they are.
 
     References
     ----------
     ASCE 7-16 Fig. 7.6-1 (the equation printed with the graph).
     """
-    lu_used = np.maximum(np.asarray(lu, dtype=float), MIN_FETCH)
+    lu_used = np.asarray(lu, dtype=float)
     pg = np.asarray(pg, dtype=float)
     hd = np.maximum(0.43 * np.cbrt(lu_used) * (pg + 10.0) ** 0.25 - 1.5, 0.0)
     # Reading: with no ground snow there is no snow to drift; the fitted
@@ -79,7 +84,7 @@ def drift_height(pg, lu, log: StepLog | None = None, symbol: str = "hd", what: s
     if log is not None:
         log.add(
             symbol,
-            f"{what} height from fetch lu = {fmt(lu_used)} ft (lu >= 20 ft)",
+            f"{what} height from fetch lu = {fmt(lu_used)} ft",
             "hd = 0.43 lu^(1/3) (pg + 10)^(1/4) - 1.5",
             f"hd = 0.43 x {fmt(lu_used)}^(1/3) x ({fmt(pg)} + 10)^(1/4) - 1.5",
             hd,
@@ -207,7 +212,11 @@ def step_drift(pg, ps_lower, step, log: StepLog | None = None) -> dict:
     -----
     Leeward drift uses the upper roof length as fetch; windward drift uses
     the lower roof length with 0.75 on hd; the larger height governs
-    (Sec. 7.7.1).  A drift wider than the lower roof is truncated at the far
+    (Sec. 7.7.1).  The fetches are the roof lengths as given (no least
+    fetch: see :func:`drift_height`); where both give no drift height, no
+    drift is required.  A parapet on the upper roof at the step
+    (``upper_parapet``) adds its height to the step's, with a step of its
+    own: the drift forms against the parapet's top.  A drift wider than the lower roof is truncated at the far
     edge, not reduced to zero there.  For a separate adjacent structure
     (separation s > 0), drifts are required only where s < 20 ft and
     s < 6 h; the leeward drift height is then the lesser of hd and
@@ -221,7 +230,7 @@ def step_drift(pg, ps_lower, step, log: StepLog | None = None) -> dict:
     ref = f"{STANDARD} Sec. 7.7.1"
     gamma = float(snow_density(pg, log))
     hb = float(balanced_height(ps_lower, gamma, log))
-    h, s = step.height, step.separation
+    h, s = log_step_height(step, log, ref), step.separation
     hc = h - hb
     if log is not None:
         log.add(
@@ -252,7 +261,7 @@ def step_drift(pg, ps_lower, step, log: StepLog | None = None) -> dict:
     if log is not None:
         log.add(
             "hd_windward",
-            f"windward drift height, 0.75 x hd from fetch lu = {fmt(max(step.lower_length, MIN_FETCH))} ft",
+            f"windward drift height, 0.75 x hd from fetch lu = {fmt(step.lower_length)} ft",
             "hd_w = 0.75 [0.43 lu^(1/3) (pg + 10)^(1/4) - 1.5]",
             f"hd_w = 0.75 x {fmt(hd_wind_raw)}",
             hd_wind,
@@ -274,6 +283,13 @@ def step_drift(pg, ps_lower, step, log: StepLog | None = None) -> dict:
                 ref2,
             )
         hd_lee = hd_adj
+    if max(hd_lee, hd_wind) <= 0.0:
+        out.update(
+            required=False,
+            reason=f"the fetches ({fmt(step.upper_length)} ft and {fmt(step.lower_length)} ft) "
+            "give no drift height, no drift required (Sec. 7.7.1, Fig. 7.6-1)",
+        )
+        return out
     governs = "leeward" if hd_lee >= hd_wind else "windward"
     if s > 0 and governs == "leeward":
         hd_used, w = hd_lee, w_lee
@@ -326,8 +342,11 @@ def obstruction_drift(
 ) -> dict:
     """Windward drift against a parapet wall or a rooftop projection.
 
-    The drift height is 0.75 hd with lu the roof length upwind of the wall or
-    projection, shaped as in Sec. 7.7.1 with hc = height - hb.
+    The drift height is 0.75 hd with lu the fetch the caller gives (for a
+    parapet the roof length upwind of it; for a projection the greater of
+    the roof lengths on either side, Sec. 7.8, worked out by
+    :func:`neve.engine.drift_cases.projection_cases`), shaped as in
+    Sec. 7.7.1 with hc = height - hb.
 
     References
     ----------
@@ -366,13 +385,20 @@ def obstruction_drift(
     if log is not None:
         log.add(
             "hd",
-            f"{what} drift height, 0.75 x hd from upwind length lu = {fmt(max(upwind_length, MIN_FETCH))} ft",
+            f"{what} drift height, 0.75 x hd from upwind length lu = {fmt(upwind_length)} ft",
             "hd = 0.75 [0.43 lu^(1/3) (pg + 10)^(1/4) - 1.5]",
             f"hd = 0.75 x {fmt(hd_raw)}",
             hd,
             "ft",
             f"{ref}, Fig. 7.6-1",
         )
+    if hd <= 0.0:
+        out.update(
+            required=False,
+            reason=f"the fetch lu = {fmt(upwind_length)} ft gives no drift height, no drift "
+            "required (Sec. 7.8, Fig. 7.6-1)",
+        )
+        return out
     hd_used, w = (float(x) for x in drift_shape(hd, hc))
     _log_shape(log, hd, hc, hd_used, w, ref, f"{what} drift")
     pd = float(surcharge(hd_used, gamma, log, f"{what} drift"))

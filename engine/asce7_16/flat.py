@@ -21,6 +21,10 @@ MINIMUM_PG_LIMIT = 20.0
 #: slope below which a monoslope, hip or gable roof is "low-slope" for the
 #: minimum load [deg] (Sec. 7.3.4)
 MINIMUM_SLOPE_LIMIT = 15.0
+#: curved roofs and domes get the minimum load where the vertical angle from the
+#: eaves to the crown is under this [deg] (Sec. 7.3.4)
+MINIMUM_CROWN_ANGLE = 10.0
+CURVED_MINIMUM_SHAPES = ("curved", "dome")
 #: the rain-on-snow surcharge [psf] (Sec. 7.10)
 RAIN_ON_SNOW_SURCHARGE = 5.0
 #: pg at or below which (but above zero) the surcharge is considered [psf]
@@ -65,11 +69,18 @@ def minimum_applies(shape: str, slope) -> np.ndarray:
 
     It applies to monoslope, hip and gable roofs with a slope under 15
     degrees.  A roof given as ``flat`` is read as a low-slope monoslope roof
-    (common practice), so the minimum applies to it too.  Curved roofs are
-    outside the engine.
+    (common practice), so the minimum applies to it too.
+
+    Curved roofs and domes: where the vertical angle from the eaves to the
+    crown is under 10 degrees; ``slope`` is then that angle (the eave-to-crown
+    line, :mod:`neve.engine.roof_shapes`).  Multi-span (sawtooth, folded
+    plate, barrel vault) roofs are read as monoslope and gable faces: under 15
+    degrees (the clause names neither; applying it is conservative).
     """
     slope = np.asarray(slope, dtype=float)
-    if shape not in ("flat", "monoslope", "hip", "gable"):
+    if shape in CURVED_MINIMUM_SHAPES:
+        return slope < MINIMUM_CROWN_ANGLE
+    if shape not in ("flat", "monoslope", "hip", "gable", "sawtooth"):
         return np.zeros_like(slope, dtype=bool)
     return slope < MINIMUM_SLOPE_LIMIT
 
@@ -143,3 +154,26 @@ def rain_on_snow(pg, slope, eave_to_ridge, log: StepLog | None = None):
             f"{STANDARD} Sec. 7.10",
         )
     return value
+
+
+#: slope below which a roof's deflections under the full snow load are to be
+#: investigated for ponding instability [deg]: 1/4 on 12 (Sec. 7.11, with the rain
+#: chapter's Sec. 8.4; from memory)
+PONDING_SLOPE_DEG = float(np.degrees(np.arctan2(0.25, 12.0)))
+
+
+def ponding_check_required(slope) -> np.ndarray:
+    """Whether a roof needs a ponding-instability check [bool].
+
+    Roofs with a slope under 1/4 on 12 (1.19 degrees) are to be checked for
+    ponding instability from rain-on-snow or snow meltwater: their
+    deflections under the full snow load are investigated as the rain
+    provisions require.  neve flags the roof (``ponding_check_required``);
+    it does not work the check, which needs the roof's stiffness.  A slope
+    of exactly 1/4 on 12 is not under it.
+
+    References
+    ----------
+    ASCE 7-16 Sec. 7.11 and Sec. 8.4 (from memory).
+    """
+    return np.asarray(slope, dtype=float) < PONDING_SLOPE_DEG - 1e-9

@@ -26,6 +26,7 @@ from neve.engine.asce7_16.factors import (
     TERRAINS,
     THERMAL,
 )
+from neve.engine.asce7_16.shape_cases import PROVISIONS as SHAPE_PROVISIONS
 from neve.engine.errors import InputError
 from neve.engine.roof_spec import as_roof
 from neve.engine.standards import RoofOption, Standard, register
@@ -62,6 +63,7 @@ PROVISIONS = {
     "limit.flat_slope": "Sec. 7.3",
     "limit.adjacent": "Sec. 7.7.2",
     "shapes_not_covered": "Sec. 7.4.3-7.4.4, 7.6.2-7.6.4",
+    **SHAPE_PROVISIONS,  # curved, dome and multi-span roofs (issue 12)
 }
 
 #: the roof options ASCE 7-16 adds to the shared roof geometry (shape, slope,
@@ -145,8 +147,9 @@ def _screening_flags(roof) -> list:
 
 def _verification():
     from neve.engine.asce7_16.verification import CASES
+    from neve.engine.asce7_16.verification_shapes import CASES as SHAPE_CASES  # issue 12
 
-    return CASES
+    return CASES + SHAPE_CASES
 
 
 ASCE_7_16 = register(

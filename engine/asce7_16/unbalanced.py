@@ -23,6 +23,9 @@ HIGH_SLOPE_DEG = math.degrees(math.atan2(7.0, 12.0))  # 30.256 deg, printed as 3
 NARROW_W = 20.0
 #: windward fraction of ps in the general case
 WINDWARD_FRACTION = 0.3
+#: the least fetch of the unbalanced surcharge: a W under 20 ft is taken as 20 ft [ft]
+#: (Sec. 7.6.1; from memory)
+LEAST_FETCH = 20.0
 
 
 def unbalanced_required(shape: str, slope) -> np.ndarray:
@@ -73,13 +76,33 @@ def narrow_roof(pg, is_, log: StepLog | None = None) -> dict:
     return {"windward": 0.0, "leeward": leeward, "surcharge": 0.0, "surcharge_extent": 0.0}
 
 
+def unbalanced_fetch(eave_to_ridge, log: StepLog | None = None):
+    """The fetch lu of the unbalanced surcharge: W, not less than 20 ft [ft] (ASCE 7-16 Sec. 7.6.1)."""
+    w = np.asarray(eave_to_ridge, dtype=float)
+    lu = np.maximum(w, LEAST_FETCH)
+    if log is not None:
+        log.add(
+            "lu",
+            "fetch of the unbalanced surcharge: the windward W, not less than 20 ft",
+            "lu = max(W, 20 ft)",
+            f"lu = max({fmt(w)}, 20)",
+            lu,
+            "ft",
+            f"{STANDARD} Sec. 7.6.1",
+        )
+    return float(lu) if lu.ndim == 0 else lu
+
+
 def general_case(pg, ps, slope, eave_to_ridge, log: StepLog | None = None) -> dict:
     """Unbalanced load, general case: windward 0.3 ps, leeward ps plus a surcharge.
 
     The rectangular surcharge on the leeward side next to the ridge has
     intensity ``hd gamma / sqrt(S)`` and extent ``8 sqrt(S) hd / 3`` from the
     ridge, with hd from Fig. 7.6-1 using lu = W (the windward eave-to-ridge
-    distance) and S the run for a rise of one.
+    distance), not less than 20 ft (Sec. 7.6.1: a W under 20 ft is taken as
+    20 ft; the one least fetch of the provisions, see
+    :func:`neve.engine.asce7_16.drift.drift_height`), and S the run for a
+    rise of one.
 
     Parameters
     ----------
@@ -96,7 +119,8 @@ def general_case(pg, ps, slope, eave_to_ridge, log: StepLog | None = None) -> di
     """
     ref = f"{STANDARD} Sec. 7.6.1"
     gamma = float(snow_density(pg, log))
-    hd = float(drift_height(pg, eave_to_ridge, log, "hd", "unbalanced surcharge drift"))
+    lu = unbalanced_fetch(eave_to_ridge, log)
+    hd = float(drift_height(pg, lu, log, "hd", "unbalanced surcharge drift"))
     s_run = 1.0 / math.tan(math.radians(slope))
     windward = WINDWARD_FRACTION * ps
     sur = hd * gamma / math.sqrt(s_run)

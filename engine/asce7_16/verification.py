@@ -1248,3 +1248,103 @@ for _pg, _design, _note in [
             f"sheltered terrain B (Ce 1.2), freezer (Ct 1.3): {_note}",
         )
     )
+
+# --- roof geometry of issue 12: asymmetric gables, projection sides, parapets on the
+# --- upper roof, the upper roof's own factors, the fetch as given -------------------
+
+_ASYM = {"shape": "gable", "slope": "6:12", "eave_to_ridge": ["40ft", "16ft"], "prismatic": False}
+for _side, _sur, _ext, _gov, _note in [
+    ("A", 27.8245, 8.29035, True, "side A windward, lu = W = 40 ft: hd = 0.43 x 40^(1/3) x "
+     "40^(1/4) - 1.5 = 2.19831 ft; S = 2; surcharge = 2.19831 x 17.9 / sqrt(2) = 27.8245 psf "
+     "over 8 sqrt(2) 2.19831 / 3 = 8.29035 ft on side B; the larger peak: governs"),
+    ("B", 18.1675, 5.41305, False, "side B windward, W = 16 ft < 20 ft so lu = 20 ft: hd = "
+     "1.43535 ft; surcharge = 18.1675 psf over 5.41305 ft on side A"),
+]:  # fmt: skip
+    add(
+        _case(
+            f"sec-7.6.1/asymmetric-gable/wind-from-{_side}",
+            f"{_UNB_SRC}; reading: the windward side's W is the fetch, the surcharge lies on "
+            "the leeward side",
+            {"pg": "30psf", "roof": _neutral(**_ASYM)},
+            {
+                "surcharge [psf]": _sur,
+                "surcharge_extent [ft]": _ext,
+                "windward [psf]": 6.3,
+                "governing": _gov,
+            },  # fmt: skip
+            {"surcharge [psf]": 2e-3, "surcharge_extent [ft]": 2e-3, "windward [psf]": 1e-3},
+            _case_values("unbalanced", wind_from=_side, method="general"),
+            _note,
+        )
+    )
+_PROJ_SIDES = {"height": "5ft", "plan_length": "20ft", "length_right": "80ft"}
+add(
+    _case(
+        "sec-7.8/projection-greater-fetch",
+        f"{_OBS_SRC}: lu is the greater of the roof lengths on either side of a projection",
+        {"pg": "30psf", "roof": _neutral(projection=[dict(_PROJ_SIDES, length_left="50ft")])},
+        {"hd [ft]": 2.36969, "w [ft]": 9.47874, "pd [psf]": 42.4174},
+        {"hd [ft]": 1e-3, "w [ft]": 2e-3, "pd [psf]": 3e-3},
+        _case_values("drift", side="left"),
+        f"{_FIXTURE}. left side, roof 50 ft there, 80 ft on the right: lu = max(50, 80) = 80 ft; "
+        "hd = 0.75 x (0.43 x 80^(1/3) x 40^(1/4) - 1.5) = 0.75 x 3.15958 = 2.36969 ft <= hc = "
+        "3.82682; w = 4 hd = 9.47874 ft; pd = 2.36969 x 17.9 = 42.4174 psf",
+    )
+)
+add(
+    _case(
+        "sec-7.8/projection-truncated-at-roof-edge",
+        f"ASCE 7-16 Sec. 7.8 with Sec. 7.7.1 {_MEMORY}: the drift beside a short roof length "
+        "is truncated at the roof's edge; hand calculation",
+        {"pg": "30psf", "roof": _neutral(projection=[dict(_PROJ_SIDES, length_left="6ft")])},
+        {"w_on_roof [ft]": 6.0, "pd_far_edge [psf]": 15.5674},
+        {"w_on_roof [ft]": 1e-6, "pd_far_edge [psf]": 3e-3},
+        _case_values("drift", side="left"),
+        "left side, 6 ft of roof: lu = 80 ft, w = 9.47874 ft > 6 ft: pd_edge = 42.4174 x "
+        "(1 - 6 / 9.47874) = 15.5674 psf",
+    )
+)
+add(
+    _case(
+        "sec-7.7.1/parapet-on-the-upper-roof",
+        _STEP_SRC,
+        _step(height="10ft", upper_parapet="2ft", upper_length="100ft", lower_length="60ft"),
+        {"hc [ft]": 10.82682, "hd [ft]": 3.519381, "w [ft]": 14.0775, "pd [psf]": 62.9969},
+        {"hc [ft]": 1e-3, "hd [ft]": 1e-3, "w [ft]": 2e-3, "pd [psf]": 2e-3},
+        _case_values("drift"),
+        f"{_FIXTURE}. h = 10 + 2 (parapet on the upper roof) = 12 ft: hc = 12 - 1.17318 = "
+        "10.82682 ft; leeward hd = 3.51938 ft governs as at 10 ft",
+    )
+)
+add(
+    _case(
+        "sec-7.7.1/short-lower-roof-fetch-as-given",
+        f"{_STEP_SRC}; reading: Sec. 7.7.1 sets no least fetch (the 20 ft one is Sec. 7.6.1's)",
+        _step(height="10ft", upper_length="100ft", lower_length="10ft"),
+        {"hd_windward [ft]": 0.622343},
+        1e-3,
+        _case_values("drift"),
+        "windward fetch = lower roof 10 ft, as given: 0.75 x (0.43 x 10^(1/3) x 40^(1/4) - 1.5) "
+        "= 0.75 x 0.829790 = 0.622343 ft",
+    )
+)
+add(
+    _case(
+        "sec-7.9/upper-roof-own-factors",
+        f"ASCE 7-16 Sec. 7.9 with Eq. 7.3-1 {_MEMORY}; hand calculation",
+        _step(
+            height="10ft",
+            upper_length="100ft",
+            lower_length="60ft",
+            upper_slope="4:12",
+            upper_eave_to_ridge="30ft",
+            upper_ct=1.2,
+            upper_is=1.1,
+        ),  # fmt: skip
+        {"load [psf]": 22.176, "extent [ft]": 15.0},
+        {"load [psf]": 1e-6, "extent [ft]": 1e-9},
+        _case_values("sliding"),
+        "upper roof Ce = 1 (this roof's), Ct = 1.2, Is = 1.1: pf = 0.7 x 1 x 1.2 x 1.1 x 30 = "
+        "27.72 psf; 0.4 x 27.72 x 30 ft / 15 ft = 22.176 psf over 15 ft",
+    )
+)

@@ -23,12 +23,13 @@ import math
 
 import numpy as np
 
-from neve.engine.asce7_22 import STANDARD, flat, slope, unbalanced
+from neve.engine.asce7_22 import STANDARD, flat, shape_cases, slope, unbalanced
 from neve.engine.asce7_22.cases import (
     case_record,
     drift_cases,
     ice_dam_case,
     partial_case,
+    refuse_upper_is,
     sliding_cases,
     unbalanced_cases,
 )
@@ -92,12 +93,20 @@ def _uniform(pg, roof: Roof, log: StepLog | None):
         roof.surface, ct_line, roof.unobstructed, roof.ventilated, roof.r_value
     )
     flags += sflags
-    cs = slope.slope_factor(roof.slope, ct_line, slippery, log)
+    # --- hook (issue 12): curved, dome and multi-span roofs, engine/asce7_22/shape_cases.py ---
+    if roof.shape in shape_cases.SHAPES:
+        cs = shape_cases.uniform_cs(roof, log)
+    else:
+        cs = slope.slope_factor(roof.slope, ct_line, slippery, log)
+    # --- end of hook ---
     factors["Cs"] = round(float(cs), 4)
     ps = slope.sloped_roof_load(pf, cs, log)
-    ros = flat.rain_on_snow(pg, roof.slope, roof.eave_to_ridge, log)
+    # an asymmetric roof: the longer W (rain-on-snow then applies to more roofs: conservative)
+    ros = flat.rain_on_snow(pg, roof.slope, roof.eave_to_ridge_max, log)
     if roof.eave_to_ridge is None and np.any(ros > 0) and roof.slope > 0:
         flags.append("rain_on_snow_eave_to_ridge_unknown")
+    if bool(flat.ponding_check_required(roof.slope)):
+        flags.append("ponding_check_required")
     pm_applies = bool(flat.minimum_applies(roof.shape, roof.slope))
     pm = flat.minimum_load(pg, factors["risk"], None) if pm_applies else None
     return factors, flags, pf, cs, ps, pm, ros
@@ -127,6 +136,7 @@ def uniform_loads(pg, roof: Roof, w2=None) -> dict[str, np.ndarray]:
         Sec. 12.7.2) [psf].
     """
     roof = as_roof(roof)
+    refuse_upper_is(roof)
     pg = np.asarray(pg, dtype=float)
     pg = np.where((pg >= 0) & (pg <= PG_MAX_PSF), pg, np.nan)
     factors, _, pf, cs, ps, pm, ros = _uniform(pg, roof, None)
@@ -152,13 +162,23 @@ def screening_flags(roof: Roof) -> list[str]:
     The flags of the roof description (defaults assumed, thermal upper
     bound, slippery line not used, rain-on-snow with W unknown) plus
     ``roof_cases_not_screened`` where the roof has load cases beyond the
-    uniform ones that can govern (those need :func:`analyze_roof`).
+    uniform ones that can govern (those need :func:`analyze_roof`);
+    ``ponding_check_required`` below 1/4 on 12; ``eave_to_ridge_needed``
+    where the unbalanced load needs W and W is not given.
     """
     roof = as_roof(roof)
+    refuse_upper_is(roof)
     _, flags, *_ = _uniform(np.array([10.0]), roof, None)
     more = bool(roof.steps or roof.parapets or roof.projections or roof.overhang is not None)
-    if more or bool(unbalanced.unbalanced_required(roof.shape, roof.slope)):
+    unbalanced_needed = bool(unbalanced.unbalanced_required(roof.shape, roof.slope))
+    if more or unbalanced_needed:
         flags.append("roof_cases_not_screened")
+    if unbalanced_needed and roof.eave_to_ridge is None:
+        flags.append("eave_to_ridge_needed")
+    # --- hook (issue 12): curved, dome and multi-span roofs, engine/asce7_22/shape_cases.py ---
+    if shape_cases.has_more_cases(roof):
+        flags.append("roof_cases_not_screened")
+    # --- end of hook ---
     return sorted(set(flags))
 
 
@@ -207,6 +227,7 @@ def analyze_roof(pg: float, roof: Roof, w2=None) -> RoofResult:
     pg = _check_pg(pg)
     w2 = None if w2 is None else check_w2(w2)
     roof = as_roof(roof)
+    refuse_upper_is(roof)
     log = StepLog()
     factors, flags, pf, cs, ps, pm, ros = _uniform(pg, roof, log)
     pf, ps, ros = float(pf), float(ps), float(ros)
@@ -239,9 +260,12 @@ def analyze_roof(pg: float, roof: Roof, w2=None) -> RoofResult:
         )
     unbalanced_cases(pg, ps, roof, w2, cases, skipped, flags)
     drift_cases(pg, ps, roof, w2, cases, skipped, flags)
-    sliding_cases(pf, roof, ps, cases, skipped, flags)
+    sliding_cases(pg, pf, factors, roof, ps, cases, skipped, flags)
     ice_dam_case(pf, _warm(roof), roof, cases, skipped, flags)
     partial_case(ps, roof, cases, skipped)
+    # --- hook (issue 12): curved, dome and multi-span roofs, engine/asce7_22/shape_cases.py ---
+    shape_cases.add_cases(pg, pf, factors, roof, cases, skipped, flags)
+    # --- end of hook ---
     design = max(ps + ros, pm if pm is not None else 0.0)
     loads = {"pf": pf, "ps": ps, "pm": pm, "rain_on_snow": ros if ros > 0 else None}
     extra = {"w2": w2, "seismic_weight": _seismic_note(pf, design)}

@@ -1,9 +1,11 @@
 """The ASCE 7-22 load cases of a roof, each with its steps.
 
 Each builder appends the cases that apply to ``cases`` and, for those that do
-not, an entry with the reason to ``skipped``.  ``_NOT_WITH`` records which
-cases each may not be combined with (ASCE 7-22 Sec. 7.3.3, 7.4.5, 7.5, 7.9,
-7.10; from memory, as in the previous edition).
+not, an entry with the reason to ``skipped``.  The records, names and loops
+both editions share are :mod:`neve.engine.roof_cases`; this module hands them
+ASCE 7-22's provision functions and clauses (:data:`CLAUSES`).  ``_NOT_WITH``
+records which cases each may not be combined with (ASCE 7-22 Sec. 7.3.3,
+7.4.5, 7.5, 7.9, 7.10; from memory, as in the previous edition).
 
 Cases that need the winter wind parameter W2 (drifts, and the general
 unbalanced case of a gable or hip roof) are listed in ``skipped`` as not
@@ -12,297 +14,204 @@ computed when W2 is not given, with the flag ``w2_needed``.
 
 from __future__ import annotations
 
-from neve.engine.asce7_22 import STANDARD, eaves, sliding, unbalanced
+from neve.engine import drift_cases as dc
+from neve.engine import roof_cases as rc
+from neve.engine.asce7_22 import STANDARD, eaves, flat, sliding, slope, unbalanced
 from neve.engine.asce7_22 import drift as dr
 from neve.engine.errors import InputError
 from neve.engine.format import pitch_text
+from neve.engine.roof_cases import case_record  # noqa: F401  (this edition's name)
 from neve.engine.roof_spec import Roof
 from neve.engine.steps import StepLog, fmt
-from neve.engine.units import KNM3_PER_PCF, length_json, line_load_json, load_json
+from neve.engine.units import length_json, load_json
 
-_NOT_WITH = {
-    "balanced": "",
-    "minimum": "drift, sliding, unbalanced, partial, rain-on-snow",
-    "unbalanced": "minimum, rain-on-snow, sliding",
-    "drift": "minimum, rain-on-snow, sliding",
-    "sliding": "minimum, rain-on-snow, drift, unbalanced, partial",
-    "partial": "minimum, rain-on-snow, sliding",
-    "ice_dam": "all other snow cases (dead load only)",
-}
-
-
-def _density_json(gamma: float) -> dict:
-    return {"pcf": round(gamma, 3), "kN/m3": round(gamma * KNM3_PER_PCF, 4)}
-
-
-def case_record(kind: str, name: str, log: StepLog, **values) -> dict:
-    out = {"case": kind, "name": name}
-    out.update(values)
-    out["not_combined_with"] = _NOT_WITH[kind]
-    out["steps"] = log.to_list()
-    return out
-
+_NOT_WITH = rc.NOT_WITH
 
 W2_REASON = "not computed: needs the winter wind parameter W2 (--w2; Fig. 7.6-1)"
 
+#: the clauses ASCE 7-22's cases cite (from memory, numbered as in ASCE 7-16 where
+#: the package docstring says so).  Two drifts at an inside corner: as ASCE 7-16.
+CLAUSES = rc.Clauses(
+    edition=STANDARD,
+    unbalanced="Sec. 7.6.1",
+    step="Sec. 7.7.1",
+    adjacent="Sec. 7.7.2",
+    obstruction="Sec. 7.8",
+    sliding="Sec. 7.9",
+    ice_dam="Sec. 7.4.5",
+    partial="Sec. 7.5",
+    existing="Sec. 7.12",
+    corner="Sec. 7.7.1, 7.8; common practice",
+)
+
+#: the table each factor of the upper roof is read from (for its pf, Sec. 7.9)
+_FACTOR_REFS = {"Ce": f"{STANDARD} Table 7.3-1", "Ct": f"{STANDARD} Table 7.3-2, Table 7.3-3"}
+
+
+def refuse_upper_is(roof: Roof) -> None:
+    """ASCE 7-22 has no snow importance factor: a step's ``upper_is`` is an input error."""
+    for i, st in enumerate(roof.steps):
+        if st.upper_is is not None:
+            raise InputError(
+                f"step[{i}].upper_is",
+                f"{STANDARD} has no snow importance factor (its pg is mapped per risk category)",
+                "leave upper_is out: upper_ce, upper_ct, or upper_pf",
+            )
+
 
 def unbalanced_cases(pg, ps, roof: Roof, w2, cases, skipped, flags) -> None:
-    if not bool(unbalanced.unbalanced_required(roof.shape, roof.slope)):
-        why = (
-            f"{roof.shape} roofs have no hip/gable unbalanced case"
-            if roof.shape not in ("gable", "hip")
-            else f"slope {pitch_text(roof.slope)} is outside 1/2 on 12 to 7 on 12"
-        )
-        skipped.append({"case": "unbalanced", "reason": why + " (Sec. 7.6.1)"})
-        return
-    w = roof.eave_to_ridge
-    if w is None:
-        raise InputError(
-            "eave_to_ridge",
-            f"needed for the unbalanced load of a {roof.shape} roof at this slope",
-            "a length such as 30ft",
-        )
-    narrow = w <= unbalanced.NARROW_W
-    methods = []
-    if narrow and roof.prismatic is not False:
-        methods.append("narrow")
-    if not narrow or roof.prismatic is not True:
-        methods.append("general")
-    if narrow and roof.prismatic is None:
-        flags.append("members_unstated")
-    for m in methods:
-        log = StepLog()
-        if m == "general" and w2 is None:
-            flags.append("w2_needed")
-            skipped.append(
-                {
-                    "case": "unbalanced",
-                    "name": "general method",
-                    "reason": W2_REASON + " (Sec. 7.6.1)",
-                }
-            )
-            continue
-        if m == "narrow":
-            v = unbalanced.narrow_roof(pg, log)
-            name = "unbalanced, W <= 20 ft with simply supported prismatic members"
-        else:
-            v = unbalanced.general_case(pg, ps, roof.slope, w, w2, log)
-            name = "unbalanced, windward 0.3 ps and leeward ps plus surcharge"
-        cases.append(
-            case_record(
-                "unbalanced",
-                name,
-                log,
-                method=m,
-                windward=load_json(v["windward"]),
-                leeward=load_json(v["leeward"]),
-                surcharge=load_json(v["surcharge"]),
-                surcharge_extent=length_json(v["surcharge_extent"]),
-                leeward_peak=load_json(v["leeward"] + v["surcharge"]),
-            )
-        )
-
-
-def _drift_case(name: str, source: str, d: dict, ps: float, log: StepLog, **extra) -> dict:
-    return case_record(
-        "drift",
-        name,
-        log,
-        source=source,
-        hd=length_json(d["hd"]),
-        w=length_json(d["w"]),
-        pd=load_json(d["pd"]),
-        governs=d["governs"],
-        hb=length_json(d["hb"]),
-        hc=length_json(d["hc"]),
-        gamma=_density_json(d["gamma"]),
-        balanced=load_json(ps),
-        total_peak=load_json(ps + d["pd"]),
-        note=d.get("reason", ""),
-        **extra,
+    """Hip and gable unbalanced loads (Sec. 7.6.1), for the wind from each side."""
+    rc.unbalanced_cases(
+        roof,
+        narrow=lambda log: unbalanced.narrow_roof(pg, log),
+        general=None
+        if w2 is None
+        else (lambda w, log: unbalanced.general_case(pg, ps, roof.slope, w, w2, log)),
+        narrow_w=unbalanced.NARROW_W,
+        clauses=CLAUSES,
+        cases=cases,
+        skipped=skipped,
+        flags=flags,
+        required=bool(unbalanced.unbalanced_required(roof.shape, roof.slope)),
+        general_missing=(W2_REASON, "w2_needed"),
     )
 
 
 def drift_cases(pg, ps, roof: Roof, w2, cases, skipped, flags) -> None:
     """Step, adjacent-structure, parapet and projection drifts (Sec. 7.7, 7.8)."""
-    places = [st.name for st in roof.steps]
-    places += [p.name for p in roof.parapets]
-    places += [p.name for p in roof.projections]
+    labels = rc.place_labels(roof)
     if w2 is None:
+        places = [(k, i) for k, group in (("step", roof.steps), ("parapet", roof.parapets),
+                  ("projection", roof.projections)) for i, _ in enumerate(group)]  # fmt: skip
         if places:
             flags.append("w2_needed")
-        for name in places:
-            skipped.append(
-                {"case": "drift", "name": name, "reason": W2_REASON + " (Sec. 7.7, 7.8)"}
-            )
+        for k, i in places:
+            skipped.append({"case": "drift", "name": labels[(k, i)].plain, "place": f"{k}[{i}]",
+                            "reason": W2_REASON + " (Sec. 7.7, 7.8)"})  # fmt: skip
         return
-    for st in roof.steps:
+    for i, st in enumerate(roof.steps):
+        label, place = labels[("step", i)], f"step[{i}]"
         v = dr.step_drifts(pg, ps, st, w2)
         if not v["required"]:
-            skipped.append({"case": "drift", "name": st.name, "reason": v["reason"]})
+            skipped.append(
+                {"case": "drift", "name": label.plain, "place": place, "reason": v["reason"]}
+            )
             continue
         kind = "adjacent structure" if st.separation > 0 else "roof step"
+        extra = {"lower_roof": "existing"} if st.lower_roof == "existing" else {}
+        if st.upper_parapet is not None:
+            extra["upper_parapet"] = length_json(st.upper_parapet)
         for d in v["drifts"]:
+            d = dict(d, reason=rc.join_notes(d.get("reason", ""), rc.existing_note(st, CLAUSES)))
             cases.append(
-                _drift_case(
-                    f"{d['governs']} drift at {kind} '{st.name}'",
+                dc.drift_case(
+                    f"{d['governs']} drift at {kind} {label.quoted}",
                     "adjacent" if st.separation > 0 else "step",
                     d,
                     ps,
                     d["log"],
                     w_on_roof=length_json(d["w_on_roof"]),
                     pd_far_edge=load_json(d["pd_far_edge"]),
+                    place=place,
+                    **extra,
                 )
             )
-    for p in roof.parapets:
-        log = StepLog()
-        d = dr.obstruction_drift(pg, ps, p.height, p.upwind_length, w2, log, "parapet")
-        if not d["required"]:
-            skipped.append({"case": "drift", "name": p.name, "reason": d["reason"]})
-            continue
-        cases.append(_drift_case(f"drift at parapet '{p.name}'", "parapet", d, ps, log))
-    for p in roof.projections:
-        if bool(dr.projection_exempt(p.plan_length)):
-            skipped.append(
-                {
-                    "case": "drift",
-                    "name": p.name,
-                    "reason": f"side {fmt(p.plan_length)} ft long is under 15 ft (Sec. 7.8)",
-                }
-            )
-            continue
-        log = StepLog()
-        d = dr.obstruction_drift(pg, ps, p.height, p.upwind_length, w2, log, "projection")
-        if not d["required"]:
-            skipped.append({"case": "drift", "name": p.name, "reason": d["reason"]})
-            continue
-        cases.append(_drift_case(f"drift at projection '{p.name}'", "projection", d, ps, log))
+
+    def obstruction(ps_, height, lu, log, what):
+        return dr.obstruction_drift(pg, ps_, height, lu, w2, log, what)
+
+    dc.parapet_cases(roof, ps, obstruction, labels, cases, skipped)
+    dc.projection_cases(
+        roof, ps, obstruction, dr.projection_exempt, dr.PROJECTION_EXEMPT_LENGTH, CLAUSES,
+        labels, cases, skipped,
+    )  # fmt: skip
+    dc.inside_corners(roof, labels, cases, CLAUSES)
 
 
-def sliding_cases(pf, roof: Roof, ps, cases, skipped, flags) -> None:
-    for i, st in enumerate(roof.steps):
-        if pf <= 0:
-            skipped.append(
-                {"case": "sliding", "name": st.name, "reason": "pf = 0: no snow to slide"}
-            )
-            continue
-        if st.upper_slope is None or not st.upper_slides_toward:
-            skipped.append(
-                {
-                    "case": "sliding",
-                    "name": st.name,
-                    "reason": "upper roof slope toward this roof not given",
-                }
-            )
-            continue
-        if not bool(sliding.sliding_required(st.upper_slope, st.upper_surface)):
-            limit = "1/4 on 12" if st.upper_surface == "slippery" else "2 on 12"
-            skipped.append(
-                {
-                    "case": "sliding",
-                    "name": st.name,
-                    "reason": f"upper roof slope {pitch_text(st.upper_slope)} is not above {limit} (Sec. 7.9)",
-                }
-            )
-            continue
-        if st.upper_eave_to_ridge is None:
-            raise InputError(
-                f"step[{i}].upper_eave_to_ridge",
-                "needed for the sliding load (Sec. 7.9)",
-                "a length such as 40ft",
-            )
-        log = StepLog()
-        if st.upper_pf is None:
-            pf_up = pf
+def _upper_pf(pg, pf, factors, flags):
+    """``upper_pf(step, log)``: the upper roof's pf for sliding (Eq. 7.3-1 with its own factors)."""
+
+    def upper_pf(st, log: StepLog) -> float:
+        if st.upper_pf is not None:
+            log.add(
+                "pf_upper", "flat roof snow load of the upper roof (given)",
+                "pf_upper = 0.7 Ce Ct pg of the upper roof", f"pf_upper = {fmt(st.upper_pf)} (given)",
+                st.upper_pf, "psf", f"{STANDARD} Eq. 7.3-1",
+            )  # fmt: skip
+            return st.upper_pf
+        if not st.upper_factors:
             flags.append("upper_pf_assumed")
             log.add(
                 "pf_upper",
                 "flat roof snow load of the upper roof (not given: taken equal to this roof's pf)",
-                "pf_upper = pf",
-                f"pf_upper = {fmt(pf)}",
-                pf_up,
-                "psf",
-                f"{STANDARD} Eq. 7.3-1",
-            )
-        else:
-            pf_up = st.upper_pf
-            log.add(
-                "pf_upper",
-                "flat roof snow load of the upper roof (given)",
-                "pf_upper = 0.7 Ce Ct pg of the upper roof",
-                f"pf_upper = {fmt(pf_up)} (given)",
-                pf_up,
-                "psf",
-                f"{STANDARD} Eq. 7.3-1",
-            )
-        v = sliding.sliding_load(
-            pf_up, st.upper_eave_to_ridge, st.lower_length, st.separation, st.height, log
-        )
-        if not v["required"]:
-            skipped.append(
-                {"case": "sliding", "name": st.name, "reason": v["reason"] + " (Sec. 7.9)"}
-            )
-            continue
-        cases.append(
-            case_record(
-                "sliding",
-                f"sliding snow from '{st.name}'",
-                log,
-                load=load_json(v["load"]),
-                line_load=line_load_json(v["line_load"]),
-                extent=length_json(v["extent"]),
-                balanced=load_json(ps),
-                total=load_json(ps + v["load"]),
-            )
-        )
+                "pf_upper = pf", f"pf_upper = {fmt(pf)}", pf, "psf", f"{STANDARD} Eq. 7.3-1",
+            )  # fmt: skip
+            return pf
+        f = rc.upper_factor_steps(st, factors, ("Ce", "Ct"), log, _FACTOR_REFS)
+        pf_up = float(flat.flat_roof_load(pg, f["Ce"], f["Ct"]))
+        log.add(
+            "pf_upper", "flat roof snow load of the upper roof, from its own factors",
+            "pf_upper = 0.7 Ce Ct pg",
+            f"pf_upper = 0.7 x {fmt(f['Ce'])} x {fmt(f['Ct'])} x {fmt(pg)}",
+            pf_up, "psf", f"{STANDARD} Eq. 7.3-1",
+        )  # fmt: skip
+        cs = float(slope.slope_factor(st.upper_slope, float(f["Ct"]), False))
+        log.add(
+            "Cs_upper",
+            "slope factor of the upper roof, all-other-surfaces line (for the record: "
+            "the sliding load takes pf)",
+            "Fig. 7.4-1", f"slope {pitch_text(st.upper_slope)}, Ct = {fmt(f['Ct'])}", cs, "-",
+            f"{STANDARD} Fig. 7.4-1",
+        )  # fmt: skip
+        log.add(
+            "ps_upper", "sloped roof load of the upper roof (for the record)", "ps = Cs pf",
+            f"ps = {fmt(cs)} x {fmt(pf_up)}", cs * pf_up, "psf", f"{STANDARD} Eq. 7.4-1",
+        )  # fmt: skip
+        return pf_up
+
+    return upper_pf
+
+
+def _need_w(i: int) -> None:
+    raise InputError(
+        f"step[{i}].upper_eave_to_ridge",
+        "needed for the sliding load (Sec. 7.9)",
+        "a length such as 40ft",
+    )
+
+
+def sliding_cases(pg, pf, factors, roof: Roof, ps, cases, skipped, flags) -> None:
+    """Sliding snow from each step's upper roof (Sec. 7.9)."""
+    rc.sliding_cases(
+        pf,
+        ps,
+        roof,
+        upper_pf=_upper_pf(pg, pf, factors, flags),
+        slide=sliding.sliding_load,
+        required=sliding.sliding_required,
+        clauses=CLAUSES,
+        labels=rc.place_labels(roof),
+        cases=cases,
+        skipped=skipped,
+        need_w=_need_w,
+    )
 
 
 def ice_dam_case(pf, warm: bool, roof: Roof, cases, skipped, flags) -> None:
+    """Ice dams on the overhang of a warm roof (Sec. 7.4.5)."""
     if roof.overhang is None:
         return
-    if pf <= 0:
-        skipped.append({"case": "ice_dam", "reason": "pf = 0: no snow on the roof"})
-        return
-    applies, f = eaves.ice_dam_applies(warm, roof.ventilated, roof.r_value)
-    flags += f
-    if not applies:
-        skipped.append(
-            {
-                "case": "ice_dam",
-                "reason": "cold roof, or R-value at or above the limit for its ventilation (Sec. 7.4.5)",
-            }
-        )
-        return
-    log = StepLog()
-    p = float(eaves.ice_dam_load(pf, log))
-    cases.append(
-        case_record(
-            "ice_dam",
-            "ice dam and icicles on the overhang",
-            log,
-            load=load_json(p),
-            overhang=length_json(roof.overhang),
-        )
+    applies, f = (
+        (False, []) if pf <= 0 else eaves.ice_dam_applies(warm, roof.ventilated, roof.r_value)
     )
+    flags += f
+    rc.ice_dam_case(pf, applies, lambda log: eaves.ice_dam_load(pf, log), roof, CLAUSES, cases,
+                    skipped)  # fmt: skip
 
 
 def partial_case(ps, roof: Roof, cases, skipped) -> None:
+    """Partial loading of continuous members (Sec. 7.5)."""
     log = StepLog()
     v = eaves.partial_loads(ps, log)
     exempt = bool(eaves.partial_exempt(roof.shape, roof.slope))
-    note = (
-        "for continuous members; members spanning perpendicular to the ridge of this gable roof are exempt (Sec. 7.5)"
-        if exempt
-        else "for continuous beams and other members where unloading a span increases the effect (Sec. 7.5)"
-    )
-    cases.append(
-        case_record(
-            "partial",
-            "partial loading of continuous members",
-            log,
-            full=load_json(float(v["full"])),
-            half=load_json(float(v["half"])),
-            exempt_perpendicular_to_ridge=exempt,
-            note=note,
-        )
-    )
+    rc.partial_case(v, exempt, log, CLAUSES, cases)

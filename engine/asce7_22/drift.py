@@ -13,7 +13,9 @@ checked as separate cases [PROSE]; the drift limited by the clear height hc
 (the [SKA] step example reproduces only with hd = hc).  From memory: the 20 ft
 least fetch, the 0.75 windward factor, the windward width 8 hd, the hc/hb < 0.2
 waiver, and the adjacent-structure and projection rules, which follow
-ASCE 7-16.
+ASCE 7-16.  The fetch is used as given: the one least fetch (20 ft) is that
+of the unbalanced load of hip and gable roofs (Sec. 7.6.1, from memory;
+:func:`neve.engine.asce7_22.unbalanced.unbalanced_fetch`).
 
 References
 ----------
@@ -27,13 +29,12 @@ from __future__ import annotations
 import numpy as np
 
 from neve.engine.asce7_22 import STANDARD
+from neve.engine.drift_cases import log_step_height
 from neve.engine.errors import InputError
 from neve.engine.steps import StepLog, fmt
 
 #: the largest snow density Eq. 7.7-1 gives [pcf] (confirmed [STR-CAN])
 DENSITY_CAP = 30.0
-#: the shortest fetch the drift-height relation is used with [ft] (from memory)
-MIN_FETCH = 20.0
 #: drifts are not required where hc/hb is below this (Sec. 7.7.1; from memory)
 HC_HB_LIMIT = 0.2
 #: factor on hd for windward drifts, parapets and projections (from memory)
@@ -93,23 +94,24 @@ def drift_height(pg, lu, w2, log: StepLog | None = None, symbol: str = "hd", wha
     """Drift height hd [ft] from the upwind fetch lu [ft] and W2 [-].
 
     ``hd = 1.5 sqrt(pg^0.74 lu^0.70 W2^1.7 / gamma)`` with gamma from
-    Eq. 7.7-1 and lu not taken below 20 ft.  hd is zero where pg or W2 is
-    zero.
+    Eq. 7.7-1 and lu as given (the drift provisions, Sec. 7.7.1 and 7.8,
+    set no least fetch as neve reads them; the 20 ft least W of the
+    unbalanced load is applied in :mod:`.unbalanced`).  hd is zero where pg
+    or W2 is zero.
 
     References
     ----------
-    ASCE 7-22 Eq. 7.6-1 (confirmed [STR-CAN, SKA]); the 20 ft least fetch from
-    memory.
+    ASCE 7-22 Eq. 7.6-1 (confirmed [STR-CAN, SKA]).
     """
     pg = np.asarray(pg, dtype=float)
-    lu_used = np.maximum(np.asarray(lu, dtype=float), MIN_FETCH)
+    lu_used = np.asarray(lu, dtype=float)
     w2 = np.asarray(w2, dtype=float)
     gamma = np.minimum(0.13 * pg + 14.0, DENSITY_CAP)
     hd = 1.5 * np.sqrt(np.maximum(pg, 0.0) ** 0.74 * lu_used**0.70 * w2**1.7 / gamma)
     if log is not None:
         log.add(
             symbol,
-            f"{what} height from fetch lu = {fmt(lu_used)} ft (lu >= 20 ft), W2 = {fmt(w2)}",
+            f"{what} height from fetch lu = {fmt(lu_used)} ft, W2 = {fmt(w2)}",
             "hd = 1.5 sqrt(pg^0.74 lu^0.70 W2^1.7 / gamma)",
             f"hd = 1.5 sqrt({fmt(pg)}^0.74 x {fmt(lu_used)}^0.70 x {fmt(w2)}^1.7 / {fmt(gamma)})",
             hd,
@@ -259,8 +261,8 @@ def step_drifts(pg, ps_lower, step, w2) -> dict:
     6h - s; the windward drift is not truncated (conservative).
     """
     ref = f"{STANDARD} Sec. 7.7.1"
-    h, s = step.height, step.separation
     head = StepLog()
+    h, s = log_step_height(step, head, ref), step.separation
     gamma, hb, hc = _clear(pg, ps_lower, h, head, "upper roof", ref)
     out = {"required": True, "reason": "", "drifts": []}
     if s > 0 and (s >= ADJACENT_SEPARATION_LIMIT or s >= 6.0 * h):
@@ -329,7 +331,9 @@ def obstruction_drift(
 ) -> dict:
     """Windward drift against a parapet wall or a rooftop projection.
 
-    Height 0.75 hd with lu the roof length upwind of the wall or projection,
+    Height 0.75 hd with lu the fetch the caller gives (a parapet's upwind
+    roof length; for a projection the greater of the roof lengths on either
+    side, Sec. 7.8, from :func:`neve.engine.drift_cases.projection_cases`),
     width 8 hd, limited by hc = height - hb as in Sec. 7.7.1.
 
     References

@@ -32,6 +32,10 @@ MINIMUM_MAX_TABLE_7_3_4 = {"I": 25.0, "II": 30.0, "III": 35.0, "IV": 40.0}
 #: slope below which a monoslope, hip or gable roof is "low-slope" [deg]
 #: (Sec. 7.3.3; from memory, unchanged from ASCE 7-16)
 MINIMUM_SLOPE_LIMIT = 15.0
+#: curved roofs and domes get the minimum load where the vertical angle from the
+#: eaves to the crown is under this [deg] (Sec. 7.3.3; from memory)
+MINIMUM_CROWN_ANGLE = 10.0
+CURVED_MINIMUM_SHAPES = ("curved", "dome")
 #: the rain-on-snow surcharge [psf] (Sec. 7.10): 8 psf confirmed [PROSE:
 #: "Rain-on-snow went from 5 psf to 8 psf where it applies"]
 RAIN_ON_SNOW_SURCHARGE = 8.0
@@ -86,9 +90,18 @@ def minimum_applies(shape: str, slope) -> np.ndarray:
     It applies to monoslope, hip and gable roofs with a slope under 15
     degrees; a roof given as ``flat`` is read as a low-slope monoslope roof
     (common practice).
+
+    Curved roofs and domes (from memory, as in ASCE 7-16): where the vertical
+    angle from the eaves to the crown is under 10 degrees; ``slope`` is then
+    that angle (the eave-to-crown line, :mod:`neve.engine.roof_shapes`).
+    Multi-span (sawtooth, folded plate, barrel vault) roofs are read as
+    monoslope and gable faces: under 15 degrees (the clause names neither;
+    applying it is conservative).
     """
     slope = np.asarray(slope, dtype=float)
-    if shape not in ("flat", "monoslope", "hip", "gable"):
+    if shape in CURVED_MINIMUM_SHAPES:
+        return slope < MINIMUM_CROWN_ANGLE
+    if shape not in ("flat", "monoslope", "hip", "gable", "sawtooth"):
         return np.zeros_like(slope, dtype=bool)
     return slope < MINIMUM_SLOPE_LIMIT
 
@@ -181,3 +194,26 @@ def seismic_snow_weight(pf, design_uniform):
     pf = np.asarray(pf, dtype=float)
     base = np.fmax(pf, np.asarray(design_uniform, dtype=float))
     return np.where(pf > SEISMIC_PF_THRESHOLD, SEISMIC_SHARE * base, 0.0)
+
+
+#: slope below which a roof's deflections under the full snow load are to be
+#: investigated for ponding instability [deg]: 1/4 on 12 (Sec. 7.11, with the rain
+#: chapter's Sec. 8.4; from memory)
+PONDING_SLOPE_DEG = float(np.degrees(np.arctan2(0.25, 12.0)))
+
+
+def ponding_check_required(slope) -> np.ndarray:
+    """Whether a roof needs a ponding-instability check [bool].
+
+    Roofs with a slope under 1/4 on 12 (1.19 degrees) are to be checked for
+    ponding instability from rain-on-snow or snow meltwater: their
+    deflections under the full snow load are investigated as the rain
+    provisions require.  neve flags the roof (``ponding_check_required``);
+    it does not work the check, which needs the roof's stiffness.  A slope
+    of exactly 1/4 on 12 is not under it.
+
+    References
+    ----------
+    ASCE 7-22 Sec. 7.11 and Sec. 8.4 (from memory).
+    """
+    return np.asarray(slope, dtype=float) < PONDING_SLOPE_DEG - 1e-9

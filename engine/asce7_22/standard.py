@@ -27,6 +27,7 @@ from collections.abc import Mapping
 from neve.engine.asce7_22 import STANDARD
 from neve.engine.asce7_22.analysis import CAUTIONS, analyze_roof, screening_flags, uniform_loads
 from neve.engine.asce7_22.factors import EXPOSURES, RISKS, TERRAINS, THERMAL
+from neve.engine.asce7_22.shape_cases import PROVISIONS as SHAPE_PROVISIONS
 from neve.engine.errors import InputError
 from neve.engine.roof_spec import as_roof
 from neve.engine.standards import RoofOption, Standard, register
@@ -62,6 +63,7 @@ PROVISIONS = {
     "limit.flat_slope": "Sec. 7.3",
     "limit.adjacent": "Sec. 7.7.2",
     "shapes_not_covered": "Sec. 7.4.3-7.4.4, 7.6.2-7.6.4",
+    **SHAPE_PROVISIONS,  # curved, dome and multi-span roofs (issue 12; from memory)
 }
 
 #: the roof options ASCE 7-22 adds to the shared roof geometry; the words are
@@ -156,8 +158,9 @@ def _screening_flags(roof) -> list:
 
 def _verification():
     from neve.engine.asce7_22.verification import CASES
+    from neve.engine.asce7_22.verification_shapes import CASES as SHAPE_CASES  # issue 12
 
-    return CASES
+    return CASES + SHAPE_CASES
 
 
 ASCE_7_22 = register(

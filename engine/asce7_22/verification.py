@@ -20,7 +20,7 @@ from __future__ import annotations
 
 from collections.abc import Callable, Mapping
 
-from neve.engine.asce7_22 import drift
+from neve.engine.asce7_22 import drift, unbalanced
 from neve.engine.asce7_22.analysis import analyze_roof
 from neve.engine.roof_spec import Roof, parse_pg
 from neve.engine.standards import VerificationCase
@@ -105,6 +105,13 @@ def _hd_values(i: Mapping) -> dict:
     }
 
 
+def _unbalanced_hd_values(i: Mapping) -> dict:
+    """hd of the unbalanced surcharge: the fetch W through Sec. 7.6.1's 20 ft least W."""
+    pg = parse_pg(i["pg"], "pg")
+    lu = unbalanced.unbalanced_fetch(parse_length(i["lu"], "lu"))
+    return {"hd [ft]": float(drift.drift_height(pg, lu, i["w2"]))}
+
+
 CASES: list[VerificationCase] = []
 add = CASES.append
 
@@ -161,12 +168,26 @@ add(
 add(
     _case(
         "eq-7.6-1/least-fetch",
-        f"ASCE 7-22 Eq. 7.6-1 ({STR_CAN}) with the 20 ft least fetch {MEMORY}",
+        f"ASCE 7-22 Eq. 7.6-1 ({STR_CAN}) with the 20 ft least fetch of the unbalanced load, "
+        f"Sec. 7.6.1 {MEMORY}",
         {"pg": "63psf", "lu": "8ft", "w2": 0.45},
         {"hd [ft]": 2.13481},
         1e-4,
+        _unbalanced_hd_values,
+        "W = 8 ft < 20 ft: lu = max(8, 20) = 20 ft; "
+        "hd = 1.5 sqrt(63^0.74 x 20^0.70 x 0.45^1.7 / 22.19) = 2.13481 ft",
+    )
+)
+add(
+    _case(
+        "eq-7.6-1/short-fetch-as-given",
+        f"ASCE 7-22 Eq. 7.6-1 ({STR_CAN}); the drift provisions set no least fetch, as neve "
+        f"reads Sec. 7.7.1 and 7.8 {MEMORY}; hand calculation",
+        {"pg": "63psf", "lu": "8ft", "w2": 0.45},
+        {"hd [ft]": 1.54910},
+        1e-4,
         _hd_values,
-        "lu = max(8, 20) = 20 ft: hd = 1.5 sqrt(63^0.74 x 20^0.70 x 0.45^1.7 / 22.19) = 2.13481 ft",
+        "lu = 8 ft as given: hd = 1.5 sqrt(63^0.74 x 8^0.70 x 0.45^1.7 / 22.19) = 1.54910 ft",
     )
 )
 add(

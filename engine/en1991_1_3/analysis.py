@@ -162,9 +162,9 @@ def _retained(roof: Roof, alphas, flags) -> bool:
 
 
 def _cylinder(roof: Roof) -> dict:
-    rise, span = roof.option("rise"), roof.option("span")
+    rise, span = roof.rise, roof.chord  # the shared roof's rise and chord are h and b
     if rise is None or span is None:
-        missing = "rise" if rise is None else "span"
+        missing = "rise" if rise is None else "chord"
         raise InputError(missing, "needed for a cylindrical roof", "a length such as 4m")
     g = shapes.cylinder_geometry(rise * M_PER_FT, span * M_PER_FT)
     return {**g, "rise": rise * M_PER_FT, "span": span * M_PER_FT}

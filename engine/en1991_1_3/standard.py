@@ -85,8 +85,6 @@ ROOF_OPTIONS = (
                "maximum snow loads, e.g. 0.4 (with --return-period)."),
     RoofOption("other_slope", "slope", "EN 1991-1-3: slope of the second side of a gable "
                "(duopitch) or of the second slope at a multi-span valley (default: --slope)."),
-    RoofOption("rise", "length", "EN 1991-1-3: rise h of a cylindrical roof, e.g. 4m."),
-    RoofOption("span", "length", "EN 1991-1-3: span b of a cylindrical roof, e.g. 20m."),
     RoofOption("altitude", "length", "EN 1991-1-3: site altitude, e.g. 900m (snow overhanging "
                "the edge of a roof part cantilevered beyond the walls, [overhang])."),
     RoofOption("guard_width", "length", "EN 1991-1-3: plan width from a snow guard to the next "

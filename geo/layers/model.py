@@ -162,6 +162,21 @@ class Layer:
             views.setdefault(self.risk, self)
         return views[cat]
 
+    def widened(self, radius_m: float) -> Layer:
+        """This layer with its boundary tolerance raised to ``radius_m`` [m] (never lowered).
+
+        An approximate site location (a ZIP code or place centroid) searches its
+        whole uncertainty circle for zones of another value and study areas.  The
+        view shares the layer's geometry and caches.
+        """
+        r = float(radius_m or 0.0)
+        if not math.isfinite(r) or r <= self.tolerance_m:
+            return self
+        view = object.__new__(Layer)
+        view.__dict__.update(self.__dict__)
+        view.meta = dict(self.meta, boundary_tolerance_m=r)
+        return view
+
     # --- naming -------------------------------------------------------------
     @property
     def name(self) -> str:

@@ -20,10 +20,13 @@ from neve.engine.errors import InputError, NeveError
 from neve.geo.screen.site_arrays import SiteArrays
 
 
-def _latlon(hit) -> tuple[float, float] | None:
-    """(lat, lon) from a geocoder's answer: a pair, a geopy Location, or None."""
+def _latlon(hit) -> tuple | None:
+    """(lat, lon) or (lat, lon, precision, radius [m]) from a geocoder's answer: a pair, a
+    geopy Location, a :class:`neve.geo.site.places.Located`, or None."""
     if hit is None:
         return None
+    if hasattr(hit, "precision") and hasattr(hit, "radius_m"):
+        return float(hit.lat), float(hit.lon), str(hit.precision), float(hit.radius_m)
     if hasattr(hit, "latitude") and hasattr(hit, "longitude"):
         return float(hit.latitude), float(hit.longitude)
     if isinstance(hit, dict) and "lat" in hit and "lon" in hit:
@@ -111,11 +114,26 @@ def load_geocode_cache(path: str | Path) -> dict:
         return {}
     try:
         data = json.loads(p.read_text(encoding="utf-8"))
-        return {str(k): (float(v[0]), float(v[1])) for k, v in data.items() if v is not None}
+        return {str(k): _cached(v) for k, v in data.items() if v is not None}
     except (ValueError, TypeError, KeyError, IndexError, AttributeError, UnicodeDecodeError):
         raise InputError(
             "geocode-cache", f"{str(p)!r} is not a geocode cache", "a JSON file neve wrote"
         ) from None
+
+
+def _cached(v) -> tuple:
+    """A cache entry: [lat, lon] (an address) or [lat, lon, precision, radius_m]."""
+    if len(v) >= 4:
+        from neve.geo.site.places import PRECISIONS
+
+        if str(v[2]) not in PRECISIONS:
+            raise InputError(
+                "geocode-cache",
+                f"an entry has the unknown precision {v[2]!r}",
+                ", ".join(PRECISIONS),
+            )
+        return float(v[0]), float(v[1]), str(v[2]), float(v[3])
+    return float(v[0]), float(v[1])
 
 
 def save_geocode_cache(path: str | Path, cache: dict) -> None:
@@ -131,9 +149,9 @@ def save_geocode_cache(path: str | Path, cache: dict) -> None:
 
     from neve.safe_write import write_text
 
-    found = {k: (v[0], v[1]) for k, v in cache.items() if v is not None}
+    found = {k: tuple(v) for k, v in cache.items() if v is not None}
     merged = {**load_geocode_cache(path), **found}
-    data = {k: [v[0], v[1]] for k, v in sorted(merged.items())}
+    data = {k: list(v) for k, v in sorted(merged.items())}
     write_text(path, json.dumps(data, indent=1), overwrite=True, field="geocode-cache")
 
 
@@ -164,14 +182,30 @@ def make_geocoder(
     from neve.geo.site import geocode as gc
 
     url = url or os.environ.get(gc.ENV_URL) or None
-    if gazetteer is None and url is None:
-        raise InputError(
-            "address",
-            "the site file locates sites by address but no geocoder is configured",
-            f"--gazetteer FILE.csv (address,lat,lon), --geocoder-url URL of a Nominatim-"
-            f"compatible server (or {gc.ENV_URL}), or lat/lon columns",
-        )
-    local = _gazetteer_lookup(gazetteer) if gazetteer is not None else None
+    gazette = _gazetteer_lookup(gazetteer) if gazetteer is not None else None
+
+    def offline(address: str):
+        """The shipped gazetteer (ZIP code, then place): misses are this row's error."""
+        from neve.geo.site.places import locate
+
+        try:
+            return locate(address)
+        except InputError as exc:
+            raise GeocodeMiss(
+                f"{exc.problem} (give a US ZIP code or a place with its region, --gazetteer "
+                "FILE.csv, --geocoder-url URL, or lat/lon columns)"
+            ) from None
+
+    if gazette is None and url is None:
+        return CachedGeocoder(offline, cache=cache)
+    if gazette is not None and url is None:
+
+        def local(address: str):  # the user's list first (exact), then the shipped gazetteer
+            hit = gazette(address)
+            return offline(address) if hit is None else hit
+
+    else:
+        local = gazette
 
     def server(address: str):
         try:
@@ -222,6 +256,12 @@ def geocode_rows(site: SiteArrays, geocoder=None, *, progress: bool = False) -> 
         except Exception as exc:  # a network or server failure: this address only
             found[addr] = exc
     rows = np.flatnonzero(todo)
+    if site.location_precision is None:
+        located = np.isfinite(site.lat) & np.isfinite(site.lon) & (site.error == "")
+        site.location_precision = np.where(located, "coordinates", "").astype(object)
+        site.location_radius_m = np.where(located, 0.0, np.nan)
+    from neve.geo.site.places import ADDRESS_RADIUS_M
+
     for i in rows:
         hit = found[site.address[i]]
         if isinstance(hit, GeocodeMiss):
@@ -233,7 +273,9 @@ def geocode_rows(site: SiteArrays, geocoder=None, *, progress: bool = False) -> 
         elif not (abs(hit[0]) <= 90 and abs(hit[1]) <= 180):
             site.error[i] = f"address: the geocoder gave an impossible location {hit!r}"
         else:
-            site.lat[i], site.lon[i] = hit
+            site.lat[i], site.lon[i] = hit[0], hit[1]
+            precision, radius = (hit[2], hit[3]) if len(hit) >= 4 else ("address", ADDRESS_RADIUS_M)
+            site.location_precision[i], site.location_radius_m[i] = precision, radius
 
 
 def geocode_sites(

@@ -243,6 +243,8 @@ def run_screen(
                                    risk[idx], layer_list, **kwargs)  # fmt: skip
     else:
         resolved = resolver(site.lat[idx], site.lon[idx], elev_arg, **kwargs)
+    if resolved is not None and site.location_radius_m is not None:
+        _widen_approximate(resolved, site, idx, elev_arg, risk, layer_list, resolver, kwargs)
     lap("resolve")
     res = _rows_result(site, idx, resolved, layer_list)
     roof_cols = (
@@ -307,6 +309,61 @@ def screen(sites, *, layers=None, dem=None, dem_units=None, roof=None, engine="l
         sites, layers=layers, dem=dem, dem_units=dem_units, roof=roof, engine=engine, **kw
     )
     return run.results
+
+
+def _assign(res: Resolution, pos: np.ndarray, part: Resolution) -> None:
+    """Put ``part``'s sites into ``res`` at positions ``pos`` (the same layers)."""
+    for name, value in part._arrays():
+        target = getattr(res, name)
+        if isinstance(value, dict):
+            for q, v in value.items():
+                if q in target:
+                    target[q][pos] = v
+        else:
+            target[pos] = value
+
+
+def _widen_approximate(resolved, site, idx, elev_arg, risk, layer_list, resolver, kwargs) -> None:
+    """Re-resolve rows located with an uncertainty radius, the layers widened to it.
+
+    Rows of one radius (one address: the look-ups are cached) are resolved
+    together with every layer's boundary tolerance raised to that radius
+    (:meth:`neve.geo.layers.model.Layer.widened`), as ``neve site`` does; rows
+    at a ZIP code or place centroid get ``location_approximate``.
+    """
+    from neve.geo.screen.editions import has_per_risk, resolve_by_risk
+
+    radius = site.location_radius_m[idx]
+    precision = site.location_precision[idx]
+    approx = np.isin(precision, ("postal_code", "place"))
+    if approx.any():
+        resolved.flags[approx] |= np.uint64(BIT["location_approximate"])
+    wide = np.isfinite(radius) & (radius > 0)
+    for r in np.unique(radius[wide]):
+        pos = np.flatnonzero(wide & (radius == r))
+        rows = idx[pos]
+        widened = [ly.widened(float(r)) for ly in layer_list]
+        if all(w is ly for w, ly in zip(widened, layer_list, strict=True)):
+            continue  # every layer's own tolerance already covers the circle
+        el = None if elev_arg is None else elev_arg[pos]
+        kw = dict(kwargs, progress=False)
+        if has_per_risk(layer_list):
+            kw.pop("layers", None)
+            part = resolve_by_risk(resolver, site.lat[rows], site.lon[rows], el, risk[rows],
+                                   widened, **kw)  # fmt: skip
+        else:
+            kw["layers"] = widened
+            part = resolver(site.lat[rows], site.lon[rows], el, **kw)
+        part.flags |= resolved.flags[pos] & np.uint64(BIT["location_approximate"])
+        _assign(resolved, pos, part)
+    if approx.any():
+        resolved.message[approx] = [
+            f"{m} Located at a {'ZIP code' if p == 'postal_code' else 'place'} centroid, "
+            f"uncertain within {r:,.0f} m: zones within that circle were considered and the "
+            "larger value governs.".strip()
+            for m, p, r in zip(resolved.message[approx], precision[approx], radius[approx],
+                               strict=True)
+        ]  # fmt: skip
 
 
 def _rows_result(
@@ -374,6 +431,14 @@ def _result_columns(res: Resolution, site: SiteArrays) -> dict:
         "site_elevation_source": res.elevation_source_text(),
         "rule": _missing_if_empty(res.rule),
         "layer_name": _missing_if_empty(res.layer_field("name")),
+        **(
+            {}
+            if site.location_precision is None
+            else {
+                "location_precision": _missing_if_empty(site.location_precision),
+                "location_radius_m": site.location_radius_m,
+            }
+        ),
     }
 
 

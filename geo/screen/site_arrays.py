@@ -46,6 +46,10 @@ class SiteArrays:
     on_record_psf : numpy.ndarray or None
         The roof snow load on record [psf] from a ``snow_load_on_record`` column
         (NaN where none is given), or None without such a column.
+    location_precision, location_radius_m : numpy.ndarray or None
+        Filled by the geocoding of address rows: each row's location precision
+        (:data:`neve.geo.site.places.PRECISIONS`, ``""`` for a row not located)
+        and its uncertainty radius [m]; None for a file without addresses.
     """
 
     frame: pd.DataFrame
@@ -63,6 +67,8 @@ class SiteArrays:
     multiline: dict = field(default_factory=dict)
     input_info: dict = field(default_factory=dict)
     on_record_psf: np.ndarray | None = None
+    location_precision: np.ndarray | None = None
+    location_radius_m: np.ndarray | None = None
 
     def __len__(self) -> int:
         return len(self.frame)

@@ -317,7 +317,7 @@ def _governing_drifts(cases) -> dict:
         if c.get("case") != "drift" or c.get("source") not in ("step", "adjacent"):
             continue
         name = str(c.get("name") or "")
-        where = name[name.find(" at ") + 4:] if " at " in name else name
+        where = name[name.find(" at ") + 4 :] if " at " in name else name
         key = ("drift", f"governing drift at {where}")
         pd = ((c.get("pd") or {}).get("psf")) or 0.0
         if key not in best or pd > ((best[key].get("pd") or {}).get("psf") or 0.0):

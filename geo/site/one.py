@@ -280,6 +280,9 @@ def resolve_site(
     standard=None,
     on_record_psf: float | None = None,
     risk: str | None = None,
+    location_precision: str = "coordinates",
+    location_radius_m: float = 0.0,
+    location_source: str | None = None,
 ) -> SiteResult:
     """Resolve one site to its ground snow load and, given a roof, its roof loads.
 
@@ -321,6 +324,17 @@ def resolve_site(
         The risk category whose ground load per-risk layers (ASCE 7-22) give;
         default the roof's ``risk``, else ``"II"``.  ``ground.pg_by_risk``
         lists all four.
+    location_precision : {"coordinates", "address", "postal_code", "place"}
+        How precisely ``lat, lon`` locate the site (:mod:`neve.geo.site.places`);
+        ``postal_code`` and ``place`` set the flag ``location_approximate``.
+    location_radius_m : float
+        The uncertainty radius of the location [m]: every layer's boundary
+        tolerance is raised to it (:meth:`neve.geo.layers.model.Layer.widened`),
+        so a zone of another value or a study area within the circle flags the
+        site and the larger value governs; with a DEM the elevation is sampled
+        over the circle and its maximum used (``ground.elevation_over_radius``).
+    location_source : str, optional
+        Where the location came from (reported in ``site.location_source``).
     on_record_psf : float, optional
         The roof snow load on record of an existing roof [psf]: the result's
         ``on_record`` gives ``load_ratio`` = ``design_uniform`` / this load and
@@ -356,7 +370,20 @@ def resolve_site(
     layers = [ly for ly in layers if ly.quantity != "w2"] + [
         ly for ly in layers if ly.quantity == "w2"
     ]
+    from neve.geo.site.places import PRECISIONS
+
+    location_precision = choose_key("location-precision", location_precision, PRECISIONS)
+    radius_m = float(location_radius_m or 0.0)
+    if not math.isfinite(radius_m) or radius_m < 0:
+        raise InputError("location-radius", f"{location_radius_m!r} is not a radius", "metres >= 0")
+    if radius_m > 0:
+        layers = [ly.widened(radius_m) for ly in layers]
     elev_in = parse_elevation(elevation)
+    over = None
+    if radius_m > 0 and dem_path is not None and math.isnan(elev_in):
+        over = _elevation_over_circle(lat, lon, radius_m, dem_path, dem_units)
+        if over is not None:
+            elev_in = over["used_ft"]
     look_kw = dict(elevation_ft=[elev_in], dem=dem_path, dem_units=dem_units, search_m=SEARCH_M,
                    elevation_source=elevation_source)  # fmt: skip
     res = resolve([lat], [lon], layers=layers, keep_detail=True, **look_kw)
@@ -402,6 +429,16 @@ def resolve_site(
                 "zone_id": h.zone_id[0] or None,
                 "sha256": layer.sha256,
             }
+        )
+    if location_precision in ("postal_code", "place"):
+        bits |= BIT["location_approximate"]
+        res.flags[0] = np.uint64(int(res.flags[0]) | BIT["location_approximate"])
+        what = "ZIP code" if location_precision == "postal_code" else "place"
+        message += (
+            f" The site was located at a {what} centroid, uncertain within {radius_m:,.0f} m:"
+            " zones, study areas and elevation limits within that circle were considered"
+            " and the larger value governs; give --at LAT,LON or a full address for the"
+            " site itself."
         )
     usable = status in ("ok", "provisional")
     roof_json = None
@@ -462,6 +499,9 @@ def resolve_site(
         "dem_elevation": length_json(_num(res.dem_elevation_ft[0])),
         "elevation_rule": elevation_source,
         "elevation_alternatives": _alternatives(res),
+        "elevation_over_radius": None
+        if over is None
+        else {k: length_json(over[f"{k}_ft"]) for k in ("min", "max", "used")},
         "distance_to_other": None if dist is None else length_json(dist * FT_PER_M),
         "neighbours": neighbours,
         "risk_category": risk,
@@ -482,6 +522,9 @@ def resolve_site(
     }
     if address is not None:
         site["address"] = address
+    site["location_precision"] = location_precision
+    site["location_radius"] = length_json(radius_m * FT_PER_M)
+    site["location_source"] = location_source
     ground, nonfinite = _finite(ground)
     if nonfinite:  # never NaN or infinity in an output: null, and said so
         bits |= BIT["non_finite_value"]
@@ -572,3 +615,29 @@ def _zone_list(zone_id: str, zone_ids: str) -> list[str]:
     if zone_ids == zone_id:
         return [zone_id] if zone_id else []
     return [z for z in zone_ids.split(";") if z]
+
+
+def _elevation_over_circle(lat, lon, radius_m, dem_path, dem_units) -> dict | None:
+    """DEM elevations over the uncertainty circle: ``{min_ft, max_ft, used_ft}`` or None.
+
+    Sampled at the centre and on rings at 1/3, 2/3 and 3/3 of the radius (8, 16
+    and 24 points: our choice); the maximum is used, as a higher site never has
+    a smaller ground snow load under an elevation rule (common practice).
+    """
+    from neve.geo.site.elevation import sample_dem
+
+    pts = [(lat, lon)]
+    k = 111320.0  # metres per degree of latitude (common practice)
+    for ring, count in ((1, 8), (2, 16), (3, 24)):
+        r = radius_m * ring / 3
+        for a in np.linspace(0, 2 * np.pi, count, endpoint=False):
+            dlat = r * np.cos(a) / k
+            dlon = r * np.sin(a) / (k * max(math.cos(math.radians(lat)), 1e-6))
+            pts.append((lat + dlat, lon + dlon))
+    la = np.array([p[0] for p in pts])
+    lo = np.array([p[1] for p in pts])
+    ft = np.asarray(sample_dem(dem_path, lo, la, dem_units), dtype=float)
+    ft = ft[np.isfinite(ft)]
+    if ft.size == 0:
+        return None
+    return {"min_ft": float(ft.min()), "max_ft": float(ft.max()), "used_ft": float(ft.max())}

@@ -90,6 +90,12 @@ FLAG_TABLE: tuple[Flag, ...] = (
     Flag("cell_truncated", 19, "row", "a cell was cut to fit the output format"),
     Flag("exceeds_record", 20, "row", "today's uniform roof load is above the load on record"),
     Flag(
+        "location_approximate",
+        21,
+        "site",
+        "the site was located at a postal code or place centroid: its uncertainty circle was searched",
+    ),  # fmt: skip
+    Flag(
         "edition_mismatch",
         22,
         "site",
@@ -110,13 +116,17 @@ FLAG_TABLE: tuple[Flag, ...] = (
     Flag("upper_pf_assumed", 36, "roof", "the upper roof's pf taken as this roof's"),
     Flag("w2_needed", 37, "roof", "cases that need the winter wind parameter W2 not computed"),
     Flag("thermal_upper_bound", 38, "roof", "Ct is the upper bound of the heated-roof table"),
+    Flag("eave_to_ridge_needed", 39, "roof", "unbalanced cases that need W not computed"),
+    Flag("ponding_check_required", 40, "roof", "slope under 1/4 on 12: check ponding instability"),
     # EN 1991-1-3 (issue 13)
-    Flag("topography_assumed", 39, "roof", "Ce from the default (normal) topography"),
-    Flag("ct_reduced", 40, "roof", "a thermal coefficient below 1.0 given: to be justified"),
-    Flag("snow_retention_unstated", 41, "roof", "whether snow can slide off not stated"),
-    Flag("upper_slope_unstated", 42, "roof", "the upper roof's slope not given: no sliding snow"),
-    Flag("altitude_unstated", 43, "roof", "site altitude not given: overhanging snow applied"),
-    Flag("demo_parameters", 44, "roof", "the parameter set is invented (demo)"),
+    Flag("topography_assumed", 41, "roof", "Ce from the default (normal) topography"),
+    Flag("ct_reduced", 42, "roof", "a thermal coefficient below 1.0 given: to be justified"),
+    Flag("snow_retention_unstated", 43, "roof", "whether snow can slide off not stated"),
+    Flag("upper_slope_unstated", 44, "roof", "the upper roof's slope not given: no sliding snow"),
+    Flag("altitude_unstated", 45, "roof", "site altitude not given: overhanging snow applied"),
+    Flag("demo_parameters", 46, "roof", "the parameter set is invented (demo)"),
+    # issue 12 (curved roofs); bits from 52 down, so that other roof flags can take 39 up
+    Flag("eave_abutment_unstated", 52, "roof", "curved roof: abutment at the eave not stated"),
     Flag("bad_coordinates", 56, "note", "coordinates missing or out of range: no look-up"),
     Flag("near_unknown", 57, "note", "a zone within the tolerance has no usable value"),
     Flag("near_valued", 58, "note", "a zone within the tolerance has another usable value"),

@@ -35,7 +35,16 @@ def site_text(result, show_steps: bool = True) -> str:
     where = f"{s['lat']:.6f}, {s['lon']:.6f}"
     if s.get("address"):
         where = f"{s['address']}  ({where})"
-    lines.append(f"Site:        {where}")
+    lines.append(f"Site:        {printable(where)}")
+    precision = s.get("location_precision")
+    if precision and precision != "coordinates":
+        radius = _length(s.get("location_radius"))
+        source = printable(s.get("location_source") or NONE)
+        lines.append(f"Location:    {precision}, uncertain within {radius}  (from {source})")
+        if precision in ("postal_code", "place"):
+            what = "ZIP code" if precision == "postal_code" else "place"
+            lines.append(f"             approximate: a {what} centroid; zones within the circle "
+                         "were searched and the larger value governs")  # fmt: skip
     if s.get("name") or s.get("project"):
         lines.append(f"Name:        {s.get('name') or '—'}    Project: {s.get('project') or '—'}")
     lines.append(f"Status:      {g['status']}")
@@ -56,6 +65,10 @@ def site_text(result, show_steps: bool = True) -> str:
     lines.append(f"Zone:        {zone}    rule: {g['rule'] or '—'}")
     lines.append(f"Flags:       {', '.join(g['flags']) if g['flags'] else 'none'}")
     lines.append(f"Elevation:   {_length(g['elevation'])}  source: {g['elevation_source']}")
+    over = g.get("elevation_over_radius")
+    if over:
+        lines.append(f"Over circle: DEM min {_length(over['min'])}, max {_length(over['max'])},"
+                     f" used {_length(over['used'])}")  # fmt: skip
     if g["dem_elevation"] is not None and g["elevation_source"] != "dem":
         lines.append(f"DEM:         {_length(g['dem_elevation'])}")
     for alt in g.get("elevation_alternatives") or []:  # given elevation and DEM disagree

@@ -28,15 +28,16 @@ from importlib import resources
 from pathlib import Path
 
 from neve.engine.errors import InputError
+from neve.engine.roof_shapes import SHAPE_KEYS
 from neve.engine.roof_spec import Roof, merge_roof_levels
 
 #: the roof options' names as keyword arguments, and as ROOF.toml keys
 ROOF_KEYS = (
     "shape", "slope", "surface", "ct", "thermal", "ce", "terrain", "exposure", "risk",
     "eave_to_ridge", "r_value", "ventilated", "unobstructed", "prismatic",
-    "topography", "annex", "snow_case", "return_period", "cov", "other_slope", "rise", "span",
+    "topography", "annex", "snow_case", "return_period", "cov", "other_slope",
     "altitude", "guard_width",
-)  # fmt: skip
+) + SHAPE_KEYS  # fmt: skip  (curved, dome and multi-span roofs: neve.engine.roof_shapes)
 
 
 def _set_folders(option: str):

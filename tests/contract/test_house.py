@@ -407,15 +407,23 @@ _ROOF_OPTS = [
     ("return_period", ("--return-period",), "StringParamType", None, False, False),
     ("cov", ("--cov",), "StringParamType", None, False, False),
     ("other_slope", ("--other-slope",), "StringParamType", None, False, False),
-    ("rise", ("--rise",), "StringParamType", None, False, False),
-    ("span", ("--span",), "StringParamType", None, False, False),
     ("altitude", ("--altitude",), "StringParamType", None, False, False),
     ("guard_width", ("--guard-width",), "StringParamType", None, False, False),
 ]
 #: issue 13: neve compare compares editions of one ground quantity and keeps the earlier roof
 #: options (the EN 1991-1-3 ones are neve roof's, site's and screen's)
-_EN_ONLY = {"topography", "annex", "snow_case", "return_period", "cov", "other_slope", "rise",
-            "span", "altitude", "guard_width"}  # fmt: skip
+_EN_ONLY = {"topography", "annex", "snow_case", "return_period", "cov", "other_slope",
+            "altitude", "guard_width"}  # fmt: skip
+# issue 12: curved, dome and multi-span roofs (neve.engine.roof_shapes), on every roof command
+_ROOF_OPTS += [
+    ("chord", ("--chord",), "StringParamType", None, False, False),
+    ("diameter", ("--diameter",), "StringParamType", None, False, False),
+    ("eave_abutted", ("--eave-abutted", "--eave-clear"), "BoolParamType", None, True, False),
+    ("eave_slope", ("--eave-slope",), "StringParamType", None, False, False),
+    ("ridge_height", ("--ridge-height",), "StringParamType", None, False, False),
+    ("rise", ("--rise",), "StringParamType", None, False, False),
+    ("spans", ("--spans",), "StringParamType", None, False, False),
+]
 _COMPARE_ROOF_OPTS = [o for o in _ROOF_OPTS if o[0] not in _EN_ONLY]
 # issue 11: the package's title block, on neve site and neve compare
 _TITLE_BLOCK = [
@@ -441,6 +449,12 @@ _OVERWRITE = ("overwrite", ("--overwrite",), "BoolParamType", False, False, Fals
 _MAP = ("map_path", ("--map",), _PATH, None, False, False)
 _GAZETTEER = ("gazetteer", ("--gazetteer",), _PATH, None, False, False)
 _GEOCODER_URL = ("geocoder_url", ("--geocoder-url",), "StringParamType", None, False, False)
+
+# issue 14: --country and --region narrow the shipped gazetteer's place search
+_NARROW = [
+    ("country", ("--country",), "StringParamType", None, False, False),
+    ("region", ("--region",), "StringParamType", None, False, False),
+]
 
 EXPECTED_OPTIONS = {
     ("roof",): sorted(
@@ -480,6 +494,7 @@ EXPECTED_OPTIONS = {
             ("user_agent", ("--user-agent",), "StringParamType", None, False, False),
             ("on_record", ("--on-record",), "StringParamType", None, True, False),  # issue 10
             *_TITLE_BLOCK,
+            *_NARROW,  # issue 14
         ]
     ),  # fmt: skip
     ("screen",): sorted(

@@ -44,10 +44,32 @@ WHERE = {
     "parapet.height": ("parapet", "height", "ft"),
     "parapet.upwind_length": ("parapet", "upwind_length", "ft"),
     "parapet.drift_space": ("parapet", "drift_space", "ft"),  # issue 13 (EN Annex B)
-    "option.length": ("--span", None, "ft"),  # issue 13: EN lengths (span, rise, altitude ...)
+    "option.length": ("--guard-width", None, "ft"),  # issue 13: EN lengths (guard width ...)
     "projection.height": ("projection", "height", "ft"),
     "projection.plan_length": ("projection", "plan_length", "ft"),
     "projection.upwind_length": ("projection", "upwind_length", "ft"),
+    # issue 12
+    "step.upper_parapet": ("step", "upper_parapet", "ft"),
+    "step.upper_ce": ("step", "upper_ce", ""),
+    "step.upper_ct": ("step", "upper_ct", ""),
+    "step.upper_is": ("step", "upper_is", ""),
+    "projection.length_left": ("projection", "length_left", "ft"),
+    "projection.length_right": ("projection", "length_right", "ft"),
+    "projection.plan_width": ("projection", "plan_width", "ft"),
+    "projection.length_front": ("projection", "length_front", "ft"),
+    "projection.length_back": ("projection", "length_back", "ft"),
+    # issue 12: curved, dome and multi-span roofs
+    "rise": ("--rise", None, "ft"),
+    "chord": ("--chord", None, "ft"),
+    "ridge_height": ("--ridge-height", None, "ft"),
+    "spans": ("--spans", None, ""),
+}
+#: the rest of a roof that each issue-12 option needs (a long chord: any rise in range fits)
+SHAPED = {
+    "--rise": ["--shape", "curved", "--chord", "5000ft"],
+    "--chord": ["--shape", "curved", "--rise", "1ft"],
+    "--ridge-height": ["--shape", "sawtooth", "--slope", "3:12"],
+    "--spans": ["--shape", "sawtooth", "--slope", "3:12", "--ridge-height", "6ft"],
 }
 TABLES = {
     "step": dict(BASE_STEP),
@@ -55,10 +77,18 @@ TABLES = {
     "projection": {"height": "4ft", "plan_length": "20ft", "upwind_length": "80ft"},
     "overhang": {"length": "2ft"},
 }
+#: keys whose table needs other keys beside them (issue 12: a projection's sides)
+_PROJ = {"height": "4ft", "plan_length": "20ft"}
+TABLE_FOR = {
+    "projection.length_left": dict(_PROJ, length_right="80ft"),
+    "projection.plan_width": dict(_PROJ, upwind_length="80ft", length_front="40ft"),
+    "projection.length_front": dict(_PROJ, upwind_length="80ft", plan_width="10ft"),
+    "projection.length_back": dict(_PROJ, upwind_length="80ft", plan_width="10ft"),
+}
 #: the field name an error must carry, for each ranged key
 ARRAYS = ("step", "parapet", "projection")
 FIELD = {k: k.replace(".", "[0].") for k in WHERE if k.split(".")[0] in ARRAYS}
-FIELD["option.length"] = "span"  # one range for the EN lengths, named by the option given
+FIELD["option.length"] = "guard_width"  # one range for the EN lengths, named by the option given
 
 
 def test_every_ranged_key_is_exercised():
@@ -76,8 +106,9 @@ def roof_args(key: str, text: str, tmp_path) -> list[str]:
         return pg
     if where.startswith("--"):
         shape = ["--shape", "gable", "--slope", "6:12"] if where == "--eave-to-ridge" else []
+        shape = SHAPED.get(where, shape)
         return [*pg, *shape, where, text]
-    table = dict(TABLES[where], **{inner: text})
+    table = dict(TABLE_FOR.get(key, TABLES[where]), **{inner: text})
     doc = {"shape": "flat", where: table if where == "overhang" else [table]}
     path = tmp_path / "roof.toml"
     path.write_text(tomli_w.dumps(doc), encoding="utf-8")

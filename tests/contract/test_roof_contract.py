@@ -164,7 +164,8 @@ BAD = [
     (["--pg", "35psf", "--slope", "90deg"], "slope", "90"),
     (["--pg", "35psf", "--slope", "12:0"], "slope", "90"),
     (["--pg", "35psf", "--slope", "6"], "slope", "6:12"),
-    (["--pg", "35psf", "--shape", "dome"], "shape", "gable"),
+    (["--pg", "35psf", "--shape", "dome"], "rise", "12ft"),  # issue 12: a dome needs its rise
+    (["--pg", "35psf", "--shape", "onion"], "shape", "gable"),
     (["--pg", "35psf", "--surface", "glass"], "surface", "slippery"),
     (["--pg", "35psf", "--thermal", "hot"], "thermal", "greenhouse"),
     (["--pg", "35psf", "--terrain", "A"], "terrain", "treeless"),

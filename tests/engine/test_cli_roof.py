@@ -160,11 +160,19 @@ def test_text_format_shows_steps_flags_and_cautions():
         (["--pg", "35psf", "--thermal", "warm"], "thermal", "greenhouse"),
         (["--pg", "35psf", "--terrain", "E", "--exposure", "fully"], "terrain", "treeless"),
         (["--pg", "35psf", "--terrain", "C", "--exposure", "open"], "exposure", "sheltered"),
-        (["--pg", "35psf", "--shape", "dome"], "shape", "gable"),
-        (["--pg", "35psf", "--shape", "curved"], "shape", "flat, monoslope, gable, hip"),
-        (["--pg", "35psf", "--shape", "sawtooth"], "shape", "flat, monoslope, gable, hip"),
+        # issue 12: curved, dome and sawtooth roofs need their own lengths, named when missing
+        (["--pg", "35psf", "--shape", "dome"], "rise", "12ft"),
+        (["--pg", "35psf", "--shape", "dome", "--rise", "8ft"], "diameter", "60ft"),
+        (["--pg", "35psf", "--shape", "curved"], "rise", "12ft"),
+        (["--pg", "35psf", "--shape", "curved", "--rise", "10ft"], "chord", "60ft"),
+        (["--pg", "35psf", "--shape", "arch", "--chord", "60ft"], "rise", "12ft"),
+        (["--pg", "35psf", "--shape", "sawtooth", "--slope", "3:12"], "ridge_height", "6ft"),
+        (["--pg", "35psf", "--shape", "sawtooth", "--ridge-height", "6ft"], "slope", "6:12"),
+        (["--pg", "35psf", "--shape", "pyramid"], "shape", "flat, monoslope, gable, hip, curved"),
         (["--pg", "35psf", "--ct", "abc"], "ct", "number"),
-        (["--pg", "35psf", "--shape", "gable", "--slope", "6:12"], "eave_to_ridge", "30ft"),
+        # issue 12: a gable without W is worked (unbalanced not computed); an asymmetric
+        # gable with one W of its two is refused
+        (["--pg", "35psf", *GABLE[:4], "--eave-to-ridge", "30ft,"], "eave_to_ridge", "30ft,20ft"),
         (["--pg", "35psf", "--roof", "/nonexistent/ROOF.toml"], "roof", "TOML"),
     ],
 )
@@ -194,7 +202,9 @@ def test_bad_input_exits_2_naming_field_and_accepted(args, field, accepted):
             "separation",
         ),
         ('[[parapet]]\nheight = "3ft"\n', "parapet[0].upwind_length", "ft"),
-        ('shape = "barrel-vault"\n', "shape", "gable"),
+        ('shape = "barrel-vault"\n', "slope", "6:12"),  # issue 12: a sawtooth family name
+        ('shape = "barrel-vault"\nslope = "3:12"\n', "ridge_height", "6ft"),
+        ('shape = "pagoda"\n', "shape", "gable"),
     ],
 )
 def test_malformed_roof_toml_exits_2(tmp_path, content, field, accepted):

@@ -13,9 +13,12 @@ import doctest
 
 import pytest
 
+import neve.engine.asce7_16.curved
+import neve.engine.asce7_22.curved
 import neve.engine.choices
 import neve.engine.format
 import neve.engine.jsonsafe
+import neve.engine.roof_geometry
 import neve.engine.roof_limits
 import neve.engine.roof_text
 import neve.engine.steps
@@ -23,7 +26,9 @@ import neve.engine.units
 import tests.rounding
 
 MODULES = [neve.engine.units, neve.engine.choices, neve.engine.jsonsafe, neve.engine.roof_limits,
-           neve.engine.format, neve.engine.steps, neve.engine.roof_text, tests.rounding]  # fmt: skip
+           neve.engine.format, neve.engine.steps, neve.engine.roof_text, tests.rounding,
+           neve.engine.roof_geometry, neve.engine.asce7_16.curved,
+           neve.engine.asce7_22.curved]  # fmt: skip  (issue 12: the arc, eave conditions)
 
 
 @pytest.mark.parametrize("module", MODULES, ids=lambda m: m.__name__)

@@ -10,7 +10,6 @@ from __future__ import annotations
 
 import pytest
 
-from neve.engine import InputError
 from neve.engine.asce7_16.unbalanced import unbalanced_required
 from neve.engine.units import parse_slope
 from tests.engine.helpers import cases, run, skipped
@@ -121,9 +120,12 @@ def test_no_unbalanced_surcharge_where_ground_snow_load_is_zero():
         assert unb["surcharge"]["psf"] == 0.0
 
 
-def test_unbalanced_needs_eave_to_ridge():
-    # common practice: W is an input of Sec. 7.6.1; missing it is an input error
-    with pytest.raises(InputError) as info:
-        run(30.0, shape="gable", slope="6:12")
-    assert info.value.field == "eave_to_ridge"
-    assert "ft" in info.value.accepted
+def test_unbalanced_without_eave_to_ridge_is_not_computed():
+    # W is an input of Sec. 7.6.1 (from memory); without it (issue 12) the cases that do
+    # not need W are worked and the unbalanced case is listed as not computed, flagged
+    out = run(30.0, shape="gable", slope="6:12")
+    assert cases(out, "unbalanced") == []
+    assert {c["case"] for c in out["cases"]} >= {"balanced", "partial"}
+    (skip,) = [s for s in out["not_required"] if s["case"] == "unbalanced"]
+    assert skip["reason"].startswith("not computed") and "eave_to_ridge" in skip["reason"]
+    assert "eave_to_ridge_needed" in out["flags"]

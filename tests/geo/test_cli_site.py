@@ -135,7 +135,8 @@ def test_stacked_layers_report_the_others():
         (["--at", DEMO_AT, "--elevation", "412"], "elevation"),
         (["--at", DEMO_AT, "--address", "x"], "exactly one"),
         ([], "exactly one"),
-        (["--at", DEMO_AT, "--slope", "6:12", "--shape", "dome"], "shape"),
+        (["--at", DEMO_AT, "--slope", "6:12", "--shape", "onion"], "shape"),
+        (["--at", DEMO_AT, "--shape", "dome", "--rise", "8ft"], "diameter"),  # issue 12
         (["--at", DEMO_AT, "--layer", "/nonexistent/layer.gpkg"], "not found"),
         (["--at", DEMO_AT, "--dem", "/nonexistent/dem.tif"], "dem"),
     ],

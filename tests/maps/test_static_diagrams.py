@@ -157,6 +157,15 @@ length = "2ft"
 """
 
 
+#: invented curved, dome and sawtooth roofs (issue 12) whose cases join the roof above: a
+#: half-circle hall (eave slope above 70°), a shallow dome, a sawtooth whose valley limit governs
+SHAPE_ROOFS = [
+    {"shape": "curved", "rise": "30ft", "chord": "60ft", "eave_clear": True},
+    {"shape": "dome", "rise": "10ft", "diameter": "100ft"},
+    {"shape": "sawtooth", "slope": "4:12", "ridge_height": "2ft", "spans": 4},
+]
+
+
 def _engine_roof(standard="asce7-16"):
     import tomllib
 
@@ -164,9 +173,14 @@ def _engine_roof(standard="asce7-16"):
 
     roof = neve.Roof.from_mapping(tomllib.loads(ROOF_TOML))
     extra = {"w2": 0.5} if standard == "asce7-22" else {}
-    return json.loads(
+    out = json.loads(
         json.dumps(neve.analyze_roof(35.0, roof, standard=standard, **extra).to_json())
     )
+    for spec in SHAPE_ROOFS:
+        shaped = neve.analyze_roof(35.0, neve.Roof.from_mapping(spec), standard=standard, **extra)
+        out["cases"] += [c for c in json.loads(json.dumps(shaped.to_json()))["cases"]
+                         if c.get("method") in ("curved", "dome", "sawtooth")]  # fmt: skip
+    return out
 
 
 @pytest.fixture(scope="module", params=["asce7-16", "asce7-22"])
@@ -210,6 +224,19 @@ KINDS = [
     ("unbalanced", "", ["windward", "leeward", "surcharge", "ridge", "wind", "extent", "W"],
      ["windward", "leeward", "surcharge", "leeward_peak", "surcharge_extent"]),
     ("ice_dam", "", ["eave", "overhang", "eave load", "ice dam"], ["load", "overhang"]),
+    # issue 12
+    ("curved_balanced", "curved roof", ["crown", "eave", "30\u00b0", "70\u00b0", "h", "c", "x30",
+                                        "x70", "Cs pf"],
+     ["crown", "at_30", "at_70", "eave", "x_30", "x_70", "half_chord", "rise"]),
+    ("curved", "", ["windward", "leeward", "crown", "eave", "30\u00b0", "70\u00b0", "wind", "h",
+                    "c", "x30", "x70"],
+     ["leeward_crown", "leeward_30", "leeward_70", "leeward_eave", "windward", "x_30", "x_70",
+      "half_chord", "rise"]),
+    ("dome", "", ["plan", "leeward", "wind", "crown", "eave", "h", "c"],
+     ["leeward_crown", "leeward_eave", "windward", "half_chord", "rise"]),
+    ("sawtooth", "", ["ridge", "valley", "hr", "W", "p valley", "p ridge"],
+     ["ridge", "valley", "valley_unlimited", "valley_limit", "ridge_height", "ridge_to_valley",
+      "gamma"]),
 ]  # fmt: skip
 
 
@@ -219,7 +246,8 @@ def test_every_kind_is_drawn_from_the_engine_json(engine_roof, tmp_path):
     kinds = [diagram_kind(c) for c in engine_roof["cases"]]
     assert set(DIAGRAM_KINDS) <= set(kinds)
     out = write_case_diagrams(engine_roof, tmp_path)
-    drawn = [c for c in engine_roof["cases"] if c["case"] in DIAGRAM_CASES]
+    drawn = [c for c in engine_roof["cases"]
+             if c["case"] in DIAGRAM_CASES or c.get("method") in ("curved", "dome")]  # fmt: skip
     assert len(out) == len(drawn) == sum(k is not None for k in kinds)
     from PIL import Image
 

@@ -287,13 +287,21 @@ def test_address_rows_with_a_gazetteer(tmp_path, grid_layer):
     assert res["status"][4] == "error" and "address: missing" in res["message"][4]
 
 
-def test_address_rows_without_a_geocoder_exit_2(tmp_path, grid_layer, monkeypatch):
+def test_address_rows_without_a_geocoder_use_the_shipped_gazetteer(
+    tmp_path, grid_layer, monkeypatch
+):
+    """Issue 14: with no geocoder configured, address rows are looked up in the shipped
+    gazetteer; an address it does not hold is that row's error, naming the other ways."""
     monkeypatch.delenv("NEVE_GEOCODER_URL", raising=False)
     sites = tmp_path / "s.csv"
-    sites.write_text("address\n1 Harbour Rd\n", encoding="utf-8")
-    r = _run(sites, "-o", tmp_path / "r.csv", "--layer", grid_layer)
-    assert r.exit_code == 2
-    assert "--gazetteer" in r.output and "--geocoder-url" in r.output
+    sites.write_text("address\n1 Harbour Rd\n05401\n", encoding="utf-8")
+    out = tmp_path / "r.csv"
+    r = _run(sites, "-o", out, "--layer", grid_layer)
+    assert r.exit_code == 0, r.output
+    res = pd.read_csv(out)
+    assert res["status"][0] == "error"
+    assert "--gazetteer" in res["message"][0] and "--geocoder-url" in res["message"][0]
+    assert res["location_precision"][1] == "postal_code" and res["location_radius_m"][1] > 0
 
 
 def test_demo_portfolio_on_the_embedded_demo_data(tmp_path):

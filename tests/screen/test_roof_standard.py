@@ -52,8 +52,12 @@ def test_fully_described_flat_roof_adds_no_roof_flags(tmp_path):
         "thermal": "heated",
         "risk": "II",
     }
-    res = screen(_sites().iloc[:1], layers=[path], roof=roof)
+    # sloped at 1/4 on 12: no ponding check (ASCE 7-16 Sec. 7.11, from memory; issue 12)
+    res = screen(_sites().iloc[:1], layers=[path], roof=dict(roof, slope="0.25:12", eave_to_ridge="100ft"))
     assert res["flags"].iloc[0] == ""
+    # dead flat: below 1/4 on 12, the one flag is the ponding check
+    res = screen(_sites().iloc[:1], layers=[path], roof=roof)
+    assert res["flags"].iloc[0] == "ponding_check_required"
 
 
 def test_asce_7_22_layer_gives_7_22_roof_loads_without_unsupported_flag(tmp_path):

@@ -129,7 +129,13 @@ def test_bad_profile_names_its_field(grid_layer, sites_frame):
         screen(
             sites_frame.assign(roof="a"),
             layers=[grid_layer],
-            roof={"profile": {"a": {"shape": "dome"}}},
+            roof={"profile": {"a": {"shape": "onion"}}},
+        )
+    with pytest.raises(InputError, match=r"profile\.a\.rise"):  # issue 12: a dome needs its rise
+        screen(
+            sites_frame.assign(roof="a"),
+            layers=[grid_layer],
+            roof={"profile": {"a": {"shape": "dome", "diameter": "80ft"}}},
         )
 
 

@@ -21,7 +21,11 @@ _COMMANDS = {
     "screen": ("neve.cli.screen", "screen", "Screen a portfolio of sites."),
     "layer": ("neve.cli.layer", "layer", "Check or show a zone layer."),
     "verify": ("neve.cli.verify", "verify", "Run the verification cases of the standards."),
-    "compare": ("neve.cli.compare", "compare", "One site under two or more editions, side by side."),
+    "compare": (
+        "neve.cli.compare",
+        "compare",
+        "One site under two or more editions, side by side.",
+    ),
 }
 
 

@@ -20,6 +20,7 @@ from neve.cli.options import (
 from neve.cli.site import site as _site_command
 from neve.engine.errors import InputError
 from neve.engine.jsonsafe import dumps
+from neve.engine.roof_shapes import SHAPE_KEYS
 
 #: the parameters of ``neve site`` that ``neve compare`` takes as they are
 SITE_PARAMS = (
@@ -29,6 +30,7 @@ SITE_PARAMS = (
     "site_name", "project", "package_dir", "overwrite", "fmt", "gazetteer", "geocoder_url",
     "user_agent", "geocoder_timeout",
     "job", "prepared_by", "checked_by", "revision",  # the package's title block (issue 11)
+    *SHAPE_KEYS,  # curved, dome and multi-span roofs (issue 12)
 )  # fmt: skip
 _HELP = {
     "layers": "Zone layer (repeat, most local first); each edition takes the layers whose "

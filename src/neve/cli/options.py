@@ -147,8 +147,9 @@ roof_options = _stack(
     ),
     click.option(
         "--shape",
-        help="Roof shape: flat, monoslope, gable, hip, multi-span, "
-        "cylindrical (monopitch = monoslope, duopitch = gable).",
+        help="Roof shape: flat, monoslope, gable, hip, curved (or arch), dome, "
+        "sawtooth (or folded-plate, barrel-vault), multi-span, cylindrical "
+        "(monopitch = monoslope, duopitch = gable); each standard covers its own.",
     ),
     click.option("--slope", help="Roof slope, e.g. 6:12 or 26.6deg."),
     click.option("--surface", help=_roof_help("surface")),
@@ -161,7 +162,8 @@ roof_options = _stack(
     click.option(
         "--eave-to-ridge",
         "eave_to_ridge",
-        help="Horizontal eave-to-ridge distance W, e.g. 30ft.",
+        help="Horizontal eave-to-ridge distance W, e.g. 30ft; an asymmetric gable or hip "
+        "roof: one per side, 30ft,20ft.",
     ),
     click.option("--r-value", "r_value", help=_roof_help("r_value")),
     _pair("--ventilated/--unventilated", "ventilated", _roof_help("ventilated")),
@@ -175,10 +177,34 @@ roof_options = _stack(
     ),
     click.option("--cov", metavar="V", help=_own_help("cov")),
     click.option("--other-slope", "other_slope", help=_own_help("other_slope")),
-    click.option("--rise", help=_own_help("rise")),
-    click.option("--span", help=_own_help("span")),
     click.option("--altitude", help=_own_help("altitude")),
     click.option("--guard-width", "guard_width", help=_own_help("guard_width")),
+    # curved, dome and multi-span roofs (issue 12): neve.engine.roof_shapes
+    click.option(
+        "--rise", help="Curved or cylindrical roof, dome: rise from eave to crown, e.g. 12ft."
+    ),
+    click.option(
+        "--chord",
+        help="Curved or cylindrical roof: horizontal chord (span) from eave to eave, e.g. 60ft.",
+    ),
+    click.option("--diameter", help="Dome: base diameter, e.g. 80ft."),
+    click.option(
+        "--eave-slope",
+        "eave_slope",
+        help="Curved roof or dome: tangent slope at the eave, e.g. 40deg (two of rise, "
+        "chord and eave slope fix the arc; all three are checked).",
+    ),
+    _pair(
+        "--eave-abutted/--eave-clear",
+        "eave_abutted",
+        "Curved roof: the ground or another roof meets it at or within 3 ft of the eave.",
+    ),
+    click.option(
+        "--ridge-height",
+        "ridge_height",
+        help="Sawtooth, folded plate or barrel vault roof: ridge-to-valley height hr, e.g. 6ft.",
+    ),
+    click.option("--spans", help="Sawtooth, folded plate or barrel vault roof: number of spans."),
 )
 roof_options.__doc__ = "Decorate a click command with the roof options and ``--roof ROOF.toml``."
 
@@ -288,6 +314,17 @@ def gazetteer_option(f):
         "--gazetteer",
         type=click.Path(dir_okay=False),
         help="Offline address list: CSV with address,lat,lon (looked at before --geocoder-url).",
+    )(f)
+
+
+def narrow_options(f):
+    """``--country`` and ``--region``: narrow the shipped gazetteer's place search."""
+    f = click.option(
+        "--region",
+        help="Region (US state, or the gazetteer's region code) that narrows a place name.",
+    )(f)
+    return click.option(
+        "--country", help="Country (ISO code or name) that narrows a place name, e.g. US, CH."
     )(f)
 
 

@@ -14,6 +14,7 @@ from neve.cli.options import (
     layers_option,
     map_look_options,
     map_option,
+    narrow_options,
     on_record_option,
     overwrite_option,
     resolve_basemap,
@@ -43,7 +44,8 @@ def _check_output(path: str | None, field: str, overwrite: bool, is_dir: bool = 
 
 @click.command("site")
 @click.option("--at", "at", metavar="LAT,LON", help="Site coordinates, decimal or DMS.")
-@click.option("--address", help="Site address (needs --gazetteer or --geocoder-url).")
+@click.option("--address", help="Site address, US ZIP code or place name (offline gazetteer; "
+              "--gazetteer or --geocoder-url for exact addresses).")  # fmt: skip
 @click.option("--elevation", help="Site elevation with its unit, e.g. 412m or 1350ft.")
 @dem_options
 @layers_option
@@ -59,6 +61,7 @@ def _check_output(path: str | None, field: str, overwrite: bool, is_dir: bool = 
 @format_option
 @gazetteer_option
 @geocoder_url_option
+@narrow_options
 @click.option("--user-agent", help="User agent sent to the geocoding server.")
 @click.option("--geocoder-timeout", type=float, default=10.0, show_default=True,
               help="Seconds to wait for the geocoding server.")  # fmt: skip
@@ -84,20 +87,25 @@ def site(**kw) -> None:
     if kw["map_path"] or kw["package_dir"]:
         resolve_basemap(kw, demo_data=False)  # a bad --basemap is refused before any work
     address = None
+    located = {}
     if kw["at"]:
         lat, lon = parse_latlon(kw["at"])
         given = kw["at"]
     else:
-        from neve.geo.site.geocode import geocode
+        from neve.geo.site.places import locate
 
-        hit = geocode(
+        hit = locate(
             kw["address"],
             gazetteer=kw["gazetteer"],
             url=kw["geocoder_url"],
+            country=kw["country"],
+            region=kw["region"],
             user_agent=kw["user_agent"],
             timeout=kw["geocoder_timeout"],
         )
         lat, lon, address, given = hit.lat, hit.lon, hit.address, kw["address"]
+        located = dict(location_precision=hit.precision, location_radius_m=hit.radius_m,
+                       location_source=hit.source)  # fmt: skip
     result = resolve_site(
         lat,
         lon,
@@ -113,6 +121,7 @@ def site(**kw) -> None:
         elevation_source=kw["elevation_source"],
         standard=kw["standard"],
         on_record_psf=kw.get("on_record"),
+        **located,
     )
     data = finite_copy(result.to_json())  # no NaN or infinity in any output: null + a flag
     if kw["map_path"] or kw["package_dir"]:

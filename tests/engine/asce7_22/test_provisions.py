@@ -180,7 +180,13 @@ def test_drift_height_hand_value():
 
 
 def test_least_fetch_and_zero_w2():
-    assert float(drift.drift_height(63, 5, 0.45)) == float(drift.drift_height(63, 20, 0.45))
+    # issue 12: the 20 ft least fetch is the unbalanced load's (Sec. 7.6.1, from memory); the
+    # drift height takes the fetch as given (hand calculation from Eq. 7.6-1: lu = 5 ft
+    # gives 1.5 sqrt(63^0.74 5^0.7 0.45^1.7 / 22.19) = 1.3141 ft)
+    from neve.engine.asce7_22.unbalanced import unbalanced_fetch
+
+    assert float(drift.drift_height(63, 5, 0.45)) == pytest.approx(1.3141, abs=1e-4)
+    assert unbalanced_fetch(5.0) == 20.0 and unbalanced_fetch(30.0) == 30.0
     assert float(drift.drift_height(63, 100, 0.0)) == 0.0
     assert float(drift.drift_height(0, 100, 0.5)) == 0.0
 

@@ -98,7 +98,7 @@ def test_multi_span_valley_and_steep_valley_refused():
                                                   (1.0, 50.0, 0.4)])  # fmt: skip
 def test_cylindrical_mu3(rise, span, mu3):
     # EN 1991-1-3 5.3.5(1) (from memory): 0.2 + 10 h / b, at most 2.0; hand calculation
-    r = analyze_roof(1.0, _roof(shape="cylindrical", rise=f"{rise}m", span=f"{span}m"))
+    r = analyze_roof(1.0, _roof(shape="cylindrical", rise=f"{rise}m", chord=f"{span}m"))
     drifted = r.case("drifted")[0]
     assert drifted["mu3"] == pytest.approx(mu3)
     assert drifted["windward"]["kPa"] == pytest.approx(0.5 * mu3, abs=1e-4)
@@ -109,7 +109,7 @@ def test_cylinder_needs_rise_and_span_and_a_real_arc():
     with pytest.raises(InputError):
         analyze_roof(1.0, _roof(shape="cylindrical", rise="2m"))
     with pytest.raises(InputError):
-        analyze_roof(1.0, _roof(shape="cylindrical", rise="12m", span="20m"))
+        analyze_roof(1.0, _roof(shape="cylindrical", rise="12m", chord="20m"))
     # common practice (one circular arc): r = (b^2/4 + h^2) / 2h; ls where the slope <= 60 deg
     g = shapes.cylinder_geometry(8.0, 20.0)
     assert g["radius"] == pytest.approx((100 + 64) / 16)

