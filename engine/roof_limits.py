@@ -61,6 +61,8 @@ RANGES: dict[str, Bound] = {
     "step.upper_is": Bound(0.8, 1.2, why="the extremes of the standard's snow importance factors"),
     "parapet.height": Bound(0.0, 50.0, "ft", lo_open=True, why="taller walls are a roof step"),
     "parapet.upwind_length": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
+    "parapet.drift_space": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
+    "option.length": Bound(0.0, 5000.0, "ft", why="a standard's own lengths (spans, rises, guard widths, site altitudes): longer than the largest roofs, higher than the Eurocode for snow reaches (1500 m)"),
     "projection.height": Bound(0.0, 100.0, "ft", lo_open=True, why="a rooftop penthouse"),
     "projection.plan_length": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),
     "projection.upwind_length": Bound(0.0, 5000.0, "ft", lo_open=True, why=_PLAN),

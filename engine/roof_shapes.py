@@ -48,8 +48,8 @@ SHAPE_ALIASES = {"arch": "curved", "folded-plate": "sawtooth", "barrel-vault": "
 SHAPE_KEYS = ("rise", "chord", "diameter", "eave_slope", "eave_abutted", "ridge_height", "spans")
 #: which shapes each key (and Roof attribute) belongs to
 _KEY_SHAPES = {
-    "rise": CURVED_SHAPES,
-    "chord": CURVED_SHAPES,
+    "rise": (*CURVED_SHAPES, "cylindrical"),  # cylindrical: EN 1991-1-3's h and b
+    "chord": (*CURVED_SHAPES, "cylindrical"),
     "diameter": ("dome",),
     "eave_slope": CURVED_SHAPES,
     "eave_abutted": CURVED_SHAPES,

@@ -45,11 +45,23 @@ __all__ = [
     "RoofStep", "as_roof", "merge_roof_levels", "parse_pg",
 ]  # fmt: skip
 
-#: roof shapes covered by the engine
-SHAPES = ("flat", "monoslope", "gable", "hip", *CURVED_SHAPES, *MULTISPAN_SHAPES)
+#: roof shapes of the shared roof vocabulary (each standard says which it covers:
+#: ``Standard.shapes``): ASCE 7 the first seven, EN 1991-1-3 flat, monoslope, gable,
+#: multi-span and cylindrical
+SHAPES = ("flat", "monoslope", "gable", "hip", *CURVED_SHAPES, *MULTISPAN_SHAPES,
+          "multi-span", "cylindrical")  # fmt: skip
+#: other words for the shapes: the Eurocode's (monopitch, duopitch), spellings, and the
+#: family names of issue 12 (arch, folded plate, barrel vault)
+SHAPE_ALIASES = {**SHAPE_ALIASES, "monopitch": "monoslope", "mono-pitch": "monoslope",
+                 "duopitch": "gable", "duo-pitch": "gable", "pitched": "gable",
+                 "multispan": "multi-span", "multi-pitch": "multi-span"}  # fmt: skip
+#: shapes whose slope is not given but follows from their own geometry
+SLOPE_FREE_SHAPES = ("cylindrical",)
 #: shapes that ASCE 7-16 covers but neve does not yet: refused with a clear message
 #: (none since issue 12; kept for callers that ask)
 UNSUPPORTED_SHAPES: tuple[str, ...] = ()
+#: the kinds of a standard's own roof option (``RoofOption.kind``) and how each is read
+OPTION_KINDS = ("choice", "number", "yes/no", "length", "slope", "text", "parameter set")
 SURFACES = ("slippery", "other")
 #: shapes with two sides, each with its own eave-to-ridge distance
 TWO_SIDED = ("gable", "hip")
@@ -228,9 +240,13 @@ class Parapet:
     upwind_length: float  # roof length upwind of the parapet [ft]
     #: names of the steps and parapets whose drifts meet this one at an inside corner
     meets: tuple[str, ...] = ()
+    #: roof length beside the parapet over which a drift can lie [ft] (EN 1991-1-3
+    #: exceptional drifts; None: the upwind length)
+    drift_space: float | None = None
 
     def __post_init__(self):
-        _check(self, "parapet.", {a: f"parapet.{a}" for a in ("height", "upwind_length")})
+        names = ("height", "upwind_length", "drift_space")
+        _check(self, "parapet.", {a: f"parapet.{a}" for a in names})
         _meets_check(self.meets, "parapet.meets")
 
 
@@ -344,6 +360,16 @@ class Roof:
     shape_stated: bool = True  # False when the shape defaulted to flat
     #: the slope was given as a rise:run (``6:12``): text shows it as ``6:12 (26.6°)``
     slope_pitch: bool = field(default=False, compare=False)
+    #: the roof options a standard adds beyond the shared ones (its ``roof_options``
+    #: of kinds the shared roof does not hold: EN 1991-1-3 ``topography``, ``annex``
+    #: ...), by name, parsed by kind (lengths [ft], slopes [deg]); each standard
+    #: refuses the ones it does not declare
+    extra: Mapping = field(default_factory=dict)
+
+    def option(self, name: str, default=None):
+        """A standard's own roof option (``extra``), or ``default`` when not given."""
+        return self.extra.get(name, default)
+
     #: side B's eave-to-ridge distance W of an asymmetric gable or hip roof [ft]
     #: (``eave_to_ridge = ["30ft", "20ft"]``); None for a symmetric roof
     eave_to_ridge_b: float | None = None
@@ -416,10 +442,11 @@ class Roof:
                 "a mapping such as ROOF.toml gives",
             )
         data = norm_keys(data)
-        unknown = sorted(set(data) - _ROOF_KEYS)
+        known = _ROOF_KEYS | set(_extra_options())
+        unknown = sorted(set(data) - known)
         if unknown:
             raise InputError(
-                "roof", f"unknown key(s) {', '.join(unknown)}", ", ".join(sorted(_ROOF_KEYS))
+                "roof", f"unknown key(s) {', '.join(unknown)}", ", ".join(sorted(known))
             )
         shape = str(data.get("shape", "flat")).strip().lower()
         shape = SHAPE_ALIASES.get(shape.replace("_", "-").replace(" ", "-"), shape)
@@ -446,7 +473,7 @@ class Roof:
             slope = parse_slope(data["slope"], "slope")
             if shape == "flat" and slope > FLAT_SLOPE_MAX_DEG:
                 flat_too_steep(slope, "shape" in data, data["slope"])
-        elif shape == "flat":
+        elif shape == "flat" or shape in SLOPE_FREE_SHAPES:
             slope = 0.0
         else:
             raise InputError(
@@ -493,6 +520,7 @@ class Roof:
         kw["steps"] = tuple(_steps(data.get("step", [])))
         kw["parapets"] = tuple(_parapets(data.get("parapet", [])))
         kw["projections"] = tuple(_projections(data.get("projection", [])))
+        kw["extra"] = _extra(data)
         if "overhang" in data:
             oh = data["overhang"]
             if isinstance(oh, Mapping):
@@ -503,6 +531,55 @@ class Roof:
             kw["overhang"] = _length({"length": oh}, "length", "overhang", "overhang.length")
         kw.update(shaped)
         return cls(**kw)
+
+
+def _extra_options() -> dict:
+    """The roof options standards declare beyond the shared roof keys: name -> RoofOption.
+
+    Asked of the registry (every registered standard); a name two standards
+    declare is read by the first one's kind.
+    """
+    from neve.engine.standards import standards
+
+    out: dict = {}
+    for std in standards():
+        for opt in std.roof_options:
+            if opt.name not in _ROOF_KEYS:
+                out.setdefault(opt.name, opt)
+    return out
+
+
+def _extra_value(opt, value):
+    """A standard's own roof option read by its kind (lengths [ft], slopes [deg])."""
+    name = opt.name
+    if opt.kind == "choice":
+        return choose_key(name, value, list(opt.choices))
+    if opt.kind == "number":
+        if isinstance(value, bool):
+            raise InputError(name, f"{value!r} is not a number", "a plain number")
+        try:
+            x = float(value)
+        except (TypeError, ValueError):
+            raise InputError(name, f"{value!r} is not a number", "a plain number") from None
+        if x != x or x in (float("inf"), float("-inf")):
+            raise InputError(name, f"{value!r} is not a finite number", "a plain number")
+        return x
+    if opt.kind == "yes/no":
+        return _bool(value, name)
+    if opt.kind == "length":
+        return parse_length(value, name, bound=RANGES["option.length"])
+    if opt.kind == "slope":
+        return parse_slope(value, name)
+    if opt.kind == "parameter set" and isinstance(value, Mapping):
+        return value  # read from a file at the edge (neve.roof_file); the standard checks it
+    if isinstance(value, (Mapping, list, tuple)):
+        raise InputError(name, "must be a text", "a text")
+    return str(value)
+
+
+def _extra(data: Mapping) -> dict:
+    options = _extra_options()
+    return {k: _extra_value(options[k], v) for k, v in data.items() if k in options}
 
 
 def _table_list(value, name: str) -> list[Mapping]:
@@ -600,7 +677,7 @@ def _parapets(value) -> list[Parapet]:
     out = []
     for i, e in enumerate(_table_list(value, "parapet")):
         w = f"parapet[{i}]"
-        _check_keys(e, w, {"name", "height", "upwind_length", "meets"})
+        _check_keys(e, w, {"name", "height", "upwind_length", "meets", "drift_space"})
         out.append(
             _part(
                 Parapet,
@@ -609,6 +686,7 @@ def _parapets(value) -> list[Parapet]:
                 height=_length(e, "height", w, "parapet.height", need="3ft"),
                 upwind_length=_length(e, "upwind_length", w, "parapet.upwind_length", need="100ft"),
                 meets=_names(e.get("meets"), f"{w}.meets"),
+                drift_space=_length(e, "drift_space", w, "parapet.drift_space"),
             )
         )
     return out

@@ -15,7 +15,12 @@ from neve.engine.format import is_quantity, quantity_text, significant, slope_te
 from neve.engine.roof_shapes import shape_text
 
 #: keys of a case that are not values to list under it
-_CASE_META = {"case", "name", "steps", "not_combined_with", "note", "method", "source", "governs"}
+_CASE_META = {"case", "name", "steps", "not_combined_with", "note", "method", "source", "governs",
+              "situation", "arrangement", "arrangement_of_slopes"}  # fmt: skip
+
+#: the SI unit shown first, by the unit the contract lists first (results of a
+#: standard whose load unit is kPa: EN 1991-1-3)
+SI_FIRST = {"psf": "kPa", "ft": "m", "plf": "kN/m", "pcf": "kN/m3"}
 
 #: loads of ``loads`` that apply only under conditions: the key of the load in the cases
 #: and the symbol of the step that records it (the engine's JSON: null where it does not
@@ -123,6 +128,93 @@ def _factor_text(value: object) -> str:
     return significant(value)
 
 
+def si_first(result: Mapping) -> bool:
+    """Whether a roof result is shown SI first: its standard's load unit is kPa (EN 1991-1-3).
+
+    Asked of the registry by the result's ``standard``; an unknown one: the contract's order.
+    """
+    from neve.engine.standards import find_standard
+
+    try:
+        std = find_standard(str(result.get("standard", "")))
+    except Exception:  # a result of no registered standard: shown in the contract's order
+        std = None
+    return bool(std is not None and std.units.get("load") == "kPa")
+
+
+def _si(value: object, **kw) -> str:
+    """A quantity SI first: ``0.52 kPa (10.9 psf)``, ``6.00 m (19.69 ft)``."""
+    first = None
+    if isinstance(value, Mapping):
+        for a, b in SI_FIRST.items():
+            if a in value:
+                first = b
+    return quantity_text(value, first=first, **kw)  # type: ignore[arg-type]
+
+
+def _si_case_values(case: Mapping) -> list[str]:
+    """``key = value`` lines of a case of an SI-first result: coefficients and quantities."""
+    out = []
+    for key, value in case.items():
+        if key in _CASE_META:
+            continue
+        if is_quantity(value):
+            out.append(f"{key} = {_si(value)}")
+        elif isinstance(value, (int, float)) and not isinstance(value, bool):
+            out.append(f"{key} = {significant(value)}")
+    return out
+
+
+def _si_roof_text(result: Mapping, show_steps: bool, show_cautions: bool, pitch) -> str:
+    """The summary of a result whose ground quantity is ``sk`` (EN 1991-1-3): SI first."""
+    roof = result["roof"]
+    f = {k: _factor_text(v) for k, v in result["factors"].items()}
+    loads = result["loads"]
+    na = NOT_APPLICABLE
+    slope = slope_text(roof["slope_deg"], pitch=bool(pitch))
+    other = roof.get("other_slope_deg")
+    if other is not None:
+        slope += f", other slope {slope_text(other)}"
+    params = result.get("parameters") or {}
+    period = result.get("return_period")
+    lines = [
+        f"Roof snow loads, {result['standard']}",
+        f"  roof: {roof['shape']}, slope {slope}, topography "
+        f"{roof.get('topography') or 'normal (assumed)'}, snow kept from sliding off: "
+        f"{'yes' if roof.get('snow_retained') else 'no'}",
+        f"  parameters: {params.get('name')} ({params.get('title')}); source: "
+        f"{params.get('source')}",
+        f"  design case: {result.get('design_case')}",
+        f"  sk = {_si(result['sk'])}"
+        + (f"   sn = {_si(result['sn'])} (return period {period['years']:g} years, "
+           f"V = {period['cov']:g})" if period else ""),
+        "  " + ", ".join(f"{k} = {v}" for k, v in f.items()),
+        f"  s = {_si(loads.get('s'))}   sAd = {_si(loads.get('sAd'), missing=na)}",
+        f"  design uniform load = {_si(result['design_uniform'])}",
+        "",
+        "Load cases",
+    ]  # fmt: skip
+    for case in result["cases"]:
+        lines.append(f"  [{case['case']}] {case['name']}  ({case.get('situation', '')})")
+        lines += [f"      {v}" for v in _si_case_values(case)]
+        if case.get("note"):
+            lines.append(f"      note: {case['note']}")
+        if case.get("not_combined_with"):
+            lines.append(f"      not combined with: {case['not_combined_with']}")
+        if show_steps:
+            lines += [_step_line(s) for s in case["steps"]]
+    if result.get("not_required"):
+        lines += ["", "Not required"]
+        for item in result["not_required"]:
+            name = f" '{item['name']}'" if item.get("name") else ""
+            lines.append(f"  [{item['case']}]{name}: {item['reason']}")
+    lines += ["", "Flags: " + (", ".join(result["flags"]) if result["flags"] else "none")]
+    if show_cautions:
+        lines += ["", "Cautions"]
+        lines += [f"  ! {c}" for c in result["cautions"]]
+    return "\n".join(lines)
+
+
 def roof_text(
     result: Mapping,
     *,
@@ -146,6 +238,8 @@ def roof_text(
         where the slope was given as a rise:run; False: the angle (``26.6°``).
         None (not known how it was given): the pitch, which carries the angle too.
     """
+    if si_first(result):
+        return _si_roof_text(result, show_steps, show_cautions, pitch)
     f = {k: _factor_text(v) for k, v in result["factors"].items()}
     loads = result["loads"]
     roof = result["roof"]

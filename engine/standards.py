@@ -56,7 +56,11 @@ __all__ = [
 #: id of the standard used when none is named
 DEFAULT = "asce7-16"
 #: modules that register the standards shipped with neve (imported on first lookup)
-BUILTIN = ("neve.engine.asce7_16.standard", "neve.engine.asce7_22.standard")
+BUILTIN = (
+    "neve.engine.asce7_16.standard",
+    "neve.engine.asce7_22.standard",
+    "neve.engine.en1991_1_3.standard",
+)
 
 _REGISTRY: dict[str, Standard] = {}
 _loaded = False
@@ -80,8 +84,10 @@ class RoofOption:
     name : str
         The ROOF.toml key (``ct``); the command-line option is ``--`` plus the
         name with ``-`` for ``_``.
-    kind : {"choice", "number", "yes/no"}
-        What the option takes.
+    kind : {"choice", "number", "yes/no", "length", "slope", "text", "parameter set"}
+        What the option takes (``neve.engine.roof_spec.OPTION_KINDS``); a
+        ``parameter set`` is a name of one of the standard's shipped sets
+        (:attr:`Standard.parameter_sets`) or a TOML file of one, read at the edge.
     help : str
         One line for ``--help`` and the docs (may name the standard's clauses).
     choices : tuple of str
@@ -209,6 +215,12 @@ class VerificationCase:
         return out
 
 
+#: shapes of one physical form that the standards name differently (ASCE 7's curved
+#: and sawtooth families, EN 1991-1-3's cylindrical and multi-span roofs)
+_SAME_FORM = {"cylindrical": "curved", "curved": "cylindrical", "multi-span": "sawtooth",
+              "sawtooth": "multi-span"}  # fmt: skip
+
+
 @dataclass(frozen=True)
 class Standard:
     """What a standard declares to the registry (see the module docstring).
@@ -234,7 +246,38 @@ class Standard:
     screening_flags: Callable[..., list]
     verification: Callable[[], Sequence[VerificationCase]]
     summary: str = ""
+    #: the roof shapes of the shared vocabulary the standard covers (ASCE 7's by default)
+    shapes: tuple[str, ...] = ("flat", "monoslope", "gable", "hip", "curved", "dome", "sawtooth")
+    #: the package holding the standard's parameter sets (``<name>.toml`` files; read
+    #: by ``neve.roof_file``, never by the engine); "" for none
+    parameter_sets: str = ""
     _cases: list = field(default_factory=list, compare=False, repr=False)
+
+    def check_roof(self, roof) -> None:
+        """Refuse a roof this standard cannot work: a shape it does not cover, an option it lacks.
+
+        A shape outside :attr:`shapes` is an ``UnsupportedError`` (exit 2) naming the
+        shapes covered; a standard's own roof option (``roof.extra``) that this
+        standard does not declare is an ``InputError`` naming it.
+        """
+        from neve.engine.errors import UnsupportedError
+
+        shape = getattr(roof, "shape", None)
+        if shape is not None and shape not in self.shapes:
+            other = _SAME_FORM.get(shape)
+            hint = (f"; a roof of this form is {other!r} in {self.title}"
+                    if other in self.shapes else "")  # fmt: skip
+            raise UnsupportedError(
+                "shape", f"{self.title} in neve does not cover {shape!r} roofs{hint}",
+                ", ".join(self.shapes),
+            )  # fmt: skip
+        names = {o.name for o in self.roof_options}
+        for key in getattr(roof, "extra", {}) or {}:
+            if key not in names:
+                raise InputError(
+                    key, f"{self.title} takes no roof option {key!r}",
+                    ", ".join(sorted(names)) or "none",
+                )  # fmt: skip
 
     def matches(self, name: str) -> bool:
         """Whether ``name`` is one of this standard's names (case and spaces aside)."""
@@ -344,10 +387,12 @@ def get_standard(name: str | Standard | None = None, field: str = "standard") ->
 
     >>> get_standard("ASCE 7-16").id
     'asce7-16'
-    >>> get_standard("EN 1991-1-3")
+    >>> get_standard("EN 1991-1-3").id
+    'en1991-1-3'
+    >>> get_standard("BS 6399-3")
     Traceback (most recent call last):
     ...
-    neve.engine.errors.InputError: standard: 'EN 1991-1-3' is not a standard neve has; accepted: asce7-16, asce7-22
+    neve.engine.errors.InputError: standard: 'BS 6399-3' is not a standard neve has; accepted: asce7-16, asce7-22, en1991-1-3
     """
     std = find_standard(name)
     if std is None:

@@ -427,7 +427,7 @@ _MAY_IMPORT = {
     "registry": {"engine"},
     "standard": {"engine", "registry"},
     "safe_write": {"engine"},
-    "roof_file": {"engine"},
+    "roof_file": {"engine", "registry"},  # issue 13: a standard's parameter sets
 }
 #: imports against the picture that are known and reported, each with its reason
 _KNOWN_EXCEPTIONS: set[tuple[str, str]] = set()  # none left

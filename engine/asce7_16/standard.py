@@ -28,6 +28,7 @@ from neve.engine.asce7_16.factors import (
 )
 from neve.engine.asce7_16.shape_cases import PROVISIONS as SHAPE_PROVISIONS
 from neve.engine.errors import InputError
+from neve.engine.roof_spec import as_roof
 from neve.engine.standards import RoofOption, Standard, register
 
 #: layer ``standard`` strings whose ground snow loads the ASCE 7-16 equations may take:
@@ -123,14 +124,25 @@ def _pg(quantities) -> object:
     return quantities
 
 
+def _roof(roof):
+    """The roof as a Roof, held to what ASCE 7-16 covers (its shapes, no other standard's options)."""
+    roof = as_roof(roof)
+    ASCE_7_16.check_roof(roof)
+    return roof
+
+
 def analyze(quantities, roof):
     """Every ASCE 7-16 load case of ``roof`` for the site quantities ``{"pg": psf}``."""
-    return analyze_roof(_pg(quantities), roof)
+    return analyze_roof(_pg(quantities), _roof(roof))
 
 
 def uniform(quantities, roof) -> dict:
     """The uniform loads for arrays of ``pg`` [psf] (screening)."""
-    return uniform_loads(_pg(quantities), roof)
+    return uniform_loads(_pg(quantities), _roof(roof))
+
+
+def _screening_flags(roof) -> list:
+    return screening_flags(_roof(roof))
 
 
 def _verification():
@@ -153,7 +165,7 @@ ASCE_7_16 = register(
         provisions=PROVISIONS,
         analyze=analyze,
         uniform=uniform,
-        screening_flags=screening_flags,
+        screening_flags=_screening_flags,
         verification=_verification,
         summary="ASCE/SEI 7-16 Chapter 7: flat, sloped and minimum roof loads, rain-on-snow, "
         "unbalanced, drift, sliding, ice dam and partial loads",

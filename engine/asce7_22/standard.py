@@ -29,6 +29,7 @@ from neve.engine.asce7_22.analysis import CAUTIONS, analyze_roof, screening_flag
 from neve.engine.asce7_22.factors import EXPOSURES, RISKS, TERRAINS, THERMAL
 from neve.engine.asce7_22.shape_cases import PROVISIONS as SHAPE_PROVISIONS
 from neve.engine.errors import InputError
+from neve.engine.roof_spec import as_roof
 from neve.engine.standards import RoofOption, Standard, register
 
 #: layer ``standard`` strings whose values the ASCE 7-22 equations may take: only
@@ -134,14 +135,25 @@ def _w2(quantities):
     return w2
 
 
+def _roof(roof):
+    """The roof as a Roof, held to what ASCE 7-22 covers (its shapes, no other standard's options)."""
+    roof = as_roof(roof)
+    ASCE_7_22.check_roof(roof)
+    return roof
+
+
 def analyze(quantities, roof):
     """Every ASCE 7-22 load case of ``roof`` for ``{"pg": psf, "w2": fraction}`` (w2 optional)."""
-    return analyze_roof(_take(quantities, "pg", True), roof, _w2(quantities))
+    return analyze_roof(_take(quantities, "pg", True), _roof(roof), _w2(quantities))
 
 
 def uniform(quantities, roof) -> dict:
     """The uniform loads for arrays of ``pg`` [psf] (screening); ``w2`` is not needed."""
-    return uniform_loads(_take(quantities, "pg", True), roof, _take(quantities, "w2", False))
+    return uniform_loads(_take(quantities, "pg", True), _roof(roof), _take(quantities, "w2", False))
+
+
+def _screening_flags(roof) -> list:
+    return screening_flags(_roof(roof))
 
 
 def _verification():
@@ -164,7 +176,7 @@ ASCE_7_22 = register(
         provisions=PROVISIONS,
         analyze=analyze,
         uniform=uniform,
-        screening_flags=screening_flags,
+        screening_flags=_screening_flags,
         verification=_verification,
         summary="ASCE/SEI 7-22 Chapter 7: strength-level, risk-targeted ground loads (no Is), "
         "thermal factor by R-value, drifts with the winter wind parameter W2, minimum "

@@ -118,6 +118,13 @@ FLAG_TABLE: tuple[Flag, ...] = (
     Flag("thermal_upper_bound", 38, "roof", "Ct is the upper bound of the heated-roof table"),
     Flag("eave_to_ridge_needed", 39, "roof", "unbalanced cases that need W not computed"),
     Flag("ponding_check_required", 40, "roof", "slope under 1/4 on 12: check ponding instability"),
+    # EN 1991-1-3 (issue 13)
+    Flag("topography_assumed", 41, "roof", "Ce from the default (normal) topography"),
+    Flag("ct_reduced", 42, "roof", "a thermal coefficient below 1.0 given: to be justified"),
+    Flag("snow_retention_unstated", 43, "roof", "whether snow can slide off not stated"),
+    Flag("upper_slope_unstated", 44, "roof", "the upper roof's slope not given: no sliding snow"),
+    Flag("altitude_unstated", 45, "roof", "site altitude not given: overhanging snow applied"),
+    Flag("demo_parameters", 46, "roof", "the parameter set is invented (demo)"),
     # issue 12 (curved roofs); bits from 52 down, so that other roof flags can take 39 up
     Flag("eave_abutment_unstated", 52, "roof", "curved roof: abutment at the eave not stated"),
     Flag("bad_coordinates", 56, "note", "coordinates missing or out of range: no look-up"),

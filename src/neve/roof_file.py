@@ -12,12 +12,19 @@ ROOF.toml lives here, beside the parts of the package rather than inside one:
 Keys are the roof options' names with ``_`` for ``-`` (:data:`ROOF_KEYS`) plus
 the ``[[step]]``, ``[[parapet]]``, ``[[projection]]`` and ``[overhang]`` tables;
 a screening file may hold ``[profile.NAME]`` tables instead, one roof each.
+
+A roof option of kind ``parameter set`` (EN 1991-1-3 ``annex``) names one of
+its standard's shipped parameter sets (``Standard.parameter_sets``: TOML files
+that are package data) or a TOML file of one; it is read here
+(:func:`parameter_set_data`) and handed to the roof as a mapping, which the
+standard checks.
 """
 
 from __future__ import annotations
 
 import tomllib
 from collections.abc import Mapping
+from importlib import resources
 from pathlib import Path
 
 from neve.engine.errors import InputError
@@ -28,7 +35,69 @@ from neve.engine.roof_spec import Roof, merge_roof_levels
 ROOF_KEYS = (
     "shape", "slope", "surface", "ct", "thermal", "ce", "terrain", "exposure", "risk",
     "eave_to_ridge", "r_value", "ventilated", "unobstructed", "prismatic",
+    "topography", "annex", "snow_case", "return_period", "cov", "other_slope",
+    "altitude", "guard_width",
 ) + SHAPE_KEYS  # fmt: skip  (curved, dome and multi-span roofs: neve.engine.roof_shapes)
+
+
+def _set_folders(option: str):
+    """(package, folder) of every standard whose roof option ``option`` is a parameter set."""
+    from neve.engine.standards import standards
+
+    out = []
+    for std in standards():
+        for opt in std.roof_options:
+            if opt.name == option and opt.kind == "parameter set" and std.parameter_sets:
+                package, _, folder = std.parameter_sets.partition(":")
+                out.append((package, folder))
+    return out
+
+
+def shipped_parameter_sets(option: str = "annex") -> dict[str, dict]:
+    """The parameter sets shipped for ``option``: name -> the set's mapping as read.
+
+    >>> "recommended" in shipped_parameter_sets()
+    True
+    """
+    out: dict[str, dict] = {}
+    for package, folder in _set_folders(option):
+        root = resources.files(package).joinpath(folder)
+        for entry in sorted(root.iterdir(), key=lambda e: e.name):
+            if entry.name.endswith(".toml"):
+                out.setdefault(entry.name[:-5], tomllib.loads(entry.read_text(encoding="utf-8")))
+    return out
+
+
+def parameter_set_data(value, field: str = "annex") -> Mapping:
+    """The mapping of a parameter set: a shipped set by name, or a TOML file of one.
+
+    A mapping is returned as it is (a ROOF.toml may hold the set inline). A
+    name that is neither a shipped set nor an existing ``.toml`` file is an
+    InputError listing the shipped sets.
+    """
+    if isinstance(value, Mapping):
+        return value
+    text = str(value).strip()
+    shipped = shipped_parameter_sets(field)
+    for name, data in shipped.items():
+        if name.casefold() == text.casefold():
+            return data
+    if text.lower().endswith(".toml") or Path(text).is_file():
+        return read_toml(text, field)
+    raise InputError(
+        field,
+        f"{text!r} is not a shipped parameter set or a TOML file",
+        ", ".join(shipped) + ", or a path to a parameter-set .toml file",
+    )
+
+
+def _with_sets(data: Mapping) -> dict:
+    """``data`` with every parameter-set option read into its mapping."""
+    out = dict(data)
+    for key in list(out):
+        if out[key] is not None and not isinstance(out[key], Mapping) and _set_folders(key):
+            out[key] = parameter_set_data(out[key], key)
+    return out
 
 
 def read_toml(path: str | Path, field: str) -> dict:
@@ -80,7 +149,7 @@ def roof_mapping(roof_file: str | Path | None, options: Mapping | None = None) -
 def read_roof(roof_file: str | Path | None, options: Mapping | None = None) -> Roof | None:
     """The one roof a ROOF.toml and the options describe, or None if they describe none."""
     data = roof_mapping(roof_file, options)
-    return None if data is None else Roof.from_mapping(data)
+    return None if data is None else Roof.from_mapping(_with_sets(data))
 
 
 def roofs_from_mapping(data: Mapping, overrides: Mapping | None = None) -> Roof | dict[str, Roof]:
@@ -96,7 +165,7 @@ def roofs_from_mapping(data: Mapping, overrides: Mapping | None = None) -> Roof 
     overrides = {k: v for k, v in dict(overrides or {}).items() if v is not None}
     profiles = data.pop("profile", None)
     if profiles is None:
-        return Roof.from_mapping(merge_roof_levels(data, overrides))
+        return Roof.from_mapping(_with_sets(merge_roof_levels(data, overrides)))
     if not isinstance(profiles, Mapping) or not profiles:
         raise InputError("roof", "[profile] must hold named tables", "[profile.NAME] tables")
     out = {}
@@ -105,7 +174,7 @@ def roofs_from_mapping(data: Mapping, overrides: Mapping | None = None) -> Roof 
             raise InputError(f"profile.{name}", "is not a table", "[profile.NAME] with roof keys")
         try:
             levels = merge_roof_levels({"name": str(name)}, data, table, overrides)
-            out[str(name)] = Roof.from_mapping(levels)
+            out[str(name)] = Roof.from_mapping(_with_sets(levels))
         except InputError as exc:
             raise InputError(f"profile.{name}.{exc.field}", exc.problem, exc.accepted) from None
     return out
@@ -121,4 +190,4 @@ def read_roofs(
     given = given_options(options or {})
     if roof_file:
         return roofs_from_mapping(read_toml(roof_file, "roof"), given)
-    return Roof.from_mapping(given) if given else None
+    return Roof.from_mapping(_with_sets(given)) if given else None

@@ -400,7 +400,20 @@ _ROOF_OPTS = [
     ("thermal", ("--thermal",), "StringParamType", None, False, False),
     ("unobstructed", ("--unobstructed", "--obstructed"), "BoolParamType", None, True, False),
     ("ventilated", ("--ventilated", "--unventilated"), "BoolParamType", None, True, False),
+    # issue 13: the roof options of EN 1991-1-3
+    ("topography", ("--topography",), "StringParamType", None, False, False),
+    ("annex", ("--annex",), "StringParamType", None, False, False),
+    ("snow_case", ("--snow-case",), "StringParamType", None, False, False),
+    ("return_period", ("--return-period",), "StringParamType", None, False, False),
+    ("cov", ("--cov",), "StringParamType", None, False, False),
+    ("other_slope", ("--other-slope",), "StringParamType", None, False, False),
+    ("altitude", ("--altitude",), "StringParamType", None, False, False),
+    ("guard_width", ("--guard-width",), "StringParamType", None, False, False),
 ]
+#: issue 13: neve compare compares editions of one ground quantity and keeps the earlier roof
+#: options (the EN 1991-1-3 ones are neve roof's, site's and screen's)
+_EN_ONLY = {"topography", "annex", "snow_case", "return_period", "cov", "other_slope",
+            "altitude", "guard_width"}  # fmt: skip
 # issue 12: curved, dome and multi-span roofs (neve.engine.roof_shapes), on every roof command
 _ROOF_OPTS += [
     ("chord", ("--chord",), "StringParamType", None, False, False),
@@ -411,6 +424,7 @@ _ROOF_OPTS += [
     ("rise", ("--rise",), "StringParamType", None, False, False),
     ("spans", ("--spans",), "StringParamType", None, False, False),
 ]
+_COMPARE_ROOF_OPTS = [o for o in _ROOF_OPTS if o[0] not in _EN_ONLY]
 # issue 11: the package's title block, on neve site and neve compare
 _TITLE_BLOCK = [
     ("job", ("--job",), "StringParamType", None, False, False),
@@ -447,7 +461,9 @@ EXPECTED_OPTIONS = {
         [
             *_ROOF_OPTS,
             _FORMAT,
-            ("pg", ("--pg",), "StringParamType", None, True, True),
+            # issue 13: --pg no longer required (EN 1991-1-3 takes --sk instead)
+            ("pg", ("--pg",), "StringParamType", None, True, False),
+            ("sk", ("--sk",), "StringParamType", None, True, False),
             ("no_steps", ("--no-steps",), "BoolParamType", False, False, False),
             ("w2", ("--w2",), "StringParamType", None, False, False),  # issue 10
         ]
@@ -520,7 +536,7 @@ EXPECTED_OPTIONS = {
     # issue 10: neve compare takes neve site's parameters of these names as they are
     ("compare",): sorted(
         [
-            *_ROOF_OPTS,
+            *_COMPARE_ROOF_OPTS,
             _FORMAT,
             _DEM,
             _DEM_UNITS,

@@ -43,6 +43,8 @@ WHERE = {
     "step.upper_pf": ("step", "upper_pf", "psf"),
     "parapet.height": ("parapet", "height", "ft"),
     "parapet.upwind_length": ("parapet", "upwind_length", "ft"),
+    "parapet.drift_space": ("parapet", "drift_space", "ft"),  # issue 13 (EN Annex B)
+    "option.length": ("--guard-width", None, "ft"),  # issue 13: EN lengths (guard width ...)
     "projection.height": ("projection", "height", "ft"),
     "projection.plan_length": ("projection", "plan_length", "ft"),
     "projection.upwind_length": ("projection", "upwind_length", "ft"),
@@ -86,6 +88,7 @@ TABLE_FOR = {
 #: the field name an error must carry, for each ranged key
 ARRAYS = ("step", "parapet", "projection")
 FIELD = {k: k.replace(".", "[0].") for k in WHERE if k.split(".")[0] in ARRAYS}
+FIELD["option.length"] = "guard_width"  # one range for the EN lengths, named by the option given
 
 
 def test_every_ranged_key_is_exercised():
@@ -96,6 +99,8 @@ def test_every_ranged_key_is_exercised():
 def roof_args(key: str, text: str, tmp_path) -> list[str]:
     """``neve roof`` arguments that give ``text`` to the ranged input ``key``."""
     where, inner, _ = WHERE[key]
+    if key == "option.length":  # an EN 1991-1-3 option: its standard and ground load sk
+        return ["--standard", "en1991-1-3", "--sk", "1kPa", where, text]
     pg = ["--pg", text] if where == "--pg" else ["--pg", "35psf"]
     if where == "--pg":
         return pg

@@ -56,17 +56,17 @@ def test_names_users_type_find_asce_7_16(name):
 def test_default_standard_is_asce_7_16():
     assert get_standard().id == "asce7-16"
     assert get_standard(None) is get_standard("asce7-16")
-    # issue 10 adds ASCE 7-22; the default stays first
-    assert available() == ["asce7-16", "asce7-22"]
+    # issue 10 adds ASCE 7-22, issue 13 EN 1991-1-3; the default stays first
+    assert available() == ["asce7-16", "asce7-22", "en1991-1-3"]
 
 
-@pytest.mark.parametrize("name", ["ASCE 7-21", "EN 1991-1-3", "asce7-10", "", "7-16"])
+@pytest.mark.parametrize("name", ["ASCE 7-21", "EN 1991-1-4", "asce7-10", "", "7-16"])
 def test_unknown_standard_is_an_input_error_listing_what_is_available(name):
     with pytest.raises(InputError) as info:
         get_standard(name)
     assert info.value.field == "standard"
-    assert info.value.accepted == "asce7-16, asce7-22"
-    assert str(info.value).endswith("accepted: asce7-16, asce7-22")
+    assert info.value.accepted == "asce7-16, asce7-22, en1991-1-3"
+    assert str(info.value).endswith("accepted: asce7-16, asce7-22, en1991-1-3")
     assert info.value.exit_code == 2
     assert find_standard(name) is None
 
@@ -91,7 +91,8 @@ def test_geo_takes_layer_editions_and_quantities_from_the_registry():
     from neve.geo.layers.sidecar import QUANTITIES
     from neve.geo.site.one import roof_engine_accepts
 
-    assert site_quantities() == ("pg", "w2") == tuple(QUANTITIES)  # w2: ASCE 7-22 (issue 10)
+    # w2: ASCE 7-22 (issue 10); sk: EN 1991-1-3 (issue 13)
+    assert site_quantities() == ("pg", "w2", "sk") == tuple(QUANTITIES)
     assert roof_engine_accepts("ASCE 7-10") and not roof_engine_accepts("ASCE 7-22")
     assert roof_engine_accepts("ASCE 7-22", "asce7-22", "w2")
     assert roof_engine_accepts("ASCE 7-16", "ASCE 7-16", "pg")
@@ -227,20 +228,21 @@ def toy_standard():
 
 
 def test_a_registered_standard_is_reached_by_the_core_and_the_cli(toy_standard):
-    assert available() == ["asce7-16", "asce7-22", "toy-1"]
+    assert available() == ["asce7-16", "asce7-22", "en1991-1-3", "toy-1"]
     assert get_standard("toy one") is toy_standard
     assert site_quantities() == ("pg", "w2", "sk")
     roof = Roof.from_mapping({"shape": "flat"})
     assert analyze_roof(3.0, roof, standard="toy-1").standard == "TOY 1"
     assert uniform_loads([1.0, 2.0], roof, standard="TOY 1")["design_uniform"].tolist() == [2, 4]
+    # the toy's ground quantity is sk: neve roof takes it as --sk (issue 13: --pg is refused)
     r = CliRunner().invoke(
-        main, ["roof", "--pg", "3psf", "--standard", "toy-1", "--format", "json"]
+        main, ["roof", "--sk", "3psf", "--standard", "toy-1", "--format", "json"]
     )
     assert r.exit_code == 0, r.output
     assert json.loads(r.stdout)["standard"] == "TOY 1"
-    bad = CliRunner().invoke(main, ["roof", "--pg", "3psf", "--standard", "nope"])
+    bad = CliRunner().invoke(main, ["roof", "--sk", "3psf", "--standard", "nope"])
     assert bad.exit_code == 2
-    assert "accepted: asce7-16, asce7-22, toy-1" in bad.output
+    assert "accepted: asce7-16, asce7-22, en1991-1-3, toy-1" in bad.output
 
 
 def test_a_name_is_registered_once(toy_standard):
@@ -260,8 +262,15 @@ def test_registry_doctests():
 
 # --- nothing outside the standard's folder names its clauses --------------------------
 
-#: clause strings: "Sec. 7.", "Eq. 7.", "Table 7.", "Fig. 7.", "Table 1.5-2" and the like
-CLAUSE = re.compile(r"\b(?:Sec\.|Section|Eq\.|Equation|Table|Fig\.|Figure)\s*\d+\.\d")
+#: clause strings: "Sec. 7.", "Eq. 7.", "Table 7.", "Fig. 7.", "Table 1.5-2" and the like; the
+#: Eurocode's "EN 1991-1-3 5.3.3" (a clause number after the standard's name), "5.3.6(1)"
+#: (a clause with its paragraph) and "Annex B, B4" (issue 13)
+CLAUSE = re.compile(
+    r"\b(?:Sec\.|Section|Eq\.|Equation|Table|Fig\.|Figure)\s*\d+\.\d"
+    r"|\bEN\s*1991-1-3\s+(?:\d+\.\d|Annex)"
+    r"|\b\d\.\d(?:\.\d)*\(\d+\)"
+    r"|\bAnnex\s+[A-E],\s*[A-E]\d"
+)
 
 
 def _package_files() -> list[Path]:
@@ -278,7 +287,7 @@ def _package_files() -> list[Path]:
 
 
 def _outside_the_standard(path: Path) -> bool:
-    inside = ("engine/asce7_16/", "engine/asce7_22/")  # the standards' own folders
+    inside = ("engine/asce7_16/", "engine/asce7_22/", "engine/en1991_1_3/")  # the standards' own
     return not path.relative_to(ROOT).as_posix().startswith(inside)
 
 
@@ -291,6 +300,11 @@ def test_the_clause_check_sees_the_standard_and_the_rest():
     assert any(p.name == "options.py" for p in files)
     assert CLAUSE.search('ref = "Sec. 7.6.1"') and CLAUSE.search("(ASCE 7-16 Table 7.3-1)")
     assert not CLAUSE.search("ASCE 7-16 Chapter 7 and risk category II")
+    # the Eurocode's clause strings (issue 13)
+    for text in ("EN 1991-1-3 5.3.3", "(EN 1991-1-3 Annex D)", "mu_w 5.3.6(1)", "Annex B, B4",
+                 "Table 5.2", "Figure 5.7"):
+        assert CLAUSE.search(text), text
+    assert not CLAUSE.search("EN 1991-1-3 recommended values, 0.65 kPa")
 
 
 def test_no_module_outside_the_standard_names_its_clauses():
@@ -319,7 +333,8 @@ def test_no_code_outside_the_standard_restates_its_name():
         }
         for node in ast.walk(tree):
             if (isinstance(node, ast.Constant) and isinstance(node.value, str)
-                    and id(node) not in docs and "ASCE" in node.value):  # fmt: skip
+                    and id(node) not in docs
+                    and ("ASCE" in node.value or "EN 1991" in node.value)):  # fmt: skip
                 offenders.append(f"{path.relative_to(ROOT)}:{node.lineno}: {node.value!r}")
     assert offenders == []
 
@@ -355,7 +370,7 @@ def test_roof_standard_default_explicit_and_unknown():
         assert explicit.exit_code == 0, explicit.output
         assert json.loads(explicit.stdout) == json.loads(default.stdout)
     assert json.loads(default.stdout)["standard"] == "ASCE 7-16"
-    bad = _cli(*base, "--standard", "EN 1991-1-3")
+    bad = _cli(*base, "--standard", "BS 6399-3")
     assert bad.exit_code == 2
     assert "standard:" in bad.output and "accepted: asce7-16" in bad.output
     assert bad.stdout == ""  # nothing computed, nothing printed
@@ -399,9 +414,9 @@ def test_screen_standard_default_explicit_and_unknown(tmp_path):
     assert ok.any()
     np.testing.assert_allclose(res.loc[ok, "pf_psf"], 0.7 * res.loc[ok, "pg_psf"], atol=1e-6)
     out = tmp_path / "bad.csv"
-    bad = _cli("screen", sites, "-o", out, "--shape", "flat", "--standard", "EN 1991-1-3")
+    bad = _cli("screen", sites, "-o", out, "--shape", "flat", "--standard", "BS 6399-3")
     assert bad.exit_code == 2
-    assert "accepted: asce7-16, asce7-22" in bad.output
+    assert "accepted: asce7-16, asce7-22, en1991-1-3" in bad.output
     assert not out.exists()
 
 

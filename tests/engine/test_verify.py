@@ -164,7 +164,7 @@ def test_verify_one_standard(name):
 
 
 def test_verify_unknown_standard_exits_2():
-    r = _verify("--standard", "EN 1991-1-3")
+    r = _verify("--standard", "EN 1991-1-4")
     assert r.exit_code == 2
     assert "accepted: asce7-16" in r.output
 

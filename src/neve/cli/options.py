@@ -53,13 +53,24 @@ def once(field: str):
 
 
 def pg_option(f):
-    """``--pg``: the ground snow load with its unit, given once."""
+    """``--pg``: the ground snow load with its unit, given once (ASCE 7)."""
     return click.option(
         "--pg",
-        required=True,
         multiple=True,
         callback=once("pg"),
-        help="Ground snow load with its unit, e.g. 35psf or 1.68kPa.",
+        help="Ground snow load with its unit, e.g. 35psf or 1.68kPa (required with a standard "
+        "whose ground quantity is pg: asce7-16, asce7-22).",
+    )(f)
+
+
+def sk_option(f):
+    """``--sk``: the characteristic ground snow load with its unit, given once (EN 1991-1-3)."""
+    return click.option(
+        "--sk",
+        multiple=True,
+        callback=once("sk"),
+        help="Characteristic ground snow load with its unit, e.g. 0.65kPa or 0.65kN/m2 "
+        "(en1991-1-3; required with a standard whose ground quantity is sk).",
     )(f)
 
 
@@ -116,6 +127,17 @@ def _roof_help(name: str) -> str:
     return get_standard().roof_option(name).help
 
 
+def _own_help(name: str) -> str:
+    """The help of a roof option some registered standard declares (the first that does)."""
+    from neve.engine.standards import standards
+
+    for std in standards():
+        for opt in std.roof_options:
+            if opt.name == name:
+                return opt.help + f" ({std.id} only)"
+    return ""
+
+
 roof_options = _stack(
     click.option(
         "--roof",
@@ -126,7 +148,8 @@ roof_options = _stack(
     click.option(
         "--shape",
         help="Roof shape: flat, monoslope, gable, hip, curved (or arch), dome, "
-        "sawtooth (or folded-plate, barrel-vault).",
+        "sawtooth (or folded-plate, barrel-vault), multi-span, cylindrical "
+        "(monopitch = monoslope, duopitch = gable); each standard covers its own.",
     ),
     click.option("--slope", help="Roof slope, e.g. 6:12 or 26.6deg."),
     click.option("--surface", help=_roof_help("surface")),
@@ -146,9 +169,24 @@ roof_options = _stack(
     _pair("--ventilated/--unventilated", "ventilated", _roof_help("ventilated")),
     _pair("--unobstructed/--obstructed", "unobstructed", _roof_help("unobstructed")),
     _pair("--prismatic/--non-prismatic", "prismatic", _roof_help("prismatic")),
+    click.option("--topography", help=_own_help("topography")),
+    click.option("--annex", metavar="NAME|FILE.toml", help=_own_help("annex")),
+    click.option("--snow-case", "snow_case", help=_own_help("snow_case")),
+    click.option(
+        "--return-period", "return_period", metavar="YEARS", help=_own_help("return_period")
+    ),
+    click.option("--cov", metavar="V", help=_own_help("cov")),
+    click.option("--other-slope", "other_slope", help=_own_help("other_slope")),
+    click.option("--altitude", help=_own_help("altitude")),
+    click.option("--guard-width", "guard_width", help=_own_help("guard_width")),
     # curved, dome and multi-span roofs (issue 12): neve.engine.roof_shapes
-    click.option("--rise", help="Curved roof or dome: rise from eave to crown, e.g. 12ft."),
-    click.option("--chord", help="Curved roof: horizontal chord from eave to eave, e.g. 60ft."),
+    click.option(
+        "--rise", help="Curved or cylindrical roof, dome: rise from eave to crown, e.g. 12ft."
+    ),
+    click.option(
+        "--chord",
+        help="Curved or cylindrical roof: horizontal chord (span) from eave to eave, e.g. 60ft.",
+    ),
     click.option("--diameter", help="Dome: base diameter, e.g. 80ft."),
     click.option(
         "--eave-slope",

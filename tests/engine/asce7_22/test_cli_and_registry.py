@@ -82,7 +82,7 @@ def test_verify_asce7_22_passes():
 def test_verify_all_still_passes():
     report = run_verification()
     assert report["summary"]["ok"]
-    assert report["summary"]["standards"] == ["ASCE 7-16", "ASCE 7-22"]
+    assert report["summary"]["standards"] == ["ASCE 7-16", "ASCE 7-22", "EN 1991-1-3"]
 
 
 def test_every_case_names_a_source():
