@@ -24,15 +24,12 @@ given a spatial index, the old table (with ``--overwrite``) dropped and the new
 one renamed into its place, then the transaction commits -- so a failed or
 killed run leaves the old table as it was and no half-written table behind.
 
-The provenance hash of a layer read from PostGIS is a SHA-256 over its rows
-as read (:func:`rows_sha256`): each row's geometry as WKB and its attribute
-values as text, rows sorted by those bytes, so the hash does not depend on the
-order the server returns them in.
+Zone layers read from PostGIS are built by :mod:`neve.geo.layers.postgis`
+with the helpers here (this module imports no other room of ``neve.geo``).
 """
 
 from __future__ import annotations
 
-import hashlib
 import re
 import secrets
 from dataclasses import dataclass, field
@@ -41,7 +38,7 @@ from urllib.parse import parse_qsl, quote, urlencode, urlsplit, urlunsplit
 import numpy as np
 import pandas as pd
 
-from neve.engine.errors import InputError, LayerError
+from neve.engine.errors import InputError
 
 #: URL schemes taken as a database
 SCHEMES = ("postgresql", "postgres", "postgresql+psycopg")
@@ -397,27 +394,19 @@ def check_db_target(url: str, overwrite: bool, where: str = "output") -> DbSourc
     return src
 
 
-def _copy_rows(table, conn, keys, data_iter):
-    """pandas ``to_sql`` method: the rows through COPY (much faster than INSERT)."""
-    import csv
+def _copy_frame(conn, schema, name: str, frame: pd.DataFrame) -> None:
+    """Fill a table with ``frame``'s rows through COPY (CSV text from pandas' C writer)."""
     import io
 
-    dbapi = conn.connection.driver_connection
     buf = io.StringIO()
-    writer = csv.writer(buf)
-    for row in data_iter:
-        writer.writerow(["\\N" if v is None or (isinstance(v, float) and np.isnan(v)) else v
-                         for v in row])  # fmt: skip
+    frame.to_csv(buf, index=False, header=False, na_rep="\\N")
     buf.seek(0)
     prep = conn.dialect.identifier_preparer
-    name = (f"{prep.quote_identifier(table.schema)}." if table.schema else "") + prep.quote_identifier(
-        table.name
-    )
-    cols = ", ".join(prep.quote_identifier(k) for k in keys)
-    with dbapi.cursor() as cur:
-        with cur.copy(f"COPY {name} ({cols}) FROM STDIN WITH (FORMAT csv, NULL '\\N')") as cp:
-            while chunk := buf.read(1 << 20):
-                cp.write(chunk)
+    cols = ", ".join(prep.quote_identifier(str(k)) for k in frame.columns)
+    sql = f"COPY {_qualified(conn, schema, name)} ({cols}) FROM STDIN WITH (FORMAT csv, NULL '\\N')"
+    with conn.connection.driver_connection.cursor() as cur, cur.copy(sql) as cp:
+        while chunk := buf.read(1 << 20):
+            cp.write(chunk)
 
 
 def write_db_results(df: pd.DataFrame, url: str, *, overwrite: bool = False, _hook=None) -> str:
@@ -453,9 +442,10 @@ def write_db_results(df: pd.DataFrame, url: str, *, overwrite: bool = False, _ho
     try:
         with engine.begin() as conn:
             prep = conn.dialect.identifier_preparer
-            table.to_sql(tmp, conn, schema=schema, if_exists="fail", index=False,
-                         dtype={gname: Geometry("POINT", srid=4326)}, method=_copy_rows,
-                         chunksize=100_000)  # fmt: skip
+            # the table (types from pandas, the geometry typed, its spatial index), then the rows
+            table.head(0).to_sql(tmp, conn, schema=schema, if_exists="fail", index=False,
+                                 dtype={gname: Geometry("POINT", srid=4326)})  # fmt: skip
+            _copy_frame(conn, schema, tmp, table)
             if _hook is not None:
                 _hook(conn)
             old = _qualified(conn, schema, name)
@@ -488,96 +478,3 @@ def write_db_results(df: pd.DataFrame, url: str, *, overwrite: bool = False, _ho
     finally:
         engine.dispose()
     return src.shown
-
-
-# --- zone layers ----------------------------------------------------------------------
-
-
-def rows_sha256(gdf) -> str:
-    """SHA-256 over a layer's rows as read, independent of row order (module docstring)."""
-    import shapely
-
-    geom = gdf.geometry
-    wkb = shapely.to_wkb(np.asarray(geom.values), hex=False, output_dimension=2)
-    attrs = gdf.drop(columns=[geom.name])
-    cols = sorted(map(str, attrs.columns))
-    rows = []
-    for i in range(len(gdf)):
-        parts = [b"" if wkb[i] is None else wkb[i]]
-        parts += [repr(attrs.iloc[i][c]).encode() for c in cols]
-        rows.append(b"\x1f".join(parts))
-    h = hashlib.sha256()
-    h.update(("\x1f".join(cols) + "\n").encode())
-    for r in sorted(rows):
-        h.update(hashlib.sha256(r).digest())
-    return h.hexdigest()
-
-
-def load_db_layer(url: str, meta_path=None):  # noqa: C901
-    """A zone :class:`~neve.geo.layers.model.Layer` from a PostGIS table.
-
-    The sidecar is ``meta_path`` (a TOML file, as beside a layer file) or,
-    without it, the row of the table :data:`META_TABLE` (columns
-    ``layer_table`` text, ``sidecar`` text holding the TOML) whose
-    ``layer_table`` is the table's ``SCHEMA.NAME`` or ``NAME``.
-    """
-    import tomllib
-
-    import geopandas as gpd
-    from sqlalchemy import text
-
-    from neve.geo.layers.model import Layer
-    from neve.geo.layers.sidecar import read_sidecar_file, validate_meta
-
-    where = "layer"
-    src = parse_db_url(url, where, want="layer")
-    meta_path = meta_path if meta_path is not None else src.layer_meta
-    engine = _connect(src, where)
-    try:
-        with engine.connect() as conn:
-            conn.execute(text("SET TRANSACTION READ ONLY"))
-            schema, name = src.table
-            if not _table_exists(conn, schema, name):
-                raise LayerError(f"layer {src.shown}: no table {src.table_text!r}; accepted: an "
-                                 "existing table of zone polygons")  # fmt: skip
-            base = f"SELECT * FROM {_qualified(conn, schema, name)}"
-            geoms = _geometry_columns(conn, base)
-            gcol = src.geometry or (geoms[0] if len(geoms) == 1 else None)
-            if gcol is None or gcol not in geoms:
-                raise LayerError(f"layer {src.shown}: no single geometry column "
-                                 f"({', '.join(geoms) or 'none'}); accepted: ?geometry=COLUMN")  # fmt: skip
-            if meta_path is not None:
-                meta = read_sidecar_file(meta_path)
-            else:
-                if not _table_exists(conn, schema, META_TABLE):
-                    raise LayerError(
-                        f"layer {src.shown}: no sidecar: give --layer-meta FILE.toml or a table "
-                        f"{META_TABLE!r} (layer_table, sidecar) in the layer's schema"
-                    )
-                row = conn.execute(
-                    text(f"SELECT sidecar FROM {_qualified(conn, schema, META_TABLE)} "
-                         "WHERE layer_table IN (:a, :b)"),
-                    {"a": name, "b": src.table_text},
-                ).first()  # fmt: skip
-                if row is None:
-                    raise LayerError(f"layer {src.shown}: {META_TABLE!r} has no row for "
-                                     f"{src.table_text!r}; accepted: a row (layer_table, sidecar)")  # fmt: skip
-                try:
-                    raw = tomllib.loads(str(row[0]))
-                except tomllib.TOMLDecodeError as exc:
-                    raise LayerError(f"layer {src.shown}: the sidecar in {META_TABLE!r} is not "
-                                     f"valid TOML ({exc})") from None  # fmt: skip
-                meta = validate_meta(raw, f"sidecar of {src.table_text!r} in {META_TABLE!r}")
-            gdf = gpd.read_postgis(text(base), conn, geom_col=gcol)
-    except (InputError, LayerError):
-        raise
-    except Exception as exc:
-        raise _db_error(exc, src, where) from None
-    finally:
-        engine.dispose()
-    if gdf.crs is None:
-        raise LayerError(f"layer {src.shown}: geometry column {gcol!r} has no SRID; accepted: a "
-                         "geometry with its SRID (e.g. 4326)")  # fmt: skip
-    if meta.get("study_mask"):
-        raise LayerError(f"layer {src.shown}: study_mask is for raster layers")
-    return Layer(f"{src.table_text}", meta, frame=gdf, sha256=rows_sha256(gdf), label=src.shown)

@@ -438,9 +438,11 @@ def load_layer(path: str | Path) -> Layer:
     from neve.geo.postgis import is_db_url
 
     if is_db_url(path):  # a PostGIS table; its sidecar in the neve_layer_meta table
-        from neve.geo.postgis import load_db_layer
+        from neve.geo.layers.postgis import read_db_layer
 
-        return load_db_layer(str(path))
+        frame, meta, sha, shown = read_db_layer(str(path))
+        return Layer(shown.split("?")[0].rsplit("/", 1)[-1] or "postgis", meta, frame=frame,
+                     sha256=sha, label=shown)  # fmt: skip
     p = Path(path)
     if not p.is_file():
         raise LayerError(f"layer file {str(p)!r} not found")

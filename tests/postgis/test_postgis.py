@@ -14,6 +14,7 @@ import os
 import signal
 import subprocess
 import sys
+import tempfile
 import textwrap
 import time
 from pathlib import Path
@@ -22,7 +23,8 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from neve.geo.postgis import masked, parse_db_url, rows_sha256
+from neve.geo.layers.postgis import rows_sha256
+from neve.geo.postgis import masked, parse_db_url
 from tests.postgis.conftest import db_url
 from tests.screen.conftest import SIDECAR, interior_points, write_grid_layer
 
@@ -44,7 +46,6 @@ def _neve(*args, env=None, check=None):
 
 
 def _engine(server, db=None):
-    from sqlalchemy import create_engine
 
     from neve.geo.postgis import _engine as make
 
@@ -84,8 +85,14 @@ def _load_table(server, frame, table, *, srid=4326, geometry=True, schema=None):
         gdf = gpd.GeoDataFrame(frame.drop(columns=["lat", "lon"]), geometry=g.to_crs(srid))
         gdf = gdf.rename_geometry("location")
         gdf.to_postgis(table, eng, schema=schema, if_exists="replace", index=False)
-    else:
-        frame.to_sql(table, eng, schema=schema, if_exists="replace", index=False)
+    else:  # the table from pandas, the rows through psql's own \\copy (not neve's COPY)
+        frame.head(0).to_sql(table, eng, schema=schema, if_exists="replace", index=False)
+        csv = Path(tempfile.mkdtemp()) / "rows.csv"
+        frame.to_csv(csv, index=False, header=False)
+        name = f"{schema}.{table}" if schema else table
+        subprocess.run([*server["psql"], "-d", server["db"], "-c",
+                        f"\\copy {name} FROM '{csv}' WITH (FORMAT csv)"],
+                       env=dict(os.environ, PGPASSWORD=server["password"]), check=True)  # fmt: skip
     eng.dispose()
 
 
@@ -323,10 +330,11 @@ def test_layer_from_postgis_with_layer_meta_and_meta_table(pg_env, tmp_path):
 def test_layer_hash_is_of_the_rows_and_not_of_their_order(pg_env, tmp_path):
     import geopandas as gpd
 
-    from neve.geo.postgis import load_db_layer
+    from neve.geo.layers.model import load_layer
+    from neve.geo.postgis import with_layer_meta
 
     path = _layer_table(pg_env, tmp_path, name="zones_h")
-    layer = load_db_layer(db_url(pg_env, table="zones_h"), f"{path}.toml")
+    layer = load_layer(with_layer_meta(db_url(pg_env, table="zones_h"), f"{path}.toml"))
     gdf = gpd.read_file(path)
     assert layer.sha256 == rows_sha256(gdf) == rows_sha256(gdf.iloc[::-1])
     changed = gdf.copy()
