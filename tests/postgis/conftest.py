@@ -13,6 +13,7 @@ in the tests, never in a URL.
 
 from __future__ import annotations
 
+import contextlib
 import glob
 import os
 import pwd
@@ -72,6 +73,14 @@ def pg_server():
         if os.environ.get("CI"):
             pytest.fail(f"PostGIS tests need {', '.join(missing)} (CI is set, so not skipping)")
         pytest.skip(f"needs {', '.join(missing)}")
+    with throwaway_cluster(bindir) as info:
+        yield info
+
+
+@contextlib.contextmanager
+def throwaway_cluster(bindir: Path | None = None):
+    """Start a cluster in a temporary folder; yield its connection facts; stop and remove it."""
+    bindir = bindir or _bindir()
     root = Path(tempfile.mkdtemp(prefix="neve-pg-"))
     data, sock = root / "data", root / "sock"
     sock.mkdir()

@@ -341,3 +341,25 @@ def test_layer_hash_is_of_the_rows_and_not_of_their_order(pg_env, tmp_path):
     changed.loc[0, "pg"] = 26.0
     assert rows_sha256(changed) != layer.sha256
     assert layer.info()["path"].startswith("postgresql://") and "zones_h" in layer.info()["path"]
+
+
+def test_the_readme_round_trip_runs(pg_env, tmp_path):
+    """The README's PostGIS commands, run as written against the throwaway server."""
+    import re
+
+    text = (Path(__file__).parents[2] / "README.md").read_text(encoding="utf-8")
+    part = text.split("<!-- PostGIS (geo/postgis.py")[1].split("<!-- PostGIS: end -->")[0]
+    block = re.search(r"```sh\n(.*?)```", part, re.S).group(1)
+    assert "neve screen" in block and "PGPASSWORD=..." in block
+    subprocess.run([*pg_env["psql"], "-d", "postgres", "-c", "CREATE DATABASE portfolio"],
+                   env=dict(os.environ), check=True)  # fmt: skip
+    subprocess.run([*pg_env["psql"], "-d", "portfolio", "-c", "CREATE EXTENSION postgis"],
+                   env=dict(os.environ), check=True)  # fmt: skip
+    script = block.replace("export PGPASSWORD=...", "true").replace(
+        "$USER@localhost:5432", f"{pg_env['user']}@127.0.0.1:{pg_env['port']}")
+    env = dict(os.environ, PGHOST="127.0.0.1", PGPORT=str(pg_env["port"]), PGUSER=pg_env["user"],
+               PATH=f"{Path(sys.executable).parent}{os.pathsep}{os.environ['PATH']}")  # fmt: skip
+    out = subprocess.run(["bash", "-euo", "pipefail", "-c", script], env=env, cwd=tmp_path,
+                         capture_output=True, text=True)  # fmt: skip
+    assert out.returncode == 0, out.stderr
+    assert "north-shed" in out.stdout and "demo_data" in out.stdout
