@@ -363,3 +363,20 @@ def test_the_readme_round_trip_runs(pg_env, tmp_path):
                          capture_output=True, text=True)  # fmt: skip
     assert out.returncode == 0, out.stderr
     assert "north-shed" in out.stdout and "demo_data" in out.stdout
+
+
+def test_neve_site_on_a_postgis_layer(pg_env, tmp_path):
+    import json
+
+    path = _layer_table(pg_env, tmp_path, name="zones_site")
+    url = db_url(pg_env, table="zones_site")
+    ref = _neve("site", "--at", "44.5,-108.5", "--elevation", "1000ft", "--layer", str(path),
+                "--format", "json", check=0)  # fmt: skip
+    got = _neve("site", "--at", "44.5,-108.5", "--elevation", "1000ft", "--layer", url,
+                "--layer-meta", f"{path}.toml", "--format", "json", check=0)  # fmt: skip
+    a, b = json.loads(ref.output), json.loads(got.output)
+    same = lambda g: {k: v for k, v in g.items() if k not in ("layer", "layers")}  # noqa: E731
+    assert same(a["ground"]) == same(b["ground"]) and a["status"] == b["status"]
+    assert a["ground"]["pg"] == b["ground"]["pg"]
+    assert b["layer"]["path"].startswith("postgresql://") and pg_env["password"] not in got.output
+    assert len(b["layer"]["sha256"]) == 64 and b["layer"]["sha256"] != a["layer"]["sha256"]
