@@ -104,14 +104,20 @@ class Layer:
     demo : bool
     """
 
-    def __init__(self, path: str | Path, meta: dict, *, frame=None, raster=None):
+    def __init__(
+        self, path: str | Path, meta: dict, *, frame=None, raster=None, sha256=None, label=None
+    ):
         self.path = Path(path)
+        #: what the layer is called in the JSON ``layer.path`` (a database layer: its masked URL)
+        self.label = str(label) if label is not None else str(self.path)
         self.meta = meta
         self.is_raster = raster is not None
         self.per_risk = is_per_risk(meta)
         #: the risk category whose values this layer gives (None: one value for all)
         self.risk = DEFAULT_RISK if self.per_risk else None
-        if self.is_raster and raster.get("risk_paths"):
+        if sha256 is not None:  # a layer not read from a file (neve.geo.postgis.rows_sha256)
+            self.sha256 = sha256
+        elif self.is_raster and raster.get("risk_paths"):
             # one hash over the layer file and its per-category rasters (in category order)
             self.sha256 = _files_sha256([self.path, *raster["risk_paths"].values()])
         else:
@@ -224,7 +230,7 @@ class Layer:
             "date": m["date"],
             "sha256": self.sha256,
             "demo": self.demo,
-            "path": str(self.path),
+            "path": self.label,
         }
 
     def site_errors(self, hits, sites: np.ndarray, elev_ft: np.ndarray) -> np.ndarray:
@@ -429,6 +435,14 @@ def load_layer(path: str | Path) -> Layer:
     """
     if isinstance(path, Layer):
         return path
+    from neve.geo.postgis import is_db_url
+
+    if is_db_url(path):  # a PostGIS table; its sidecar in the neve_layer_meta table
+        from neve.geo.layers.postgis import read_db_layer
+
+        frame, meta, sha, shown = read_db_layer(str(path))
+        return Layer(shown.split("?")[0].rsplit("/", 1)[-1] or "postgis", meta, frame=frame,
+                     sha256=sha, label=shown)  # fmt: skip
     p = Path(path)
     if not p.is_file():
         raise LayerError(f"layer file {str(p)!r} not found")

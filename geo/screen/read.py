@@ -127,12 +127,19 @@ def read_sites(path: str | Path) -> tuple[pd.DataFrame, object]:
     geometry : geopandas.GeoSeries or None
         The rows' geometry in WGS 84 when the file carries one.
     """
+    from neve.geo.postgis import is_db_url
+
+    geometry = None
+    notes = ReadNotes()
+    if is_db_url(path):  # a PostGIS table or query (neve.geo.postgis)
+        from neve.geo.postgis import parse_db_url, read_db_sites
+
+        frame, geometry = read_db_sites(str(path))
+        return _finish(frame, geometry, notes, "postgis", parse_db_url(str(path), "sites").shown)
     p = Path(path)
     if not p.is_file():
         raise InputError("sites", f"file {str(p)!r} not found", "a CSV, XLSX, GPKG or Parquet file")
     fmt = site_format(p)
-    geometry = None
-    notes = ReadNotes()
     try:
         if fmt == "csv":
             from neve.geo.screen.csv_records import read_csv_records
@@ -154,13 +161,18 @@ def read_sites(path: str | Path) -> tuple[pd.DataFrame, object]:
             f"{str(p)!r} is not a readable {fmt} table ({type(exc).__name__}: {str(exc).strip()})",
             "a CSV, XLSX, GPKG or Parquet table with one row per site",
         ) from None
+    return _finish(frame, geometry, notes, fmt, str(p))
+
+
+def _finish(frame, geometry, notes, fmt: str, label: str):
+    """The checks and notes every site reader ends with."""
     frame.columns = [str(c) for c in frame.columns]
     if geometry is None and fmt in ("csv", "xlsx"):
         geometry = _wkt_geometry(frame)
     if len(frame.columns) == 0:
-        raise InputError("sites", f"{str(p)!r} has no columns", ACCEPTED_COORDS)
+        raise InputError("sites", f"{label!r} has no columns", ACCEPTED_COORDS)
     if len(frame) == 0:
-        raise InputError("sites", f"{str(p)!r} has no rows", "a table with at least one site")
+        raise InputError("sites", f"{label!r} has no rows", "a table with at least one site")
     frame = frame.reset_index(drop=True)
     notes.info.setdefault("format", fmt)
     notes.info.setdefault("records", int(len(frame)))

@@ -438,6 +438,8 @@ _DEM_UNITS = ("dem_units", ("--dem-units",), "DemUnitType", None, False, False)
 _ELEV_SOURCE = ("elevation_source", ("--elevation-source",), "Choice('larger', 'input')",
                 "larger", False, False)  # fmt: skip
 _LAYERS = ("layers", ("--layer",), _PATH, None, True, False)
+# issue 17: the sidecars of zone layers read from PostGIS
+_LAYER_META = ("layer_meta", ("--layer-meta",), _PATH, None, True, False)
 _TILES = ("tiles", ("--tiles",), "Choice('none', 'osm')", "none", False, False)
 # issue 11: the basemap under the zones (--tiles stays, the older spelling)
 _BASEMAP = ("basemap", ("--basemap",), "StringParamType", "auto", False, False)
@@ -476,6 +478,7 @@ EXPECTED_OPTIONS = {
             _DEM_UNITS,
             _ELEV_SOURCE,
             _LAYERS,
+            _LAYER_META,
             _TILES,
             _BASEMAP,
             _BASEMAP_ATTR,
@@ -504,6 +507,7 @@ EXPECTED_OPTIONS = {
             _DEM_UNITS,
             _ELEV_SOURCE,
             _LAYERS,
+            _LAYER_META,
             _TILES,
             _BASEMAP,
             _BASEMAP_ATTR,
@@ -542,6 +546,7 @@ EXPECTED_OPTIONS = {
             _DEM_UNITS,
             _ELEV_SOURCE,
             _LAYERS,
+            _LAYER_META,
             _OVERWRITE,
             _GAZETTEER,
             _GEOCODER_URL,

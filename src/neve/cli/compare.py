@@ -25,7 +25,7 @@ from neve.engine.roof_shapes import SHAPE_KEYS
 #: the parameters of ``neve site`` that ``neve compare`` takes as they are
 SITE_PARAMS = (
     "at", "address", "elevation", "dem", "dem_units", "elevation_source", "layers",
-    "roof_file", "shape", "slope", "surface", "ct", "thermal", "ce", "terrain", "exposure",
+    "layer_meta", "roof_file", "shape", "slope", "surface", "ct", "thermal", "ce", "terrain", "exposure",
     "risk", "eave_to_ridge", "r_value", "ventilated", "unobstructed", "prismatic",
     "site_name", "project", "package_dir", "overwrite", "fmt", "gazetteer", "geocoder_url",
     "user_agent", "geocoder_timeout",

@@ -226,15 +226,54 @@ def roofs_from_options(kwargs: dict):
 # --- zone layers and elevation -----------------------------------------------------
 
 
+def _layer_meta_given(ctx, param, value):
+    ctx.meta["neve_layer_meta"] = tuple(value or ())
+    return value
+
+
+def _layers_with_meta(ctx, param, value):
+    """Pair each ``--layer-meta`` with a database ``--layer`` URL, in order."""
+    metas = ctx.meta.get("neve_layer_meta", ())
+    if not metas:
+        return value
+    from neve.geo.postgis import is_db_url, with_layer_meta
+
+    urls = [i for i, v in enumerate(value) if is_db_url(v)]
+    if len(metas) != len(urls):
+        raise InputError(
+            "layer-meta",
+            f"{len(metas)} given for {len(urls)} database layer(s)",
+            "one --layer-meta FILE.toml per postgresql:// --layer, in the same order",
+        )
+    out = list(value)
+    for i, meta in zip(urls, metas, strict=True):
+        out[i] = with_layer_meta(out[i], meta)
+    return tuple(out)
+
+
 def layers_option(f):
-    """``--layer`` (repeatable): the zone layers, most local first."""
-    return click.option(
+    """``--layer`` (repeatable): the zone layers, most local first; ``--layer-meta`` for
+    the sidecars of layers read from PostGIS."""
+    f = click.option(
         "--layer",
         "layers",
         multiple=True,
         type=click.Path(dir_okay=False),
-        help="Zone layer (repeat, most local first). Default: the embedded, invented DEMO "
+        callback=_layers_with_meta,
+        help="Zone layer (repeat, most local first): a file, or a PostGIS table "
+        "postgresql://USER@HOST/DB?table=SCHEMA.ZONES. Default: the embedded, invented DEMO "
         "layers (never for design).",
+    )(f)
+    return click.option(
+        "--layer-meta",
+        "layer_meta",
+        multiple=True,
+        type=click.Path(dir_okay=False),
+        is_eager=True,
+        expose_value=False,
+        callback=_layer_meta_given,
+        help="Sidecar TOML of a PostGIS --layer (repeat, one per database layer, in order); "
+        "without it the sidecar is read from the table neve_layer_meta.",
     )(f)
 
 
