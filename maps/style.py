@@ -15,6 +15,7 @@ import warnings
 from html import escape
 
 from neve.engine import format as fmt
+from neve.engine.units import KPA_PER_PSF
 
 #: value scale, low to high (our own)
 VALUE_COLOURS = (
@@ -81,6 +82,26 @@ PORTFOLIO_BANDS_PSF = (
     (100.0, "70 to under 100 psf"),
     (math.inf, "100 psf and over"),
 )
+def band_labels_kpa() -> list[str]:
+    """The names of :data:`PORTFOLIO_BANDS_PSF` kPa first, for sk sites (EN 1991-1-3).
+
+    >>> band_labels_kpa()[:2]
+    ['under 0.48 kPa (10 psf)', '0.48 to under 0.96 kPa (10 to under 20 psf)']
+    """
+    out, lo = [], None
+    for upper, _ in PORTFOLIO_BANDS_PSF:
+        kpa = lambda psf: num(psf * KPA_PER_PSF, 2)  # noqa: E731
+        if lo is None:
+            out.append(f"under {kpa(upper)} kPa ({num(upper, 0)} psf)")
+        elif math.isinf(upper):
+            out.append(f"{kpa(lo)} kPa and over ({num(lo, 0)} psf and over)")
+        else:
+            out.append(f"{kpa(lo)} to under {kpa(upper)} kPa "
+                       f"({num(lo, 0)} to under {num(upper, 0)} psf)")  # fmt: skip
+        lo = upper
+    return out
+
+
 #: fills of :data:`PORTFOLIO_BANDS_PSF`: neve's own sequential scale, pale straw through
 #: green and teal to deep indigo.  Lightness falls steadily from band to band and the
 #: hue turns as it falls, so the bands read in order and adjacent ones stay apart for
