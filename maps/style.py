@@ -153,9 +153,39 @@ def length_text(length: dict | None) -> str:
     return fmt.length_text(length, trim=True, missing="none", missing_number="\u2014")
 
 
-def elevation_text(length: dict | None) -> str:
-    """An elevation or a distance on the ground: ``"1350 ft (411.5 m)"``; None -> ``"none"``."""
-    return fmt.elevation_text(length, trim=True, missing="none", missing_number="\u2014")
+def elevation_text(length: dict | None, first: str | None = None) -> str:
+    """An elevation or a distance on the ground: ``"1350 ft (411.5 m)"``; None -> ``"none"``.
+
+    ``first="m"``: metres first (an EN 1991-1-3 site: ``"250 m (820 ft)"``).
+    """
+    return fmt.elevation_text(
+        length, trim=True, missing="none", missing_number="\u2014", first=first
+    )
+
+
+#: ground quantities shown SI first (kPa, m) and their symbol as (letter, subscript)
+SI_QUANTITIES = ("sk",)
+SYMBOLS = {"pg": ("p", "g"), "sk": ("s", "k")}
+
+
+def ground_quantity(site_json: dict) -> str:
+    """The ground quantity of a ``neve site`` object: ``ground.quantity`` (``pg`` if absent)."""
+    q = str((site_json.get("ground") or {}).get("quantity") or "pg")
+    return q if q in SYMBOLS else "pg"
+
+
+def si_first(site_json: dict) -> bool:
+    """Whether a site's loads are shown kPa first: an sk ground value, or a roof of a
+    standard whose load unit is kPa (EN 1991-1-3, asked of the registry)."""
+    if ground_quantity(site_json) in SI_QUANTITIES:
+        return True
+    roof = site_json.get("roof") or {}
+    if not roof.get("standard"):
+        return False
+    from neve.engine.standards import find_standard
+
+    std = find_standard(str(roof["standard"]))
+    return std is not None and std.units.get("load") == "kPa"
 
 
 def quantity_text(value: dict | None) -> str:

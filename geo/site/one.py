@@ -98,7 +98,12 @@ def _steps(layer, hits, pg: float, elev_ft: float, source: str) -> list[dict]:
     shown = (lambda psf: psf * KPA_PER_PSF) if si else (lambda psf: psf)
     unit = "kPa" if si else "psf"
     steps: list[Step] = []
-    if np.isfinite(elev_ft):
+    if np.isfinite(elev_ft) and si:  # the site altitude of EN 1991-1-3, in metres
+        steps.append(
+            Step("A", f"site altitude ({source})", "A", f"{fmt(elev_ft)} ft",
+                 elev_ft / FT_PER_M, "m", f"site elevation from {source}")
+        )  # fmt: skip
+    elif np.isfinite(elev_ft):
         steps.append(
             Step("A", f"site elevation ({source})", "A", f"{fmt(elev_ft / FT_PER_M)} m",
                  elev_ft, "ft", f"site elevation from {source}")
