@@ -82,6 +82,8 @@ PORTFOLIO_BANDS_PSF = (
     (100.0, "70 to under 100 psf"),
     (math.inf, "100 psf and over"),
 )
+
+
 def band_labels_kpa() -> list[str]:
     """The names of :data:`PORTFOLIO_BANDS_PSF` kPa first, for sk sites (EN 1991-1-3).
 

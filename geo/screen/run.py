@@ -90,6 +90,8 @@ def ground_quantity_of(res: Resolution) -> str:
     """The ground quantity of a run's layers (``pg``; ``sk`` for EN 1991-1-3 layers)."""
     quantities = {p.quantity for p in res.layers} - {"w2"}
     return quantities.pop() if len(quantities) == 1 else "pg"
+
+
 ENGINES = ("local", "dask")
 #: the resolver's columns that screening uses
 RESOLVED_COLUMNS = (

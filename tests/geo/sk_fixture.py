@@ -16,7 +16,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from .conftest import D, LAT0, LON0, cell, write_layer
+from .conftest import LAT0, LON0, D, cell, write_layer
 
 #: the invented altitude formula of K5 (its shape and coefficients are made up)
 FORMULA = "(0.4 + 0.3 * Z) * (1 + (A / 650) ** 2)"

@@ -202,7 +202,7 @@ def test_study_zone(sk_layer):
 
 def test_boundary_analysis_on_an_sk_layer(sk_layer):
     """A site 40 m inside K5 (floor 1.0 kPa at 0 m) beside K6 (1.50 kPa): the larger governs."""
-    from .conftest import D, LAT0, LON0
+    from .conftest import LAT0, LON0, D
 
     lat = LAT0 + 1.5 * D
     lon = LON0 + 2 * D - 0.0004  # about 40 m west of the K5 | K6 edge
