@@ -204,8 +204,9 @@ COLUMNS = [
     "distance_to_other_m", "neighbour_values_psf", "layer_name", "layer_sha256", "other_layers",
     "alt_elevation_source", "alt_elevation_ft", "alt_status", "alt_pg_psf", "alt_zone_id",
 ]  # fmt: skip
-#: the unit of each quantity's values (the standard's units)
-UNITS = {"pg": "psf"}
+#: the unit each quantity's values travel in inside geo (loads in psf, EN 1991-1-3's sk too:
+#: the edges give them in kPa and hand the EN engine kPa)
+UNITS = {"pg": "psf", "sk": "psf", "w2": "fraction"}
 
 
 def blank_like(v: np.ndarray, n: int) -> np.ndarray:
