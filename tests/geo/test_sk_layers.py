@@ -302,3 +302,35 @@ def test_ground_json_has_no_nan(sk_layer):
     data = site("--layer", str(sk_layer), "--at", at(1, 1))
     text = json.dumps(data)
     assert "NaN" not in text and not math.isnan(data["site"]["lat"])
+
+
+# --------------------------------------------------------------------------- a grid of sk
+def test_sk_grid_layer(tmp_path):
+    """A GeoTIFF of sk [kPa]: cell values, nodata, the boundary rule; resolver columns."""
+    import numpy as np
+    import rasterio
+    from rasterio.transform import from_origin
+
+    from neve.geo.site.resolve import resolve
+
+    from .conftest import FIXTURE_META, toml_text
+
+    values = np.array([[0.9, 1.6], [0.9, -9999.0]], dtype="float32")
+    prof = dict(driver="GTiff", width=2, height=2, count=1, crs="EPSG:4326",
+                transform=from_origin(-40.0, 30.02, 0.01, 0.01))  # fmt: skip
+    path = tmp_path / "sk.tif"
+    with rasterio.open(path, "w", dtype="float32", nodata=-9999.0, **prof) as ds:
+        ds.write(values, 1)
+    meta = dict(FIXTURE_META, **{k: v for k, v in SK_META.items() if k != "name"},
+                name="sk grid")  # fmt: skip
+    (tmp_path / "sk.tif.toml").write_text(toml_text(meta), encoding="utf-8")
+    assert check_layer(path)["ok"]
+    g = resolve_site(30.015, -39.995, layers=[path]).ground  # the 0.9 kPa cell, mid-cell
+    assert g["quantity"] == "sk" and g["sk"]["kPa"] == pytest.approx(0.9, abs=1e-6)
+    edge = resolve_site(30.015, -39.9905, layers=[path]).ground  # about 48 m from 1.6 kPa
+    assert "near_boundary" in edge["flags"] and edge["sk"]["kPa"] == pytest.approx(1.6)
+    res = resolve([30.005, 30.015], [-39.985, -39.995], layers=[path])
+    frame = res.to_frame(["status", "sk_kpa", "sk_psf"])
+    assert list(frame["status"]) == ["no_data", "ok"]
+    assert frame["sk_kpa"].iloc[1] == pytest.approx(0.9, abs=1e-6)
+    assert frame["sk_psf"].iloc[1] == pytest.approx(0.9 / KPA_PER_PSF, abs=1e-4)
