@@ -453,7 +453,8 @@ def write_portfolio_map(
     )
     layer = _layer_class()(payload)
     layer.add_to(m)
-    legend = _legend_html(counts, n_total, len(rows), notes, colour=colour, clustered=clustered)
+    legend = _legend_html(counts, n_total, len(rows), notes, colour=colour, clustered=clustered,
+                          si=si)
     leaflet.add_html(m, legend, "neve_legend")
     return leaflet.finish(
         m, out, overwrite=overwrite, self_contained=self_contained, elements=[layer], cluster=True
@@ -504,15 +505,17 @@ def _add_zone_layers(m, views: list[dict], bounds, *, drawn: bool) -> int:
 
 def _legend_html(
     counts: Counter, n_total: int, n_drawn: int, notes: list[str], colour: str = "ground",
-    clustered: bool = True,
+    clustered: bool = True, si: bool = False,
 ) -> str:
+    """The legend panel; ``si``: sk sites (EN 1991-1-3), the bands named kPa first."""
     from neve.maps.templating import render
 
+    labels = style.band_labels_kpa() if si else [b[1] for b in style.PORTFOLIO_BANDS_PSF]
     bands = [
         {"label": label, "colour": style.PORTFOLIO_BAND_COLOURS[i]}
-        for i, (_, label) in enumerate(style.PORTFOLIO_BANDS_PSF)
+        for i, label in enumerate(labels)
     ]
-    heading = None
+    heading = "Ground snow load sk [kPa]" if si else None
     if colour == "ratio":
         from neve.engine.on_record import RATIO_BANDS
 

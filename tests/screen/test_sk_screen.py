@@ -108,6 +108,7 @@ def test_portfolio_map_of_sk_results(tmp_path, sk_layer):
     html = page.read_text(encoding="utf-8")
     assert '"ground":"sk"' in html and '"si":true' in html
     assert "under 0.48 kPa (10 psf)" in html  # the bands named kPa first
+    assert "Ground snow load sk [kPa]" in html  # the legend's heading
 
 
 def test_pg_screening_keeps_its_columns(tmp_path):
