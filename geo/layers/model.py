@@ -508,7 +508,7 @@ def _demo_en_stack() -> tuple[Layer, ...]:
     missing = [f for f in DEMO_EN_LAYER_FILES if not (DEMO_DIR / f).is_file()]
     if missing:
         raise LayerError(
-            f"the embedded EN 1991-1-3 demo data is missing ({', '.join(missing)}); "
+            f"the embedded sk demo data (en1991-1-3) is missing ({', '.join(missing)}); "
             "rebuild it with: python data_recipes/build_demo.py"
         )
     return tuple(load_layer(DEMO_DIR / f) for f in DEMO_EN_LAYER_FILES)

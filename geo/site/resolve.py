@@ -710,8 +710,7 @@ def ground_quantity(layers) -> str:
             "layer",
             "the ground layers map different quantities ("
             + ", ".join(f"{q}: {ly.name!r}" for q, ly in seen.items()) + ")",
-            "layers of one ground quantity per run (pg layers for ASCE 7, sk layers for "
-            "EN 1991-1-3), most local first",
+            "layers of one ground quantity per run (all pg, or all sk), most local first",
         )
     return next(iter(seen), "pg")
 
