@@ -67,3 +67,13 @@ def test_screen_columns_of_an_sk_run(tmp_path):
     for col in ("sk_kpa", "sk_psf", "s_kpa", "s_psf", "design_uniform_kpa", "design_uniform_psf"):
         assert col in header
     assert "pg_psf" not in header and "pf_psf" not in header
+
+
+def test_compare_lines_up_pg_and_sk():
+    data = run_json("compare", "--at", DEMO_AT, "--elevation", "300m", "--standard", "asce7-16",
+                    "--standard", "en1991-1-3", "--shape", "flat")  # fmt: skip
+    rows = {d["quantity"]: d for d in data["differences"] if d["case"] is None}
+    assert rows["sk"]["values"]["en1991-1-3"]["kPa"] == pytest.approx(1.46)
+    assert rows["sk"]["values"]["asce7-16"] is None
+    assert rows["pg"]["values"]["en1991-1-3"] is None
+    assert "EN 1991-1-3" in rows["sk"]["refs"]["en1991-1-3"]
