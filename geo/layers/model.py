@@ -34,6 +34,11 @@ DEMO_BASEMAP_FILE = "skerrow_basemap.mbtiles"
 #: the embedded, invented ASCE 7-22 demo stack (per risk category, and W2), most local first;
 #: used when ``--standard asce7-22`` is asked with no ``--layer`` (:func:`demo_layers_for`)
 DEMO_722_LAYER_FILES = ("skerrow_722_pg.gpkg", "skerrow_722_w2.geojson")
+#: the embedded, invented EN 1991-1-3 demo layer (sk of the island's metric district);
+#: used when ``--standard en1991-1-3`` is asked with no ``--layer``
+DEMO_EN_LAYER_FILES = ("skerrow_en_sk.gpkg",)
+#: quantities whose layers are drawn and labelled kPa first (EN 1991-1-3's sk)
+KPA_FIRST = ("sk",)
 #: the risk category a per-risk layer gives when none is asked (the common building)
 DEFAULT_RISK = "II"
 RASTER_SUFFIXES = (".tif", ".tiff", ".gtiff")
@@ -356,8 +361,9 @@ class Layer:
         Returns
         -------
         dict
-            ``name``, ``meta``, ``sha256``, ``demo``, ``value_units``,
-            ``demo_basemap`` (demo layers only: the invented demo basemap) and
+            ``name``, ``meta``, ``sha256``, ``demo``, ``value_units`` (the
+            units of the ``pg`` columns: kPa for an ``sk`` layer, whatever its
+            sidecar's), ``quantity`` (``pg``, ``sk``), ``demo_basemap`` (demo layers only: the invented demo basemap) and
             ``zones``: a GeoDataFrame in EPSG:4326 with ``zone_id``, ``rule``,
             ``pg`` [value_units, NaN where no single mapped value], ``pg_psf``,
             ``elev_max``, ``note``, ``source``, ``study`` (bool), ``pg_lo`` and
@@ -370,12 +376,20 @@ class Layer:
             zones = raster_view(self, center, radius_m)
         else:
             zones = self._vector_view(center, radius_m)
+        units = self.meta["value_units"]
+        if self.quantity in KPA_FIRST and units != "kPa":
+            # an EN 1991-1-3 layer is drawn and labelled in kPa, whatever units it maps in
+            k = self.to_psf * KPA_PER_PSF
+            zones = zones.assign(**{c: zones[c] * k for c in ("pg", "pg_lo", "pg_hi")
+                                    if c in zones.columns})  # fmt: skip
+            units = "kPa"
         view = {
             "name": self.name,
             "meta": dict(self.meta),
             "sha256": self.sha256,
             "demo": self.demo,
-            "value_units": self.meta["value_units"],
+            "value_units": units,
+            "quantity": self.quantity,
             "zones": zones,
         }
         if self.demo and demo_basemap_path().is_file():  # the maps draw it under demo zones
@@ -503,11 +517,27 @@ def demo_722_layers() -> list[Layer]:
     return list(_demo_722_stack())
 
 
+@functools.lru_cache(maxsize=1)
+def _demo_en_stack() -> tuple[Layer, ...]:
+    missing = [f for f in DEMO_EN_LAYER_FILES if not (DEMO_DIR / f).is_file()]
+    if missing:
+        raise LayerError(
+            f"the embedded sk demo data (en1991-1-3) is missing ({', '.join(missing)}); "
+            "rebuild it with: python data_recipes/build_demo.py"
+        )
+    return tuple(load_layer(DEMO_DIR / f) for f in DEMO_EN_LAYER_FILES)
+
+
+def demo_en_layers() -> list[Layer]:
+    """The embedded, invented EN 1991-1-3 demo layer: sk of the island's metric district (``demo = true``)."""
+    return list(_demo_en_stack())
+
+
 def demo_layers_for(standard=None) -> list[Layer]:
     """The demo stack for the roof standard ``standard`` (None: the default demo, ASCE 7-16).
 
-    A standard the default demo layers do not feed (ASCE 7-22) gets its own
-    invented demo layers when neve has them; otherwise the default demo stack.
+    A standard the default demo layers do not feed (ASCE 7-22, EN 1991-1-3) gets
+    its own invented demo layers when neve has them; otherwise the default demo stack.
     """
     stack = demo_layers()
     if standard is None:
@@ -517,9 +547,10 @@ def demo_layers_for(standard=None) -> list[Layer]:
     std = get_standard(standard)
     if any(std.accepts_layer(ly.meta["standard"], ly.quantity) for ly in stack):
         return stack
-    other = demo_722_layers()
-    if any(std.accepts_layer(ly.meta["standard"], ly.quantity) for ly in other):
-        return other
+    for other in (demo_722_layers, demo_en_layers):
+        layers = other()
+        if any(std.accepts_layer(ly.meta["standard"], ly.quantity) for ly in layers):
+            return layers
     return stack
 
 

@@ -338,9 +338,14 @@ def summary_rows(summary: dict) -> pd.DataFrame:
         rows.append((f"status: {status}", count))
     for flag, count in summary.get("flags", {}).items():
         rows.append((f"flag: {flag}", count))
-    pg = summary.get("pg_psf") or {}
-    rows.append(("pg min [psf]", pg.get("min")))
-    rows.append(("pg max [psf]", pg.get("max")))
+    if "sk_kpa" in summary:  # a run on sk layers (EN 1991-1-3)
+        sk = summary.get("sk_kpa") or {}
+        rows.append(("sk min [kPa]", sk.get("min")))
+        rows.append(("sk max [kPa]", sk.get("max")))
+    else:
+        pg = summary.get("pg_psf") or {}
+        rows.append(("pg min [psf]", pg.get("min")))
+        rows.append(("pg max [psf]", pg.get("max")))
     rec = summary.get("on_record")
     if rec:  # the existing-roof check
         rows.append(("loads on record given", rec["given"]))
@@ -586,7 +591,9 @@ def summarize(
             if flag:
                 counter[flag] = counter.get(flag, 0) + int(count)
     flags = dict(sorted(counter.items()))
-    valued = results.loc[results["status"].isin(ROOF_STATUSES), "pg_psf"].dropna()
+    sk_run = "pg_psf" not in results.columns and "sk_kpa" in results.columns  # EN 1991-1-3
+    column = "sk_kpa" if sk_run else "pg_psf"
+    valued = results.loc[results["status"].isin(ROOF_STATUSES), column].dropna()
     pg = None
     if len(valued):
         pg = {"min": float(valued.min()), "max": float(valued.max())}
@@ -605,7 +612,8 @@ def summarize(
         "rows": int(len(results)),
         "status": statuses,
         "flags": {str(k): int(v) for k, v in flags.items() if k},
-        "pg_psf": pg,
+        "pg_psf": None if sk_run else pg,
+        **({"sk_kpa": pg} if sk_run else {}),
         "layers": layer_info,
         "demo": any(info["demo"] for info in layer_info),
         "engine": engine,
@@ -720,7 +728,15 @@ def format_summary(summary: dict) -> str:
         for f, c in summary["flags"].items():
             lines.append(f"  {f:<{fw}}  {c:>10,}")
     pg = summary.get("pg_psf")
-    if pg:
+    sk = summary.get("sk_kpa")
+    if sk:  # a run on sk layers (EN 1991-1-3): kPa first
+        lines.append(
+            f"sk range: {sk['min']:.2f} to {sk['max']:.2f} kPa "
+            f"({sk['min'] / KPA_PER_PSF:.1f} to {sk['max'] / KPA_PER_PSF:.1f} psf)"
+        )
+    elif "sk_kpa" in summary:
+        lines.append("sk range: no site has a usable ground snow load")
+    elif pg:
         lines.append(
             f"pg range: {pg['min']:.1f} to {pg['max']:.1f} psf "
             f"({pg['min'] * KPA_PER_PSF:.2f} to {pg['max'] * KPA_PER_PSF:.2f} kPa)"

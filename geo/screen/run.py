@@ -79,6 +79,19 @@ RESULT_COLUMNS = (
 )
 #: roof loads added per row (each as ``<name>_psf`` and ``<name>_kpa``)
 ROOF_LOADS = ("pf", "ps", "pm", "rain_on_snow", "design_uniform")
+#: the roof loads of a run on ``sk`` layers (EN 1991-1-3), each as ``<name>_kpa`` beside
+#: ``<name>_psf``; its ground columns are ``sk_kpa`` and ``sk_psf`` in place of pg's
+SK_ROOF_LOADS = ("s", "design_uniform")
+#: the quantities whose columns come SI first (kPa, then psf)
+SI_FIRST = ("sk",)
+
+
+def ground_quantity_of(res: Resolution) -> str:
+    """The ground quantity of a run's layers (``pg``; ``sk`` for EN 1991-1-3 layers)."""
+    quantities = {p.quantity for p in res.layers} - {"w2"}
+    return quantities.pop() if len(quantities) == 1 else "pg"
+
+
 ENGINES = ("local", "dask")
 #: the resolver's columns that screening uses
 RESOLVED_COLUMNS = (
@@ -415,12 +428,15 @@ def _missing_if_empty(text: np.ndarray) -> np.ndarray:
 def _result_columns(res: Resolution, site: SiteArrays) -> dict:
     """The result columns of every row (:data:`RESULT_COLUMNS`): the edge where codes and
     bits become text."""
-    pg = res.value("pg")
+    q = ground_quantity_of(res)
+    pg = res.value(q)  # [psf]
+    ground = {"pg_psf": pg, "pg_kpa": pg * KPA_PER_PSF}
+    if q in SI_FIRST:  # sk layers: sk_kpa beside sk_psf
+        ground = {f"{q}_kpa": pg * KPA_PER_PSF, f"{q}_psf": pg}
     elev = res.elevation_ft
     return {
         "status": res.status_text(),
-        "pg_psf": pg,
-        "pg_kpa": pg * KPA_PER_PSF,
+        **ground,
         "zone_id": _missing_if_empty(res.zone_id),
         "flags": flags_text(res.flags),
         "message": res.message,
@@ -464,8 +480,10 @@ def _roof_columns(
 
     explicit = get_standard(standard) if standard is not None else None
     n = len(site)
-    psf = {name: np.full(n, np.nan) for name in ROOF_LOADS}
-    pg = res.value("pg")
+    q = ground_quantity_of(res)
+    names = SK_ROOF_LOADS if q in SI_FIRST else ROOF_LOADS
+    psf = {name: np.full(n, np.nan) for name in names}
+    pg = res.value(q)  # [psf]
     w2 = res.value("w2")
     usable = np.isin(res.status, (OK, PROVISIONAL)) & np.isfinite(pg)
     groups, mismatch, unsupported = row_standards(res, layers, explicit)
@@ -489,16 +507,19 @@ def _roof_columns(
                 if not mask.any():
                     continue
                 res.flags[mask] |= bits_of(std.screening_flags(this))
-                quantities = {"pg": pg[mask]}
+                # the standard's load unit: ASCE 7 takes psf, EN 1991-1-3 kPa
+                kpa = std.units.get("load") == "kPa"
+                quantities = {q: pg[mask] * KPA_PER_PSF if kpa else pg[mask]}
                 if "w2" in std.quantities:
                     quantities["w2"] = w2[mask]
                 loads = std.uniform(quantities, this)
-                for name in ROOF_LOADS:
-                    psf[name][mask] = np.asarray(loads[name], dtype=float)
+                for name in names:
+                    v = np.asarray(loads[name], dtype=float)
+                    psf[name][mask] = v / KPA_PER_PSF if kpa else v
     out = {}
-    for name in ROOF_LOADS:  # psf beside kPa
-        out[f"{name}_psf"] = psf[name]
-        out[f"{name}_kpa"] = psf[name] * KPA_PER_PSF
+    for name in names:  # psf beside kPa (kPa first for sk)
+        pair = {f"{name}_psf": psf[name], f"{name}_kpa": psf[name] * KPA_PER_PSF}
+        out.update(dict(reversed(pair.items())) if q in SI_FIRST else pair)
     return out
 
 

@@ -259,7 +259,8 @@ def _ground_ref(ground: Mapping) -> str:
 def differences(editions: Sequence[tuple[str, Mapping]]) -> list[dict]:
     """The comparable quantities of ``editions`` (``[(standard id, site JSON)]``), side by side.
 
-    Each entry: ``quantity`` (``pg``, ``pf``, ``ps``, ``pm``, ``rain_on_snow``,
+    Each entry: ``quantity`` (``pg``; ``sk`` where an edition's ground is sk;
+    ``pf``, ``ps``, ``pm``, ``rain_on_snow``,
     ``design_uniform`` or a
     case's key such as ``pd``), ``case`` and ``name`` (null for the site and
     roof quantities), ``values`` (standard id -> value or null), ``difference``
@@ -272,6 +273,10 @@ def differences(editions: Sequence[tuple[str, Mapping]]) -> list[dict]:
     roofs = [d.get("roof") or {} for _, d in editions]
     out = [_entry("pg", None, None, ids, [g.get("pg") for g in grounds],
                   [_ground_ref(g) for g in grounds])]  # fmt: skip
+    if any(g.get("quantity") == "sk" for g in grounds):  # an EN 1991-1-3 edition: its sk
+        out.append(_entry("sk", None, None, ids, [g.get("sk") for g in grounds],
+                          [_ground_ref(g) if g.get("quantity") == "sk" else ""
+                           for g in grounds]))  # fmt: skip
     for key in ROOF_LOADS:
         vals = [(r.get("loads") or {}).get(key) for r in roofs]
         out.append(_entry(key, None, None, ids, vals, [_ref(s, f"load.{key}") for s in ids]))

@@ -204,8 +204,9 @@ COLUMNS = [
     "distance_to_other_m", "neighbour_values_psf", "layer_name", "layer_sha256", "other_layers",
     "alt_elevation_source", "alt_elevation_ft", "alt_status", "alt_pg_psf", "alt_zone_id",
 ]  # fmt: skip
-#: the unit of each quantity's values (the standard's units)
-UNITS = {"pg": "psf"}
+#: the unit each quantity's values travel in inside geo (loads in psf, EN 1991-1-3's sk too:
+#: the edges give them in kPa and hand the EN engine kPa)
+UNITS = {"pg": "psf", "sk": "psf", "w2": "fraction"}
 
 
 def blank_like(v: np.ndarray, n: int) -> np.ndarray:
@@ -432,7 +433,10 @@ class Resolution:
             "alt_status": lambda: _texts(STATUSES, self.alt_status),
             "alt_pg_psf": lambda: self.alt_values.get("pg", np.full(len(self), np.nan)),
             "alt_zone_id": lambda: self.alt_zone_id,
-            # on request only (not in COLUMNS): the W2 look-up (ASCE 7-22 W2 layers)
+            # on request only (not in COLUMNS): sk of EN 1991-1-3 layers (kPa first), and
+            "sk_kpa": lambda: self.value("sk") * KPA_PER_PSF,
+            "sk_psf": lambda: self.value("sk"),
+            # the W2 look-up (ASCE 7-22 W2 layers)
             "w2": lambda: self.value("w2"),
             "w2_zone_id": lambda: self.extra.get("w2_zone_id", np.full(len(self), "", object)),
             "w2_flags": lambda: flags_text(
@@ -442,7 +446,8 @@ class Resolution:
         unknown = [c for c in want if c not in make]
         if unknown:
             raise InputError("columns", f"no resolver column {unknown[0]!r}",
-                             ", ".join([*COLUMNS, "w2", "w2_zone_id", "w2_flags"]))  # fmt: skip
+                             ", ".join([*COLUMNS, "sk_kpa", "sk_psf", "w2", "w2_zone_id",
+                                        "w2_flags"]))  # fmt: skip
         # object columns stay object (no per-row conversion to string dtype for big portfolios)
         cols = {}
         for c in want:

@@ -33,7 +33,8 @@ def test_sha256_is_of_the_file(grid_layer):
 
 def test_view_contract(grid_layer):
     v = load_layer(grid_layer).view()
-    assert set(v) == {"name", "meta", "sha256", "demo", "value_units", "zones"}
+    assert set(v) == {"name", "meta", "sha256", "demo", "value_units", "quantity", "zones"}
+    assert v["quantity"] == "pg"
     z = v["zones"]
     rows = z.set_index("zone_id")
     table = rows[rows["rule"] == "elevation_table"]

@@ -19,6 +19,7 @@ import click
 
 from neve.engine.errors import InputError
 from neve.engine.roof_spec import Roof
+from neve.engine.standards import Standard
 from neve.roof_file import ROOF_KEYS, read_toml, roof_mapping  # noqa: F401  (re-exported)
 
 #: roof option names as they appear in kwargs (and ROOF.toml keys)
@@ -681,7 +682,8 @@ def command_echo() -> str:
                 elif v:
                     words.append(param.opts[0])
                 continue
-            text = str(v)
+            # a --standard parsed to its registry entry is echoed by its id, never its repr
+            text = str(v.id) if isinstance(v, Standard) else str(v)
             if name in _PATH_PARAMS and text != "demo":
                 text = PureWindowsPath(text).name if "\\" in text else Path(text).name
             words.extend([param.opts[0], text] if isinstance(param, click.Option) else [text])
