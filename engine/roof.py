@@ -172,3 +172,62 @@ def screening_flags(roof: Roof, *, standard=None) -> list[str]:
     :func:`analyze_roof` (``neve site``).
     """
     return _standard(standard).screening_flags(roof)
+
+
+def parse_w2(value, field: str = "w2") -> float | None:
+    """The winter wind parameter W2 as given (text or number): a plain number in [0, 1], or None.
+
+    The one reading of ``--w2`` (``neve roof``) and of the ``w2`` key of the
+    web API (``neve serve``).
+    """
+    if value is None:
+        return None
+    from neve.engine.errors import InputError
+
+    accepted = "a plain number from 0 to 1, e.g. 0.45 (the winter wind parameter W2)"
+    if isinstance(value, bool):
+        raise InputError(field, f"{value!r} is not a number", accepted)
+    try:
+        w2 = float(str(value).strip())
+    except ValueError:
+        raise InputError(field, f"{value!r} is not a number", accepted) from None
+    if not (0.0 <= w2 <= 1.0):  # also refuses nan
+        raise InputError(field, f"{value!r} is outside 0 to 1", accepted)
+    return w2
+
+
+def roof_answer(pg: str, roof: Roof | None = None, *, standard=None, w2=None) -> tuple[dict, Roof]:
+    """What ``neve roof --format json`` prints: the JSON object of one roof, and the roof.
+
+    Parameters
+    ----------
+    pg : str
+        Ground snow load with its unit as given (``"35psf"``, ``"1.68kPa"``).
+    roof : Roof, optional
+        The roof; None is the default roof (a flat roof with every default).
+    standard : str or Standard, optional
+        The standard (``--standard``); the default one when omitted.
+    w2 : float, optional
+        The winter wind parameter W2, for a standard that takes it (refused otherwise).
+
+    Returns
+    -------
+    (dict, Roof)
+        The ``neve roof`` JSON object and the roof worked.  ``neve roof`` and
+        ``neve serve`` (``POST /api/roof``) both call this, so they cannot differ.
+    """
+    from neve.engine.errors import InputError
+    from neve.engine.roof_spec import parse_pg
+    from neve.engine.standards import get_standard, standards
+
+    std = get_standard(standard) if standard is None or isinstance(standard, str) else standard
+    if w2 is not None and "w2" not in std.quantities:
+        raise InputError(
+            "w2",
+            f"{std.title} takes no winter wind parameter",
+            "--w2 only with a standard that uses W2: "
+            + ", ".join(s.id for s in standards() if "w2" in s.quantities),
+        )
+    pg_psf = parse_pg(pg, "pg")
+    roof_ = roof or Roof.from_mapping({})
+    return analyze_roof(pg_psf, roof_, standard=std, w2=w2).to_json(), roof_

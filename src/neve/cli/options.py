@@ -65,16 +65,9 @@ def pg_option(f):
 
 def _w2(ctx, param, value):
     """``--w2``: a plain number from 0 to 1 (the winter wind parameter W2), or None."""
-    if value is None:
-        return None
-    accepted = "a plain number from 0 to 1, e.g. 0.45 (the winter wind parameter W2)"
-    try:
-        w2 = float(str(value).strip())
-    except ValueError:
-        raise InputError("w2", f"{value!r} is not a number", accepted) from None
-    if not (0.0 <= w2 <= 1.0):  # also refuses nan
-        raise InputError("w2", f"{value!r} is outside 0 to 1", accepted)
-    return w2
+    from neve.engine.roof import parse_w2
+
+    return parse_w2(value, "w2")
 
 
 def w2_option(f):

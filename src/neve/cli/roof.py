@@ -12,10 +12,8 @@ from neve.cli.options import (
     standard_option,
     w2_option,
 )
-from neve.engine.errors import InputError
 from neve.engine.jsonsafe import dumps
 from neve.engine.printable import printable
-from neve.engine.roof_spec import Roof, parse_pg
 from neve.engine.roof_text import roof_text  # noqa: F401  (re-exported: its old home)
 
 
@@ -44,20 +42,9 @@ def roof(pg, w2, fmt, no_steps, standard, **kwargs):
     For ASCE 7-22 (--standard asce7-22) give the pg of the building's risk
     category and the site's winter wind parameter --w2.
     """
-    from neve.engine.roof import analyze_roof
-    from neve.engine.standards import get_standard
+    from neve.engine.roof import roof_answer
 
-    std = get_standard(standard)
-    if w2 is not None and "w2" not in std.quantities:
-        raise InputError(
-            "w2",
-            f"{std.title} takes no winter wind parameter",
-            "--w2 only with a standard that uses W2: " + ", ".join(s for s in _w2_standards()),
-        )
-    pg_psf = parse_pg(pg, "pg")
-    roof_ = roof_from_options(kwargs) or Roof.from_mapping({})
-    result = analyze_roof(pg_psf, roof_, standard=std, w2=w2)
-    data = result.to_json()
+    data, roof_ = roof_answer(pg, roof_from_options(kwargs), standard=standard, w2=w2)
     if fmt == "json":
         click.echo(dumps(data, indent=2))
     else:
@@ -68,8 +55,3 @@ def roof(pg, w2, fmt, no_steps, standard, **kwargs):
         extra = _extra_text(data)
         click.echo(printable(text + ("\n\n" + extra if extra else "")))
 
-
-def _w2_standards() -> list[str]:
-    from neve.engine.standards import standards
-
-    return [s.id for s in standards() if "w2" in s.quantities]
