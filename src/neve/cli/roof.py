@@ -54,4 +54,3 @@ def roof(pg, w2, fmt, no_steps, standard, **kwargs):
         text = roof_text(shown, show_steps=not no_steps, pitch=roof_.slope_pitch)
         extra = _extra_text(data)
         click.echo(printable(text + ("\n\n" + extra if extra else "")))
-
