@@ -61,9 +61,20 @@ def _body_schema(keys, required=()) -> dict:
 
 def create_app(config):
     """The ASGI application serving ``config`` (a :class:`neve.web.config.ServeConfig`)."""
+    from concurrent.futures import ThreadPoolExecutor
+    from contextlib import asynccontextmanager
+
     from neve.web import pages
 
+    screens = ThreadPoolExecutor(max_workers=1, thread_name_prefix="neve-screen")
+
+    @asynccontextmanager
+    async def lifespan(app):
+        yield
+        screens.shutdown(wait=False, cancel_futures=True)
+
     app = FastAPI(
+        lifespan=lifespan,
         title="neve serve",
         summary="Ground and roof snow loads, as neve roof / neve site --format json.",
         description="An aid to a licensed design professional; confirm ground snow loads with "
@@ -74,9 +85,6 @@ def create_app(config):
     )
     store = JobStore(config.work)
     app.state.config, app.state.store = config, store
-    from concurrent.futures import ThreadPoolExecutor
-
-    screens = ThreadPoolExecutor(max_workers=1, thread_name_prefix="neve-screen")
     app.state.screens = screens
 
     # --- the guard: token, body size, headers ----------------------------------------
@@ -317,10 +325,6 @@ def create_app(config):
     async def zones():
         text = await run_in_threadpool(pages.zones_geojson, config)
         return Response(text, media_type="application/geo+json")
-
-    @app.on_event("shutdown")
-    def _stop():  # pragma: no cover - the server's end
-        screens.shutdown(wait=False, cancel_futures=True)
 
     return app
 

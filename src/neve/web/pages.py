@@ -162,10 +162,12 @@ def site_form(config, *, values: dict | None = None, error: str | None = None, s
 
 
 def site_result(config, job):
-    from neve.maps.package import result_context
+    import copy
+
+    from neve.maps.package import result_context, strip_machine_paths
     from neve.maps.site_map import is_demo
 
-    data = job.data
+    data = strip_machine_paths(copy.deepcopy(job.data))  # file names only, never a folder
     ctx = result_context(data, job.diagrams)
     flags = _flag_meanings()
     ground = data.get("ground") or {}

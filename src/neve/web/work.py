@@ -33,10 +33,14 @@ def site_job(store, config, body: dict) -> Job:
     try:
         views = result.views()
         job.result, job.data = result, data
-        from neve import safe_write
+        import copy
 
+        from neve import safe_write
+        from neve.maps.package import strip_machine_paths
+
+        shown = strip_machine_paths(copy.deepcopy(data))  # as the package's site.json: no folders
         job.add("site.json", safe_write.write_text(
-            job.folder / "site.json", json.dumps(data, indent=2, ensure_ascii=False) + "\n"))  # fmt: skip
+            job.folder / "site.json", json.dumps(shown, indent=2, ensure_ascii=False) + "\n"))  # fmt: skip
         job.add("site_map.html", write_site_map(
             data, views, job.folder / "site_map.html", self_contained=True,
             basemap=config.basemap_for(is_demo(data, views))))  # fmt: skip

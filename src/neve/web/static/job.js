@@ -29,6 +29,10 @@
         list.appendChild(li);
       });
       document.getElementById("downloads").hidden = false;
+      if (job.files["portfolio_map.html"]) {
+        document.getElementById("portfolio-map").src = job.files["portfolio_map.html"];
+        document.getElementById("map-section").hidden = false;
+      }
       var table = document.getElementById("summary-table");
       var s = job.summary || {};
       Object.keys(s).forEach(function (key) {
