@@ -228,9 +228,10 @@ def sample_dem(dem: str | Path, lon, lat, dem_units: str | None = None) -> np.nd
         When the vertical unit is neither in the file nor given, or when the
         given one contradicts the DEM's own.
     """
-    from pyproj import Transformer
     from rasterio.transform import rowcol
     from rasterio.windows import Window
+
+    from neve.geo.transform import transformer
 
     lon = np.atleast_1d(np.asarray(lon, dtype=float))
     lat = np.atleast_1d(np.asarray(lat, dtype=float))
@@ -241,7 +242,7 @@ def sample_dem(dem: str | Path, lon, lat, dem_units: str | None = None) -> np.nd
         ok = np.flatnonzero(np.isfinite(lon) & np.isfinite(lat))
         if ok.size == 0:
             return out
-        x, y = Transformer.from_crs(4326, ds.crs, always_xy=True).transform(lon[ok], lat[ok])
+        x, y = transformer(4326, ds.crs).transform(lon[ok], lat[ok])
         rows, cols = (np.asarray(a) for a in rowcol(ds.transform, x, y, op=math.floor))
         inside = (rows >= 0) & (rows < ds.height) & (cols >= 0) & (cols < ds.width)
         sel = ok[inside]
