@@ -120,7 +120,7 @@ def raster_hits(layer, lon, lat, search_m: float | None = None) -> Hits:
     """Look up n sites in a raster layer (see the module notes)."""
     from rasterio.transform import rowcol
 
-    from neve.geo.transform import transformer
+    from neve.geo.layers.transform import transformer
 
     lon = np.asarray(lon, dtype=float)
     lat = np.asarray(lat, dtype=float)

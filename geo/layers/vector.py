@@ -93,7 +93,7 @@ def layer_hits(layer, lon, lat, elev_ft, search_m: float | None = None) -> Hits:
         return raster_hits(layer, lon, lat, search_m)
     import shapely
 
-    from neve.geo.transform import transformer
+    from neve.geo.layers.transform import transformer
 
     lon = np.asarray(lon, dtype=float)
     lat = np.asarray(lat, dtype=float)

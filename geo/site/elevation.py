@@ -231,7 +231,7 @@ def sample_dem(dem: str | Path, lon, lat, dem_units: str | None = None) -> np.nd
     from rasterio.transform import rowcol
     from rasterio.windows import Window
 
-    from neve.geo.transform import transformer
+    from neve.geo.layers.transform import transformer
 
     lon = np.atleast_1d(np.asarray(lon, dtype=float))
     lat = np.atleast_1d(np.asarray(lat, dtype=float))
