@@ -452,3 +452,34 @@ def test_the_map_tiles_and_zones_of_the_form(client):
     assert tile.status_code == 200 and tile.content[:4] == b"\x89PNG"
     assert client.get("/tiles/3/0/0.png").status_code == 204  # outside the file
     assert client.get("/tiles/a/b/c.png").status_code == 422
+
+
+def test_a_run_that_fails_reports_the_message_on_its_job(client):
+    """A site file neve cannot read fails the job with the command's message, not a trace."""
+    import tempfile
+    from pathlib import Path
+
+    text = "name,colour\nshed,red\n"  # neither coordinates nor addresses
+    got = client.post("/api/screen", files={"sites": ("sites.csv", text, "text/csv")})
+    assert got.status_code == 202
+    job = _wait(client, got.json()["id"])
+    with tempfile.TemporaryDirectory() as tmp:
+        path = Path(tmp) / "sites.csv"
+        path.write_text(text, encoding="utf-8")
+        code, _, err = cli("screen", str(path), "-o", str(Path(tmp) / "r.csv"), "--quiet")
+    assert code == 2
+    assert job["status"] == "error" and job["files"] == {}
+    assert f"neve: error: {job['message']}" == err
+
+
+def test_a_site_jobs_files_are_listed_on_its_job(client):
+    res = client.post("/site", data={"at": DEMO_AT}, follow_redirects=False)
+    job_id = res.headers["location"].rsplit("/", 1)[1]
+    job = client.get(f"/api/jobs/{job_id}").json()
+    assert job["kind"] == "site" and job["page"] == f"/sites/{job_id}"
+    assert set(job["files"]) == {"site.json", "site_map.html", "report.pdf", "package.zip"}
+    assert (
+        client.get(job["files"]["site_map.html"])
+        .headers["content-security-policy"]
+        .startswith("default-src 'none'")
+    )

@@ -29,6 +29,9 @@ LOG = logging.getLogger("neve.web")
 #: the largest body of a request that is not a portfolio upload [bytes]
 FORM_LIMIT = 1024 * 1024
 
+#: a site job's package files, made on the first request for one of them
+SITE_PACKAGE_FILES = ("report.pdf", "package.zip")
+
 #: the answer to an unexpected failure (the details go to the server's log only)
 UNEXPECTED = "unexpected failure; the server's log has the details"
 
@@ -203,7 +206,10 @@ def create_app(config):
         return _json(_job_json(store.get(job_id)))
 
     def _job_json(job) -> dict:
-        files = {} if job.kind == "site" else dict(job.files)
+        files = list(job.files)
+        if job.kind == "site":  # the package is made when first asked for
+            files = [n for n in files if n != "report.html"]
+            files += [n for n in SITE_PACKAGE_FILES if n not in files]
         return {
             "id": job.id,
             "kind": job.kind,
@@ -293,7 +299,7 @@ def create_app(config):
         from fastapi.responses import FileResponse
 
         job = store.get(job_id)
-        if job.kind == "site" and name in ("report.pdf", "package.zip", "report.html"):
+        if job.kind == "site" and name in SITE_PACKAGE_FILES + ("report.html",):
             from neve.web.work import build_package
 
             await run_in_threadpool(build_package, job, config)
