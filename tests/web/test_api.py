@@ -483,3 +483,27 @@ def test_a_site_jobs_files_are_listed_on_its_job(client):
         .headers["content-security-policy"]
         .startswith("default-src 'none'")
     )
+
+
+def test_a_loopback_server_answers_only_its_own_names(tmp_path):
+    """A page of another site cannot reach a loopback server under a name of its own."""
+    from fastapi.testclient import TestClient
+
+    from neve.web.app import create_app
+    from neve.web.config import load_config, loopback_hosts
+
+    config = load_config(workdir=tmp_path / "work")
+    config.allowed_hosts = loopback_hosts("127.0.0.1")
+    with TestClient(create_app(config), base_url="http://127.0.0.1:8750") as c:
+        assert c.get("/").status_code == 200
+        assert c.get("/", headers={"host": "localhost:8750"}).status_code == 200
+        assert c.get("/", headers={"host": "rebound.example:8750"}).status_code == 400
+    assert loopback_hosts("0.0.0.0") is None  # elsewhere: the token guards it
+
+
+def test_a_post_from_another_sites_page_is_refused(client):
+    other = {"origin": "http://elsewhere.example"}
+    got = client.post("/api/roof", json={"pg": "35psf"}, headers=other)
+    assert got.status_code == 403 and got.json()["error"].startswith("origin: ")
+    own = {"origin": "http://testserver"}
+    assert client.post("/api/roof", json={"pg": "35psf"}, headers=own).status_code == 200

@@ -34,9 +34,10 @@ def server(tmp_path_factory):
     import uvicorn
 
     from neve.web.app import create_app
-    from neve.web.config import load_config
+    from neve.web.config import load_config, loopback_hosts
 
     config = load_config(workdir=tmp_path_factory.mktemp("work"))
+    config.allowed_hosts = loopback_hosts("127.0.0.1")  # as neve serve sets it
     sock = socket.socket(socket.AF_INET, socket.SOCK_STREAM)
     sock.bind(("127.0.0.1", 0))
     port = sock.getsockname()[1]

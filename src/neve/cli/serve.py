@@ -44,6 +44,9 @@ def serve(host, port, layers_dir, workdir, token, max_upload_mb, layers, dem, de
         workdir=workdir, token=token, gazetteer=gazetteer, geocoder_url=geocoder_url,
         max_upload_mb=max_upload_mb,
     )  # fmt: skip
+    from neve.web.config import loopback_hosts
+
+    config.allowed_hosts = loopback_hosts(host)
     from neve.web.server import run
 
     shown = f"[{host}]" if ":" in host else host

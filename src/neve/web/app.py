@@ -90,7 +90,12 @@ def create_app(config):
     app.state.config, app.state.store = config, store
     app.state.screens = screens
 
-    # --- the guard: token, body size, headers ----------------------------------------
+    if config.allowed_hosts is not None:  # a page of another site under a name of its own
+        from starlette.middleware.trustedhost import TrustedHostMiddleware
+
+        app.add_middleware(TrustedHostMiddleware, allowed_hosts=list(config.allowed_hosts))
+
+    # --- the guard: token, origin, body size, headers -------------------------------
 
     @app.middleware("http")
     async def guard(request: Request, call_next):
@@ -106,6 +111,13 @@ def create_app(config):
             if not secrets.compare_digest(offered.encode(), config.token.encode()):
                 return _error(request, 401, "token: missing or wrong",
                               "open the address neve serve printed, with ?token=...")  # fmt: skip
+        origin = request.headers.get("origin")
+        if request.method == "POST" and origin and origin != "null":
+            from urllib.parse import urlsplit
+
+            if urlsplit(origin).netloc != request.headers.get("host", ""):
+                return _error(request, 403, "origin: a form of another site",
+                              "requests from neve's own pages")  # fmt: skip
         length = request.headers.get("content-length")
         upload = request.url.path in ("/api/screen", "/portfolio")
         limit = config.max_upload_bytes + FORM_LIMIT if upload else FORM_LIMIT

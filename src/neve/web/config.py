@@ -33,6 +33,13 @@ def is_loopback(host: str) -> bool:
         return False
 
 
+def loopback_hosts(host: str) -> tuple[str, ...] | None:
+    """The Host names a server listening on ``host`` answers: its own on loopback, else any."""
+    if not is_loopback(host):
+        return None
+    return tuple(dict.fromkeys(("127.0.0.1", "localhost", "[::1]", "::1", host.strip())))
+
+
 def check_binding(host: str, token: str | None) -> None:
     """Refuse to listen beyond this machine without ``--token`` (exit 2, before starting)."""
     if not is_loopback(host) and not token:
@@ -83,6 +90,9 @@ class ServeConfig:
     max_upload_bytes: int = DEFAULT_MAX_UPLOAD_MB * 1024 * 1024
     #: how many of ``layers`` make the default stack (the ``--layer`` ones, else all)
     default_count: int = 0
+    #: the Host headers answered (None: any); a server on loopback answers only its own
+    #: names, so a page of another site cannot reach it under a name of its own
+    allowed_hosts: tuple[str, ...] | None = None
     #: the zone outlines of the site form's map, made on first use (``/map/zones.geojson``)
     zones_cache: str | None = field(default=None, repr=False)
 
