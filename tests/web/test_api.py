@@ -507,3 +507,33 @@ def test_a_post_from_another_sites_page_is_refused(client):
     assert got.status_code == 403 and got.json()["error"].startswith("origin: ")
     own = {"origin": "http://testserver"}
     assert client.post("/api/roof", json={"pg": "35psf"}, headers=own).status_code == 200
+
+
+@pytest.mark.parametrize("suffix", [".xlsx", ".parquet", ".gpkg"])
+def test_every_site_file_format_uploads(client, tmp_path, suffix):
+    """XLSX, Parquet and GeoPackage site files screen as the CSV of the same sites."""
+    import io
+
+    import pandas as pd
+
+    frame = pd.read_csv(io.StringIO(sites_csv(25)))
+    path = tmp_path / f"sites{suffix}"
+    if suffix == ".xlsx":
+        frame.to_excel(path, index=False)
+    elif suffix == ".parquet":
+        frame.to_parquet(path, index=False)
+    else:
+        import geopandas as gpd
+
+        points = gpd.points_from_xy(frame["lon"], frame["lat"], crs="EPSG:4326")
+        gpd.GeoDataFrame(frame, geometry=points).to_file(path, driver="GPKG")
+    got = client.post("/api/screen", files={"sites": (path.name, path.read_bytes())})
+    assert got.status_code == 202, got.text
+    job = _wait(client, got.json()["id"])
+    assert job["status"] == "done", job["message"]
+    csv = pd.read_csv(io.StringIO(client.get(job["files"]["results.csv"]).text), dtype=str)
+    assert list(csv["site_id"]) == list(frame["site_id"])
+    ref = client.post("/api/screen", files={"sites": ("s.csv", sites_csv(25))}).json()
+    ref_csv = client.get(_wait(client, ref["id"])["files"]["results.csv"]).text
+    ref_frame = pd.read_csv(io.StringIO(ref_csv), dtype=str)
+    assert list(csv["pg_psf"]) == list(ref_frame["pg_psf"])
