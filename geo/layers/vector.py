@@ -117,9 +117,7 @@ def layer_hits(layer, lon, lat, elev_ft, search_m: float | None = None) -> Hits:
     #    their zone (inside the zone shrunk by the radius) cannot have one and are skipped
     tol = layer.tolerance_m
     search = max(tol, float(search_m or 0.0))
-    xm, ym = transformer(4326, 3395).transform(
-        lon[idx], np.clip(lat[idx], -85.0, 85.0)
-    )
+    xm, ym = transformer(4326, 3395).transform(lon[idx], np.clip(lat[idx], -85.0, 85.0))
     xm, ym = np.asarray(xm, dtype=float), np.asarray(ym, dtype=float)
     geoms_m, tree_m = layer.tree_m()
     band = np.ones(idx.size, dtype=bool)
