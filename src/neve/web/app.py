@@ -235,6 +235,7 @@ def create_app(config):
         }
 
     async def _start_screen(request: Request):
+        from neve import safe_write
         from neve.web.screen_form import screen_options
         from neve.web.uploads import receive_upload, upload_suffix
         from neve.web.work import run_screen_job
@@ -248,7 +249,7 @@ def create_app(config):
                 )
             options = await run_in_threadpool(screen_options, sink.fields, config)
             sites = job.folder / ("sites" + upload_suffix(sink.file_name))
-            sink.file_path.replace(sites)
+            safe_write.publish(sink.file_path, sites, overwrite=False, field="sites")
             job.request = {"file_name": sink.file_name, **sink.fields}
         except BaseException:
             store.drop(job)

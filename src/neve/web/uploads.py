@@ -37,7 +37,7 @@ def upload_suffix(file_name: str) -> str:
 
 class MultipartSink:
     """Callbacks of :class:`python_multipart.multipart.MultipartParser`: text fields kept
-    in memory, the one file part (``file_field``) written to ``folder / "upload.part"``."""
+    in memory, the one file part (``file_field``) written to a temporary file in ``folder``."""
 
     def __init__(self, folder: Path, file_field: str = "sites"):
         self.folder = folder
@@ -89,8 +89,11 @@ class MultipartSink:
                 )
             self.file_name = params[b"filename"].decode("utf-8", "replace")
             upload_suffix(self.file_name)  # refused before a byte is written
-            self.file_path = self.folder / "upload.part"
-            self._out = open(self.file_path, "xb")  # noqa: SIM115 (closed at the part's end)
+            from neve import safe_write
+
+            tmp = safe_write.make_temp(self.folder / "sites.upload", "part", folder=False)
+            self.file_path = tmp  # published under neve's own name when the upload is whole
+            self._out = open(tmp, "wb")  # noqa: SIM115 (closed at the part's end)
         else:
             self._buffer = bytearray()
 

@@ -78,11 +78,12 @@ def build_package(job: Job, config) -> None:
         )
         job.add("report.pdf", files["report_pdf"])
         job.add("report.html", files["report_html"])
-        archive = shutil.make_archive(
-            str(job.folder / "package-zip"), "zip", root_dir=job.folder, base_dir="package"
-        )
-        zipped = Path(archive).with_name("package.zip")
-        Path(archive).replace(zipped)
+        from neve import safe_write
+
+        with safe_write.atomic_file(job.folder / "package.zip", field="package") as tmp:
+            shutil.make_archive(str(tmp.with_suffix("")), "zip", root_dir=job.folder,
+                                base_dir="package")  # fmt: skip
+        zipped = job.folder / "package.zip"
         job.add("package.zip", zipped)
 
 
@@ -134,6 +135,3 @@ def run_screen_job(job: Job, config, sites: Path, options: dict) -> None:
 
         logging.getLogger("neve.web").exception("portfolio job %s failed", job.id[:6])
         fail(job, exc)
-    finally:
-        for leftover in (sites.with_name("upload.part"),):
-            leftover.unlink(missing_ok=True)
