@@ -385,6 +385,33 @@ def _offline_fetcher():
     return URLFetcher(allowed_protocols={"data"})
 
 
+def result_context(
+    data: dict, diagrams: dict[str, Path] | None = None, slope_pitch: bool | None = None
+) -> dict:
+    """What the report shows of a ``neve site`` JSON object, as plain values for a template.
+
+    ``cautions``, ``g`` (the ground summary), ``roof``, ``factors``, ``roof_rows``,
+    ``not_required``, ``summary``, ``provenance``, ``ground_steps`` and ``cases``
+    (each with its values, steps and, given its PNG in ``diagrams``, the diagram as a
+    data URI).  The calculation package and the result page of ``neve serve`` both
+    take it, so they read the same.  Text stays text: the templates escape it.
+    """
+    ground = data.get("ground") or {}
+    roof = data.get("roof")
+    return {
+        "cautions": cautions_of(data),
+        "g": _ground_context(data),
+        "roof": roof,
+        "factors": _factors(roof),
+        "roof_rows": _roof_rows(roof, slope_pitch),
+        "not_required": list((roof or {}).get("not_required") or []),
+        "summary": _summary(roof) + _on_record_rows(data.get("on_record")),
+        "provenance": _provenance(ground),
+        "ground_steps": _steps(ground.get("steps")),
+        "cases": _cases(roof, diagrams or {}),
+    }
+
+
 def write_package(
     site_json: dict,
     views: list[dict],
@@ -490,7 +517,6 @@ def _write_package(site_json, views, outdir, *, project, site_name, overwrite, c
         diagrams = write_case_diagrams(data.get("roof"), tmp / "diagrams")
         for name, p in diagrams.items():
             files[f"diagram:{name}"] = p
-        ground = data.get("ground") or {}
         today = _dt.date.today().isoformat()
         given = {k: v for k, v in (title_block or {}).items() if k in TITLE_BLOCK_FIELDS}
         tb = {k: "" if given.get(k) is None else str(given[k]) for k in TITLE_BLOCK_FIELDS}
@@ -505,19 +531,10 @@ def _write_package(site_json, views, outdir, *, project, site_name, overwrite, c
             "date": today,
             "version": _version(),
             "demo": is_demo(data, views),
-            "cautions": cautions_of(data),
-            "g": _ground_context(data),
-            "roof": data.get("roof"),
-            "factors": _factors(data.get("roof")),
-            "roof_rows": _roof_rows(data.get("roof"), slope_pitch),
+            **result_context(data, diagrams, slope_pitch),
             "inputs": _inputs(inputs, views),
-            "not_required": list((data.get("roof") or {}).get("not_required") or []),
-            "summary": _summary(data.get("roof")) + _on_record_rows(data.get("on_record")),
-            "provenance": _provenance(ground),
-            "ground_steps": _steps(ground.get("steps")),
             "static_map": _data_uri(png),
             "map_html": files["site_map"].read_text(encoding="utf-8"),
-            "cases": _cases(data.get("roof"), diagrams),
         }
         html = render("report.html.j2", **ctx)
         if comparison is not None:  # the edition comparison page, last (neve compare --package)

@@ -92,7 +92,8 @@ def layer_hits(layer, lon, lat, elev_ft, search_m: float | None = None) -> Hits:
 
         return raster_hits(layer, lon, lat, search_m)
     import shapely
-    from pyproj import Transformer
+
+    from neve.geo.layers.transform import transformer
 
     lon = np.asarray(lon, dtype=float)
     lat = np.asarray(lat, dtype=float)
@@ -106,7 +107,7 @@ def layer_hits(layer, lon, lat, elev_ft, search_m: float | None = None) -> Hits:
     geoms = layer.prepared()
     # 1. point-in-zone in the layer's CRS: bounding boxes from the STRtree, then an exact,
     #    prepared intersects_xy test on the candidate pairs (a site on an edge is in the zone)
-    x, y = Transformer.from_crs(4326, layer.crs, always_xy=True).transform(lon[idx], lat[idx])
+    x, y = transformer(4326, layer.crs).transform(lon[idx], lat[idx])
     x, y = np.asarray(x, dtype=float), np.asarray(y, dtype=float)
     qi, cz = bbox_candidates(layer, x, y)
     inside = shapely.intersects_xy(geoms[cz], x[qi], y[qi])
@@ -116,9 +117,7 @@ def layer_hits(layer, lon, lat, elev_ft, search_m: float | None = None) -> Hits:
     #    their zone (inside the zone shrunk by the radius) cannot have one and are skipped
     tol = layer.tolerance_m
     search = max(tol, float(search_m or 0.0))
-    xm, ym = Transformer.from_crs(4326, 3395, always_xy=True).transform(
-        lon[idx], np.clip(lat[idx], -85.0, 85.0)
-    )
+    xm, ym = transformer(4326, 3395).transform(lon[idx], np.clip(lat[idx], -85.0, 85.0))
     xm, ym = np.asarray(xm, dtype=float), np.asarray(ym, dtype=float)
     geoms_m, tree_m = layer.tree_m()
     band = np.ones(idx.size, dtype=bool)

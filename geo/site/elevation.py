@@ -21,7 +21,9 @@ value the DEM does not declare as nodata, or a unit mistake.
 
 from __future__ import annotations
 
+import contextlib
 import math
+import threading
 from pathlib import Path
 
 import numpy as np
@@ -164,7 +166,7 @@ def check_dem_options(dem, dem_units: str | None = None) -> float | None:
                 "--dem-units together with --dem DEM.tif (the unit of that DEM)",
             )
         return None
-    with _open_dem(dem) as ds:
+    with _kept_dem(dem) as ds:
         return vertical_factor(ds, Path(dem).name, dem_units)
 
 
@@ -202,6 +204,37 @@ def _open_dem(dem):
     return ds
 
 
+#: open DEMs kept per thread, by file (path, size, modification time): a server asking the
+#: same DEM request after request opens it once (rasterio's open is milliseconds)
+_KEPT = threading.local()
+MAX_KEPT_DEMS = 4
+
+
+@contextlib.contextmanager
+def _kept_dem(dem):
+    """The DEM opened once per thread and file version (:func:`_open_dem` checks it)."""
+    p = Path(dem)
+    try:
+        st = p.stat()
+    except OSError:
+        st = None
+    if st is None or not p.is_file():
+        with _open_dem(p) as ds:  # its own message for a missing file
+            yield ds
+        return
+    key = (str(p.resolve()), st.st_size, st.st_mtime_ns)
+    kept = getattr(_KEPT, "dems", None)
+    if kept is None:
+        kept = _KEPT.dems = {}
+    ds = kept.get(key)
+    if ds is None or ds.closed:
+        ds = _open_dem(p)
+        if len(kept) >= MAX_KEPT_DEMS:
+            kept.pop(next(iter(kept))).close()
+        kept[key] = ds
+    yield ds
+
+
 def sample_dem(dem: str | Path, lon, lat, dem_units: str | None = None) -> np.ndarray:
     """DEM elevation at many sites [ft]; NaN at nodata or outside the grid.
 
@@ -228,20 +261,21 @@ def sample_dem(dem: str | Path, lon, lat, dem_units: str | None = None) -> np.nd
         When the vertical unit is neither in the file nor given, or when the
         given one contradicts the DEM's own.
     """
-    from pyproj import Transformer
     from rasterio.transform import rowcol
     from rasterio.windows import Window
+
+    from neve.geo.layers.transform import transformer
 
     lon = np.atleast_1d(np.asarray(lon, dtype=float))
     lat = np.atleast_1d(np.asarray(lat, dtype=float))
     out = np.full(lon.shape, np.nan)
     p = Path(dem)
-    with _open_dem(p) as ds:
+    with _kept_dem(p) as ds:
         factor = vertical_factor(ds, p.name, dem_units)
         ok = np.flatnonzero(np.isfinite(lon) & np.isfinite(lat))
         if ok.size == 0:
             return out
-        x, y = Transformer.from_crs(4326, ds.crs, always_xy=True).transform(lon[ok], lat[ok])
+        x, y = transformer(4326, ds.crs).transform(lon[ok], lat[ok])
         rows, cols = (np.asarray(a) for a in rowcol(ds.transform, x, y, op=math.floor))
         inside = (rows >= 0) & (rows < ds.height) & (cols >= 0) & (cols < ds.width)
         sel = ok[inside]

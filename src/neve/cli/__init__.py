@@ -21,6 +21,7 @@ _COMMANDS = {
     "screen": ("neve.cli.screen", "screen", "Screen a portfolio of sites."),
     "layer": ("neve.cli.layer", "layer", "Check or show a zone layer."),
     "verify": ("neve.cli.verify", "verify", "Run the verification cases of the standards."),
+    "serve": ("neve.cli.serve", "serve", "The site and portfolio pages and the JSON API."),
     "compare": (
         "neve.cli.compare",
         "compare",

@@ -77,16 +77,9 @@ def sk_option(f):
 
 def _w2(ctx, param, value):
     """``--w2``: a plain number from 0 to 1 (the winter wind parameter W2), or None."""
-    if value is None:
-        return None
-    accepted = "a plain number from 0 to 1, e.g. 0.45 (the winter wind parameter W2)"
-    try:
-        w2 = float(str(value).strip())
-    except ValueError:
-        raise InputError("w2", f"{value!r} is not a number", accepted) from None
-    if not (0.0 <= w2 <= 1.0):  # also refuses nan
-        raise InputError("w2", f"{value!r} is outside 0 to 1", accepted)
-    return w2
+    from neve.engine.roof import parse_w2
+
+    return parse_w2(value, "w2")
 
 
 def w2_option(f):
@@ -699,3 +692,29 @@ def roof_file_echo(kw: dict) -> tuple[str, str] | None:
         return Path(path).name, Path(path).read_text(encoding="utf-8")
     except (OSError, UnicodeDecodeError):  # already read (and checked) by the roof reader
         return Path(path).name, ""
+
+
+# --- neve serve (issue 15) -------------------------------------------------------------
+
+
+#: ``neve serve``'s own options: where it listens, what it may read and write
+serve_options = _stack(
+    click.option("--host", default="127.0.0.1", show_default=True,
+                 help="Address to listen on. Anything but this machine (127.0.0.1, ::1, "
+                 "localhost) needs --token."),
+    click.option("--port", type=click.IntRange(1, 65535), default=8750, show_default=True,
+                 help="Port to listen on."),
+    click.option("--layers-dir", "layers_dir", type=click.Path(file_okay=False),
+                 help="Folder of zone layers (each file with its sidecar <file>.toml) that "
+                 "requests may name; the default stack when no --layer is given."),
+    click.option("--workdir", type=click.Path(file_okay=False),
+                 help="Folder of the jobs (uploads, results, packages), one random folder "
+                 "each. Default: a new temporary folder."),
+    click.option("--token", envvar="NEVE_SERVE_TOKEN", metavar="SECRET",
+                 help="Secret every request must carry (open the printed address once, or "
+                 "send 'Authorization: Bearer SECRET'); required with a --host other than "
+                 "this machine. Also read from NEVE_SERVE_TOKEN."),
+    click.option("--max-upload-mb", "max_upload_mb", type=float, default=50.0,
+                 show_default=True, help="Largest site file a portfolio upload may be [MB]."),
+)  # fmt: skip
+serve_options.__doc__ = "Decorate ``neve serve`` with its own options (host, port, folders, token)."

@@ -276,25 +276,9 @@ def _write_map(
 
 def _zone_views(layers, results) -> list[dict]:
     """The views of the layers used, around the screened sites (for the portfolio map)."""
-    import math
+    from neve.geo.screen.views import zone_views
 
-    import numpy as np
-
-    lat = np.asarray(results["lat"], dtype=float)
-    lon = np.asarray(results["lon"], dtype=float)
-    ok = np.isfinite(lat) & np.isfinite(lon)
-    if not ok.any():
-        return []
-    s, n, w, e = lat[ok].min(), lat[ok].max(), lon[ok].min(), lon[ok].max()
-    centre = ((s + n) / 2, (w + e) / 2)
-    half = max(n - s, (e - w) * math.cos(math.radians(centre[0]))) / 2 * 111_320.0
-    radius = min(half * 1.3 + 5_000.0, 3_000_000.0)
-    views = []
-    for layer in layers:
-        if getattr(layer, "quantity", "pg") not in (None, "pg"):
-            continue  # a W2 layer is not a load: not drawn under the load bands
-        views.append(layer.view(center=centre, radius_m=radius))
-    return views
+    return zone_views(layers, results)
 
 
 def map_frame(results):

@@ -25,7 +25,7 @@ from neve.cli.options import (
     title_block_options,
 )
 from neve.engine.errors import InputError
-from neve.engine.jsonsafe import dumps, finite_copy
+from neve.engine.jsonsafe import dumps
 
 
 def _check_output(path: str | None, field: str, overwrite: bool, is_dir: bool = False) -> None:
@@ -74,10 +74,9 @@ def site(**kw) -> None:
     Results are an aid to a licensed design professional; confirm ground snow loads
     with the authority having jurisdiction; flagged sites need a site-specific study.
     """
-    from neve.geo.site.coords import parse_latlon
-    from neve.geo.site.one import resolve_site
+    from neve.geo.site.ask import ask_site, site_json
 
-    if bool(kw["at"]) == bool(kw["address"]):
+    if bool(kw["at"]) == bool(kw["address"]):  # before any output is checked
         raise InputError(
             "at", "give exactly one of --at LAT,LON or --address TEXT", "--at 47.5,-140"
         )
@@ -86,44 +85,27 @@ def site(**kw) -> None:
     _check_output(kw["package_dir"], "package", kw["overwrite"], is_dir=True)
     if kw["map_path"] or kw["package_dir"]:
         resolve_basemap(kw, demo_data=False)  # a bad --basemap is refused before any work
-    address = None
-    located = {}
-    if kw["at"]:
-        lat, lon = parse_latlon(kw["at"])
-        given = kw["at"]
-    else:
-        from neve.geo.site.places import locate
-
-        hit = locate(
-            kw["address"],
-            gazetteer=kw["gazetteer"],
-            url=kw["geocoder_url"],
-            country=kw["country"],
-            region=kw["region"],
-            user_agent=kw["user_agent"],
-            timeout=kw["geocoder_timeout"],
-        )
-        lat, lon, address, given = hit.lat, hit.lon, hit.address, kw["address"]
-        located = dict(location_precision=hit.precision, location_radius_m=hit.radius_m,
-                       location_source=hit.source)  # fmt: skip
-    result = resolve_site(
-        lat,
-        lon,
+    result = ask_site(
+        at=kw["at"],
+        address=kw["address"],
+        gazetteer=kw["gazetteer"],
+        geocoder_url=kw["geocoder_url"],
+        country=kw["country"],
+        region=kw["region"],
+        user_agent=kw["user_agent"],
+        geocoder_timeout=kw["geocoder_timeout"],
+        site_name=kw["site_name"],
         elevation=kw["elevation"],
         dem=kw["dem"],
         dem_units=kw["dem_units"],
         layers=list(kw["layers"]) or None,
         roof=roof,
-        name=kw["site_name"],
         project=kw["project"],
-        address=address,
-        given=given,
         elevation_source=kw["elevation_source"],
         standard=kw["standard"],
         on_record_psf=kw.get("on_record"),
-        **located,
     )
-    data = finite_copy(result.to_json())  # no NaN or infinity in any output: null + a flag
+    data = site_json(result)  # no NaN or infinity in any output: null + a flag
     if kw["map_path"] or kw["package_dir"]:
         views = result.views()
         from neve.maps.site_map import is_demo
