@@ -44,6 +44,12 @@ def cli(*args) -> tuple[int, dict | None, str]:
             ["--pg", "30psf", "--standard", "asce7-22", "--w2", "0.45", "--shape", "hip",
              "--slope", "4:12", "--eave-to-ridge", "40ft"],
         ),
+        (  # EN 1991-1-3 takes sk (issue 13)
+            {"sk": "0.65kPa", "standard": "en1991-1-3", "shape": "gable", "slope": "8.5deg",
+             "topography": "windswept"},
+            ["--sk", "0.65kPa", "--standard", "en1991-1-3", "--shape", "gable", "--slope",
+             "8.5deg", "--topography", "windswept"],
+        ),
     ],
 )  # fmt: skip
 def test_api_roof_is_neve_roof_json(client, body, args):
@@ -89,6 +95,10 @@ def test_api_roof_object_is_the_roof_toml(client, tmp_path):
         ),
         ({"at": DEMO_AT, "standard": "asce7-22", "risk": "III"},
          ["--at", DEMO_AT, "--standard", "asce7-22", "--risk", "III"]),
+        ({"at": "47.52,-140.1", "elevation": "250m", "standard": "en1991-1-3", "shape": "gable",
+          "slope": "20deg"},
+         ["--at", "47.52,-140.1", "--elevation", "250m", "--standard", "en1991-1-3", "--shape",
+          "gable", "--slope", "20deg"]),  # the invented metric district (issue 13)
         ({"address": "05401"}, ["--address", "05401"]),  # a US ZIP code: the shipped gazetteer
         ({"at": DEMO_AT, "dem": "demo", "on_record": "30psf", "shape": "flat"},
          ["--at", DEMO_AT, "--dem", "demo", "--on-record", "30psf", "--shape", "flat"]),
