@@ -299,16 +299,114 @@ def _dictionary_encoded(df: pd.DataFrame) -> pd.DataFrame:
 
 
 def _write_parquet(df: pd.DataFrame, tmp: Path) -> None:
-    """One conversion to Arrow; columns of mixed types are made text only if it fails."""
-    import pyarrow as pa
+    """The results as GeoParquet: one conversion to Arrow, then the site points added."""
     import pyarrow.parquet as pq
+
+    pq.write_table(geoparquet_table(df), tmp)
+
+
+def arrow_table(df: pd.DataFrame):
+    """The results as an Arrow table (columns of mixed types made text only if needed)."""
+    import pyarrow as pa
 
     df = _dictionary_encoded(df)
     try:
-        table = pa.Table.from_pandas(df, preserve_index=False)
+        return pa.Table.from_pandas(df, preserve_index=False)
     except (pa.ArrowInvalid, pa.ArrowTypeError):
-        table = pa.Table.from_pandas(_arrow_safe(df), preserve_index=False)
-    pq.write_table(table, tmp)
+        return pa.Table.from_pandas(_arrow_safe(df), preserve_index=False)
+
+
+#: the point geometry column of Parquet results (a taken name moves to the next one)
+GEOMETRY_COLUMNS = ("geometry", "site_geometry")
+#: the GeoParquet specification version the ``geo`` metadata follows
+GEOPARQUET_VERSION = "1.0.0"
+
+
+def geometry_column(columns) -> str:
+    """The name of the results' geometry column: the first of :data:`GEOMETRY_COLUMNS`
+    no input column holds (``site_geometry_2`` ... after them)."""
+    taken = {str(c) for c in columns}
+    for name in GEOMETRY_COLUMNS:
+        if name not in taken:
+            return name
+    k = 2
+    while f"site_geometry_{k}" in taken:
+        k += 1
+    return f"site_geometry_{k}"
+
+
+def point_wkb(lon: np.ndarray, lat: np.ndarray):
+    """Points as an Arrow binary array of ISO WKB (null where a coordinate is NaN).
+
+    A WKB point is 21 bytes: byte order (1, little-endian), the geometry type as
+    a uint32 (1, Point), then x and y as float64 (OGC Simple Features, Part 1,
+    Sec. 8.2; the encoding the GeoParquet specification names ``WKB``).  Built in
+    one numpy pass: shapely's ``to_wkb`` gives the same bytes (the tests compare
+    them) about 50 times slower.
+
+    Parameters
+    ----------
+    lon, lat : numpy.ndarray
+        Coordinates [deg, WGS 84]; NaN where the row has no point.
+    """
+    import pyarrow as pa
+
+    lon = np.asarray(lon, dtype=float)
+    lat = np.asarray(lat, dtype=float)
+    ok = np.isfinite(lon) & np.isfinite(lat)
+    rec = np.empty(
+        int(ok.sum()), dtype=np.dtype([("o", "u1"), ("t", "<u4"), ("x", "<f8"), ("y", "<f8")])
+    )
+    rec["o"], rec["t"], rec["x"], rec["y"] = 1, 1, lon[ok], lat[ok]
+    offsets = np.zeros(len(ok) + 1, dtype=np.int32)
+    np.cumsum(np.where(ok, rec.itemsize, 0), out=offsets[1:])
+    valid = None if ok.all() else pa.py_buffer(np.packbits(ok, bitorder="little"))
+    return pa.Array.from_buffers(
+        pa.binary(), len(ok), [valid, pa.py_buffer(offsets), pa.py_buffer(rec)],
+        null_count=int(len(ok) - len(rec)),
+    )  # fmt: skip
+
+
+_CRS_JSON: dict = {}
+
+
+def _crs_4326() -> dict:
+    """EPSG:4326 as PROJJSON (pyproj), as GeoParquet's ``crs`` takes it."""
+    if not _CRS_JSON:
+        import pyproj
+
+        _CRS_JSON.update(pyproj.CRS.from_epsg(4326).to_json_dict())
+    return dict(_CRS_JSON)
+
+
+def geo_metadata(column: str) -> bytes:
+    """The GeoParquet ``geo`` file metadata of a point column in EPSG:4326 (JSON bytes)."""
+    import json
+
+    meta = {
+        "version": GEOPARQUET_VERSION,
+        "primary_column": column,
+        "columns": {column: {"encoding": "WKB", "geometry_types": ["Point"], "crs": _crs_4326()}},
+    }
+    return json.dumps(meta).encode()
+
+
+def geoparquet_table(df: pd.DataFrame, column: str | None = None):
+    """The results as an Arrow table with the site points and the GeoParquet ``geo`` metadata.
+
+    The point of each row is (``site_lon``, ``site_lat``), the coordinates used;
+    rows without them (``error`` rows) have a null geometry.  Every other column
+    is as :func:`arrow_table` gives it.  ``column``: the geometry column's name
+    (:func:`geometry_column` of the table's columns when omitted).
+    """
+    table = arrow_table(df)
+    column = column or geometry_column(df.columns)
+    lon = df[LON_COLUMN].to_numpy(dtype=float, na_value=np.nan)
+    lat = df[LAT_COLUMN].to_numpy(dtype=float, na_value=np.nan)
+    table = table.append_column(column, point_wkb(lon, lat))
+    meta = dict(table.schema.metadata or {})
+    meta[b"geo"] = geo_metadata(column)
+    return table.replace_schema_metadata(meta)
 
 
 def _arrow_safe(df: pd.DataFrame) -> pd.DataFrame:
