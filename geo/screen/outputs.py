@@ -162,20 +162,33 @@ def _write_csv(df: pd.DataFrame, tmp: Path, *, raw: bool = False) -> int:
     int
         The number of cells given a leading ``'``.
     """
+    with open(tmp, "wb") as fh:
+        return write_csv_part(df, fh, raw=raw, header=True)
+
+
+def write_csv_part(df: pd.DataFrame, fh, *, raw: bool = False, header: bool = True) -> int:
+    """Rows of results appended to an open binary file as CSV (see :func:`_write_csv`).
+
+    ``header``: write the column names first (the first part of a file).  Returns
+    the number of cells given a leading ``'``.
+    """
     import pyarrow as pa
     import pyarrow.csv as pcsv
 
+    start = fh.tell()
     try:
         table = _csv_table(df)
         changed = 0
         if not raw:
             table, changed = _neutralise_table(table)
-        pcsv.write_csv(table, tmp, write_options=pcsv.WriteOptions(quoting_style="needed"))
+        options = pcsv.WriteOptions(quoting_style="needed", include_header=header)
+        pcsv.write_csv(table, fh, write_options=options)
         return changed
     except (pa.ArrowInvalid, pa.ArrowTypeError, pa.ArrowNotImplementedError):
-        _remove(tmp)
+        fh.seek(start)
+        fh.truncate()
     out, changed = (df, 0) if raw else _neutralise_frame(df)
-    out.to_csv(tmp, index=False)
+    out.to_csv(fh, index=False, header=header, encoding="utf-8")
     return changed
 
 
@@ -379,14 +392,14 @@ def _crs_4326() -> dict:
     return dict(_CRS_JSON)
 
 
-def geo_metadata(column: str) -> bytes:
-    """The GeoParquet ``geo`` file metadata of a point column in EPSG:4326 (JSON bytes)."""
+def geo_metadata(column: str, types=("Point",)) -> bytes:
+    """The GeoParquet ``geo`` file metadata of a WKB column in EPSG:4326 (JSON bytes)."""
     import json
 
     meta = {
         "version": GEOPARQUET_VERSION,
         "primary_column": column,
-        "columns": {column: {"encoding": "WKB", "geometry_types": ["Point"], "crs": _crs_4326()}},
+        "columns": {column: {"encoding": "WKB", "geometry_types": list(types), "crs": _crs_4326()}},
     }
     return json.dumps(meta).encode()
 
@@ -583,6 +596,44 @@ def _defuse_formulas(sheet) -> None:
                 cell.data_type = "s"
 
 
+def write_gpkg_part(df: pd.DataFrame, geometry, tmp: Path, *, append: bool = False) -> dict:
+    """Rows of results written to (or, ``append``, added to) the ``results`` layer of a
+    GeoPackage, in one transaction; returns the counts of the flags the fitting set."""
+    import pyogrio
+
+    df, counts = _fit_text(df, _GPKG_ILLEGAL, None, "GPKG")
+    gdf = _points(df, geometry)
+    try:  # Arrow I/O is much faster for large tables
+        pyogrio.write_dataframe(gdf, tmp, driver="GPKG", layer="results", use_arrow=True,
+                                append=append)  # fmt: skip
+    except Exception:
+        if not append:
+            _remove(tmp)
+        pyogrio.write_dataframe(gdf, tmp, driver="GPKG", layer="results", append=append)
+    return counts
+
+
+def input_geometry_table(df: pd.DataFrame, geometry):
+    """The results with the input's own geometry (WGS 84) as a GeoParquet Arrow table.
+
+    The geometry replaces a ``geometry`` column of the table, as geopandas does for
+    the whole-file write; its ``geometry_types`` are those the rows hold.
+    """
+    import pyarrow as pa
+    import shapely
+
+    geoms = np.asarray(geometry, dtype=object)
+    table = arrow_table(df.drop(columns=["geometry"], errors="ignore"))
+    table = table.append_column("geometry", pa.array(shapely.to_wkb(geoms), type=pa.binary()))
+    names = ("Point", "LineString", "Polygon", "MultiPoint", "MultiLineString",
+             "MultiPolygon", "GeometryCollection")  # fmt: skip
+    kinds = np.unique(shapely.get_type_id(geoms))
+    types = sorted(names[k] for k in kinds if 0 <= k < len(names)) or []
+    meta = dict(table.schema.metadata or {})
+    meta[b"geo"] = geo_metadata("geometry", types)
+    return table.replace_schema_metadata(meta)
+
+
 def _for_text(df: pd.DataFrame, geometry) -> pd.DataFrame:
     if geometry is None:
         return df
@@ -650,16 +701,7 @@ def write_results(
             else:
                 _write_parquet(df, tmp)
         else:
-            import pyogrio
-
-            df, counts = _fit_text(df, _GPKG_ILLEGAL, None, "GPKG")
-            _count_flags(summary, counts)
-            gdf = _points(df, geometry)
-            try:  # Arrow I/O is much faster for large tables
-                pyogrio.write_dataframe(gdf, tmp, driver="GPKG", layer="results", use_arrow=True)
-            except Exception:
-                _remove(tmp)
-                pyogrio.write_dataframe(gdf, tmp, driver="GPKG", layer="results")
+            _count_flags(summary, write_gpkg_part(df, geometry, tmp))
         if _writer_hook is not None:  # tests: simulate an interruption after writing
             _writer_hook(tmp)
     return target

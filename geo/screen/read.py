@@ -168,6 +168,99 @@ def read_sites(path: str | Path) -> tuple[pd.DataFrame, object]:
     return frame, geometry
 
 
+def iter_site_chunks(path: str | Path, chunk_rows: int):
+    """Read a site file in chunks of about ``chunk_rows`` rows, in order.
+
+    Yields ``(frame, geometry)`` pairs as :func:`read_sites` returns them for the
+    whole file, with :class:`ReadNotes` in each frame's ``attrs`` (row indices
+    within the chunk, the chunk's part of the layout ``info``).  CSV files are
+    read by :func:`neve.geo.screen.csv_records.iter_csv_records`, Parquet files by
+    row batches and GeoPackages by feature ranges; XLSX files and GeoParquet
+    files (whose geometry is decoded by geopandas) are read whole, as one chunk.
+    """
+    p = Path(path)
+    if not p.is_file():
+        raise InputError("sites", f"file {str(p)!r} not found", "a CSV, XLSX, GPKG or Parquet file")
+    fmt = site_format(p)
+    chunk_rows = max(1, int(chunk_rows))
+    if fmt == "xlsx" or (fmt == "parquet" and _is_geoparquet(p)):
+        yield read_sites(p)
+        return
+    parts = _csv_parts(p, chunk_rows) if fmt == "csv" else _table_parts(p, fmt, chunk_rows)
+    first = True
+    for frame, geometry, notes in _readable(p, fmt, parts):
+        frame.columns = [str(c) for c in frame.columns]
+        if first and len(frame.columns) == 0:
+            raise InputError("sites", f"{str(p)!r} has no columns", ACCEPTED_COORDS)
+        if geometry is None and fmt == "csv":
+            geometry = _wkt_geometry(frame)
+        frame = frame.reset_index(drop=True)
+        notes.info.setdefault("format", fmt)
+        notes.info.setdefault("records", int(len(frame)))
+        frame.attrs[READ_NOTES] = notes
+        yield frame, geometry  # an empty chunk too: its lines count in the layout
+        first = False
+
+
+def _readable(p: Path, fmt: str, parts):
+    """The parts of a reader, a failure of the file turned into an InputError."""
+    try:
+        yield from parts
+    except InputError:
+        raise
+    except Exception as exc:  # a corrupt file, or not a table at all
+        raise InputError(
+            "sites",
+            f"{str(p)!r} is not a readable {fmt} table ({type(exc).__name__}: {str(exc).strip()})",
+            "a CSV, XLSX, GPKG or Parquet table with one row per site",
+        ) from None
+
+
+def _is_geoparquet(p: Path) -> bool:
+    import pyarrow.parquet as pq
+
+    try:
+        return b"geo" in (pq.read_schema(p).metadata or {})
+    except Exception:  # not a Parquet file: read_sites says so
+        return True
+
+
+def _csv_parts(p: Path, chunk_rows: int):
+    from neve.geo.screen.csv_records import iter_csv_records
+
+    for rec in iter_csv_records(p, chunk_rows):
+        yield rec.frame, None, ReadNotes(rec.errors, rec.multiline, rec.info)
+
+
+def _table_parts(p: Path, fmt: str, chunk_rows: int):
+    keep = {"types_mapper": _integers_stay_integers}
+    if fmt == "parquet":
+        import pyarrow as pa
+        import pyarrow.parquet as pq
+
+        pf = pq.ParquetFile(p)
+        batches = pf.iter_batches(batch_size=chunk_rows)
+        empty = True
+        for batch in batches:
+            empty = False
+            table = pa.Table.from_batches([batch]).replace_schema_metadata(pf.schema_arrow.metadata)
+            yield table.to_pandas(**keep), None, ReadNotes()
+        if empty:
+            yield pf.schema_arrow.empty_table().to_pandas(**keep), None, ReadNotes()
+        return
+    import pyogrio
+
+    total = int(pyogrio.read_info(p)["features"])
+    for start in range(0, max(total, 1), chunk_rows):
+        try:
+            gdf = pyogrio.read_dataframe(p, skip_features=start, max_features=chunk_rows,
+                                         use_arrow=True, arrow_to_pandas_kwargs=keep)  # fmt: skip
+        except (ImportError, NotImplementedError, TypeError):  # a GDAL without Arrow support
+            gdf = pyogrio.read_dataframe(p, skip_features=start, max_features=chunk_rows)
+        frame, geometry = split_geometry(gdf)
+        yield frame, geometry, ReadNotes()
+
+
 def _wkt_geometry(frame: pd.DataFrame):
     """Points from a WKT text column (WGS 84) when the table has no lat/lon columns."""
     if find_column(frame.columns, LAT_NAMES) is not None:
