@@ -306,7 +306,7 @@ def stream_screen(
         raise InputError("output", f"a .{fmt} output is written whole",
                          ", ".join(f".{f}" for f in STREAMED_FORMATS))  # fmt: skip
     rows = chunk_rows() if rows is None else max(1, int(rows))
-    plan = plan_screen(progress=False, **options)
+    plan = plan_screen(progress=False, **options)  # layers and roofs loaded once
     summaries: list[dict] = []
     infos: list[dict] = []
     timings: dict[str, float] = {}
@@ -315,22 +315,30 @@ def stream_screen(
         with atomic_file(output, overwrite=overwrite, field="output") as tmp:
             writer = _Writer(fmt, tmp, csv_raw)
             try:
+                clock = [time.perf_counter()]
+
+                def lap(name: str) -> None:
+                    now = time.perf_counter()
+                    timings[name] = timings.get(name, 0.0) + now - clock[0]
+                    clock[0] = now
+
+                lap("layers")
                 for (frame, geometry), repeated in _chunks_with_duplicates(Path(sites), rows):
                     infos.append(dict(frame.attrs["neve_read_notes"].info))
+                    lap("read")
                     if len(frame) == 0:
                         continue
                     site = parse_sites(frame, geometry)
                     if repeated is not None:
                         site.duplicate = repeated
-                    laps = time.perf_counter()
-                    results = screen_sites(plan, site)
-                    timings["screen"] = timings.get("screen", 0.0) + time.perf_counter() - laps
-                    laps = time.perf_counter()
+                    lap("parse")
+                    results = screen_sites(plan, site, lap)
                     writer.write(results, site.geometry)
-                    timings["write"] = timings.get("write", 0.0) + time.perf_counter() - laps
+                    lap("write")
                     summaries.append(
                         summarize(results, plan.layers if not summaries else (), engine=plan.engine)
                     )
+                    lap("summary")
                     bar.update(len(frame))
                     if _chunk_hook is not None:  # tests: interrupt a run between chunks
                         _chunk_hook(len(summaries), tmp)
