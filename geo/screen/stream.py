@@ -315,7 +315,7 @@ def stream_screen(
         with atomic_file(output, overwrite=overwrite, field="output") as tmp:
             writer = _Writer(fmt, tmp, csv_raw)
             try:
-                clock = [time.perf_counter()]
+                clock = [t0]
 
                 def lap(name: str) -> None:
                     now = time.perf_counter()
