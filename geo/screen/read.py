@@ -175,18 +175,24 @@ def iter_site_chunks(path: str | Path, chunk_rows: int):
     whole file, with :class:`ReadNotes` in each frame's ``attrs`` (row indices
     within the chunk, the chunk's part of the layout ``info``).  CSV files are
     read by :func:`neve.geo.screen.csv_records.iter_csv_records`, Parquet files by
-    row batches and GeoPackages by feature ranges; XLSX files and GeoParquet
-    files (whose geometry is decoded by geopandas) are read whole, as one chunk.
+    row batches (a GeoParquet file's WKB geometry decoded per batch) and
+    GeoPackages by feature ranges; XLSX files, and GeoParquet files with another
+    geometry encoding or more than one geometry column, are read whole, as one chunk.
     """
     p = Path(path)
     if not p.is_file():
         raise InputError("sites", f"file {str(p)!r} not found", "a CSV, XLSX, GPKG or Parquet file")
     fmt = site_format(p)
     chunk_rows = max(1, int(chunk_rows))
-    if fmt == "xlsx" or (fmt == "parquet" and _is_geoparquet(p)):
+    if fmt == "xlsx" or (fmt == "parquet" and _is_geoparquet(p) and _wkb_column(p) is None):
         yield read_sites(p)
         return
-    parts = _csv_parts(p, chunk_rows) if fmt == "csv" else _table_parts(p, fmt, chunk_rows)
+    if fmt == "csv":
+        parts = _csv_parts(p, chunk_rows)
+    elif fmt == "parquet" and _is_geoparquet(p):
+        parts = _geoparquet_parts(p, chunk_rows)
+    else:
+        parts = _table_parts(p, fmt, chunk_rows)
     first = True
     for frame, geometry, notes in _readable(p, fmt, parts):
         frame.columns = [str(c) for c in frame.columns]
@@ -223,6 +229,41 @@ def _is_geoparquet(p: Path) -> bool:
         return b"geo" in (pq.read_schema(p).metadata or {})
     except Exception:  # not a Parquet file: read_sites says so
         return True
+
+
+def _wkb_column(p: Path) -> tuple[str, object] | None:
+    """(name, CRS) of a GeoParquet file's one geometry column when it is WKB, else None."""
+    import json
+
+    import pyarrow.parquet as pq
+
+    try:
+        meta = json.loads(pq.read_schema(p).metadata[b"geo"])
+        (name, col), *others = meta["columns"].items()
+    except Exception:  # read whole: read_sites says what is wrong
+        return None
+    if others or name != meta.get("primary_column") or col.get("encoding", "WKB") != "WKB":
+        return None
+    return name, col.get("crs", "OGC:CRS84")  # the specification's default CRS
+
+
+def _geoparquet_parts(p: Path, chunk_rows: int):
+    """A GeoParquet file by row batches, its WKB geometry decoded per batch (as geopandas)."""
+    import geopandas as gpd
+    import pyarrow as pa
+    import pyarrow.parquet as pq
+    import shapely
+
+    name, crs = _wkb_column(p)
+    keep = {"types_mapper": _integers_stay_integers}
+    pf = pq.ParquetFile(p)
+    meta = pf.schema_arrow.metadata
+    for batch in pf.iter_batches(batch_size=chunk_rows):
+        table = pa.Table.from_batches([batch])
+        wkb = table.column(name).to_numpy(zero_copy_only=False)
+        frame = table.drop_columns([name]).replace_schema_metadata(meta).to_pandas(**keep)
+        geometry = gpd.GeoSeries(shapely.from_wkb(wkb), crs=crs)
+        yield (*split_geometry(gpd.GeoDataFrame(frame, geometry=geometry)), ReadNotes())
 
 
 def _csv_parts(p: Path, chunk_rows: int):

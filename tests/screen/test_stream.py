@@ -81,7 +81,7 @@ def _read(path: Path) -> pd.DataFrame:
     return pyogrio.read_dataframe(path)
 
 
-def _sites_as(fmt: str, csv_path: Path, tmp_path: Path) -> Path:
+def _sites_as(fmt: str, csv_path: Path, tmp_path: Path, grid_layer: Path) -> Path:
     if fmt == "csv":
         return csv_path
     from neve.geo.screen.read import read_sites
@@ -92,12 +92,23 @@ def _sites_as(fmt: str, csv_path: Path, tmp_path: Path) -> Path:
         path = tmp_path / "sites.parquet"
         frame.to_parquet(path, index=False)
         return path
+    if fmt == "results":  # neve's own GeoParquet results, screened again
+        from neve.geo.screen.outputs import write_results
+        from neve.geo.screen.run import run_screen
+
+        path = tmp_path / "first.parquet"
+        write_results(run_screen(csv_path, layers=[grid_layer]).results, path)
+        return path
     import geopandas as gpd
 
     lat = pd.to_numeric(frame["lat"], errors="coerce")
     lon = pd.to_numeric(frame["lon"], errors="coerce")
     gdf = gpd.GeoDataFrame(frame.drop(columns=["lat", "lon"]),
                            geometry=gpd.points_from_xy(lon, lat), crs="EPSG:4326")  # fmt: skip
+    if fmt == "geoparquet":
+        path = tmp_path / "sites.geoparquet"
+        gdf.to_crs(3857).to_parquet(path, index=False)  # another CRS: points moved to WGS 84
+        return path
     path = tmp_path / "sites.gpkg"
     gdf.to_file(path, driver="GPKG")
     return path
@@ -125,9 +136,9 @@ def test_streamed_results_are_the_in_memory_results(tmp_path, grid_layer, suffix
     assert set(back.loc[back["site_id"] == "X902", "status"]) == {"error"}
 
 
-@pytest.mark.parametrize("fmt", ["parquet", "gpkg"])
+@pytest.mark.parametrize("fmt", ["parquet", "gpkg", "geoparquet", "results"])
 def test_streamed_inputs_of_every_format(tmp_path, grid_layer, fmt):
-    sites = _sites_as(fmt, _portfolio_csv(tmp_path), tmp_path)
+    sites = _sites_as(fmt, _portfolio_csv(tmp_path), tmp_path, grid_layer)
     roof = _roof(tmp_path)
     want, got = tmp_path / "memory.parquet", tmp_path / "streamed.parquet"
     _in_memory(sites, want, grid_layer, roof)
