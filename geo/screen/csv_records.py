@@ -156,7 +156,7 @@ def read_csv_records(path) -> CsvRecords:
     return _read_careful(path, data)
 
 
-def iter_csv_records(path, chunk_lines: int) -> Iterator[CsvRecords]:
+def iter_csv_records(path, chunk_lines: int, columns: list | None = None) -> Iterator[CsvRecords]:
     """Read a CSV site file in chunks of about ``chunk_lines`` physical lines.
 
     The records come out in order, each exactly as :func:`read_csv_records`
@@ -177,6 +177,9 @@ def iter_csv_records(path, chunk_lines: int) -> Iterator[CsvRecords]:
         The CSV file (UTF-8, with or without a byte-order mark).
     chunk_lines : int
         Physical lines per chunk [-], at least 1.
+    columns : list of str, optional
+        Only these columns in the frames (the records are the same; Arrow then
+        converts only these).
     """
     chunk_lines = max(1, int(chunk_lines))
     with open(path, "rb") as fh:
@@ -226,7 +229,7 @@ def iter_csv_records(path, chunk_lines: int) -> Iterator[CsvRecords]:
                 int(newlines[chunk_lines - 1]) + 1 if len(newlines) >= chunk_lines else len(pending)
             )
             block = pending[:cut]
-            rec = _fast_block(block, names)
+            rec = _fast_block(block, names, columns)
             if rec is not None:
                 used, n_lines = cut, rec.info["lines"]
             else:
@@ -238,6 +241,8 @@ def iter_csv_records(path, chunk_lines: int) -> Iterator[CsvRecords]:
                 used = lines.end(n_lines)
                 rec.info.update(lines=n_lines, multiline_records=len(rec.multiline),
                                 records_with_read_errors=len(rec.errors))  # fmt: skip
+                if columns is not None:
+                    rec.frame = rec.frame[list(columns)]
             pending = pending[used:]
             line_base += n_lines
             if before:
@@ -252,7 +257,7 @@ def iter_csv_records(path, chunk_lines: int) -> Iterator[CsvRecords]:
             yield CsvRecords(frame=frame, info=info)
 
 
-def _fast_block(block: bytes, names: list) -> CsvRecords | None:
+def _fast_block(block: bytes, names: list, columns: list | None = None) -> CsvRecords | None:
     """Arrow's reader for lines (no header) that the vectorised checks find clean, or None."""
     import pyarrow as pa
     import pyarrow.csv as pcsv
@@ -278,6 +283,9 @@ def _fast_block(block: bytes, names: list) -> CsvRecords | None:
                 strings_can_be_null=False,
                 quoted_strings_can_be_null=False,
                 null_values=[],
+                include_columns=None
+                if columns is None
+                else [keys[names.index(c)] for c in columns],
             ),
         )
     except (pa.ArrowInvalid, pa.ArrowTypeError):  # e.g. a byte that is not UTF-8
@@ -285,7 +293,7 @@ def _fast_block(block: bytes, names: list) -> CsvRecords | None:
     if invalid:
         return None
     frame = table.to_pandas()
-    frame.columns = names
+    frame.columns = names if columns is None else list(columns)
     lines = block.count(b"\n") + (0 if block.endswith(b"\n") else 1)
     records = len(frame)
     info = {"lines": lines, "records": records, "blank_lines": lines - records,

@@ -208,6 +208,31 @@ def iter_site_chunks(path: str | Path, chunk_rows: int):
         first = False
 
 
+def iter_site_column(path: str | Path, column: str, chunk_rows: int):
+    """One column of a site file, chunk by chunk (pandas Series), every record in order.
+
+    The records are those of :func:`iter_site_chunks` (only the one column is
+    converted: a first pass, e.g. for the site ids of the whole file).
+    """
+    p = Path(path)
+    fmt = site_format(p)
+    if fmt == "csv":
+        from neve.geo.screen.csv_records import iter_csv_records
+
+        for rec in iter_csv_records(p, chunk_rows, columns=[column]):
+            yield rec.frame[column]
+        return
+    if fmt == "parquet" and not _is_geoparquet(p):
+        import pyarrow.parquet as pq
+
+        keep = {"types_mapper": _integers_stay_integers}
+        for batch in pq.ParquetFile(p).iter_batches(batch_size=chunk_rows, columns=[column]):
+            yield batch.to_pandas(**keep)[column]
+        return
+    for frame, _ in iter_site_chunks(p, chunk_rows):
+        yield frame[column]
+
+
 def _readable(p: Path, fmt: str, parts):
     """The parts of a reader, a failure of the file turned into an InputError."""
     try:

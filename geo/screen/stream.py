@@ -35,6 +35,8 @@ from neve.engine.errors import InputError, NeveError
 CHUNK_ROWS_ENV = "NEVE_CHUNK_ROWS"
 #: rows per chunk when ``NEVE_CHUNK_ROWS`` is not set
 CHUNK_ROWS = 500_000
+#: rows per chunk of the first pass that reads the site ids of the whole file
+ID_PASS_ROWS = 2_000_000
 #: result formats written chunk by chunk
 STREAMED_FORMATS = ("csv", "parquet", "gpkg")
 
@@ -56,7 +58,12 @@ def _chunks_with_duplicates(path: Path, rows: int):
     ``site_id`` column (a first pass over the file); otherwise the chunk's own
     count is the whole file's.
     """
-    from neve.geo.screen.read import SITE_ID_NAMES, find_column, iter_site_chunks
+    from neve.geo.screen.read import (
+        SITE_ID_NAMES,
+        find_column,
+        iter_site_chunks,
+        iter_site_column,
+    )
 
     chunks = iter_site_chunks(path, rows)
     first = next(chunks)
@@ -65,7 +72,9 @@ def _chunks_with_duplicates(path: Path, rows: int):
         yield first, None
         return
     col = find_column(first[0].columns, SITE_ID_NAMES)
-    repeated = _repeated_ids(iter_site_chunks(path, rows), col) if col is not None else None
+    repeated = None
+    if col is not None:  # only the id column is read, in large chunks
+        repeated = _repeated_ids(iter_site_column(path, col, max(rows, ID_PASS_ROWS)))
 
     def marks(frame):
         if repeated is None:
@@ -87,12 +96,12 @@ def _arrow_ids(ids: pd.Series):
         return pa.array(ids.map(lambda v: None if pd.isna(v) else str(v)), type=pa.string())
 
 
-def _repeated_ids(chunks, col):
+def _repeated_ids(columns):
     """The site ids that appear on more than one row of the file (an Arrow array)."""
     import pyarrow as pa
     import pyarrow.compute as pc
 
-    parts = [_arrow_ids(frame[col]) for frame, _ in chunks]
+    parts = [_arrow_ids(ids) for ids in columns]
     types = {p.type for p in parts if not pa.types.is_null(p.type)}
     if len(types) > 1:
         parts = [p.cast(pa.string()) for p in parts]

@@ -182,6 +182,8 @@ def test_csv_chunks_read_as_the_whole_file(tmp_path, seed, monkeypatch):
         assert frame.equals(whole.frame) or (frame.empty and whole.frame.empty)
         assert errors == whole.errors and multi == whole.multiline
         assert info == whole.info
+        ids = [r.frame["site_id"] for r in cr.iter_csv_records(path, size, columns=["site_id"])]
+        assert pd.concat(ids, ignore_index=True).equals(whole.frame["site_id"])
 
 
 _KILLED = """
