@@ -34,7 +34,7 @@ from neve.engine.errors import InputError, NeveError
 #: environment variable: rows per chunk of a streamed ``neve screen`` run
 CHUNK_ROWS_ENV = "NEVE_CHUNK_ROWS"
 #: rows per chunk when ``NEVE_CHUNK_ROWS`` is not set
-CHUNK_ROWS = 500_000
+CHUNK_ROWS = 1_000_000
 #: rows per chunk of the first pass that reads the site ids of the whole file
 ID_PASS_ROWS = 2_000_000
 #: result formats written chunk by chunk
@@ -337,9 +337,7 @@ def stream_screen(
                     lap("read")
                     if len(frame) == 0:
                         continue
-                    site = parse_sites(frame, geometry)
-                    if repeated is not None:
-                        site.duplicate = repeated
+                    site = parse_sites(frame, geometry, duplicates=repeated)
                     lap("parse")
                     results = screen_sites(plan, site, lap)
                     writer.write(results, site.geometry)
