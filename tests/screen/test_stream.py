@@ -278,3 +278,15 @@ def test_sites_of_a_header_only_file_are_refused(tmp_path, grid_layer):
                                   "--layer", str(grid_layer)])  # fmt: skip
     assert r.exit_code == 2 and "no rows" in r.output
     assert not (tmp_path / "r.parquet").exists()
+
+
+def test_a_streamed_run_shows_its_progress(tmp_path, grid_layer, capsys):
+    from neve.geo.screen.stream import stream_screen
+
+    lat, lon = interior_points(30, seed=6)
+    sites = tmp_path / "s.parquet"
+    pd.DataFrame({"lat": lat, "lon": lon}).to_parquet(sites, index=False)
+    summary = stream_screen(sites, tmp_path / "r.csv", layers=[grid_layer], progress=True, rows=7)
+    err = capsys.readouterr().err
+    assert "screening" in err and "7/30" in err  # sites counted against the file's rows
+    assert summary["chunks"] == 5 and summary["rows"] == 30
