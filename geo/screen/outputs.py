@@ -353,7 +353,7 @@ def point_wkb(lon: np.ndarray, lat: np.ndarray):
 
     A WKB point is 21 bytes: byte order (1, little-endian), the geometry type as
     a uint32 (1, Point), then x and y as float64 (OGC Simple Features, Part 1,
-    Sec. 8.2; the encoding the GeoParquet specification names ``WKB``).  Built in
+    well-known binary; the encoding the GeoParquet specification names ``WKB``).  Built in
     one numpy pass: shapely's ``to_wkb`` gives the same bytes (the tests compare
     them) about 50 times slower.
 
