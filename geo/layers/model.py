@@ -139,6 +139,7 @@ class Layer:
         )
         self._cache: dict = {}
         self._risk_views: dict = {}
+        self._built: dict = {}  # unprepared prefilter geometries, shared by copies
 
     @property
     def quantity(self) -> str:
@@ -221,7 +222,38 @@ class Layer:
         state = self.__dict__.copy()
         state["_cache"] = {}
         state["_risk_views"] = {}
+        state["_built"] = {}
         return state
+
+    def __copy__(self):
+        """A copy with empty look-up caches that shares the unprepared prefilter geometries.
+
+        The grown union and the shrunk zones (:meth:`coverage_m`, :meth:`shrunk_m`)
+        are built once for the layer and its copies (one per thread of the local
+        engine); each copy prepares its own copy of them.
+        """
+        new = self.__class__.__new__(self.__class__)
+        new.__dict__.update(self.__getstate__())
+        new._built = self.__dict__.setdefault("_built", {})
+        return new
+
+    def _prefilter(self, key, build):
+        """The prepared geometry of ``key``: built once (shared by copies), prepared per copy."""
+        if key not in self._cache:
+            import threading
+
+            import shapely
+
+            built = self.__dict__.setdefault("_built", {})
+            with built.setdefault("lock", threading.Lock()):  # one build for all copies
+                base = built.get(key)
+                if base is None:
+                    base = mine = built[key] = build()
+                else:  # another copy built it: prepare a copy of our own
+                    mine = shapely.from_wkb(shapely.to_wkb(base))
+            shapely.prepare(mine)
+            self._cache[key] = mine
+        return self._cache[key]
 
     def info(self) -> dict:
         """The ``layer`` object of the JSON contract."""
@@ -314,8 +346,8 @@ class Layer:
         zone's boundary.  The shrink uses the largest Mercator scale factor
         over the zone's latitudes, so it never shrinks too little.
         """
-        key = ("shrunk", float(distance_m))
-        if key not in self._cache:
+
+        def build():
             import shapely
 
             from neve.geo.layers.vector import mercator_scale
@@ -325,15 +357,14 @@ class Layer:
             lat_max = np.maximum(np.abs(b["miny"].to_numpy()), np.abs(b["maxy"].to_numpy()))
             k = mercator_scale(np.nan_to_num(lat_max, nan=0.0))
             with np.errstate(invalid="ignore", over="ignore"):
-                shrunk = shapely.buffer(geoms, -distance_m * k * 1.001)
-            shapely.prepare(shrunk)
-            self._cache[key] = shrunk
-        return self._cache[key]
+                return shapely.buffer(geoms, -distance_m * k * 1.001)
+
+        return self._prefilter(("shrunk", float(distance_m)), build)
 
     def coverage_m(self, distance_m: float):
         """Union of the zones in EPSG:3395 grown by ``distance_m`` on the ground, prepared."""
-        key = ("coverage", float(distance_m))
-        if key not in self._cache:
+
+        def build():
             import shapely
 
             from neve.geo.layers.vector import mercator_scale
@@ -342,10 +373,9 @@ class Layer:
             b = self.frame.geometry.to_crs(4326).total_bounds
             k = float(mercator_scale(max(abs(b[1]), abs(b[3]))))
             with np.errstate(invalid="ignore", over="ignore"):
-                cover = shapely.buffer(shapely.union_all(geoms), distance_m * k * 1.001 + 1.0)
-            shapely.prepare(cover)
-            self._cache[key] = cover
-        return self._cache[key]
+                return shapely.buffer(shapely.union_all(geoms), distance_m * k * 1.001 + 1.0)
+
+        return self._prefilter(("coverage", float(distance_m)), build)
 
     # --- what maps need -------------------------------------------------------
     def view(self, center: tuple[float, float] | None = None, radius_m: float = 5000) -> dict:

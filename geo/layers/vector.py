@@ -73,6 +73,24 @@ def bbox_candidates(layer, x: np.ndarray, y: np.ndarray) -> tuple[np.ndarray, np
     return np.concatenate(si), np.concatenate(zi)
 
 
+def _own_zone(qi, cz, qn_site, nz, n_sites: int, n_zones: int) -> np.ndarray:
+    """True for the (site, zone) pairs ``(qn_site, nz)`` that are among ``(qi, cz)``.
+
+    A site is in one zone almost always: its zone is looked up by index; only the
+    pairs of sites in several zones (on a shared edge) are matched as pair keys.
+    """
+    zone_of = np.full(n_sites, -1, dtype=np.intp)
+    zone_of[qi] = cz
+    same = zone_of[qn_site] == nz
+    counts = np.bincount(qi, minlength=n_sites)
+    several = counts[qn_site] > 1
+    if several.any():
+        sel = np.flatnonzero(several)
+        mine = counts[qi] > 1
+        same[sel] = np.isin(qn_site[sel] * n_zones + nz[sel], qi[mine] * n_zones + cz[mine])
+    return same
+
+
 def layer_hits(layer, lon, lat, elev_ft, search_m: float | None = None) -> Hits:
     """Look up n sites in one layer.
 
@@ -136,9 +154,8 @@ def layer_hits(layer, lon, lat, elev_ft, search_m: float | None = None) -> Hits:
         pts_m = shapely.points(xm[bi], ym[bi])
         qn, nz = tree_m.query(pts_m, predicate="dwithin", distance=search * k)
         qn_site = bi[qn]
-    if qn_site.size and qi.size:
-        nzones = len(zt)
-        same = np.isin(qn_site * nzones + nz, qi * nzones + cz)
+    if qn_site.size and qi.size:  # a neighbour that is the site's own zone is no neighbour
+        same = _own_zone(qi, cz, qn_site, nz, idx.size, len(zt))
         qn, qn_site, nz = qn[~same], qn_site[~same], nz[~same]
     if qn_site.size:
         dist = shapely.distance(pts_m[qn], geoms_m[nz]) / k[qn]

@@ -151,8 +151,21 @@ def _profile_errors(sites: SiteArrays, roofs) -> None:
     sites.error[todo] = [f"roof: unknown profile {v!r}; accepted: {accepted}" for v in names[todo]]
 
 
-def run_screen(
-    sites,
+@dataclass
+class ScreenPlan:
+    """What a screening run checked and loaded before reading any site (shared by chunks)."""
+
+    layers: list
+    roofs: object
+    explicit: object
+    engine: str
+    kwargs: dict
+    resolver: object
+    geocoding: dict
+    max_rows: int | None = None
+
+
+def plan_screen(
     *,
     layers=None,
     dem=None,
@@ -170,23 +183,12 @@ def run_screen(
     progress: bool = False,
     elevation_source: str = "larger",
     standard=None,
-) -> ScreenRun:
-    """Screen sites; return the results with their summary (see :func:`screen`).
-
-    ``standard``: the standard of the roof loads (an id or name of
-    :mod:`neve.engine.standards`; the default one when omitted).
-    """
+) -> ScreenPlan:
+    """Check the options and load the layers and roofs of a run (see :func:`run_screen`)."""
     from neve.engine.choices import choose_key
     from neve.engine.standards import get_standard
 
     explicit = get_standard(standard) if standard is not None else None  # unknown: refused now
-
-    t0 = time.perf_counter()
-    timings: dict[str, float] = {}
-
-    def lap(name: str) -> None:
-        timings[name] = round(time.perf_counter() - t0 - sum(timings.values()), 3)
-
     engine = choose_key("engine", engine, ENGINES)
     from neve.geo.layers.model import dem_argument
 
@@ -204,35 +206,6 @@ def run_screen(
         layers = demo_layers_for(explicit)  # --standard asce7-22: the 7-22 demo layers
     layer_list = _layers(layers)
     roofs = _roofs(roof)
-    lap("layers")
-    site = load_sites(sites)
-    if max_rows is not None and len(site) > max_rows:
-        raise InputError(
-            "output",
-            f"{len(site):,} sites do not fit in the chosen output ({max_rows:,} rows at most)",
-            "a .csv, .gpkg or .parquet output for large portfolios",
-        )
-    _profile_errors(site, roofs)
-    from neve.geo.screen.editions import has_per_risk, resolve_by_risk, row_risk, w2_columns
-
-    risk, risk_cell = row_risk(site, roofs)  # before the look-up: a bad risk cell is a row error
-    lap("read")
-    if site.address is not None and (site.address != "").any():
-        from neve.geo.screen.geocode_rows import geocode_sites
-
-        geocode_sites(
-            site,
-            geocoder,
-            gazetteer=gazetteer,
-            url=geocoder_url,
-            cache_path=geocode_cache,
-            progress=progress,
-        )
-        lap("geocode")
-    valid = (site.error == "") & np.isfinite(site.lat) & np.isfinite(site.lon)
-    idx = np.flatnonzero(valid)
-    elev = site.elevation_ft[idx]
-    elev_arg = elev if np.isfinite(elev).any() else None
     kwargs = dict(
         layers=layer_list,
         dem=dem,
@@ -248,6 +221,32 @@ def run_screen(
                                        staging=staging, **kw)  # fmt: skip
     else:
         resolver = resolve_local_result
+    geocoding = dict(geocoder=geocoder, gazetteer=gazetteer, url=geocoder_url,
+                     cache_path=geocode_cache, progress=progress)  # fmt: skip
+    return ScreenPlan(layer_list, roofs, explicit, engine, kwargs, resolver, geocoding, max_rows)
+
+
+def screen_sites(plan: ScreenPlan, site: SiteArrays, lap=None) -> pd.DataFrame:
+    """The results of parsed sites under a plan: every row, in order (see :func:`run_screen`)."""
+    lap = lap or (lambda name: None)
+    layer_list, roofs, explicit = plan.layers, plan.roofs, plan.explicit
+    _profile_errors(site, roofs)
+    from neve.geo.screen.editions import has_per_risk, resolve_by_risk, row_risk, w2_columns
+
+    risk, risk_cell = row_risk(site, roofs)  # before the look-up: a bad risk cell is a row error
+    lap("read")
+    if site.address is not None and (site.address != "").any():
+        from neve.geo.screen.geocode_rows import geocode_sites
+
+        geocode_sites(site, plan.geocoding["geocoder"], **{
+            k: v for k, v in plan.geocoding.items() if k != "geocoder"})  # fmt: skip
+        lap("geocode")
+    valid = (site.error == "") & np.isfinite(site.lat) & np.isfinite(site.lon)
+    idx = np.flatnonzero(valid)
+    elev = site.elevation_ft[idx]
+    elev_arg = elev if np.isfinite(elev).any() else None
+    kwargs = dict(plan.kwargs)
+    resolver = plan.resolver
     if len(idx) == 0:
         resolved = None
     elif has_per_risk(layer_list):  # per-risk layers (ASCE 7-22): once per risk category
@@ -270,16 +269,42 @@ def run_screen(
     out = {**_result_columns(res, site), **w2_cols, **roof_cols, **record_cols}  # text: the edge
     results = _join_input(site.frame, out)
     lap("roof_and_assemble")
+    return results
+
+
+def run_screen(sites, **options) -> ScreenRun:
+    """Screen sites; return the results with their summary (see :func:`screen`).
+
+    Takes the options of :func:`plan_screen`; ``standard``: the standard of the
+    roof loads (an id or name of :mod:`neve.engine.standards`; the default one
+    when omitted).
+    """
+    t0 = time.perf_counter()
+    timings: dict[str, float] = {}
+
+    def lap(name: str) -> None:
+        timings[name] = round(time.perf_counter() - t0 - sum(timings.values()), 3)
+
+    plan = plan_screen(**options)
+    lap("layers")
+    site = load_sites(sites)
+    if plan.max_rows is not None and len(site) > plan.max_rows:
+        raise InputError(
+            "output",
+            f"{len(site):,} sites do not fit in the chosen output ({plan.max_rows:,} rows at most)",
+            "a .csv, .gpkg or .parquet output for large portfolios",
+        )
+    results = screen_sites(plan, site, lap)
     summary = summarize(
         results,
-        layer_list,
-        engine=engine,
+        plan.layers,
+        engine=plan.engine,
         seconds=time.perf_counter() - t0,
         input_info=site.input_info,
     )
     summary["timings_s"] = timings
     geometry = getattr(site, "geometry", None)
-    return ScreenRun(results, summary, geometry, layer_list)
+    return ScreenRun(results, summary, geometry, plan.layers)
 
 
 def screen(sites, *, layers=None, dem=None, dem_units=None, roof=None, engine="local", **kw):

@@ -620,6 +620,7 @@ EXPECTED_OPTIONS = {
             _DEM,
             _DEM_UNITS,
             _LAYERS,
+            _LAYER_META,
             _BASEMAP,
             _BASEMAP_ATTR,
             _GAZETTEER,

@@ -120,3 +120,22 @@ def test_pg_screening_keeps_its_columns(tmp_path):
     assert {"pg_psf", "pg_kpa", "pf_psf", "design_uniform_psf"} <= set(res.columns)
     assert "sk_kpa" not in res.columns
     json.dumps(list(res.columns))
+
+
+def test_a_streamed_run_on_sk_layers_is_the_whole_run(tmp_path, sk_layer, monkeypatch):
+    # streamed screening (issue 16) in chunks of two rows gives the rows and the summary of one
+    # run, the sk range included (regression guard: the chunks' sk ranges were not merged)
+    sites = tmp_path / "s.csv"
+    _sites().to_csv(sites, index=False)
+    got = {}
+    for label, rows in (("whole", "1000"), ("chunks", "2")):
+        monkeypatch.setenv("NEVE_CHUNK_ROWS", rows)
+        out, js = tmp_path / f"{label}.csv", tmp_path / f"{label}.json"
+        res = CliRunner().invoke(main, ["screen", str(sites), "--layer", str(sk_layer), "-o", str(out),
+                                        "--summary-json", str(js), "--quiet"])  # fmt: skip
+        assert res.exit_code == 0, res.output
+        got[label] = (out.read_text(), json.loads(js.read_text()))
+    assert got["whole"][0] == got["chunks"][0]
+    whole, chunks = got["whole"][1], got["chunks"][1]
+    assert chunks["chunks"] > 1
+    assert chunks["sk_kpa"] == whole["sk_kpa"] and whole["sk_kpa"] is not None

@@ -67,8 +67,23 @@ def _version() -> str:
         return "0+unknown"
 
 
+def _print_version(ctx: click.Context, _param, value: bool) -> None:
+    """``--version``: the installed version, looked up only when asked (issue 16)."""
+    if not value or ctx.resilient_parsing:
+        return
+    click.echo(f"neve, version {_version()}")
+    ctx.exit()
+
+
 @click.group(cls=_LazyGroup)
-@click.version_option(_version(), prog_name="neve")
+@click.option(
+    "--version",
+    is_flag=True,
+    expose_value=False,
+    is_eager=True,
+    callback=_print_version,
+    help="Show the version and exit.",
+)
 def cli() -> None:
     """neve: design snow loads from a site's ground snow load to its roof load cases.
 

@@ -170,6 +170,38 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
     except ValueError:  # not the main thread: leave signals alone
         previous = None
     try:
+        from neve.geo.screen.stream import STREAMED_FORMATS, stream_screen
+
+        if (
+            fmt in STREAMED_FORMATS
+            and not is_db_url(sites)  # a PostGIS source is read whole (neve.geo.postgis)
+            and not map_path
+            and compare is None
+            and engine.lower() == "local"
+        ):
+            # the site file read in chunks, the results written as each is done (issue 16)
+            summary = stream_screen(
+                sites,
+                output,
+                overwrite=overwrite,
+                csv_raw=csv_raw,
+                progress=progress,
+                layers=list(layers) or None,
+                dem=dem,
+                dem_units=dem_units,
+                elevation_source=elevation_source,
+                roof=roof,
+                gazetteer=gazetteer,
+                geocoder_url=geocoder_url,
+                geocode_cache=geocode_cache,
+                standard=standard,
+            )
+            if summary_json:
+                text = json.dumps(summary, indent=2)
+                write_text(summary_json, text, overwrite=overwrite, field="summary-json")
+            click.echo(format_summary(summary))
+            click.echo(f"results: {output}")
+            return
         screen_run = run_screen
         if compare is not None:  # each edition screened, then joined (geo/screen/compare.py)
             from functools import partial
