@@ -253,5 +253,105 @@ def test_elevation_is_sampled_over_the_circle(grid_layer, tmp_path):
     assert over["used"] == over["max"]
     assert 70.0 <= over["max"]["m"] - over["min"]["m"] <= 90.0
     assert r.ground["elevation"]["m"] == pytest.approx(over["max"]["m"], abs=0.01)
+    assert r.ground["elevation_source"] == "dem"  # the DEM's, sampled over the circle
     exact = resolve_site(lat, lon, layers=[grid_layer], dem=dem)
     assert exact.ground["elevation_over_radius"] is None
+
+
+# ---------------------------------------------------------------- elevation over the circle
+def _circle_max_ft(lat, lon, radius_m, dem):
+    """The largest DEM value over the circle's sample points, read with rasterio's own
+    ``DatasetReader.sample`` (the reference library) after pyproj's transform."""
+    import numpy as np
+    import rasterio
+    from pyproj import Transformer
+
+    from neve.engine.units import FT_PER_M
+    from neve.geo.site.circle import circle_points
+
+    la, lo = circle_points([lat], [lon], [radius_m])
+    with rasterio.open(dem) as ds:
+        x, y = Transformer.from_crs(4326, ds.crs, always_xy=True).transform(lo.ravel(), la.ravel())
+        vals = np.array([v[0] for v in ds.sample(zip(x, y, strict=True), masked=True)], float)
+        vals = vals[vals != ds.nodata]
+    return float(vals.max()) * FT_PER_M, float(vals.min()) * FT_PER_M
+
+
+def test_an_elevation_dependent_value_within_the_circle_is_flagged_and_the_larger_governs(
+    grid_layer, tmp_path
+):
+    """Z4 interpolates its invented table [[0, 20], [1000, 40]] (ft, psf): over a 400 m circle
+    the DEM spans about 80 m, so the value at the maximum elevation governs and the flag is set.
+    Reference for pg: the piecewise-linear interpolation of the fixture's own table (docs/
+    contract.md, rule elevation_table) at the maximum read by rasterio's sample()."""
+    from neve.geo.site.one import resolve_site
+    from tests.geo.conftest import write_dem
+
+    dem = write_dem(tmp_path / "dem.tif")
+    lat, lon = centre(0, 1)
+    hi_ft, lo_ft = _circle_max_ft(lat, lon, 400.0, dem)
+    r = resolve_site(lat, lon, layers=[grid_layer], dem=dem, location_precision="place",
+                     location_radius_m=400.0)  # fmt: skip
+    g = r.ground
+    over = g["elevation_over_radius"]
+    assert "elevation_rule_within_radius" in g["flags"] and over["rule_change"] is True
+    assert g["status"] == "provisional"
+    assert over["max"]["ft"] == pytest.approx(hi_ft, abs=1e-3)
+    assert over["min"]["ft"] == pytest.approx(lo_ft, abs=1e-3)
+    assert over["used_at"] == "maximum" and over["used"] == over["max"]
+    assert g["pg"]["psf"] == pytest.approx(20.0 + 20.0 * hi_ft / 1000.0, abs=1e-3)
+    assert over["at_min"]["pg"]["psf"] == pytest.approx(20.0 + 20.0 * lo_ft / 1000.0, abs=1e-3)
+    # honest labels: the elevation is the DEM's (over the circle), never "input", and is not
+    # compared with the DEM at the centre as if it had been given
+    assert g["elevation_source"] == "dem"
+    assert "elevation_mismatch" not in g["flags"] and g["elevation_alternatives"] == []
+    assert "maximum over the location circle" in g["steps"][0]["description"]
+    text = r.to_text()
+    assert "elevation_rule_within_radius" in text and "at min ok" in text
+
+
+def test_an_elevation_limit_within_the_circle_requires_the_study(tmp_path):
+    """An invented zone (25 psf, elev_max three quarters of the way from the circle's DEM minimum
+    to its maximum, above the DEM at the centre):
+    at the minimum it maps 25 psf, at the maximum a study is required; the study governs."""
+    from shapely.geometry import box
+
+    from neve.geo.site.one import resolve_site
+    from tests.geo.conftest import LAT0, LON0, write_dem
+
+    dem = write_dem(tmp_path / "dem.tif")
+    lat, lon = centre(0, 0)
+    hi_ft, lo_ft = _circle_max_ft(lat, lon, 400.0, dem)
+    nan = float("nan")
+    row = {"zone_id": "L", "rule": "fixed", "pg": 25.0, "elev_max": lo_ft + 0.75 * (hi_ft - lo_ft),
+           "table": None, "expr": None, "Z": nan, "pg_min": nan,
+           "geometry": box(LON0, LAT0, LON0 + 0.03, LAT0 + 0.02)}  # fmt: skip
+    layer = write_layer(tmp_path / "limit.gpkg", [row])
+    r = resolve_site(lat, lon, layers=[layer], dem=dem, location_precision="postal_code",
+                     location_radius_m=400.0)  # fmt: skip
+    g = r.ground
+    over = g["elevation_over_radius"]
+    assert g["status"] == "study_required" and g["pg"] is None
+    assert {"elevation_rule_within_radius", "above_elevation_limit"} <= set(g["flags"])
+    assert over["at_min"] == {"status": "ok", "pg": {"psf": 25.0, "kPa": pytest.approx(1.197, abs=1e-3)}}
+    assert over["at_max"]["status"] == "study_required"
+    # at the exact coordinates (no circle), the DEM at the site is below the limit: 25 psf
+    exact = resolve_site(lat, lon, layers=[layer], dem=dem)
+    assert exact.ground["pg"]["psf"] == pytest.approx(25.0)
+    assert "elevation_rule_within_radius" not in exact.ground["flags"]
+
+
+def test_a_fixed_value_over_the_circle_is_not_flagged(grid_layer, tmp_path):
+    """Z1 maps 20 psf at every elevation: the circle's relief changes nothing."""
+    from neve.geo.site.one import resolve_site
+    from tests.geo.conftest import write_dem
+
+    dem = write_dem(tmp_path / "dem.tif")
+    lat, lon = centre(0, 0)
+    r = resolve_site(lat, lon, layers=[grid_layer], dem=dem, location_precision="place",
+                     location_radius_m=300.0)  # fmt: skip
+    g = r.ground
+    assert g["status"] == "ok" and g["pg"]["psf"] == pytest.approx(20.0)
+    assert "elevation_rule_within_radius" not in g["flags"]
+    assert g["elevation_over_radius"]["rule_change"] is False
+    assert g["elevation_source"] == "dem"
