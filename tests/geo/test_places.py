@@ -355,3 +355,52 @@ def test_a_fixed_value_over_the_circle_is_not_flagged(grid_layer, tmp_path):
     assert "elevation_rule_within_radius" not in g["flags"]
     assert g["elevation_over_radius"]["rule_change"] is False
     assert g["elevation_source"] == "dem"
+
+
+# ---------------------------------------------------------------- neve compare, as neve site
+def test_compare_by_address_carries_the_location_of_neve_site():
+    """`neve compare --address` locates through the same code as `neve site --address`: the
+    same coordinates (the zipcodes record), precision, radius, source and flag."""
+    z = _zip_record("05401")
+    eds = ["--standard", "asce7-16", "--standard", "asce7-22"]
+    r = CliRunner().invoke(main, ["compare", "--address", "05401", *eds, "--format", "json"])
+    assert r.exit_code == 0, r.output
+    out = json.loads(r.output)
+    one = json.loads(CliRunner().invoke(main, ["site", "--address", "05401", "--format",
+                                               "json"]).output)  # fmt: skip
+    keys = ("lat", "lon", "address", "location_precision", "location_radius", "location_source")
+    assert {k: out["site"][k] for k in keys} == {k: one["site"][k] for k in keys}
+    assert out["site"]["location_precision"] == "postal_code"
+    assert (out["site"]["lat"], out["site"]["lon"]) == (
+        pytest.approx(float(z["lat"])), pytest.approx(float(z["long"])))  # fmt: skip
+    for res in out["results"]:
+        assert "location_approximate" in res["ground"]["flags"]
+    text = CliRunner().invoke(main, ["compare", "--address", "05401", *eds]).output
+    assert "location: postal_code" in text
+
+
+def test_compare_by_an_ambiguous_name_lists_candidates_and_region_narrows_it():
+    eds = ["--standard", "asce7-16", "--standard", "asce7-22"]
+    r = CliRunner().invoke(main, ["compare", "--address", "Springfield", *eds])
+    assert r.exit_code == 2, r.output
+    assert "Springfield, IL, US" in r.output and "Springfield, MA, US" in r.output
+    assert r.exception is None or isinstance(r.exception, SystemExit)
+    il = _city("Springfield", "IL")
+    r = CliRunner().invoke(main, ["compare", "--address", "Springfield", "--region", "IL",
+                                  "--country", "US", *eds, "--format", "json"])  # fmt: skip
+    assert r.exit_code == 0, r.output
+    site = json.loads(r.output)["site"]
+    assert site["location_precision"] == "place"
+    assert (site["lat"], site["lon"]) == (pytest.approx(il["latitude"]), pytest.approx(il["longitude"]))
+
+
+@pytest.mark.parametrize(
+    "text", ["", "x" * 5000, "{{7*7}}", "{% raw %}", "${7*7}", "<img src=x onerror=alert(1)>",
+             "Москва Denver 北京", "\u202eevil", "99999"],
+)  # fmt: skip
+def test_compare_hostile_addresses_exit_2_without_a_traceback(text):
+    eds = ["--standard", "asce7-16", "--standard", "asce7-22"]
+    r = CliRunner().invoke(main, ["compare", "--address", text, *eds])
+    assert r.exit_code == 2, r.output
+    assert r.exception is None or isinstance(r.exception, SystemExit)
+    assert "Traceback" not in r.output

@@ -42,6 +42,28 @@ def _check_output(path: str | None, field: str, overwrite: bool, is_dir: bool = 
     check_target(path, overwrite=overwrite, field=field, parents=True)
 
 
+def locate_address(kw: dict) -> tuple[float, float, str, dict]:
+    """``--address`` located (:func:`neve.geo.site.places.locate`): lat, lon, the address found,
+    and the ``location_*`` keywords of :func:`neve.geo.site.one.resolve_site`.
+
+    Shared by ``neve site`` and ``neve compare``, so both locate an address alike.
+    """
+    from neve.geo.site.places import locate
+
+    hit = locate(
+        kw["address"],
+        gazetteer=kw.get("gazetteer"),
+        url=kw.get("geocoder_url"),
+        country=kw.get("country"),
+        region=kw.get("region"),
+        user_agent=kw.get("user_agent"),
+        timeout=kw.get("geocoder_timeout") or 10.0,
+    )
+    located = dict(location_precision=hit.precision, location_radius_m=hit.radius_m,
+                   location_source=hit.source)  # fmt: skip
+    return hit.lat, hit.lon, hit.address, located
+
+
 @click.command("site")
 @click.option("--at", "at", metavar="LAT,LON", help="Site coordinates, decimal or DMS.")
 @click.option("--address", help="Site address, US ZIP code or place name (offline gazetteer; "
@@ -92,20 +114,8 @@ def site(**kw) -> None:
         lat, lon = parse_latlon(kw["at"])
         given = kw["at"]
     else:
-        from neve.geo.site.places import locate
-
-        hit = locate(
-            kw["address"],
-            gazetteer=kw["gazetteer"],
-            url=kw["geocoder_url"],
-            country=kw["country"],
-            region=kw["region"],
-            user_agent=kw["user_agent"],
-            timeout=kw["geocoder_timeout"],
-        )
-        lat, lon, address, given = hit.lat, hit.lon, hit.address, kw["address"]
-        located = dict(location_precision=hit.precision, location_radius_m=hit.radius_m,
-                       location_source=hit.source)  # fmt: skip
+        lat, lon, address, located = locate_address(kw)
+        given = kw["address"]
     result = resolve_site(
         lat,
         lon,
