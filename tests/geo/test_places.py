@@ -404,3 +404,38 @@ def test_compare_hostile_addresses_exit_2_without_a_traceback(text):
     assert r.exit_code == 2, r.output
     assert r.exception is None or isinstance(r.exception, SystemExit)
     assert "Traceback" not in r.output
+
+
+def test_screen_works_each_approximate_row_over_its_circle(grid_layer, tmp_path):
+    """neve screen, per row, as neve site: rows located at a 'place' (an invented geocoder
+    answering with the fixture's cell centres and a 400 m radius) over the fixture DEM."""
+    import pandas as pd
+
+    from neve.geo.screen.run import screen
+    from neve.geo.site.one import resolve_site
+    from tests.geo.conftest import write_dem
+
+    dem = write_dem(tmp_path / "dem.tif")
+    cells = {"table": centre(0, 1), "fixed": centre(0, 0)}
+
+    def geocoder(address):
+        lat, lon = cells[address]
+        return places.Located(lat, lon, address, "test geocoder (invented)", "place", 400.0)
+
+    sites = pd.DataFrame({"site_id": ["t", "f", "given"], "address": ["table", "fixed", "table"],
+                          "elevation": ["", "", "100m"]})  # fmt: skip
+    out = screen(sites, layers=[grid_layer], dem=dem, geocoder=geocoder).set_index("site_id")
+    one = resolve_site(*cells["table"], layers=[grid_layer], dem=dem, location_precision="place",
+                       location_radius_m=400.0).ground  # fmt: skip
+    t = out.loc["t"]
+    assert "elevation_rule_within_radius" in t["flags"] and t["status"] == "provisional"
+    assert t["pg_psf"] == pytest.approx(one["pg"]["psf"], abs=1e-3)
+    assert t["site_elevation_source"] == "dem"
+    assert t["location_elevation_max_ft"] == pytest.approx(one["elevation_over_radius"]["max"]["ft"], abs=1e-2)
+    assert t["location_elevation_min_ft"] == pytest.approx(one["elevation_over_radius"]["min"]["ft"], abs=1e-2)
+    f = out.loc["f"]
+    assert "elevation_rule_within_radius" not in f["flags"] and f["pg_psf"] == pytest.approx(20.0)
+    # a row that gives its elevation keeps it: no circle sampling
+    g = out.loc["given"]
+    assert g["site_elevation_source"] == "input" and math.isnan(g["location_elevation_max_ft"])
+    assert "elevation_rule_within_radius" not in g["flags"]
