@@ -164,8 +164,8 @@ def location_radius_m(site_json: dict) -> float:
 def circle_elevation_text(ground: dict, radius_m: float) -> str:
     """The DEM over the location circle in words (``ground.elevation_over_radius``); "" if none.
 
-    ``DEM over the 400 m location circle: min 71.0 m (233 ft), max 153.0 m (502 ft), used the
-    maximum; at the minimum ok, 24.7 psf; at the maximum ok, 30.0 psf: an elevation rule
+    ``DEM over the 400 m location circle: min 233 ft (71 m), max 502 ft (153 m), used the
+    maximum, 502 ft (153 m); at the minimum ok, 24.7 psf; at the maximum ok, 30.0 psf: an elevation rule
     change lies within the circle (the more demanding result governs)``.
     """
     over = ground.get("elevation_over_radius")
@@ -174,7 +174,7 @@ def circle_elevation_text(ground: dict, radius_m: float) -> str:
     text = (
         f"DEM over the {style.num(radius_m, 0)} m location circle: min "
         f"{style.elevation_text(over.get('min'))}, max {style.elevation_text(over.get('max'))}, "
-        f"used the {over.get('used_at') or 'maximum'} ({style.elevation_text(over.get('used'))})"
+        f"used the {over.get('used_at') or 'maximum'}, {style.elevation_text(over.get('used'))}"
     )
     at = []
     for key, name in (("at_min", "minimum"), ("at_max", "maximum")):

@@ -331,8 +331,11 @@ def resolve_site(
         The uncertainty radius of the location [m]: every layer's boundary
         tolerance is raised to it (:meth:`neve.geo.layers.model.Layer.widened`),
         so a zone of another value or a study area within the circle flags the
-        site and the larger value governs; with a DEM the elevation is sampled
-        over the circle and its maximum used (``ground.elevation_over_radius``).
+        site and the larger value governs; with a DEM and no ``elevation`` the
+        site is worked at the DEM's minimum and maximum over the circle, the more
+        demanding result governs, and where they differ the flag
+        ``elevation_rule_within_radius`` is set (:mod:`neve.geo.site.circle`;
+        ``ground.elevation_over_radius``; the elevation source is ``dem``).
     location_source : str, optional
         Where the location came from (reported in ``site.location_source``).
     on_record_psf : float, optional

@@ -439,3 +439,47 @@ def test_screen_works_each_approximate_row_over_its_circle(grid_layer, tmp_path)
     g = out.loc["given"]
     assert g["site_elevation_source"] == "input" and math.isnan(g["location_elevation_max_ft"])
     assert "elevation_rule_within_radius" not in g["flags"]
+
+
+def test_the_map_panel_and_the_package_state_the_elevations_over_the_circle(grid_layer, tmp_path):
+    from neve.engine.jsonsafe import finite_copy
+    from neve.geo.site.one import resolve_site
+    from neve.maps.site_map import circle_elevation_text, write_site_map
+    from tests.geo.conftest import write_dem
+
+    dem = write_dem(tmp_path / "dem.tif")
+    r = resolve_site(*centre(0, 1), layers=[grid_layer], dem=dem, location_precision="place",
+                     location_radius_m=400.0)  # fmt: skip
+    data = finite_copy(r.to_json())
+    line = circle_elevation_text(data["ground"], 400.0)
+    assert "used the maximum" in line and "elevation_rule_within_radius" in line
+    write_site_map(data, r.views(), tmp_path / "m.html", self_contained=True)
+    page = (tmp_path / "m.html").read_text(encoding="utf-8")
+    assert "DEM over the 400 m location circle" in page
+    from neve.maps.package import write_package
+
+    write_package(data, r.views(), tmp_path / "pkg", project="P", site_name="S")
+    report = (tmp_path / "pkg" / "report.html").read_text(encoding="utf-8")
+    assert "DEM over the 400 m location circle" in report
+    assert "elevation_rule_within_radius" in report
+    # no circle (exact coordinates): no line
+    assert circle_elevation_text(finite_copy(resolve_site(*centre(0, 1), layers=[grid_layer],
+                                                          dem=dem).to_json())["ground"], 0) == ""
+
+
+@pytest.mark.parametrize(
+    "text", ["", "x" * 5000, "{% for x in y %}{% endfor %}", "${7*7}", "{{ config }}",
+             "<b onmouseover=alert(1)>x</b>", "Москва Denver 北京", "\u202ertl", "Zürich\x00"],
+)  # fmt: skip
+def test_screen_hostile_addresses_are_error_rows(text, tmp_path):
+    """Each hostile address is its own row's error; the other row is still screened."""
+    import pandas as pd
+
+    sites = tmp_path / "s.csv"
+    pd.DataFrame({"site_id": ["bad", "good"], "address": [text, "05401"]}).to_csv(sites, index=False)
+    out = tmp_path / "r.csv"
+    r = CliRunner().invoke(main, ["screen", str(sites), "-o", str(out), "--quiet"])
+    assert r.exit_code == 0, r.output
+    res = pd.read_csv(out, keep_default_na=False).set_index("site_id")
+    assert res.loc["bad", "status"] == "error"
+    assert res.loc["good", "location_precision"] == "postal_code"
