@@ -366,8 +366,9 @@ def _widen_approximate(resolved, site, idx, elev_arg, risk, layer_list, resolver
         el = None if elev_arg is None else elev_arg[pos]
         circle = np.zeros(pos.size, dtype=bool)
         over = None
-        if dem is not None:
+        if dem is not None:  # ZIP code and place rows (an address's 50 m is taken as exact)
             no_el = np.ones(pos.size, bool) if el is None else ~np.isfinite(el)
+            no_el &= approx[pos]
             if no_el.any():
                 at = np.flatnonzero(no_el)
                 over = elevation_over_circle(site.lat[rows[at]], site.lon[rows[at]], float(r),

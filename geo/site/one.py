@@ -373,7 +373,7 @@ def resolve_site(
     layers = [ly for ly in layers if ly.quantity != "w2"] + [
         ly for ly in layers if ly.quantity == "w2"
     ]
-    from neve.geo.site.places import PRECISIONS
+    from neve.geo.site.places import APPROXIMATE, PRECISIONS
 
     location_precision = choose_key("location-precision", location_precision, PRECISIONS)
     radius_m = float(location_radius_m or 0.0)
@@ -385,7 +385,8 @@ def resolve_site(
     look_kw = dict(elevation_ft=[elev_in], dem=dem_path, dem_units=dem_units, search_m=SEARCH_M,
                    elevation_source=elevation_source)  # fmt: skip
     over = None
-    if radius_m > 0 and dem_path is not None and math.isnan(elev_in):
+    circle = location_precision in APPROXIMATE and radius_m > 0 and math.isnan(elev_in)
+    if circle and dem_path is not None:
         over = _over_circle(lat, lon, radius_m, dem_path, dem_units, layers)
     if over is None:
         res = resolve([lat], [lon], layers=layers, keep_detail=True, **look_kw)
