@@ -147,6 +147,7 @@ def summary_context(site_json: dict) -> dict:
         "flags": [str(f) for f in ground.get("flags") or []],
         "elevation": style.elevation_text(ground.get("elevation"), metres),
         "elevation_source": ground.get("elevation_source") or "none",
+        "elevation_circle": circle_elevation_text(ground, location_radius_m(site_json)),
         "distance": style.elevation_text(ground.get("distance_to_other"), metres)
         if ground.get("distance_to_other")
         else "",
@@ -172,6 +173,38 @@ def location_radius_m(site_json: dict) -> float:
     except (TypeError, ValueError, AttributeError):
         return 0.0
     return m if math.isfinite(m) and m > 0 else 0.0
+
+
+def circle_elevation_text(ground: dict, radius_m: float) -> str:
+    """The DEM over the location circle in words (``ground.elevation_over_radius``); "" if none.
+
+    ``DEM over the 400 m location circle: min 233 ft (71 m), max 502 ft (153 m), used the
+    maximum, 502 ft (153 m); at the minimum ok, 24.7 psf; at the maximum ok, 30.0 psf: an elevation rule
+    change lies within the circle (the more demanding result governs)``.
+    """
+    over = ground.get("elevation_over_radius")
+    if not isinstance(over, dict) or not over.get("min"):
+        return ""
+    text = (
+        f"DEM over the {style.num(radius_m, 0)} m location circle: min "
+        f"{style.elevation_text(over.get('min'))}, max {style.elevation_text(over.get('max'))}, "
+        f"used the {over.get('used_at') or 'maximum'}, {style.elevation_text(over.get('used'))}"
+    )
+    at = []
+    for key, name in (("at_min", "minimum"), ("at_max", "maximum")):
+        got = over.get(key)
+        if isinstance(got, dict):
+            status = str(got.get("status") or "").replace("_", " ")
+            load = f", {_summary_load(got['pg'])}" if isinstance(got.get("pg"), dict) else ""
+            at.append(f"at the {name} {status}{load}")
+    if at:
+        text += "; " + "; ".join(at)
+    if over.get("rule_change"):
+        text += (
+            ": an elevation rule change lies within the circle "
+            "(elevation_rule_within_radius; the more demanding result governs)"
+        )
+    return text
 
 
 def _precision_text(site: dict) -> str:

@@ -319,7 +319,14 @@ def test_site_json_keys_are_in_the_contract():
         "site", "--at", "47.52,-140.05", "--dem", "demo", "--elevation", "900m", "--shape", "flat"
     )
     keys = _keys(out, set())
+    # an approximate location over the demo DEM (invented): the circle's keys
+    from neve.geo.site.one import resolve_site
+
+    circle = resolve_site(47.52, -140.05, dem="demo", location_precision="place",
+                          location_radius_m=3000.0)  # fmt: skip
+    _keys(json.loads(json.dumps(circle.to_json(), default=str)), keys)
     assert {"site", "ground", "roof", "elevation_alternatives", "neighbours"} <= keys
+    assert {"used_at", "at_min", "at_max", "rule_change"} <= keys
     _missing(keys, "`neve site` JSON key(s)")
 
 

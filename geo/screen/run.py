@@ -367,33 +367,71 @@ def _widen_approximate(resolved, site, idx, elev_arg, risk, layer_list, resolver
     Rows of one radius (one address: the look-ups are cached) are resolved
     together with every layer's boundary tolerance raised to that radius
     (:meth:`neve.geo.layers.model.Layer.widened`), as ``neve site`` does; rows
-    at a ZIP code or place centroid get ``location_approximate``.
+    at a ZIP code or place centroid get ``location_approximate``.  With a DEM,
+    rows without a given elevation are worked at the minimum and maximum DEM
+    elevation over their circle (:func:`neve.geo.site.circle.resolve_over_circle`:
+    the more demanding governs, ``elevation_rule_within_radius`` where they
+    differ); the minimum and maximum go to ``site.location_elevation_min_ft`` /
+    ``_max_ft``.
     """
     from neve.geo.screen.editions import has_per_risk, resolve_by_risk
+    from neve.geo.site.circle import elevation_over_circle, resolve_over_circle
 
     radius = site.location_radius_m[idx]
     precision = site.location_precision[idx]
     approx = np.isin(precision, ("postal_code", "place"))
+    n = len(site)
+    site.location_elevation_min_ft = np.full(n, np.nan)
+    site.location_elevation_max_ft = np.full(n, np.nan)
     if approx.any():
         resolved.flags[approx] |= np.uint64(BIT["location_approximate"])
+    dem = kwargs.get("dem")
+    per_risk = has_per_risk(layer_list)
+
+    def run(rows, el, widened, **kw):
+        kw = dict(kwargs, progress=False, **kw)
+        kw.pop("layers", None)
+        if per_risk:
+            return resolve_by_risk(resolver, site.lat[rows], site.lon[rows], el, risk[rows],
+                                   widened, **kw)  # fmt: skip
+        return resolver(site.lat[rows], site.lon[rows], el, layers=widened, **kw)
+
     wide = np.isfinite(radius) & (radius > 0)
     for r in np.unique(radius[wide]):
         pos = np.flatnonzero(wide & (radius == r))
         rows = idx[pos]
         widened = [ly.widened(float(r)) for ly in layer_list]
-        if all(w is ly for w, ly in zip(widened, layer_list, strict=True)):
-            continue  # every layer's own tolerance already covers the circle
         el = None if elev_arg is None else elev_arg[pos]
-        kw = dict(kwargs, progress=False)
-        if has_per_risk(layer_list):
-            kw.pop("layers", None)
-            part = resolve_by_risk(resolver, site.lat[rows], site.lon[rows], el, risk[rows],
-                                   widened, **kw)  # fmt: skip
-        else:
-            kw["layers"] = widened
-            part = resolver(site.lat[rows], site.lon[rows], el, **kw)
-        part.flags |= resolved.flags[pos] & np.uint64(BIT["location_approximate"])
-        _assign(resolved, pos, part)
+        circle = np.zeros(pos.size, dtype=bool)
+        over = None
+        if dem is not None:  # ZIP code and place rows (an address's 50 m is taken as exact)
+            no_el = np.ones(pos.size, bool) if el is None else ~np.isfinite(el)
+            no_el &= approx[pos]
+            if no_el.any():
+                at = np.flatnonzero(no_el)
+                over = elevation_over_circle(site.lat[rows[at]], site.lon[rows[at]], float(r),
+                                             dem, kwargs.get("dem_units"))  # fmt: skip
+                found = np.isfinite(over["min_ft"])
+                circle[at[found]] = True
+                over = {k: v[found] for k, v in over.items()}
+        plain = ~circle
+        if plain.any() and not all(w is ly for w, ly in zip(widened, layer_list, strict=True)):
+            sub = pos[plain]
+            part = run(idx[sub], None if el is None else el[plain], widened)
+            part.flags |= resolved.flags[sub] & np.uint64(BIT["location_approximate"])
+            _assign(resolved, sub, part)
+        if circle.any():
+            sub = pos[circle]
+
+            def at_elevation(la, lo, e, _rows=idx[sub], _layers=widened, **_kw):
+                return run(_rows, e, _layers, dem=None, dem_units=None)
+
+            part, _, _ = resolve_over_circle(site.lat[idx[sub]], site.lon[idx[sub]], float(r),
+                                             over, resolver=at_elevation)  # fmt: skip
+            part.flags |= resolved.flags[sub] & np.uint64(BIT["location_approximate"])
+            _assign(resolved, sub, part)
+            site.location_elevation_min_ft[idx[sub]] = over["min_ft"]
+            site.location_elevation_max_ft[idx[sub]] = over["max_ft"]
     if approx.any():
         resolved.message[approx] = [
             f"{m} Located at a {'ZIP code' if p == 'postal_code' else 'place'} centroid, "
@@ -440,6 +478,12 @@ def _rows_result(
     return res
 
 
+def _circle_column(site: SiteArrays, which: str) -> np.ndarray:
+    """The DEM's minimum or maximum [ft] over each row's location circle (NaN where none)."""
+    got = getattr(site, f"location_elevation_{which}_ft", None)
+    return np.full(len(site), np.nan) if got is None else got
+
+
 def _missing_if_empty(text: np.ndarray) -> np.ndarray:
     """Text per row with "" (no zone, no layer) as a missing value."""
     empty = text == ""
@@ -478,6 +522,8 @@ def _result_columns(res: Resolution, site: SiteArrays) -> dict:
             else {
                 "location_precision": _missing_if_empty(site.location_precision),
                 "location_radius_m": site.location_radius_m,
+                "location_elevation_min_ft": _circle_column(site, "min"),
+                "location_elevation_max_ft": _circle_column(site, "max"),
             }
         ),
     }

@@ -57,23 +57,36 @@ def ask_site(
         lat, lon = parse_latlon(at)
         given, found = at, None
     else:
-        from neve.geo.site.places import locate
-
-        hit = locate(
-            address,
-            gazetteer=gazetteer,
-            url=geocoder_url,
-            country=country,
-            region=region,
-            user_agent=user_agent,
-            timeout=geocoder_timeout,
-        )
-        lat, lon, found, given = hit.lat, hit.lon, hit.address, address
-        located = dict(location_precision=hit.precision, location_radius_m=hit.radius_m,
-                       location_source=hit.source)  # fmt: skip
+        lat, lon, found, located = locate_site(
+            address, gazetteer=gazetteer, geocoder_url=geocoder_url, country=country,
+            region=region, user_agent=user_agent, geocoder_timeout=geocoder_timeout,
+        )  # fmt: skip
+        given = address
     return resolve_site(
         lat, lon, name=site_name, address=found, given=given, **resolve_kw, **located
     )
+
+
+def locate_site(
+    address: str,
+    *,
+    gazetteer=None,
+    geocoder_url: str | None = None,
+    country: str | None = None,
+    region: str | None = None,
+    user_agent: str | None = None,
+    geocoder_timeout: float = 10.0,
+) -> tuple[float, float, str, dict]:
+    """An address located (:func:`neve.geo.site.places.locate`): lat, lon, the address
+    found, and the ``location_precision``/``_radius_m``/``_source`` keywords of
+    :func:`~neve.geo.site.one.resolve_site`."""
+    from neve.geo.site.places import locate
+
+    hit = locate(address, gazetteer=gazetteer, url=geocoder_url, country=country, region=region,
+                 user_agent=user_agent, timeout=geocoder_timeout)  # fmt: skip
+    located = dict(location_precision=hit.precision, location_radius_m=hit.radius_m,
+                   location_source=hit.source)  # fmt: skip
+    return hit.lat, hit.lon, hit.address, located
 
 
 def site_json(result) -> dict:

@@ -380,6 +380,14 @@ def comparison_text(data: Mapping) -> str:
         lines.append("DEMO DATA: invented layers; these results are never for design.")
     where = site.get("name") or site.get("input")
     lines.append(f"Edition comparison at {where} ({site['lat']:g}, {site['lon']:g})")
+    precision = site.get("location_precision")
+    if precision and precision != "coordinates":
+        radius = (site.get("location_radius") or {}).get("m") or 0.0
+        source = site.get("location_source") or "-"
+        lines.append(f"  location: {precision}, uncertain within {radius:,.0f} m (from {source})")
+        if precision in ("postal_code", "place"):
+            lines.append("  approximate: zones, study areas and elevation rules within that circle "
+                         "were considered in every edition and the larger value governs")  # fmt: skip
     for r in data["results"]:
         g = r.get("ground") or {}
         layer = (g.get("layer") or {}).get("name") or "no layer"

@@ -368,8 +368,11 @@ def resolve_site(
         The uncertainty radius of the location [m]: every layer's boundary
         tolerance is raised to it (:meth:`neve.geo.layers.model.Layer.widened`),
         so a zone of another value or a study area within the circle flags the
-        site and the larger value governs; with a DEM the elevation is sampled
-        over the circle and its maximum used (``ground.elevation_over_radius``).
+        site and the larger value governs; with a DEM and no ``elevation`` the
+        site is worked at the DEM's minimum and maximum over the circle, the more
+        demanding result governs, and where they differ the flag
+        ``elevation_rule_within_radius`` is set (:mod:`neve.geo.site.circle`;
+        ``ground.elevation_over_radius``; the elevation source is ``dem``).
     location_source : str, optional
         Where the location came from (reported in ``site.location_source``).
     on_record_psf : float, optional
@@ -407,7 +410,7 @@ def resolve_site(
     layers = [ly for ly in layers if ly.quantity != "w2"] + [
         ly for ly in layers if ly.quantity == "w2"
     ]
-    from neve.geo.site.places import PRECISIONS
+    from neve.geo.site.places import APPROXIMATE, PRECISIONS
 
     location_precision = choose_key("location-precision", location_precision, PRECISIONS)
     radius_m = float(location_radius_m or 0.0)
@@ -417,14 +420,17 @@ def resolve_site(
         layers = [ly.widened(radius_m) for ly in layers]
     q = ground_quantity(layers)  # pg, or sk (EN 1991-1-3); a mixed stack is refused
     elev_in = parse_elevation(elevation)
-    over = None
-    if radius_m > 0 and dem_path is not None and math.isnan(elev_in):
-        over = _elevation_over_circle(lat, lon, radius_m, dem_path, dem_units)
-        if over is not None:
-            elev_in = over["used_ft"]
     look_kw = dict(elevation_ft=[elev_in], dem=dem_path, dem_units=dem_units, search_m=SEARCH_M,
                    elevation_source=elevation_source)  # fmt: skip
-    res = resolve([lat], [lon], layers=layers, keep_detail=True, **look_kw)
+    over = None
+    circle = location_precision in APPROXIMATE and radius_m > 0 and math.isnan(elev_in)
+    if circle and dem_path is not None:
+        over = _over_circle(lat, lon, radius_m, dem_path, dem_units, layers)
+    if over is None:
+        res = resolve([lat], [lon], layers=layers, keep_detail=True, **look_kw)
+    else:  # the DEM over the circle: worked at its minimum and maximum, the larger governs
+        res = over.pop("result")
+        look_kw = dict(elevation_ft=[float(res.elevation_ft[0])], search_m=SEARCH_M)
     look, _ = res.detail.governing(0)  # where the DEM elevation governs, its look-up
     g = int(res.layer[0])
     bits = int(res.flags[0])
@@ -437,6 +443,8 @@ def resolve_site(
     if gov_layer is not None:
         hits = look.hits[g]
         source = ELEVATION_ORIGINS[res.elevation_source[0]]
+        if over is not None:
+            source = f"DEM, the {over['used_at']} over the location circle"
         steps = _steps(gov_layer, hits, pg, float(res.elevation_ft[0]), source)
         if res.alt_source[0] >= 0:
             steps.insert(0, _elevation_step(res, elevation_source, q))
@@ -542,9 +550,7 @@ def resolve_site(
         "dem_elevation": length_json(_num(res.dem_elevation_ft[0])),
         "elevation_rule": elevation_source,
         "elevation_alternatives": _alternatives(res, q),
-        "elevation_over_radius": None
-        if over is None
-        else {k: length_json(over[f"{k}_ft"]) for k in ("min", "max", "used")},
+        "elevation_over_radius": None if over is None else _over_json(over),
         "distance_to_other": None if dist is None else length_json(dist * FT_PER_M),
         "neighbours": neighbours,
         "risk_category": risk,
@@ -672,27 +678,56 @@ def _zone_list(zone_id: str, zone_ids: str) -> list[str]:
     return [z for z in zone_ids.split(";") if z]
 
 
-def _elevation_over_circle(lat, lon, radius_m, dem_path, dem_units) -> dict | None:
-    """DEM elevations over the uncertainty circle: ``{min_ft, max_ft, used_ft}`` or None.
+def _over_circle(lat, lon, radius_m, dem_path, dem_units, layers) -> dict | None:
+    """The site resolved over its uncertainty circle (:mod:`neve.geo.site.circle`), or None.
 
-    Sampled at the centre and on rings at 1/3, 2/3 and 3/3 of the radius (8, 16
-    and 24 points: our choice); the maximum is used, as a higher site never has
-    a smaller ground snow load under an elevation rule (common practice).
+    None where no point of the circle has a DEM value (the site is then resolved
+    as without the circle, and flagged ``dem_nodata``).
     """
-    from neve.geo.site.elevation import sample_dem
+    from neve.geo.site.circle import elevation_over_circle, resolve_over_circle
 
-    pts = [(lat, lon)]
-    k = 111320.0  # metres per degree of latitude (common practice)
-    for ring, count in ((1, 8), (2, 16), (3, 24)):
-        r = radius_m * ring / 3
-        for a in np.linspace(0, 2 * np.pi, count, endpoint=False):
-            dlat = r * np.cos(a) / k
-            dlon = r * np.sin(a) / (k * max(math.cos(math.radians(lat)), 1e-6))
-            pts.append((lat + dlat, lon + dlon))
-    la = np.array([p[0] for p in pts])
-    lo = np.array([p[1] for p in pts])
-    ft = np.asarray(sample_dem(dem_path, lo, la, dem_units), dtype=float)
-    ft = ft[np.isfinite(ft)]
-    if ft.size == 0:
+    got = elevation_over_circle([lat], [lon], [radius_m], dem_path, dem_units)
+    if not np.isfinite(got["min_ft"][0]):
         return None
-    return {"min_ft": float(ft.min()), "max_ft": float(ft.max()), "used_ft": float(ft.max())}
+
+    def one(la, lo, elev, **kw):
+        return resolve(la, lo, elevation_ft=elev, **kw)
+
+    res, changed, max_governs = resolve_over_circle(
+        [lat], [lon], [radius_m], got, resolver=one, layers=layers, search_m=SEARCH_M,
+        keep_detail=True,
+    )  # fmt: skip
+    lo_ft, hi_ft = float(got["min_ft"][0]), float(got["max_ft"][0])
+    return {
+        "result": res,
+        "min_ft": lo_ft,
+        "max_ft": hi_ft,
+        "used_ft": hi_ft if max_governs[0] else lo_ft,
+        "used_at": "maximum" if max_governs[0] else "minimum",
+        "points": int(got["points"][0]),
+        "rule_change": bool(changed[0]),
+        "at_min": _circle_outcome(res, "min"),
+        "at_max": _circle_outcome(res, "max"),
+    }
+
+
+def _circle_outcome(res: Resolution, which: str) -> dict:
+    """``{status, pg}`` of the result at the circle's minimum or maximum elevation."""
+    status = STATUSES[int(res.extra[f"circle_{which}_status"][0])]
+    pg = float(res.extra[f"circle_{which}_pg"][0])
+    usable = status in ("ok", "provisional") and math.isfinite(pg)
+    return {"status": status, "pg": load_json(pg) if usable else None}
+
+
+def _over_json(over: dict) -> dict:
+    """``ground.elevation_over_radius`` (docs/contract.md, "JSON output")."""
+    return {
+        "min": length_json(over["min_ft"]),
+        "max": length_json(over["max_ft"]),
+        "used": length_json(over["used_ft"]),
+        "used_at": over["used_at"],
+        "points": over["points"],
+        "rule_change": over["rule_change"],
+        "at_min": over["at_min"],
+        "at_max": over["at_max"],
+    }

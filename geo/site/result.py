@@ -127,6 +127,14 @@ FLAG_TABLE: tuple[Flag, ...] = (
     Flag("demo_parameters", 46, "roof", "the parameter set is invented (demo)"),
     # issue 12 (curved roofs); bits from 52 down, so that other roof flags can take 39 up
     Flag("eave_abutment_unstated", 52, "roof", "curved roof: abutment at the eave not stated"),
+    # issue 14: an approximate location's circle crosses an elevation rule change (bits 41-46
+    # are taken by the EN 1991-1-3 roof flags on their branch; 52 by curved roofs)
+    Flag(
+        "elevation_rule_within_radius",
+        53,
+        "site",
+        "the zone's elevation rule gives another result within the location circle (DEM min-max)",
+    ),  # fmt: skip
     Flag("bad_coordinates", 56, "note", "coordinates missing or out of range: no look-up"),
     Flag("near_unknown", 57, "note", "a zone within the tolerance has no usable value"),
     Flag("near_valued", 58, "note", "a zone within the tolerance has another usable value"),
@@ -145,6 +153,7 @@ LIMITING = (
     | BIT["coordinates_suspect"]
     | BIT["elevation_mismatch"]
     | BIT["study_area_nearby"]
+    | BIT["elevation_rule_within_radius"]
 )
 #: shown flags in the order they are printed (by name)
 _BY_NAME = tuple(sorted((f for f in FLAG_TABLE if f.shown), key=lambda f: f.name))

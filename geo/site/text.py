@@ -31,6 +31,11 @@ def _length(x: dict | None, si: bool = False) -> str:
 SI_FIRST = ("sk",)
 
 
+def _outcome(at: dict) -> str:
+    """``ok, pg 30.0 psf (1.44 kPa)`` or the status of a result at one elevation."""
+    return f"{at['status']}, pg {_load(at['pg'])}" if at.get("pg") else str(at["status"])
+
+
 def site_text(result, show_steps: bool = True) -> str:
     """Summary lines: site, ground status and value, zone, flags, elevation, layer, roof."""
     s, g, roof = result.site, result.ground, result.roof
@@ -77,7 +82,14 @@ def site_text(result, show_steps: bool = True) -> str:
     over = g.get("elevation_over_radius")
     if over:
         lines.append(f"Over circle: DEM min {_length(over['min'])}, max {_length(over['max'])},"
-                     f" used {_length(over['used'])}")  # fmt: skip
+                     f" used {_length(over['used'])} (the {over.get('used_at', 'maximum')})")  # fmt: skip
+        if over.get("at_min") and over.get("at_max"):
+            change = ("an elevation rule change lies within the circle: elevation_rule_within_radius"
+                      if over.get("rule_change") else "the same result at both")  # fmt: skip
+            lines.append(f"             at min {_outcome(over['at_min'])}, at max "
+                         f"{_outcome(over['at_max'])}; {change}")  # fmt: skip
+        if g["dem_elevation"] is not None:
+            lines.append(f"             DEM at the centre {_length(g['dem_elevation'])}")
     if g["dem_elevation"] is not None and g["elevation_source"] != "dem":
         lines.append(f"DEM:         {length(g['dem_elevation'])}")
     for alt in g.get("elevation_alternatives") or []:  # given elevation and DEM disagree

@@ -589,6 +589,7 @@ EXPECTED_OPTIONS = {
             _OVERWRITE,
             _GAZETTEER,
             _GEOCODER_URL,
+            *_NARROW,  # issue 14: the offline gazetteer, as in neve site
             ("address", ("--address",), "StringParamType", None, False, False),
             ("at", ("--at",), "StringParamType", None, False, False),
             ("elevation", ("--elevation",), "StringParamType", None, False, False),

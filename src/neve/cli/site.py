@@ -42,6 +42,26 @@ def _check_output(path: str | None, field: str, overwrite: bool, is_dir: bool = 
     check_target(path, overwrite=overwrite, field=field, parents=True)
 
 
+def locate_address(kw: dict) -> tuple[float, float, str, dict]:
+    """``--address`` located: lat, lon, the address found, and the ``location_*`` keywords
+    of :func:`neve.geo.site.one.resolve_site` (:func:`neve.geo.site.ask.locate_site`).
+
+    Shared by ``neve site`` (through :func:`~neve.geo.site.ask.ask_site`) and
+    ``neve compare``, so both locate an address alike.
+    """
+    from neve.geo.site.ask import locate_site
+
+    return locate_site(
+        kw["address"],
+        gazetteer=kw.get("gazetteer"),
+        geocoder_url=kw.get("geocoder_url"),
+        country=kw.get("country"),
+        region=kw.get("region"),
+        user_agent=kw.get("user_agent"),
+        geocoder_timeout=kw.get("geocoder_timeout") or 10.0,
+    )
+
+
 @click.command("site")
 @click.option("--at", "at", metavar="LAT,LON", help="Site coordinates, decimal or DMS.")
 @click.option("--address", help="Site address, US ZIP code or place name (offline gazetteer; "
