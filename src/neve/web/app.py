@@ -189,7 +189,8 @@ def create_app(config):
 
     # --- the JSON API ----------------------------------------------------------------
 
-    @app.post("/api/roof", tags=["api"], openapi_extra=_body_schema(ROOF_REQUEST_KEYS, ["pg"]),
+    # pg or sk, whichever the standard takes (neve roof --pg / --sk): no key is required as such
+    @app.post("/api/roof", tags=["api"], openapi_extra=_body_schema(ROOF_REQUEST_KEYS),
               summary="neve roof --format json")  # fmt: skip
     async def api_roof(request: Request):
         from neve.web.asks import roof_request
