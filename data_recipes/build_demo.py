@@ -28,6 +28,16 @@ Outputs (in ``geo/demo/`` unless ``--out`` is given):
     The island's invented winter wind parameter W2 (``quantity = "w2"``,
     a fraction, no ``value_units``), EPSG:4326: windward west, sheltered
     east, and a study area on Cape Gale.
+``skerrow_en_sk.gpkg`` (+ ``.toml``)
+    The island's invented metric district for EN 1991-1-3 (``standard =
+    "EN 1991-1-3"``, ``quantity = "sk"``): characteristic ground snow loads sk
+    in kPa by altitude in m, on the base layer's zone shapes, with every rule
+    kind: ``fixed`` (one with ``elev_max``), ``elevation_table``, two
+    ``formula`` zones of the invented district formula
+    ``sk = (0.4 + 0.3 * Z) * (1 + (A / 650) ** 2)`` in the zone number ``Z``
+    and the site altitude ``A`` with an ``sk_min`` floor, and two ``study``
+    zones.  UTM 7N.  Used with ``--standard en1991-1-3`` when no ``--layer`` is
+    given.  Values and coefficients are invented: no country's annex.
 ``skerrow_dem.tif``
     A synthetic DEM of the island (two summits), UTM 7N, 200 m cells,
     float32 metres (band unit metadata ``metre``), nodata over the sea.
@@ -199,7 +209,7 @@ def build(out: Path = DEFAULT_OUT) -> list[Path]:
     dem_path = out / "skerrow_dem.tif"
     build_dem(dem_path)
     (out / "README.md").write_text(_README, encoding="utf-8")
-    return [base_path, town_path, dem_path, *build_722(out)]
+    return [base_path, town_path, dem_path, *build_722(out), *build_en(out)]
 
 
 #: invented ASCE 7-22 values per zone of the base layer, by risk category I, II, III, IV.
@@ -296,6 +306,71 @@ def build_722(out: Path = DEFAULT_OUT) -> list[Path]:
     return [pg_path, w2_path]
 
 
+#: the invented altitude formula of the metric district: sk [kPa] from the zone number Z and
+#: the site altitude A [m] (its shape and coefficients are made up for the demo)
+FORMULA_EN = "(0.4 + 0.3 * Z) * (1 + (A / 650) ** 2)"
+#: the metric district's zones on the base layer's shapes (invented sk [kPa], altitudes [m]):
+#: base zone -> (zone_id, rule, sk, elev_max, table, Z, sk_min, note)
+ZONES_EN = {
+    "SK-W": ("EN-W", "fixed", 0.85, 300.0, None, None, None,
+             "West coast lowland; sk valid up to 300 m altitude (invented)"),
+    "SK-N": ("EN-Z2", "formula", None, None, None, 2.0, 1.0,
+             "North valley, snow load zone 2 of the district formula (invented)"),
+    "SK-H": ("EN-H", "elevation_table", None, None,
+             "[[0, 1.1], [500, 1.7], [1000, 2.9], [1400, 4.2]]", None, None,
+             "Central highlands; sk by altitude, study above 1400 m (invented)"),
+    "SK-NE": ("EN-Z3", "formula", None, 1200.0, None, 3.0, 1.4,
+              "North-east slopes, snow load zone 3; valid up to 1200 m (invented)"),
+    "SK-E": ("EN-E", "fixed", 1.25, None, None, None, None, "East coast plain (invented)"),
+    "SK-S1": ("EN-S1", "study", None, None, None, None, None, "Summit massif; no mapped sk"),
+    "SK-S2": ("EN-S2", "study", None, None, None, None, None,
+              "Cape Gale; drifting too variable to map"),
+}  # fmt: skip
+
+
+def build_en(out: Path = DEFAULT_OUT) -> list[Path]:
+    """Write the invented EN 1991-1-3 layer of the island's metric district into ``out``."""
+    import geopandas as gpd
+
+    os.environ["OGR_CURRENT_DATE"] = "2026-01-01T00:00:00Z"
+    base = base_zones()
+    rows = [ZONES_EN[r[0]] for r in base]
+    nan = float("nan")
+    gdf = gpd.GeoDataFrame(
+        {
+            "zone_id": [r[0] for r in rows],
+            "rule": [r[1] for r in rows],
+            "sk": [nan if r[2] is None else r[2] for r in rows],
+            "elev_max": [nan if r[3] is None else r[3] for r in rows],
+            "table": [r[4] for r in rows],
+            "expr": [FORMULA_EN if r[1] == "formula" else None for r in rows],
+            "Z": [nan if r[5] is None else r[5] for r in rows],
+            "sk_min": [nan if r[6] is None else r[6] for r in rows],
+            "note": [r[7] for r in rows],
+            "source": ["Skerrow Island metric district snow map (invented), sheet E"] * len(rows),
+        },
+        geometry=[r[8] for r in base],
+        crs=UTM,
+    )
+    path = out / "skerrow_en_sk.gpkg"
+    path.unlink(missing_ok=True)
+    gdf.to_file(path, layer="zones", driver="GPKG", engine="pyogrio")
+    _sidecar(
+        path,
+        name="Skerrow Island metric district, EN 1991-1-3 ground snow loads (DEMO)",
+        jurisdiction="Skerrow Island Building Office, metric district (fictional)",
+        standard="EN 1991-1-3",
+        quantity="sk",
+        value_units="kPa",
+        elevation_units="m",
+        boundary_tolerance_m=250,
+        notes="Invented characteristic ground snow loads sk and an invented altitude formula "
+        f"sk = {FORMULA_EN} (Z: zone number, A: site altitude [m]); no country's national "
+        "annex; never for design.",
+    )
+    return [path]
+
+
 def _sidecar(path: Path, **keys) -> None:
     meta = {"name": keys.pop("name"), "jurisdiction": keys.pop("jurisdiction")}
     meta.update(COMMON)
@@ -369,6 +444,9 @@ Built by `python data_recipes/build_demo.py` (deterministic).
 - `skerrow_722_pg.gpkg`: ASCE 7-22 layer, one value per risk category (UTM 7N, psf, ft);
   used with `--standard asce7-22` when no `--layer` is given
 - `skerrow_722_w2.geojson`: ASCE 7-22 winter wind parameter W2 (EPSG:4326, a fraction)
+- `skerrow_en_sk.gpkg`: EN 1991-1-3 layer of the island's metric district: sk in kPa by
+  altitude in m, an invented altitude formula (UTM 7N); used with `--standard en1991-1-3`
+  when no `--layer` is given
 - `skerrow_dem.tif`: synthetic DEM (UTM 7N, metres, nodata over the sea)
 - `skerrow_basemap.mbtiles`: invented raster basemap (sea, coast, terrain tints, roads,
   towns; zooms 8-13), built by `python data_recipes/build_demo_basemap.py`

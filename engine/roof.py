@@ -172,3 +172,94 @@ def screening_flags(roof: Roof, *, standard=None) -> list[str]:
     :func:`analyze_roof` (``neve site``).
     """
     return _standard(standard).screening_flags(roof)
+
+
+def parse_w2(value, field: str = "w2") -> float | None:
+    """The winter wind parameter W2 as given (text or number): a plain number in [0, 1], or None.
+
+    The one reading of ``--w2`` (``neve roof``) and of the ``w2`` key of the
+    web API (``neve serve``).
+    """
+    if value is None:
+        return None
+    from neve.engine.errors import InputError
+
+    accepted = "a plain number from 0 to 1, e.g. 0.45 (the winter wind parameter W2)"
+    if isinstance(value, bool):
+        raise InputError(field, f"{value!r} is not a number", accepted)
+    try:
+        w2 = float(str(value).strip())
+    except ValueError:
+        raise InputError(field, f"{value!r} is not a number", accepted) from None
+    if not (0.0 <= w2 <= 1.0):  # also refuses nan
+        raise InputError(field, f"{value!r} is outside 0 to 1", accepted)
+    return w2
+
+
+def ground_load(std, pg, sk) -> float:
+    """The ground snow load ``std`` takes, in its load unit: ``pg`` (psf) or ``sk`` (kPa).
+
+    ``pg`` and ``sk`` are loads with their units as given (or None).  The
+    quantity the standard does not take, or neither, is an InputError naming
+    the one it takes (``--pg`` for ASCE 7, ``--sk`` for EN 1991-1-3).
+    """
+    from neve.engine.errors import InputError
+    from neve.engine.roof_spec import parse_pg
+    from neve.engine.units import psf_to_kpa
+
+    wanted = std.quantities[0]
+    given = {"pg": pg, "sk": sk}
+    for name, value in given.items():
+        if value is not None and name != wanted:
+            raise InputError(
+                name, f"{std.title} takes no {name}: its ground snow load is {wanted}",
+                f"--{wanted} with a load and its unit",
+            )  # fmt: skip
+    if given.get(wanted) is None:
+        raise InputError(wanted, f"missing: {std.title} needs the ground snow load {wanted}",
+                         f"--{wanted} with a load and its unit, e.g. "
+                         + ("0.65kPa" if wanted == "sk" else "35psf"))  # fmt: skip
+    value = parse_pg(given[wanted], wanted)
+    return psf_to_kpa(value) if std.units.get("load") == "kPa" else value
+
+
+def roof_answer(
+    pg: str | None = None, roof: Roof | None = None, *, sk=None, standard=None, w2=None
+) -> tuple[dict, Roof]:
+    """What ``neve roof --format json`` prints: the JSON object of one roof, and the roof.
+
+    Parameters
+    ----------
+    pg : str, optional
+        Ground snow load pg with its unit as given (``"35psf"``, ``"1.68kPa"``), for
+        a standard whose ground quantity is pg (ASCE 7).
+    sk : str, optional
+        Characteristic ground snow load sk with its unit (``"0.65kPa"``), for
+        EN 1991-1-3; the quantity a standard does not take is refused.
+    roof : Roof, optional
+        The roof; None is the default roof (a flat roof with every default).
+    standard : str or Standard, optional
+        The standard (``--standard``); the default one when omitted.
+    w2 : float, optional
+        The winter wind parameter W2, for a standard that takes it (refused otherwise).
+
+    Returns
+    -------
+    (dict, Roof)
+        The ``neve roof`` JSON object and the roof worked.  ``neve roof`` and
+        ``neve serve`` (``POST /api/roof``) both call this, so they cannot differ.
+    """
+    from neve.engine.errors import InputError
+    from neve.engine.standards import get_standard, standards
+
+    std = get_standard(standard) if standard is None or isinstance(standard, str) else standard
+    ground = ground_load(std, pg, sk)
+    if w2 is not None and "w2" not in std.quantities:
+        raise InputError(
+            "w2",
+            f"{std.title} takes no winter wind parameter",
+            "--w2 only with a standard that uses W2: "
+            + ", ".join(s.id for s in standards() if "w2" in s.quantities),
+        )
+    roof_ = roof or Roof.from_mapping({})
+    return analyze_roof(ground, roof_, standard=std, w2=w2).to_json(), roof_

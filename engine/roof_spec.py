@@ -80,6 +80,21 @@ _ROOF_KEYS = {
 }  # fmt: skip
 
 
+#: the keys of a ``[[step]]`` table (this roof is the lower one beside a higher roof)
+STEP_KEYS = (
+    "name", "height", "upper_length", "lower_length", "separation", "upper_slope",
+    "upper_surface", "upper_eave_to_ridge", "upper_slides_toward", "upper_pf",
+    "upper_parapet", "upper_ce", "upper_ct", "upper_is", "lower_roof", "meets",
+)  # fmt: skip
+#: the keys of a ``[[parapet]]`` table
+PARAPET_KEYS = ("name", "height", "upwind_length", "meets", "drift_space")
+#: the keys of a ``[[projection]]`` table
+PROJECTION_KEYS = (
+    "name", "height", "plan_length", "upwind_length", "length_left", "length_right",
+    "plan_width", "length_front", "length_back",
+)  # fmt: skip
+
+
 def _length(entry: Mapping, key: str, where: str, range_key: str, default=None, need=None):
     """Parse ``entry[key]`` as a length [ft] and check it against ``RANGES[range_key]``.
 
@@ -607,9 +622,7 @@ def _part(cls, where: str, **kw):
 
 def _steps(value) -> list[RoofStep]:
     out = []
-    keys = {"name", "height", "upper_length", "lower_length", "separation", "upper_slope",
-            "upper_surface", "upper_eave_to_ridge", "upper_slides_toward", "upper_pf",
-            "upper_parapet", "upper_ce", "upper_ct", "upper_is", "lower_roof", "meets"}  # fmt: skip
+    keys = set(STEP_KEYS)
     for i, e in enumerate(_table_list(value, "step")):
         w = f"step[{i}]"
         e = {str(k).replace("-", "_"): v for k, v in e.items()}
@@ -677,7 +690,7 @@ def _parapets(value) -> list[Parapet]:
     out = []
     for i, e in enumerate(_table_list(value, "parapet")):
         w = f"parapet[{i}]"
-        _check_keys(e, w, {"name", "height", "upwind_length", "meets", "drift_space"})
+        _check_keys(e, w, set(PARAPET_KEYS))
         out.append(
             _part(
                 Parapet,
@@ -696,9 +709,7 @@ def _projections(value) -> list[Projection]:
     out = []
     for i, e in enumerate(_table_list(value, "projection")):
         w = f"projection[{i}]"
-        keys = {"name", "height", "plan_length", "upwind_length", "length_left", "length_right",
-                "plan_width", "length_front", "length_back"}  # fmt: skip
-        _check_keys(e, w, keys)
+        _check_keys(e, w, set(PROJECTION_KEYS))
         if "upwind_length" in e and "length_left" in e:
             raise InputError(
                 f"{w}.upwind_length",

@@ -20,6 +20,7 @@ from neve.maps.templating import render
 #: labels of the site and roof quantities
 LABELS = {
     "pg": "Ground snow load pg",
+    "sk": "Characteristic ground snow load sk",
     "pf": "Flat roof snow load pf",
     "ps": "Sloped roof snow load ps",
     "pm": "Minimum roof snow load pm",

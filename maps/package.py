@@ -11,6 +11,7 @@ page).  The folder is built next to its destination and renamed into place
 from __future__ import annotations
 
 import base64
+import contextvars
 import copy
 import datetime as _dt
 import json
@@ -48,9 +49,17 @@ def _data_uri(path: Path) -> str:
     return f"data:{mime};base64," + base64.b64encode(path.read_bytes()).decode("ascii")
 
 
+#: the unit every load of the package being written shows first: ``kPa`` for an EN
+#: 1991-1-3 site (an sk ground value or a kPa standard's roof), else ``psf``
+_FIRST: contextvars.ContextVar[str] = contextvars.ContextVar("neve_package_first", default="psf")
+
+
 def _load_text(load) -> str:
-    """A load in the package: 0.1 psf and 0.01 kPa, zeros kept (``32.0 psf (1.53 kPa)``)."""
-    return fmt.load_text(load, missing="none", missing_number="\u2014")
+    """A load in the package: 0.1 psf and 0.01 kPa, zeros kept (``32.0 psf (1.53 kPa)``).
+
+    kPa first (``1.12 kPa (23.4 psf)``) in the package of an EN 1991-1-3 site.
+    """
+    return fmt.load_text(load, missing="none", missing_number="\u2014", first=_FIRST.get())
 
 
 def _rain_on_snow_text(load) -> str:
@@ -129,7 +138,7 @@ def _cases(roof: dict | None, diagrams: dict[str, Path]) -> list[dict]:
 def _ground_context(data: dict) -> dict:
     """The site map's ground summary, its pg as every load of the package: ``30.0 psf (1.44 kPa)``."""
     g = summary_context(data)
-    pg = (data.get("ground") or {}).get("pg")
+    pg = (data.get("ground") or {}).get(style.ground_quantity(data))
     if pg:
         g["pg"] = _load_text(pg)
     return g
@@ -143,7 +152,11 @@ def _factors(roof: dict | None) -> list[dict]:
         for st in case.get("steps") or []:
             steps.setdefault(st.get("symbol"), st)
     out = []
-    for sym in ("Ce", "Ct", "Is", "Cs"):
+    given = roof.get("factors") or {}
+    # ASCE 7's four factors (as always shown), then a standard's own (EN 1991-1-3: Cesl)
+    asce = ("Ce", "Ct", "Is", "Cs")
+    syms = asce if "Cs" in given else tuple(given)
+    for sym in syms:
         st = steps.get(sym) or {}
         out.append(
             {
@@ -246,6 +259,12 @@ def _summary(roof: dict | None) -> list[dict]:
                      "value": "; ".join(vals) or "\u2014", "ref": ref.strip(),
                      "governing": False})  # fmt: skip
     rule = provision("design_uniform")
+    if "pf" not in loads:  # EN 1991-1-3: the undrifted load s governs the uniform load
+        rows.append({"label": "Governing uniform load (the largest undrifted load; drifted, "
+                              "local and accidental cases act separately)",
+                     "value": _load_text(roof.get("design_uniform")),
+                     "ref": f"{std} {rule}".strip(), "governing": True})  # fmt: skip
+        return rows
     rows.append({"label": "Governing uniform load (balanced or minimum; unbalanced, drift and "
                           "sliding cases act separately)",
                  "value": _load_text(roof.get("design_uniform")),
@@ -366,6 +385,33 @@ def _offline_fetcher():
     return URLFetcher(allowed_protocols={"data"})
 
 
+def result_context(
+    data: dict, diagrams: dict[str, Path] | None = None, slope_pitch: bool | None = None
+) -> dict:
+    """What the report shows of a ``neve site`` JSON object, as plain values for a template.
+
+    ``cautions``, ``g`` (the ground summary), ``roof``, ``factors``, ``roof_rows``,
+    ``not_required``, ``summary``, ``provenance``, ``ground_steps`` and ``cases``
+    (each with its values, steps and, given its PNG in ``diagrams``, the diagram as a
+    data URI).  The calculation package and the result page of ``neve serve`` both
+    take it, so they read the same.  Text stays text: the templates escape it.
+    """
+    ground = data.get("ground") or {}
+    roof = data.get("roof")
+    return {
+        "cautions": cautions_of(data),
+        "g": _ground_context(data),
+        "roof": roof,
+        "factors": _factors(roof),
+        "roof_rows": _roof_rows(roof, slope_pitch),
+        "not_required": list((roof or {}).get("not_required") or []),
+        "summary": _summary(roof) + _on_record_rows(data.get("on_record")),
+        "provenance": _provenance(ground),
+        "ground_steps": _steps(ground.get("steps")),
+        "cases": _cases(roof, diagrams or {}),
+    }
+
+
 def write_package(
     site_json: dict,
     views: list[dict],
@@ -422,6 +468,19 @@ def write_package(
         ``static_png``, ``static_svg``, ``diagram:<case name>`` and, with
         ``comparison``, ``comparison_json`` -> path (paths inside the final folder).
     """
+    token = _FIRST.set("kPa" if style.si_first(site_json) else "psf")
+    try:
+        return _write_package(site_json, views, outdir, project=project, site_name=site_name,
+                              overwrite=overwrite, comparison=comparison,
+                              title_block=title_block, basemap=basemap,
+                              slope_pitch=slope_pitch, inputs=inputs)  # fmt: skip
+    finally:
+        _FIRST.reset(token)
+
+
+def _write_package(site_json, views, outdir, *, project, site_name, overwrite, comparison,
+                   title_block, basemap, slope_pitch, inputs) -> dict[str, Path]:  # fmt: skip
+    """:func:`write_package`, with the unit shown first set."""
     from weasyprint import HTML
 
     from neve import safe_write
@@ -458,7 +517,6 @@ def write_package(
         diagrams = write_case_diagrams(data.get("roof"), tmp / "diagrams")
         for name, p in diagrams.items():
             files[f"diagram:{name}"] = p
-        ground = data.get("ground") or {}
         today = _dt.date.today().isoformat()
         given = {k: v for k, v in (title_block or {}).items() if k in TITLE_BLOCK_FIELDS}
         tb = {k: "" if given.get(k) is None else str(given[k]) for k in TITLE_BLOCK_FIELDS}
@@ -473,19 +531,10 @@ def write_package(
             "date": today,
             "version": _version(),
             "demo": is_demo(data, views),
-            "cautions": cautions_of(data),
-            "g": _ground_context(data),
-            "roof": data.get("roof"),
-            "factors": _factors(data.get("roof")),
-            "roof_rows": _roof_rows(data.get("roof"), slope_pitch),
+            **result_context(data, diagrams, slope_pitch),
             "inputs": _inputs(inputs, views),
-            "not_required": list((data.get("roof") or {}).get("not_required") or []),
-            "summary": _summary(data.get("roof")) + _on_record_rows(data.get("on_record")),
-            "provenance": _provenance(ground),
-            "ground_steps": _steps(ground.get("steps")),
             "static_map": _data_uri(png),
             "map_html": files["site_map"].read_text(encoding="utf-8"),
-            "cases": _cases(data.get("roof"), diagrams),
         }
         html = render("report.html.j2", **ctx)
         if comparison is not None:  # the edition comparison page, last (neve compare --package)

@@ -117,8 +117,10 @@ _TEMPLATE = """{% macro script(this, kwargs) %}
         p.appendChild(document.createTextNode(String(value)));
         box.appendChild(p);
     }
-    function load(psf) {  // 0.1 psf and 0.01 kPa, as everywhere in neve
-        return psf === null ? null : psf.toFixed(1) + ' psf (' + (psf * d.kpa_per_psf).toFixed(2) + ' kPa)';
+    function load(psf) {  // 0.1 psf and 0.01 kPa, as everywhere in neve; kPa first for sk
+        if (psf === null) { return null; }
+        var kpa = (psf * d.kpa_per_psf).toFixed(2) + ' kPa', us = psf.toFixed(1) + ' psf';
+        return d.si ? kpa + ' (' + us + ')' : us + ' (' + kpa + ')';
     }
     function popup(e) {
         var i = e.layer.neveIndex;
@@ -132,7 +134,7 @@ _TEMPLATE = """{% macro script(this, kwargs) %}
             line(box, 'Elevation', d.elev[i] === null ? null :
                  Math.round(d.elev[i]) + ' ft (' + m.toFixed(1) + ' m)');
         }
-        line(box, 'pg', d.pg[i] === null ? 'no value' : load(d.pg[i]));
+        line(box, d.ground, d.pg[i] === null ? 'no value' : load(d.pg[i]));
         if (d.design) { line(box, 'Design uniform load', load(d.design[i])); }
         line(box, 'Zone', d.zone[i]);
         line(box, 'Flags', d.flags[i]);
@@ -288,6 +290,9 @@ def write_portfolio_map(
     if colour == "ratio" and "load_ratio" not in results.columns:
         raise InputError("map-colour", "'ratio' given, but the results have no load_ratio "
                          "column", RATIO_NEEDS)  # fmt: skip
+    si = "pg_psf" not in results.columns and "sk_psf" in results.columns
+    if si:  # a run on sk layers (EN 1991-1-3): the same bands, shown kPa first as sk
+        results = results.assign(pg_psf=results["sk_psf"])
     if "site_id" not in results.columns:  # optional in site files: number the rows
         results = results.assign(site_id=[f"row {i + 1}" for i in range(len(results))])
     missing = [c for c in REQUIRED if c not in results.columns]
@@ -304,12 +309,15 @@ def write_portfolio_map(
 
     # symbol code: 0..6 bands for ok, then one code per band for provisional, then statuses
     nb = len(style.PORTFOLIO_BANDS_PSF)
+    bands = style.PORTFOLIO_BANDS_PSF
+    if si:  # the same bands, named kPa first for sk
+        bands = tuple(zip((u for u, _ in bands), style.band_labels_kpa(), strict=True))
     codes = []
-    for i, (_, label) in enumerate(style.PORTFOLIO_BANDS_PSF):
+    for i, (_, label) in enumerate(bands):
         codes.append(
             {"cls": "ok", "fill": style.PORTFOLIO_BAND_COLOURS[i], "flagged": False, "label": label}
         )
-    for i, (_, label) in enumerate(style.PORTFOLIO_BANDS_PSF):
+    for i, (_, label) in enumerate(bands):
         codes.append(
             {
                 "cls": "provisional",
@@ -370,7 +378,7 @@ def write_portfolio_map(
             f"Large portfolio ({n_total:,} sites): messages of ok sites are left out of the "
             "popups; the results file has every row in full."
         )
-    shown = {"pg_psf", "design_uniform_psf", "site_elevation_ft"}
+    shown = {"pg_psf", "sk_psf", "design_uniform_psf", "site_elevation_ft"}
     extra_cols = [
         c
         for c in results.columns
@@ -406,6 +414,8 @@ def write_portfolio_map(
         ],
         "cluster": clustered,
         "kpa_per_psf": KPA_PER_PSF,
+        "ground": "sk" if si else "pg",
+        "si": si,
     }
 
     for key, col, digits in (("elev", "site_elevation_ft", 0), ("elev_m", "site_elevation_m", 1),
@@ -443,7 +453,8 @@ def write_portfolio_map(
     )
     layer = _layer_class()(payload)
     layer.add_to(m)
-    legend = _legend_html(counts, n_total, len(rows), notes, colour=colour, clustered=clustered)
+    legend = _legend_html(counts, n_total, len(rows), notes, colour=colour, clustered=clustered,
+                          si=si)
     leaflet.add_html(m, legend, "neve_legend")
     return leaflet.finish(
         m, out, overwrite=overwrite, self_contained=self_contained, elements=[layer], cluster=True
@@ -494,15 +505,17 @@ def _add_zone_layers(m, views: list[dict], bounds, *, drawn: bool) -> int:
 
 def _legend_html(
     counts: Counter, n_total: int, n_drawn: int, notes: list[str], colour: str = "ground",
-    clustered: bool = True,
+    clustered: bool = True, si: bool = False,
 ) -> str:
+    """The legend panel; ``si``: sk sites (EN 1991-1-3), the bands named kPa first."""
     from neve.maps.templating import render
 
+    labels = style.band_labels_kpa() if si else [b[1] for b in style.PORTFOLIO_BANDS_PSF]
     bands = [
         {"label": label, "colour": style.PORTFOLIO_BAND_COLOURS[i]}
-        for i, (_, label) in enumerate(style.PORTFOLIO_BANDS_PSF)
+        for i, label in enumerate(labels)
     ]
-    heading = None
+    heading = "Ground snow load sk [kPa]" if si else None
     if colour == "ratio":
         from neve.engine.on_record import RATIO_BANDS
 

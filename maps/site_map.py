@@ -88,11 +88,16 @@ def governing_ids(site_json: dict, view: dict, first: bool) -> list[str]:
     return []
 
 
-def _summary_load(load) -> str:
-    """A load in the summary panel and the report: 0.1 psf / 0.01 kPa, zeros kept."""
+def _summary_load(load, si: bool = False) -> str:
+    """A load in the summary panel and the report: 0.1 psf / 0.01 kPa, zeros kept.
+
+    ``si``: kPa first (an EN 1991-1-3 site).
+    """
     from neve.engine import format as fmt
 
-    return fmt.load_text(load, missing="none", missing_number="\u2014")
+    return fmt.load_text(
+        load, missing="none", missing_number="\u2014", first="kPa" if si else None
+    )
 
 
 def summary_context(site_json: dict) -> dict:
@@ -103,19 +108,24 @@ def summary_context(site_json: dict) -> dict:
     roof = site_json.get("roof") or None
     status = str(ground.get("status") or "unknown")
     zone_ids = ground.get("zone_ids") or ([ground["zone_id"]] if ground.get("zone_id") else [])
+    q = style.ground_quantity(site_json)  # pg, or sk (EN 1991-1-3): kPa and m first
+    si = style.si_first(site_json)
+    metres = "m" if si else None
     neighbours = []
     for n in ground.get("neighbours") or []:
-        pg = n.get("pg")
-        pg_text = _summary_load(pg) if isinstance(pg, dict) else style.num(pg, 2)
+        pg = n.get(q)
+        pg_text = _summary_load(pg, si) if isinstance(pg, dict) else style.num(pg, 2)
         dist = n.get("distance")
-        dist_text = style.elevation_text(dist) if isinstance(dist, dict) else style.num(dist, 0)
+        dist_text = (
+            style.elevation_text(dist, metres) if isinstance(dist, dict) else style.num(dist, 0)
+        )
         neighbours.append(f"zone {n.get('zone_id')}: {pg_text} at {dist_text}")
     others = []
     for o in ground.get("other_layers") or []:
-        pg = o.get("pg")
-        pg_text = _summary_load(pg) if isinstance(pg, dict) else style.num(pg, 2)
+        pg = o.get(q)
+        pg_text = _summary_load(pg, si) if isinstance(pg, dict) else style.num(pg, 2)
         zone = f"zone {o['zone_id']}" if o.get("zone_id") else "no zone"
-        pg_text = pg_text if o.get("pg") else "no value"
+        pg_text = pg_text if o.get(q) else "no value"
         others.append(
             f"{o.get('name')}: {str(o.get('status') or '').replace('_', ' ')}, {zone}, {pg_text}"
         )
@@ -129,13 +139,16 @@ def summary_context(site_json: dict) -> dict:
         "lon": site.get("lon"),
         "status": status.replace("_", " "),
         "status_class": status if status.replace("_", "").isalnum() else "error",
-        "pg": _summary_load(ground.get("pg")) if ground.get("pg") else "no value",
+        "pg": _summary_load(ground.get(q), si) if ground.get(q) else "no value",
+        "quantity": q,
+        "symbol": style.SYMBOLS[q],
         "zone": ", ".join(str(z) for z in zone_ids) or "none",
         "rule": ground.get("rule") or "",
         "flags": [str(f) for f in ground.get("flags") or []],
-        "elevation": style.elevation_text(ground.get("elevation")),
+        "elevation": style.elevation_text(ground.get("elevation"), metres),
         "elevation_source": ground.get("elevation_source") or "none",
-        "distance": style.elevation_text(ground.get("distance_to_other"))
+        "elevation_circle": circle_elevation_text(ground, location_radius_m(site_json)),
+        "distance": style.elevation_text(ground.get("distance_to_other"), metres)
         if ground.get("distance_to_other")
         else "",
         "neighbours": neighbours,
@@ -145,7 +158,9 @@ def summary_context(site_json: dict) -> dict:
         "layer_source": layer.get("source") or "",
         "sha": style.short_sha(layer.get("sha256")),
         "message": ground.get("message") or "",
-        "roof": style.load_text(roof.get("design_uniform")) if roof else "",
+        "roof": style.load_text(roof.get("design_uniform"), "kPa" if si else "psf")
+        if roof
+        else "",
         "cautions": cautions_of(site_json),
     }
 
@@ -158,6 +173,38 @@ def location_radius_m(site_json: dict) -> float:
     except (TypeError, ValueError, AttributeError):
         return 0.0
     return m if math.isfinite(m) and m > 0 else 0.0
+
+
+def circle_elevation_text(ground: dict, radius_m: float) -> str:
+    """The DEM over the location circle in words (``ground.elevation_over_radius``); "" if none.
+
+    ``DEM over the 400 m location circle: min 233 ft (71 m), max 502 ft (153 m), used the
+    maximum, 502 ft (153 m); at the minimum ok, 24.7 psf; at the maximum ok, 30.0 psf: an elevation rule
+    change lies within the circle (the more demanding result governs)``.
+    """
+    over = ground.get("elevation_over_radius")
+    if not isinstance(over, dict) or not over.get("min"):
+        return ""
+    text = (
+        f"DEM over the {style.num(radius_m, 0)} m location circle: min "
+        f"{style.elevation_text(over.get('min'))}, max {style.elevation_text(over.get('max'))}, "
+        f"used the {over.get('used_at') or 'maximum'}, {style.elevation_text(over.get('used'))}"
+    )
+    at = []
+    for key, name in (("at_min", "minimum"), ("at_max", "maximum")):
+        got = over.get(key)
+        if isinstance(got, dict):
+            status = str(got.get("status") or "").replace("_", " ")
+            load = f", {_summary_load(got['pg'])}" if isinstance(got.get("pg"), dict) else ""
+            at.append(f"at the {name} {status}{load}")
+    if at:
+        text += "; " + "; ".join(at)
+    if over.get("rule_change"):
+        text += (
+            ": an elevation rule change lies within the circle "
+            "(elevation_rule_within_radius; the more demanding result governs)"
+        )
+    return text
 
 
 def _precision_text(site: dict) -> str:
@@ -174,7 +221,7 @@ def _precision_text(site: dict) -> str:
 
 def _site_tip(ctx: dict) -> str:
     return (
-        f"{ctx['title']}\nStatus: {ctx['status']}\npg: {ctx['pg']}\n"
+        f"{ctx['title']}\nStatus: {ctx['status']}\n{ctx.get('quantity', 'pg')}: {ctx['pg']}\n"
         f"Zone: {ctx['zone']}\nFlags: {', '.join(ctx['flags']) or 'none'}"
     )
 
@@ -244,7 +291,7 @@ def write_site_map(
 
     all_classes: list[dict] = []
     has_elev = has_none = False
-    units = "psf"
+    units, quantity = "psf", "pg"
     layer_groups = []
     g_index = governing_index(site_json, views)
     order = [g_index] + [i for i in range(len(views)) if i != g_index] if views else []
@@ -259,6 +306,7 @@ def write_site_map(
         classes = style.value_classes(near["pg"]) if len(near) else []
         if i == g_index:
             all_classes, units = classes, v_units
+            quantity = str(view.get("quantity") or "pg")
             rules = set(near["rule"].astype(str)) if len(near) else set()
             has_elev = bool(rules & {"elevation_table", "formula"})
             has_none = any(
@@ -297,7 +345,7 @@ def write_site_map(
         m,
         render(
             "legend.html.j2",
-            title=f"Ground snow load pg [{units}]",
+            title=f"Ground snow load {quantity} [{units}]",
             classes=all_classes,
             units=units,
             has_elev=has_elev,

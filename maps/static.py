@@ -150,7 +150,7 @@ def write_static_map(
     lat, lon = site_lat_lon(site_json)
     crs = local_crs(lat, lon)
     site_xy = gpd.GeoSeries([Point(lon, lat)], crs=4326).to_crs(crs).iloc[0]
-    units = "psf"
+    units, quantity = "psf", "pg"
     base = as_basemap(basemap, demo_data=is_demo(site_json, views), views=views)
     fig, ax = plt.subplots(figsize=(8.6, 6.0), dpi=150)
     drawn_base = base.kind == "mbtiles" and _draw_basemap(ax, base, site_xy, crs, lat)
@@ -160,6 +160,7 @@ def write_static_map(
         view = views[governing_index(site_json, views)]
         zones = check_zones(view)
         units = str(view.get("value_units") or (view.get("meta") or {}).get("value_units") or "psf")
+        quantity = str(view.get("quantity") or "pg")
         gov = set(governing_ids(site_json, view, first=True))
         near = zones_near(zones, lat, lon, WINDOW_M * 1.5, keep_ids=gov)
         if len(near):
@@ -226,8 +227,11 @@ def write_static_map(
     ax.plot(site_xy.x, site_xy.y, marker="o", markersize=10, color=style.SITE_COLOUR,
             markeredgecolor="white", markeredgewidth=2, zorder=8)  # fmt: skip
     ax.plot(site_xy.x, site_xy.y, marker="+", markersize=18, color=style.SITE_COLOUR, zorder=8)
-    pg = (site_json.get("ground") or {}).get("pg")
-    ax.annotate(f"site: pg = {style.load_text(pg) if pg else 'no value'}", (site_xy.x, site_xy.y),
+    q = style.ground_quantity(site_json)  # pg, or sk (EN 1991-1-3): kPa first
+    pg = (site_json.get("ground") or {}).get(q)
+    first = "kPa" if style.si_first(site_json) else "psf"
+    ax.annotate(f"site: {q} = {style.load_text(pg, first) if pg else 'no value'}",
+                (site_xy.x, site_xy.y),
                 xytext=(12, 10), textcoords="offset points", fontsize=8, fontweight="bold",
                 color=style.SITE_COLOUR, zorder=9,
                 bbox={"boxstyle": "round,pad=0.25", "fc": "white", "ec": style.SITE_COLOUR,
@@ -248,7 +252,7 @@ def write_static_map(
         ax, site_xy.x + 0.86 * WINDOW_M, site_xy.y + 0.72 * WINDOW_M, 0.11 * WINDOW_M, angle
     )
     ax.legend(handles=handles, loc="upper left", bbox_to_anchor=(1.02, 1.0), fontsize=7.5,
-              frameon=False, title=f"Ground snow load pg [{units}]",
+              frameon=False, title=f"Ground snow load {quantity} [{units}]",
               title_fontsize=8, alignment="left")  # fmt: skip
     ax.set_xlabel("")
     ax.set_ylabel("")

@@ -15,6 +15,7 @@ import warnings
 from html import escape
 
 from neve.engine import format as fmt
+from neve.engine.units import KPA_PER_PSF
 
 #: value scale, low to high (our own)
 VALUE_COLOURS = (
@@ -81,6 +82,28 @@ PORTFOLIO_BANDS_PSF = (
     (100.0, "70 to under 100 psf"),
     (math.inf, "100 psf and over"),
 )
+
+
+def band_labels_kpa() -> list[str]:
+    """The names of :data:`PORTFOLIO_BANDS_PSF` kPa first, for sk sites (EN 1991-1-3).
+
+    >>> band_labels_kpa()[:2]
+    ['under 0.48 kPa (10 psf)', '0.48 to under 0.96 kPa (10 to under 20 psf)']
+    """
+    out, lo = [], None
+    for upper, _ in PORTFOLIO_BANDS_PSF:
+        kpa = lambda psf: num(psf * KPA_PER_PSF, 2)  # noqa: E731
+        if lo is None:
+            out.append(f"under {kpa(upper)} kPa ({num(upper, 0)} psf)")
+        elif math.isinf(upper):
+            out.append(f"{kpa(lo)} kPa and over ({num(lo, 0)} psf and over)")
+        else:
+            out.append(f"{kpa(lo)} to under {kpa(upper)} kPa "
+                       f"({num(lo, 0)} to under {num(upper, 0)} psf)")  # fmt: skip
+        lo = upper
+    return out
+
+
 #: fills of :data:`PORTFOLIO_BANDS_PSF`: neve's own sequential scale, pale straw through
 #: green and teal to deep indigo.  Lightness falls steadily from band to band and the
 #: hue turns as it falls, so the bands read in order and adjacent ones stay apart for
@@ -132,9 +155,39 @@ def length_text(length: dict | None) -> str:
     return fmt.length_text(length, trim=True, missing="none", missing_number="\u2014")
 
 
-def elevation_text(length: dict | None) -> str:
-    """An elevation or a distance on the ground: ``"1350 ft (411.5 m)"``; None -> ``"none"``."""
-    return fmt.elevation_text(length, trim=True, missing="none", missing_number="\u2014")
+def elevation_text(length: dict | None, first: str | None = None) -> str:
+    """An elevation or a distance on the ground: ``"1350 ft (411.5 m)"``; None -> ``"none"``.
+
+    ``first="m"``: metres first (an EN 1991-1-3 site: ``"250 m (820 ft)"``).
+    """
+    return fmt.elevation_text(
+        length, trim=True, missing="none", missing_number="\u2014", first=first
+    )
+
+
+#: ground quantities shown SI first (kPa, m) and their symbol as (letter, subscript)
+SI_QUANTITIES = ("sk",)
+SYMBOLS = {"pg": ("p", "g"), "sk": ("s", "k")}
+
+
+def ground_quantity(site_json: dict) -> str:
+    """The ground quantity of a ``neve site`` object: ``ground.quantity`` (``pg`` if absent)."""
+    q = str((site_json.get("ground") or {}).get("quantity") or "pg")
+    return q if q in SYMBOLS else "pg"
+
+
+def si_first(site_json: dict) -> bool:
+    """Whether a site's loads are shown kPa first: an sk ground value, or a roof of a
+    standard whose load unit is kPa (EN 1991-1-3, asked of the registry)."""
+    if ground_quantity(site_json) in SI_QUANTITIES:
+        return True
+    roof = site_json.get("roof") or {}
+    if not roof.get("standard"):
+        return False
+    from neve.engine.standards import find_standard
+
+    std = find_standard(str(roof["standard"]))
+    return std is not None and std.units.get("load") == "kPa"
 
 
 def quantity_text(value: dict | None) -> str:

@@ -319,7 +319,14 @@ def test_site_json_keys_are_in_the_contract():
         "site", "--at", "47.52,-140.05", "--dem", "demo", "--elevation", "900m", "--shape", "flat"
     )
     keys = _keys(out, set())
+    # an approximate location over the demo DEM (invented): the circle's keys
+    from neve.geo.site.one import resolve_site
+
+    circle = resolve_site(47.52, -140.05, dem="demo", location_precision="place",
+                          location_radius_m=3000.0)  # fmt: skip
+    _keys(json.loads(json.dumps(circle.to_json(), default=str)), keys)
     assert {"site", "ground", "roof", "elevation_alternatives", "neighbours"} <= keys
+    assert {"used_at", "at_min", "at_max", "rule_change"} <= keys
     _missing(keys, "`neve site` JSON key(s)")
 
 
@@ -414,13 +421,15 @@ _MAY_IMPORT = {
         "geo",
         "geo.site",
         "geo.layers",
+        "geo.postgis",
         "engine",
         "registry",
         "safe_write",
         "roof_file",
     },
     "geo.site": {"geo", "geo.layers", "engine", "registry"},
-    "geo.layers": {"geo", "engine", "registry"},
+    "geo.layers": {"geo", "geo.postgis", "engine", "registry"},
+    "geo.postgis": {"engine"},  # issue 17: the database helpers, beside every other room
     "geo": {"engine"},
     "maps": {"engine", "registry", "safe_write"},
     "engine": {"registry"},
@@ -428,6 +437,9 @@ _MAY_IMPORT = {
     "standard": {"engine", "registry"},
     "safe_write": {"engine"},
     "roof_file": {"engine", "registry"},  # issue 13: a standard's parameter sets
+    # issue 15: neve serve's pages and API; only the CLI imports it (tests/contract/test_house.py)
+    "web": {"engine", "registry", "geo", "geo.site", "geo.layers", "geo.screen"}
+    | {"maps", "safe_write", "roof_file", "api"},
 }
 #: imports against the picture that are known and reported, each with its reason
 _KNOWN_EXCEPTIONS: set[tuple[str, str]] = set()  # none left
@@ -451,7 +463,7 @@ def _room(module: str) -> str:
     if module in ("neve", "neve.__main__"):
         return "api"
     second = parts[1]
-    if second in ("cli", "safe_write", "roof_file", "maps"):
+    if second in ("cli", "safe_write", "roof_file", "maps", "web"):
         return second
     if second == "geo":
         return "geo" if len(parts) == 2 else f"geo.{parts[2]}"
@@ -517,6 +529,33 @@ def test_the_known_exceptions_are_still_there():
     # an exception that has been fixed is removed from the list (and from DEVELOPERS.md)
     edges = set(_imports(_module_names()))
     assert _KNOWN_EXCEPTIONS <= edges, _KNOWN_EXCEPTIONS - edges
+
+
+def test_serve_addresses_keys_and_fields_are_in_the_contract(tmp_path):
+    """Every address of neve serve, every request key and field, the job object's keys
+    and the error keys are named in the contract's section on it (issue 15)."""
+    pytest.importorskip("fastapi")
+    from neve.web import asks, screen_form
+    from neve.web.app import create_app
+    from neve.web.config import ServeConfig
+    from neve.web.jobs import RESULT_FILES, SCREEN_STAGES
+
+    app = create_app(ServeConfig(work=tmp_path))
+    inner = ("/assets/", "/tiles/", "/map/", "/docs", "/redoc")  # the pages' own parts
+    routes = {r.path for r in app.routes if hasattr(r, "methods") and not r.path.startswith(inner)}
+    assert "/api/site" in routes and "/api/jobs/{job_id}" in routes  # the walk sees the routes
+    text = _section("`neve serve`")
+    for path in routes:
+        shown = path.replace("{job_id}", "{id}")
+        assert shown in text, f"address {shown} is not in docs/contract.md, `neve serve`"
+    spans = _spans("`neve serve`")
+    names = {*asks.ROOF_REQUEST_KEYS[:4], *asks.SITE_REQUEST_KEYS[:14], *screen_form.SCREEN_FIELDS,
+             *RESULT_FILES, *SCREEN_STAGES, "id", "kind", "status", "stage", "progress",
+             "message", "files", "summary", "page", "sites"}  # fmt: skip
+    missing = sorted(n for n in names if n not in spans and f"`{n}`" not in text)
+    assert not missing, f"not named in docs/contract.md, `neve serve`: {', '.join(missing)}"
+    job = app.url_path_for("api_job", job_id="x")
+    assert job == "/api/jobs/x"
 
 
 def test_developers_md_names_every_room():

@@ -24,7 +24,11 @@ from neve.geo.layers.rules import (
     UNCHECKED,
     ZoneTable,
     evaluate,
+    floor_column,
 )
+
+#: the interpolation in an elevation table, by quantity (the others: v1, v2 for the values)
+_TABLE_EQ = {"pg": "pg = p1 + (A - A1)(p2 - p1)/(A2 - A1)"}
 
 
 def explain(zt: ZoneTable, j: int, elev: float, meta: dict, ref: str) -> list[Step]:
@@ -43,6 +47,8 @@ def explain(zt: ZoneTable, j: int, elev: float, meta: dict, ref: str) -> list[St
         Provenance text for ``ref`` (layer source and zone).
     """
     vu, eu = meta["value_units"], meta["elevation_units"]
+    q = zt.quantity  # the symbol: pg, or sk in an EN 1991-1-3 layer
+    floor_col = floor_column(q)
     value, state = evaluate(zt, np.array([j]), np.array([elev]))
     value, state = float(value[0]), int(state[0])
     zid = zt.zone_id[j]
@@ -52,9 +58,9 @@ def explain(zt: ZoneTable, j: int, elev: float, meta: dict, ref: str) -> list[St
     if rule == "fixed" and not (math.isfinite(float(zt.value[j])) and zt.value[j] >= 0):
         steps.append(
             Step(
-                "pg",
+                q,
                 f"zone {zid} has no valid mapped value (found {zt.value[j]!r})",
-                "pg = mapped value",
+                f"{q} = mapped value",
                 "no value: see neve layer check",
                 None,
                 vu,
@@ -65,10 +71,10 @@ def explain(zt: ZoneTable, j: int, elev: float, meta: dict, ref: str) -> list[St
         raw = float(zt.value[j])
         steps.append(
             Step(
-                "pg",
+                q,
                 f"mapped ground snow load of zone {zid}",
-                "pg = mapped value",
-                f"pg = {fmt(raw)} {vu}",
+                f"{q} = mapped value",
+                f"{q} = {fmt(raw)} {vu}",
                 raw,
                 vu,
                 ref,
@@ -77,7 +83,7 @@ def explain(zt: ZoneTable, j: int, elev: float, meta: dict, ref: str) -> list[St
     elif rule == "study":
         steps.append(
             Step(
-                "pg",
+                q,
                 f"zone {zid} carries no mapped value",
                 "site-specific case study",
                 "study required",
@@ -93,7 +99,7 @@ def explain(zt: ZoneTable, j: int, elev: float, meta: dict, ref: str) -> list[St
             k = int(np.clip(np.searchsorted(e, elev), 1, len(e) - 1))
             raw = float(np.interp(elev, e, v))
             if elev <= e[0]:
-                sub = f"A = {a_txt} at or below the first point: pg = {fmt(v[0])}"
+                sub = f"A = {a_txt} at or below the first point: {q} = {fmt(v[0])}"
             else:
                 sub = (
                     f"{fmt(v[k - 1])} + ({fmt(elev)} - {fmt(e[k - 1])}) x "
@@ -101,9 +107,9 @@ def explain(zt: ZoneTable, j: int, elev: float, meta: dict, ref: str) -> list[St
                 )
             steps.append(
                 Step(
-                    "pg",
+                    q,
                     f"linear interpolation in the elevation table of zone {zid} ({pairs})",
-                    "pg = p1 + (A - A1)(p2 - p1)/(A2 - A1)",
+                    _TABLE_EQ.get(q, f"{q} = v1 + (A - A1)(v2 - v1)/(A2 - A1)"),
                     sub,
                     raw,
                     vu,
@@ -113,7 +119,7 @@ def explain(zt: ZoneTable, j: int, elev: float, meta: dict, ref: str) -> list[St
         else:
             steps.append(
                 Step(
-                    "pg",
+                    q,
                     f"elevation table of zone {zid} ({pairs})",
                     f"table ends at {fmt(e[-1])} {eu}",
                     f"A = {a_txt}",
@@ -136,9 +142,9 @@ def explain(zt: ZoneTable, j: int, elev: float, meta: dict, ref: str) -> list[St
             subs = f"{subs}: {expr.substitute(env)}"
         steps.append(
             Step(
-                "pg",
+                q,
                 f"formula of zone {zid}",
-                f"pg = {expr.text}",
+                f"{q} = {expr.text}",
                 subs,
                 raw_val if math.isfinite(raw_val) else None,
                 vu,
@@ -151,9 +157,9 @@ def explain(zt: ZoneTable, j: int, elev: float, meta: dict, ref: str) -> list[St
         why = site_errors(zt, np.array([j]), np.array([elev]), vu, eu)[0]
         steps.append(
             Step(
-                "pg",
+                q,
                 f"zone {zid} gives no usable ground snow load at this site (status error)",
-                f"0 <= pg <= {fmt(zt.limit)} {vu} (plausibility bound)",
+                f"0 <= {q} <= {fmt(zt.limit)} {vu} (plausibility bound)",
                 why or "no finite value within the bound",
                 None,
                 vu,
@@ -179,13 +185,13 @@ def explain(zt: ZoneTable, j: int, elev: float, meta: dict, ref: str) -> list[St
         )
     if not math.isnan(zt.pg_min[j]) and state in (OK, UNCHECKED):
         floor = float(zt.pg_min[j])
-        before = [st.value for st in steps if st.symbol == "pg" and st.value is not None]
-        pre = fmt(before[-1]) if before else "pg"
+        before = [st.value for st in steps if st.symbol == q and st.value is not None]
+        pre = fmt(before[-1]) if before else q
         steps.append(
             Step(
-                "pg",
-                f"floor pg_min of zone {zid}",
-                "pg = max(pg, pg_min)",
+                q,
+                f"floor {floor_col} of zone {zid}",
+                f"{q} = max({q}, {floor_col})",
                 f"max({pre}, {fmt(floor)})",
                 value,
                 vu,

@@ -34,6 +34,11 @@ DEMO_BASEMAP_FILE = "skerrow_basemap.mbtiles"
 #: the embedded, invented ASCE 7-22 demo stack (per risk category, and W2), most local first;
 #: used when ``--standard asce7-22`` is asked with no ``--layer`` (:func:`demo_layers_for`)
 DEMO_722_LAYER_FILES = ("skerrow_722_pg.gpkg", "skerrow_722_w2.geojson")
+#: the embedded, invented EN 1991-1-3 demo layer (sk of the island's metric district);
+#: used when ``--standard en1991-1-3`` is asked with no ``--layer``
+DEMO_EN_LAYER_FILES = ("skerrow_en_sk.gpkg",)
+#: quantities whose layers are drawn and labelled kPa first (EN 1991-1-3's sk)
+KPA_FIRST = ("sk",)
 #: the risk category a per-risk layer gives when none is asked (the common building)
 DEFAULT_RISK = "II"
 RASTER_SUFFIXES = (".tif", ".tiff", ".gtiff")
@@ -104,14 +109,20 @@ class Layer:
     demo : bool
     """
 
-    def __init__(self, path: str | Path, meta: dict, *, frame=None, raster=None):
+    def __init__(
+        self, path: str | Path, meta: dict, *, frame=None, raster=None, sha256=None, label=None
+    ):
         self.path = Path(path)
+        #: what the layer is called in the JSON ``layer.path`` (a database layer: its masked URL)
+        self.label = str(label) if label is not None else str(self.path)
         self.meta = meta
         self.is_raster = raster is not None
         self.per_risk = is_per_risk(meta)
         #: the risk category whose values this layer gives (None: one value for all)
         self.risk = DEFAULT_RISK if self.per_risk else None
-        if self.is_raster and raster.get("risk_paths"):
+        if sha256 is not None:  # a layer not read from a file (neve.geo.postgis.rows_sha256)
+            self.sha256 = sha256
+        elif self.is_raster and raster.get("risk_paths"):
             # one hash over the layer file and its per-category rasters (in category order)
             self.sha256 = _files_sha256([self.path, *raster["risk_paths"].values()])
         else:
@@ -128,6 +139,7 @@ class Layer:
         )
         self._cache: dict = {}
         self._risk_views: dict = {}
+        self._built: dict = {}  # unprepared prefilter geometries, shared by copies
 
     @property
     def quantity(self) -> str:
@@ -210,7 +222,38 @@ class Layer:
         state = self.__dict__.copy()
         state["_cache"] = {}
         state["_risk_views"] = {}
+        state["_built"] = {}
         return state
+
+    def __copy__(self):
+        """A copy with empty look-up caches that shares the unprepared prefilter geometries.
+
+        The grown union and the shrunk zones (:meth:`coverage_m`, :meth:`shrunk_m`)
+        are built once for the layer and its copies (one per thread of the local
+        engine); each copy prepares its own copy of them.
+        """
+        new = self.__class__.__new__(self.__class__)
+        new.__dict__.update(self.__getstate__())
+        new._built = self.__dict__.setdefault("_built", {})
+        return new
+
+    def _prefilter(self, key, build):
+        """The prepared geometry of ``key``: built once (shared by copies), prepared per copy."""
+        if key not in self._cache:
+            import threading
+
+            import shapely
+
+            built = self.__dict__.setdefault("_built", {})
+            with built.setdefault("lock", threading.Lock()):  # one build for all copies
+                base = built.get(key)
+                if base is None:
+                    base = mine = built[key] = build()
+                else:  # another copy built it: prepare a copy of our own
+                    mine = shapely.from_wkb(shapely.to_wkb(base))
+            shapely.prepare(mine)
+            self._cache[key] = mine
+        return self._cache[key]
 
     def info(self) -> dict:
         """The ``layer`` object of the JSON contract."""
@@ -224,7 +267,7 @@ class Layer:
             "date": m["date"],
             "sha256": self.sha256,
             "demo": self.demo,
-            "path": str(self.path),
+            "path": self.label,
         }
 
     def site_errors(self, hits, sites: np.ndarray, elev_ft: np.ndarray) -> np.ndarray:
@@ -303,8 +346,8 @@ class Layer:
         zone's boundary.  The shrink uses the largest Mercator scale factor
         over the zone's latitudes, so it never shrinks too little.
         """
-        key = ("shrunk", float(distance_m))
-        if key not in self._cache:
+
+        def build():
             import shapely
 
             from neve.geo.layers.vector import mercator_scale
@@ -314,15 +357,14 @@ class Layer:
             lat_max = np.maximum(np.abs(b["miny"].to_numpy()), np.abs(b["maxy"].to_numpy()))
             k = mercator_scale(np.nan_to_num(lat_max, nan=0.0))
             with np.errstate(invalid="ignore", over="ignore"):
-                shrunk = shapely.buffer(geoms, -distance_m * k * 1.001)
-            shapely.prepare(shrunk)
-            self._cache[key] = shrunk
-        return self._cache[key]
+                return shapely.buffer(geoms, -distance_m * k * 1.001)
+
+        return self._prefilter(("shrunk", float(distance_m)), build)
 
     def coverage_m(self, distance_m: float):
         """Union of the zones in EPSG:3395 grown by ``distance_m`` on the ground, prepared."""
-        key = ("coverage", float(distance_m))
-        if key not in self._cache:
+
+        def build():
             import shapely
 
             from neve.geo.layers.vector import mercator_scale
@@ -331,10 +373,9 @@ class Layer:
             b = self.frame.geometry.to_crs(4326).total_bounds
             k = float(mercator_scale(max(abs(b[1]), abs(b[3]))))
             with np.errstate(invalid="ignore", over="ignore"):
-                cover = shapely.buffer(shapely.union_all(geoms), distance_m * k * 1.001 + 1.0)
-            shapely.prepare(cover)
-            self._cache[key] = cover
-        return self._cache[key]
+                return shapely.buffer(shapely.union_all(geoms), distance_m * k * 1.001 + 1.0)
+
+        return self._prefilter(("coverage", float(distance_m)), build)
 
     # --- what maps need -------------------------------------------------------
     def view(self, center: tuple[float, float] | None = None, radius_m: float = 5000) -> dict:
@@ -350,8 +391,9 @@ class Layer:
         Returns
         -------
         dict
-            ``name``, ``meta``, ``sha256``, ``demo``, ``value_units``,
-            ``demo_basemap`` (demo layers only: the invented demo basemap) and
+            ``name``, ``meta``, ``sha256``, ``demo``, ``value_units`` (the
+            units of the ``pg`` columns: kPa for an ``sk`` layer, whatever its
+            sidecar's), ``quantity`` (``pg``, ``sk``), ``demo_basemap`` (demo layers only: the invented demo basemap) and
             ``zones``: a GeoDataFrame in EPSG:4326 with ``zone_id``, ``rule``,
             ``pg`` [value_units, NaN where no single mapped value], ``pg_psf``,
             ``elev_max``, ``note``, ``source``, ``study`` (bool), ``pg_lo`` and
@@ -364,12 +406,20 @@ class Layer:
             zones = raster_view(self, center, radius_m)
         else:
             zones = self._vector_view(center, radius_m)
+        units = self.meta["value_units"]
+        if self.quantity in KPA_FIRST and units != "kPa":
+            # an EN 1991-1-3 layer is drawn and labelled in kPa, whatever units it maps in
+            k = self.to_psf * KPA_PER_PSF
+            zones = zones.assign(**{c: zones[c] * k for c in ("pg", "pg_lo", "pg_hi")
+                                    if c in zones.columns})  # fmt: skip
+            units = "kPa"
         view = {
             "name": self.name,
             "meta": dict(self.meta),
             "sha256": self.sha256,
             "demo": self.demo,
-            "value_units": self.meta["value_units"],
+            "value_units": units,
+            "quantity": self.quantity,
             "zones": zones,
         }
         if self.demo and demo_basemap_path().is_file():  # the maps draw it under demo zones
@@ -429,6 +479,14 @@ def load_layer(path: str | Path) -> Layer:
     """
     if isinstance(path, Layer):
         return path
+    from neve.geo.postgis import is_db_url
+
+    if is_db_url(path):  # a PostGIS table; its sidecar in the neve_layer_meta table
+        from neve.geo.layers.postgis import read_db_layer
+
+        frame, meta, sha, shown = read_db_layer(str(path))
+        return Layer(shown.split("?")[0].rsplit("/", 1)[-1] or "postgis", meta, frame=frame,
+                     sha256=sha, label=shown)  # fmt: skip
     p = Path(path)
     if not p.is_file():
         raise LayerError(f"layer file {str(p)!r} not found")
@@ -489,11 +547,27 @@ def demo_722_layers() -> list[Layer]:
     return list(_demo_722_stack())
 
 
+@functools.lru_cache(maxsize=1)
+def _demo_en_stack() -> tuple[Layer, ...]:
+    missing = [f for f in DEMO_EN_LAYER_FILES if not (DEMO_DIR / f).is_file()]
+    if missing:
+        raise LayerError(
+            f"the embedded sk demo data (en1991-1-3) is missing ({', '.join(missing)}); "
+            "rebuild it with: python data_recipes/build_demo.py"
+        )
+    return tuple(load_layer(DEMO_DIR / f) for f in DEMO_EN_LAYER_FILES)
+
+
+def demo_en_layers() -> list[Layer]:
+    """The embedded, invented EN 1991-1-3 demo layer: sk of the island's metric district (``demo = true``)."""
+    return list(_demo_en_stack())
+
+
 def demo_layers_for(standard=None) -> list[Layer]:
     """The demo stack for the roof standard ``standard`` (None: the default demo, ASCE 7-16).
 
-    A standard the default demo layers do not feed (ASCE 7-22) gets its own
-    invented demo layers when neve has them; otherwise the default demo stack.
+    A standard the default demo layers do not feed (ASCE 7-22, EN 1991-1-3) gets
+    its own invented demo layers when neve has them; otherwise the default demo stack.
     """
     stack = demo_layers()
     if standard is None:
@@ -503,9 +577,10 @@ def demo_layers_for(standard=None) -> list[Layer]:
     std = get_standard(standard)
     if any(std.accepts_layer(ly.meta["standard"], ly.quantity) for ly in stack):
         return stack
-    other = demo_722_layers()
-    if any(std.accepts_layer(ly.meta["standard"], ly.quantity) for ly in other):
-        return other
+    for other in (demo_722_layers, demo_en_layers):
+        layers = other()
+        if any(std.accepts_layer(ly.meta["standard"], ly.quantity) for ly in layers):
+            return layers
     return stack
 
 

@@ -118,8 +118,9 @@ def _read_window(path: Path, r0: int, r1: int, c0: int, c1: int):
 
 def raster_hits(layer, lon, lat, search_m: float | None = None) -> Hits:
     """Look up n sites in a raster layer (see the module notes)."""
-    from pyproj import Transformer
     from rasterio.transform import rowcol
+
+    from neve.geo.layers.transform import transformer
 
     lon = np.asarray(lon, dtype=float)
     lat = np.asarray(lat, dtype=float)
@@ -130,7 +131,7 @@ def raster_hits(layer, lon, lat, search_m: float | None = None) -> Hits:
     idx = np.flatnonzero(ok)
     if idx.size == 0:
         return h
-    x, y = Transformer.from_crs(4326, props["crs"], always_xy=True).transform(lon[idx], lat[idx])
+    x, y = transformer(4326, props["crs"]).transform(lon[idx], lat[idx])
     t = props["transform"]
     fc = (np.asarray(x) - t.c) / t.a  # fractional column
     fr = (np.asarray(y) - t.f) / t.e  # fractional row

@@ -15,7 +15,7 @@ The rules (docs/contract.md, "Vector columns and rules"):
     and the row's numeric columns.
 
 Any rule may carry ``elev_max`` (above it a study is required) and
-``pg_min`` (a floor on the result).  Elevations are in the layer's
+``pg_min`` (a floor on the result; ``sk_min`` in an ``sk`` layer).  Elevations are in the layer's
 ``elevation_units`` and values in its ``value_units``.
 
 Every value a layer can produce (``pg``, ``pg_min``, table points, formula
@@ -63,6 +63,19 @@ RESERVED = {"zone_id", "rule", "table", "expr", "source", "note", "geometry"}
 #: per risk category (ASCE 7-22 layers), the table and expression columns are ``table_<cat>``
 #: and ``expr_<cat>``: text, never formula variables
 RESERVED |= {f"{c}_{k}" for c in ("table", "expr") for k in ("I", "II", "III", "IV")}
+
+
+#: the floor column of a quantity's rules where it is not ``pg_min`` (an sk layer: ``sk_min``)
+FLOOR_COLUMNS = {"sk": "sk_min"}
+
+
+def floor_column(quantity: str = "pg") -> str:
+    """The column of a rule's floor in a layer of ``quantity``: ``pg_min``, ``sk_min`` for sk.
+
+    >>> floor_column("pg"), floor_column("sk")
+    ('pg_min', 'sk_min')
+    """
+    return FLOOR_COLUMNS.get(quantity, "pg_min")
 
 
 class LayerValueError(LayerError, ValueError):
@@ -147,6 +160,7 @@ class ZoneTable:
     problems: list[dict] = field(default_factory=list)
     limit: float = math.inf  # largest plausible value [value_units]
     defects: dict[int, list[str]] = field(default_factory=dict)  # row -> problem messages
+    quantity: str = "pg"  # the quantity the rows map (the symbol of its steps: pg, sk)
 
     def __len__(self) -> int:
         return len(self.zone_id)
@@ -222,7 +236,7 @@ class ZoneTable:
                 {"kind": "missing_column", "zone_id": None, "message": "no rule column"}
             )
         sfx = f"_{category}" if category else ""
-        value_col, min_col = f"{quantity}{sfx}", f"pg_min{sfx}"
+        value_col, min_col = f"{quantity}{sfx}", f"{floor_column(quantity)}{sfx}"
         table_col, expr_col = f"table{sfx}", f"expr{sfx}"
         raw_rules, raw_vals = get("rule"), get(value_col)
         raw_emax, raw_min = get("elev_max"), get(min_col)
@@ -348,6 +362,7 @@ class ZoneTable:
             columns=numeric,
             note=np.array([_clean_text(v) for v in get("note")], dtype=object),
             source=np.array([_clean_text(v) for v in get("source")], dtype=object),
+            quantity=str(quantity),
             problems=problems,
             limit=limit,
             defects=defects,

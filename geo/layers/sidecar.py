@@ -282,6 +282,15 @@ def read_sidecar(layer_path: str | Path) -> dict:
             f"with keys {', '.join(REQUIRED)}",
             kind="missing_sidecar",
         )
+    return read_sidecar_file(side)
+
+
+def read_sidecar_file(side: str | Path) -> dict:
+    """Read and validate a sidecar TOML file (``--layer-meta`` of a database layer)."""
+    side = Path(side)
+    if not side.is_file():
+        raise SidecarError(f"sidecar {side.name!r} not found; accepted: a TOML file with keys "
+                           f"{', '.join(REQUIRED)}", kind="missing_sidecar")  # fmt: skip
     try:
         # utf-8-sig: a byte-order mark written by some editors is not part of the TOML
         text = side.read_bytes().decode("utf-8-sig")

@@ -73,6 +73,24 @@ def bbox_candidates(layer, x: np.ndarray, y: np.ndarray) -> tuple[np.ndarray, np
     return np.concatenate(si), np.concatenate(zi)
 
 
+def _own_zone(qi, cz, qn_site, nz, n_sites: int, n_zones: int) -> np.ndarray:
+    """True for the (site, zone) pairs ``(qn_site, nz)`` that are among ``(qi, cz)``.
+
+    A site is in one zone almost always: its zone is looked up by index; only the
+    pairs of sites in several zones (on a shared edge) are matched as pair keys.
+    """
+    zone_of = np.full(n_sites, -1, dtype=np.intp)
+    zone_of[qi] = cz
+    same = zone_of[qn_site] == nz
+    counts = np.bincount(qi, minlength=n_sites)
+    several = counts[qn_site] > 1
+    if several.any():
+        sel = np.flatnonzero(several)
+        mine = counts[qi] > 1
+        same[sel] = np.isin(qn_site[sel] * n_zones + nz[sel], qi[mine] * n_zones + cz[mine])
+    return same
+
+
 def layer_hits(layer, lon, lat, elev_ft, search_m: float | None = None) -> Hits:
     """Look up n sites in one layer.
 
@@ -92,7 +110,8 @@ def layer_hits(layer, lon, lat, elev_ft, search_m: float | None = None) -> Hits:
 
         return raster_hits(layer, lon, lat, search_m)
     import shapely
-    from pyproj import Transformer
+
+    from neve.geo.layers.transform import transformer
 
     lon = np.asarray(lon, dtype=float)
     lat = np.asarray(lat, dtype=float)
@@ -106,7 +125,7 @@ def layer_hits(layer, lon, lat, elev_ft, search_m: float | None = None) -> Hits:
     geoms = layer.prepared()
     # 1. point-in-zone in the layer's CRS: bounding boxes from the STRtree, then an exact,
     #    prepared intersects_xy test on the candidate pairs (a site on an edge is in the zone)
-    x, y = Transformer.from_crs(4326, layer.crs, always_xy=True).transform(lon[idx], lat[idx])
+    x, y = transformer(4326, layer.crs).transform(lon[idx], lat[idx])
     x, y = np.asarray(x, dtype=float), np.asarray(y, dtype=float)
     qi, cz = bbox_candidates(layer, x, y)
     inside = shapely.intersects_xy(geoms[cz], x[qi], y[qi])
@@ -116,9 +135,7 @@ def layer_hits(layer, lon, lat, elev_ft, search_m: float | None = None) -> Hits:
     #    their zone (inside the zone shrunk by the radius) cannot have one and are skipped
     tol = layer.tolerance_m
     search = max(tol, float(search_m or 0.0))
-    xm, ym = Transformer.from_crs(4326, 3395, always_xy=True).transform(
-        lon[idx], np.clip(lat[idx], -85.0, 85.0)
-    )
+    xm, ym = transformer(4326, 3395).transform(lon[idx], np.clip(lat[idx], -85.0, 85.0))
     xm, ym = np.asarray(xm, dtype=float), np.asarray(ym, dtype=float)
     geoms_m, tree_m = layer.tree_m()
     band = np.ones(idx.size, dtype=bool)
@@ -137,9 +154,8 @@ def layer_hits(layer, lon, lat, elev_ft, search_m: float | None = None) -> Hits:
         pts_m = shapely.points(xm[bi], ym[bi])
         qn, nz = tree_m.query(pts_m, predicate="dwithin", distance=search * k)
         qn_site = bi[qn]
-    if qn_site.size and qi.size:
-        nzones = len(zt)
-        same = np.isin(qn_site * nzones + nz, qi * nzones + cz)
+    if qn_site.size and qi.size:  # a neighbour that is the site's own zone is no neighbour
+        same = _own_zone(qi, cz, qn_site, nz, idx.size, len(zt))
         qn, qn_site, nz = qn[~same], qn_site[~same], nz[~same]
     if qn_site.size:
         dist = shapely.distance(pts_m[qn], geoms_m[nz]) / k[qn]

@@ -24,6 +24,7 @@ only when one of those checks finds something to look at.
 from __future__ import annotations
 
 import re
+from collections.abc import Iterator
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -153,6 +154,151 @@ def read_csv_records(path) -> CsvRecords:
     if fast is not None:
         return fast
     return _read_careful(path, data)
+
+
+def iter_csv_records(path, chunk_lines: int, columns: list | None = None) -> Iterator[CsvRecords]:
+    """Read a CSV site file in chunks of about ``chunk_lines`` physical lines.
+
+    The records come out in order, each exactly as :func:`read_csv_records`
+    reads it from the whole file: a chunk is read by Arrow when its lines are
+    clean, record by record otherwise, and a quoted cell opened near the end of
+    a chunk may take lines from the next (up to :data:`MAX_RECORD_LINES`), as it
+    would in the whole file.  ``errors`` and ``multiline`` are keyed by the record
+    index within the chunk; line numbers in the messages are the file's.  Each
+    chunk's ``info`` holds its ``lines``, ``records``, ``blank_lines``,
+    ``multiline_records`` and ``records_with_read_errors``; the first chunk's also
+    ``format`` and ``header_line`` (its ``lines`` count the header and the blank
+    lines before it).  A file whose first line ends in a bare carriage return is
+    read whole (one chunk).
+
+    Parameters
+    ----------
+    path : str or Path
+        The CSV file (UTF-8, with or without a byte-order mark).
+    chunk_lines : int
+        Physical lines per chunk [-], at least 1.
+    columns : list of str, optional
+        Only these columns in the frames (the records are the same; Arrow then
+        converts only these).
+    """
+    chunk_lines = max(1, int(chunk_lines))
+    with open(path, "rb") as fh:
+        head = fh.read(1 << 16)
+        rest = head.split(b"\n", 1)[0]
+        if b"\r" in rest[:-1] or (b"\n" not in head and b"\r" in rest):
+            yield read_csv_records(path)  # bare carriage returns: lines end elsewhere
+            return
+        fh.seek(0)
+        blank = 0
+        line = fh.readline()
+        if line.startswith(_BOM):
+            line = line[len(_BOM) :]
+        while line and not _body(line).strip():
+            blank += 1
+            line = fh.readline()
+        if not line:
+            raise _not_a_table(
+                path, "the file is empty" if not blank else "the file holds only blank lines"
+            )
+        header_line = blank + 1
+        names = _header(path, _body(line), header_line)
+        before = {"format": "csv", "header_line": header_line, "lines": header_line,
+                  "blank_lines": blank}  # fmt: skip
+        line_base = header_line
+        pending = b""
+        eof = False
+
+        def fill(want: int) -> None:
+            nonlocal pending, eof
+            have = pending.count(b"\n")
+            while have < want and not eof:
+                more = fh.read(max(1 << 20, 64 * (want - have)))
+                if not more:
+                    eof = True
+                    break
+                have += more.count(b"\n")
+                pending += more
+
+        while True:
+            fill(chunk_lines)
+            if not pending:
+                break
+            arr = np.frombuffer(pending, dtype=np.uint8)
+            newlines = np.flatnonzero(arr == 10)
+            cut = (
+                int(newlines[chunk_lines - 1]) + 1 if len(newlines) >= chunk_lines else len(pending)
+            )
+            block = pending[:cut]
+            rec = _fast_block(block, names, columns)
+            if rec is not None:
+                used, n_lines = cut, rec.info["lines"]
+            else:
+                block_lines = _Lines(block).n
+                fill(block.count(b"\n") + MAX_RECORD_LINES + 1)
+                lines = _Lines(pending)
+                rec = _careful_part(path, lines, 0, block_lines, names, line_base)
+                n_lines = rec.info.pop("next_line")
+                used = lines.end(n_lines)
+                rec.info.update(lines=n_lines, multiline_records=len(rec.multiline),
+                                records_with_read_errors=len(rec.errors))  # fmt: skip
+                if columns is not None:
+                    rec.frame = rec.frame[list(columns)]
+            pending = pending[used:]
+            line_base += n_lines
+            if before:
+                rec.info["lines"] += before["lines"]
+                rec.info["blank_lines"] += before["blank_lines"]
+                rec.info = {**before, **rec.info, "lines": rec.info["lines"]}
+                before = {}
+            yield rec
+        if before:  # a header and nothing after it
+            frame = pd.DataFrame({name: pd.Series([], dtype=object) for name in names})
+            info = {**before, "records": 0, "multiline_records": 0, "records_with_read_errors": 0}
+            yield CsvRecords(frame=frame, info=info)
+
+
+def _fast_block(block: bytes, names: list, columns: list | None = None) -> CsvRecords | None:
+    """Arrow's reader for lines (no header) that the vectorised checks find clean, or None."""
+    import pyarrow as pa
+    import pyarrow.csv as pcsv
+
+    if block.count(b"\r") != block.count(b"\r\n"):
+        return None
+    if b'"' in block and not _quotes_clean(block):
+        return None
+    keys = [f"c{k}" for k in range(len(names))]
+    invalid = []
+
+    def skip(row):
+        invalid.append(row.number)
+        return "skip"
+
+    try:
+        table = pcsv.read_csv(
+            pa.py_buffer(block),
+            read_options=pcsv.ReadOptions(column_names=keys),
+            parse_options=pcsv.ParseOptions(newlines_in_values=False, invalid_row_handler=skip),
+            convert_options=pcsv.ConvertOptions(
+                column_types={k: pa.large_string() for k in keys},
+                strings_can_be_null=False,
+                quoted_strings_can_be_null=False,
+                null_values=[],
+                include_columns=None
+                if columns is None
+                else [keys[names.index(c)] for c in columns],
+            ),
+        )
+    except (pa.ArrowInvalid, pa.ArrowTypeError):  # e.g. a byte that is not UTF-8
+        return None
+    if invalid:
+        return None
+    frame = table.to_pandas()
+    frame.columns = names if columns is None else list(columns)
+    lines = block.count(b"\n") + (0 if block.endswith(b"\n") else 1)
+    records = len(frame)
+    info = {"lines": lines, "records": records, "blank_lines": lines - records,
+            "multiline_records": 0, "records_with_read_errors": 0}  # fmt: skip
+    return CsvRecords(frame=frame, info=info)
 
 
 def _header(path, text_bytes: bytes, line_no: int) -> list[str]:
@@ -309,6 +455,14 @@ class _Lines:
         out &= (self.commas == width - 1) & (self.quotes == 0) & (self.body_len > 0)
         return out
 
+    def end(self, j: int) -> int:
+        """Bytes taken by the first ``j`` lines."""
+        if j <= 0:
+            return 0
+        if not self.counted:
+            return sum(len(line) for line in self._list[:j])
+        return int(self.stops[j - 1])
+
     def joined(self, which: np.ndarray) -> bytes:
         """The bytes of the lines in ``which``, each ending in a line break."""
         lengths = self.stops - self.starts
@@ -324,11 +478,8 @@ def _read_careful(path, data: bytes) -> CsvRecords:
 
     Plain lines go to Arrow in bulk; the others (quotes, a wrong number of
     commas, blank lines, and non-ASCII lines when they do not decode together)
-    are read one record at a time.
+    are read one record at a time (:func:`_careful_part`).
     """
-    import pyarrow as pa
-    import pyarrow.csv as pcsv
-
     lines = _Lines(data)
     n = lines.n
     i = 0
@@ -340,8 +491,33 @@ def _read_careful(path, data: bytes) -> CsvRecords:
         raise _not_a_table(path, "the file holds only blank lines")
     header_line = i + 1
     names = _header(path, _body(lines[i]), header_line)
+    part = _careful_part(path, lines, i + 1, n, names, 0)
+    info = {
+        "format": "csv",
+        "lines": n,
+        "header_line": header_line,
+        "records": part.info["records"],
+        "blank_lines": blank + part.info["blank_lines"],
+        "multiline_records": len(part.multiline),
+        "records_with_read_errors": len(part.errors),
+    }
+    return CsvRecords(frame=part.frame, errors=part.errors, multiline=part.multiline, info=info)
+
+
+def _careful_part(path, lines, first: int, stop: int, names: list, line_base: int) -> CsvRecords:
+    """The records that start on lines ``first`` to ``stop - 1`` of ``lines`` (0-based).
+
+    A quoted cell opened before ``stop`` may take lines after it (up to
+    :data:`MAX_RECORD_LINES`): ``info["next_line"]`` is the first line not read.
+    ``line_base``: physical lines of the file before ``lines`` (for the line numbers
+    in the messages).  ``info`` holds ``records``, ``blank_lines`` and ``next_line``.
+    """
+    import pyarrow as pa
+    import pyarrow.csv as pcsv
+
     width = len(names)
-    plain = lines.plain(width, i)
+    plain = lines.plain(width, first - 1)
+    plain[stop:] = False
     if plain.any() and (lines.high[plain] > 0).any():
         wide = plain & (lines.high > 0)
         try:
@@ -352,6 +528,7 @@ def _read_careful(path, data: bytes) -> CsvRecords:
     first_lines: list[int] = []
     errors: dict[int, str] = {}
     multiline: dict[int, tuple[int, int]] = {}
+    blank = 0
 
     def fit(cells: list) -> list:
         if len(cells) >= width:
@@ -366,9 +543,9 @@ def _read_careful(path, data: bytes) -> CsvRecords:
         rows.append(cells)
         first_lines.append(first)
 
-    todo = np.flatnonzero(~plain)
-    todo = todo[todo > i]
-    done_to = i  # lines up to here are read (a quoted cell may take the following lines)
+    todo = np.flatnonzero(~plain[:stop])
+    todo = todo[todo >= first]
+    done_to = first - 1  # lines up to here are read (a quoted cell may take the following lines)
     for i in todo.tolist():
         if i <= done_to:
             continue
@@ -379,7 +556,7 @@ def _read_careful(path, data: bytes) -> CsvRecords:
             continue
         text, bad_byte = _decode(body)
         state, cells = _split(text)
-        first = last = i + 1
+        first = last = line_base + i + 1
         if state == "open":
             found = _close_quote(lines, i)
             if found is None:
@@ -391,7 +568,7 @@ def _read_careful(path, data: bytes) -> CsvRecords:
                 )
                 continue
             j, text, bad_byte, cells = found
-            last = j + 1
+            last = line_base + j + 1
             plain[i : j + 1] = False  # lines inside the quoted cell are not rows
             done_to = j
         where = _lines(first, last)
@@ -428,7 +605,7 @@ def _read_careful(path, data: bytes) -> CsvRecords:
                 null_values=[],
             ),
         )
-        plain_first = np.flatnonzero(plain) + 1
+        plain_first = line_base + np.flatnonzero(plain) + 1
         order = np.argsort(
             np.r_[plain_first, np.asarray(first_lines, dtype=np.int64)], kind="stable"
         )
@@ -449,15 +626,7 @@ def _read_careful(path, data: bytes) -> CsvRecords:
         records = len(rows)
     frame = pa.table(dict(zip(keys, columns, strict=True))).to_pandas()
     frame.columns = names
-    info = {
-        "format": "csv",
-        "lines": n,
-        "header_line": header_line,
-        "records": records,
-        "blank_lines": blank,
-        "multiline_records": len(multiline),
-        "records_with_read_errors": len(errors),
-    }
+    info = {"records": records, "blank_lines": blank, "next_line": max(done_to + 1, stop)}
     return CsvRecords(frame=frame, errors=errors, multiline=multiline, info=info)
 
 

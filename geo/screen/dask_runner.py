@@ -1,13 +1,15 @@
-"""Resolving sites on a Dask cluster through dask-geopandas.
+"""Resolving sites on a Dask cluster.
 
-The sites are staged as a partitioned GeoParquet dataset that the workers
-read themselves (only paths travel in the task graph), the zone layers are
+The sites are staged as plain Parquet partitions of their row numbers,
+coordinates and given elevations (no geometry: the resolver takes lat/lon)
+that the workers read themselves (only paths travel in the task graph), the zone layers are
 scattered once to every worker (without their look-up caches, which each
 worker builds for itself), and each partition is resolved on its worker
 by the same :func:`neve.geo.site.resolve.resolve` the local engine uses, so both
 engines give the same rows.  A worker sends back its partition's
-:class:`neve.geo.site.result.Resolution` (plain numpy arrays, which pickle
-as they are) with the partition's row numbers; this process puts them
+:class:`neve.geo.site.result.Resolution` compacted (each text array as codes
+and its distinct values, :func:`_compact`) with the partition's row numbers;
+this process expands and puts them
 together in input order (:meth:`Resolution.concat`).  Memory per worker is
 bounded by the partition size.
 
@@ -64,8 +66,43 @@ def _client(scheduler: str | None):
     return Client(cluster), cluster
 
 
+def _compact(res):
+    """A result with each text (object) array replaced by codes; the codes and values apart.
+
+    Statuses, flags and numbers are numpy arrays already; messages, zone ids and
+    rules repeat across a partition, so each distinct text travels once.
+    """
+    import copy
+
+    out = copy.copy(res)
+    packed = {}
+    for name, value in res._arrays():
+        if isinstance(value, np.ndarray) and value.dtype == object:
+            codes, uniques = pd.factorize(value, use_na_sentinel=False)
+            packed[name] = (codes.astype(np.int32), np.asarray(uniques, dtype=object))
+            setattr(out, name, None)
+    return out, packed
+
+
+def _expand(res, packed):
+    """The result :func:`_compact` made, whole again."""
+    for name, (codes, uniques) in packed.items():
+        values = np.empty(len(codes), dtype=object)
+        values[:] = uniques[codes] if len(codes) else []
+        setattr(res, name, values)
+    return res
+
+
+def _resolve_staged(path, layers, dem, dem_units, elevation_source="larger"):
+    """Resolve one staged partition file (runs on a worker): its rows and compact result."""
+    import pyarrow.parquet as pq
+
+    return _resolve_partition(pq.read_table(path).to_pandas(), layers, dem, dem_units,
+                              elevation_source)  # fmt: skip
+
+
 def _resolve_partition(part, layers, dem, dem_units, elevation_source="larger"):
-    """Resolve one partition of staged sites (runs on a worker): its row numbers and result."""
+    """Resolve one partition of sites (runs on a worker): its row numbers and compact result."""
     from neve.geo.site.resolve import resolve
 
     lat = part["lat"].to_numpy(dtype=float)
@@ -80,23 +117,24 @@ def _resolve_partition(part, layers, dem, dem_units, elevation_source="larger"):
         dem_units=dem_units,
         elevation_source=elevation_source,
     )
-    return part["row"].to_numpy(dtype=np.int64), res
+    return part["row"].to_numpy(dtype=np.int64), *_compact(res)
+
+
+def _bounds(n: int, nparts: int) -> np.ndarray:
+    return np.linspace(0, n, nparts + 1).astype(int)
 
 
 def _stage(frame: pd.DataFrame, folder: Path, nparts: int) -> list[Path]:
-    import geopandas as gpd
+    """Write the partitions as plain Parquet files (row, lat, lon, elevation_ft)."""
+    import pyarrow as pa
+    import pyarrow.parquet as pq
 
-    bounds = np.linspace(0, len(frame), nparts + 1).astype(int)
+    bounds = _bounds(len(frame), nparts)
     paths = []
     for i in range(nparts):
         chunk = frame.iloc[bounds[i] : bounds[i + 1]]
-        gdf = gpd.GeoDataFrame(
-            chunk,
-            geometry=gpd.points_from_xy(chunk["lon"], chunk["lat"]),
-            crs="EPSG:4326",
-        )
         path = folder / f"part.{i:05d}.parquet"
-        gdf.to_parquet(path, index=False)
+        pq.write_table(pa.Table.from_pandas(chunk, preserve_index=False), path)
         paths.append(path)
     return paths
 
@@ -145,8 +183,6 @@ def resolve_dask_result(
         The partitions' results put together in input order.
     """
     import dask
-    import dask_geopandas
-    import geopandas as gpd
 
     from neve.geo.site.result import Resolution
 
@@ -174,17 +210,18 @@ def resolve_dask_result(
             if own_tmp is None:
                 folder = Path(tempfile.mkdtemp(prefix="neve-dask-", dir=folder))
                 own_tmp = folder
-            _stage(frame, folder, nparts)
-            ddf = dask_geopandas.read_parquet(str(folder))
-        else:
-            gdf = gpd.GeoDataFrame(frame, geometry=gpd.points_from_xy(lon, lat), crs="EPSG:4326")
-            ddf = dask_geopandas.from_geopandas(gdf, npartitions=nparts)
+            paths = _stage(frame, folder, nparts)
+            work, task = [str(p) for p in paths], _resolve_staged
+        else:  # no shared folder: the partitions' plain columns sent from here
+            bounds = _bounds(n, nparts)
+            parts = [frame.iloc[bounds[i] : bounds[i + 1]] for i in range(nparts)]
+            work, task = client.scatter(parts), _resolve_partition
         # pickling empties the layers' look-up caches (Layer.__getstate__): each worker
         # builds its own prepared geometries and trees on first use
         [layers_future] = client.scatter([list(layers)], broadcast=True)
         tasks = [
-            dask.delayed(_resolve_partition)(part, layers_future, dem, dem_units, elevation_source)
-            for part in ddf.to_delayed()
+            dask.delayed(task)(part, layers_future, dem, dem_units, elevation_source)
+            for part in work
         ]
         done = _compute(client, tasks, n, progress)
     finally:
@@ -242,9 +279,9 @@ def _compute(client, tasks, n: int, progress: bool) -> list:
     done = {}
     try:
         for fut in as_completed(futures):
-            rows, res = fut.result()
-            done[fut.key] = (rows, res)
-            bar.update(len(res))
+            rows, res, packed = fut.result()
+            done[fut.key] = (rows, _expand(res, packed))
+            bar.update(len(rows))
     finally:
         bar.close()
     return [done[f.key] for f in futures]

@@ -127,12 +127,19 @@ def read_sites(path: str | Path) -> tuple[pd.DataFrame, object]:
     geometry : geopandas.GeoSeries or None
         The rows' geometry in WGS 84 when the file carries one.
     """
+    from neve.geo.postgis import is_db_url
+
+    geometry = None
+    notes = ReadNotes()
+    if is_db_url(path):  # a PostGIS table or query (neve.geo.postgis)
+        from neve.geo.postgis import parse_db_url, read_db_sites
+
+        frame, geometry = read_db_sites(str(path))
+        return _finish(frame, geometry, notes, "postgis", parse_db_url(str(path), "sites").shown)
     p = Path(path)
     if not p.is_file():
         raise InputError("sites", f"file {str(p)!r} not found", "a CSV, XLSX, GPKG or Parquet file")
     fmt = site_format(p)
-    geometry = None
-    notes = ReadNotes()
     try:
         if fmt == "csv":
             from neve.geo.screen.csv_records import read_csv_records
@@ -154,18 +161,182 @@ def read_sites(path: str | Path) -> tuple[pd.DataFrame, object]:
             f"{str(p)!r} is not a readable {fmt} table ({type(exc).__name__}: {str(exc).strip()})",
             "a CSV, XLSX, GPKG or Parquet table with one row per site",
         ) from None
+    return _finish(frame, geometry, notes, fmt, str(p))
+
+
+def _finish(frame, geometry, notes, fmt: str, label: str):
+    """The checks and notes every site reader ends with."""
     frame.columns = [str(c) for c in frame.columns]
     if geometry is None and fmt in ("csv", "xlsx"):
         geometry = _wkt_geometry(frame)
     if len(frame.columns) == 0:
-        raise InputError("sites", f"{str(p)!r} has no columns", ACCEPTED_COORDS)
+        raise InputError("sites", f"{label!r} has no columns", ACCEPTED_COORDS)
     if len(frame) == 0:
-        raise InputError("sites", f"{str(p)!r} has no rows", "a table with at least one site")
+        raise InputError("sites", f"{label!r} has no rows", "a table with at least one site")
     frame = frame.reset_index(drop=True)
     notes.info.setdefault("format", fmt)
     notes.info.setdefault("records", int(len(frame)))
     frame.attrs[READ_NOTES] = notes
     return frame, geometry
+
+
+def iter_site_chunks(path: str | Path, chunk_rows: int):
+    """Read a site file in chunks of about ``chunk_rows`` rows, in order.
+
+    Yields ``(frame, geometry)`` pairs as :func:`read_sites` returns them for the
+    whole file, with :class:`ReadNotes` in each frame's ``attrs`` (row indices
+    within the chunk, the chunk's part of the layout ``info``).  CSV files are
+    read by :func:`neve.geo.screen.csv_records.iter_csv_records`, Parquet files by
+    row batches (a GeoParquet file's WKB geometry decoded per batch) and
+    GeoPackages by feature ranges; XLSX files, and GeoParquet files with another
+    geometry encoding or more than one geometry column, are read whole, as one chunk.
+    """
+    p = Path(path)
+    if not p.is_file():
+        raise InputError("sites", f"file {str(p)!r} not found", "a CSV, XLSX, GPKG or Parquet file")
+    fmt = site_format(p)
+    chunk_rows = max(1, int(chunk_rows))
+    if fmt == "xlsx" or (fmt == "parquet" and _is_geoparquet(p) and _wkb_column(p) is None):
+        yield read_sites(p)
+        return
+    if fmt == "csv":
+        parts = _csv_parts(p, chunk_rows)
+    elif fmt == "parquet" and _is_geoparquet(p):
+        parts = _geoparquet_parts(p, chunk_rows)
+    else:
+        parts = _table_parts(p, fmt, chunk_rows)
+    first = True
+    for frame, geometry, notes in _readable(p, fmt, parts):
+        frame.columns = [str(c) for c in frame.columns]
+        if first and len(frame.columns) == 0:
+            raise InputError("sites", f"{str(p)!r} has no columns", ACCEPTED_COORDS)
+        if geometry is None and fmt == "csv":
+            geometry = _wkt_geometry(frame)
+        frame = frame.reset_index(drop=True)
+        notes.info.setdefault("format", fmt)
+        notes.info.setdefault("records", int(len(frame)))
+        frame.attrs[READ_NOTES] = notes
+        yield frame, geometry  # an empty chunk too: its lines count in the layout
+        first = False
+
+
+def iter_site_column(path: str | Path, column: str, chunk_rows: int):
+    """One column of a site file, chunk by chunk (pandas Series), every record in order.
+
+    The records are those of :func:`iter_site_chunks` (only the one column is
+    converted: a first pass, e.g. for the site ids of the whole file).
+    """
+    p = Path(path)
+    fmt = site_format(p)
+    if fmt == "csv":
+        from neve.geo.screen.csv_records import iter_csv_records
+
+        for rec in iter_csv_records(p, chunk_rows, columns=[column]):
+            yield rec.frame[column]
+        return
+    if fmt == "parquet" and not _is_geoparquet(p):
+        import pyarrow.parquet as pq
+
+        keep = {"types_mapper": _integers_stay_integers}
+        for batch in pq.ParquetFile(p).iter_batches(batch_size=chunk_rows, columns=[column]):
+            yield batch.to_pandas(**keep)[column]
+        return
+    for frame, _ in iter_site_chunks(p, chunk_rows):
+        yield frame[column]
+
+
+def _readable(p: Path, fmt: str, parts):
+    """The parts of a reader, a failure of the file turned into an InputError."""
+    try:
+        yield from parts
+    except InputError:
+        raise
+    except Exception as exc:  # a corrupt file, or not a table at all
+        raise InputError(
+            "sites",
+            f"{str(p)!r} is not a readable {fmt} table ({type(exc).__name__}: {str(exc).strip()})",
+            "a CSV, XLSX, GPKG or Parquet table with one row per site",
+        ) from None
+
+
+def _is_geoparquet(p: Path) -> bool:
+    import pyarrow.parquet as pq
+
+    try:
+        return b"geo" in (pq.read_schema(p).metadata or {})
+    except Exception:  # not a Parquet file: read_sites says so
+        return True
+
+
+def _wkb_column(p: Path) -> tuple[str, object] | None:
+    """(name, CRS) of a GeoParquet file's one geometry column when it is WKB, else None."""
+    import json
+
+    import pyarrow.parquet as pq
+
+    try:
+        meta = json.loads(pq.read_schema(p).metadata[b"geo"])
+        (name, col), *others = meta["columns"].items()
+    except Exception:  # read whole: read_sites says what is wrong
+        return None
+    if others or name != meta.get("primary_column") or col.get("encoding", "WKB") != "WKB":
+        return None
+    return name, col.get("crs", "OGC:CRS84")  # the specification's default CRS
+
+
+def _geoparquet_parts(p: Path, chunk_rows: int):
+    """A GeoParquet file by row batches, its WKB geometry decoded per batch (as geopandas)."""
+    import geopandas as gpd
+    import pyarrow as pa
+    import pyarrow.parquet as pq
+    import shapely
+
+    name, crs = _wkb_column(p)
+    keep = {"types_mapper": _integers_stay_integers}
+    pf = pq.ParquetFile(p)
+    meta = pf.schema_arrow.metadata
+    for batch in pf.iter_batches(batch_size=chunk_rows):
+        table = pa.Table.from_batches([batch])
+        wkb = table.column(name).to_numpy(zero_copy_only=False)
+        frame = table.drop_columns([name]).replace_schema_metadata(meta).to_pandas(**keep)
+        geometry = gpd.GeoSeries(shapely.from_wkb(wkb), crs=crs)
+        yield (*split_geometry(gpd.GeoDataFrame(frame, geometry=geometry)), ReadNotes())
+
+
+def _csv_parts(p: Path, chunk_rows: int):
+    from neve.geo.screen.csv_records import iter_csv_records
+
+    for rec in iter_csv_records(p, chunk_rows):
+        yield rec.frame, None, ReadNotes(rec.errors, rec.multiline, rec.info)
+
+
+def _table_parts(p: Path, fmt: str, chunk_rows: int):
+    keep = {"types_mapper": _integers_stay_integers}
+    if fmt == "parquet":
+        import pyarrow as pa
+        import pyarrow.parquet as pq
+
+        pf = pq.ParquetFile(p)
+        batches = pf.iter_batches(batch_size=chunk_rows)
+        empty = True
+        for batch in batches:
+            empty = False
+            table = pa.Table.from_batches([batch]).replace_schema_metadata(pf.schema_arrow.metadata)
+            yield table.to_pandas(**keep), None, ReadNotes()
+        if empty:
+            yield pf.schema_arrow.empty_table().to_pandas(**keep), None, ReadNotes()
+        return
+    import pyogrio
+
+    total = int(pyogrio.read_info(p)["features"])
+    for start in range(0, max(total, 1), chunk_rows):
+        try:
+            gdf = pyogrio.read_dataframe(p, skip_features=start, max_features=chunk_rows,
+                                         use_arrow=True, arrow_to_pandas_kwargs=keep)  # fmt: skip
+        except (ImportError, NotImplementedError, TypeError):  # a GDAL without Arrow support
+            gdf = pyogrio.read_dataframe(p, skip_features=start, max_features=chunk_rows)
+        frame, geometry = split_geometry(gdf)
+        yield frame, geometry, ReadNotes()
 
 
 def _wkt_geometry(frame: pd.DataFrame):

@@ -79,6 +79,19 @@ RESULT_COLUMNS = (
 )
 #: roof loads added per row (each as ``<name>_psf`` and ``<name>_kpa``)
 ROOF_LOADS = ("pf", "ps", "pm", "rain_on_snow", "design_uniform")
+#: the roof loads of a run on ``sk`` layers (EN 1991-1-3), each as ``<name>_kpa`` beside
+#: ``<name>_psf``; its ground columns are ``sk_kpa`` and ``sk_psf`` in place of pg's
+SK_ROOF_LOADS = ("s", "design_uniform")
+#: the quantities whose columns come SI first (kPa, then psf)
+SI_FIRST = ("sk",)
+
+
+def ground_quantity_of(res: Resolution) -> str:
+    """The ground quantity of a run's layers (``pg``; ``sk`` for EN 1991-1-3 layers)."""
+    quantities = {p.quantity for p in res.layers} - {"w2"}
+    return quantities.pop() if len(quantities) == 1 else "pg"
+
+
 ENGINES = ("local", "dask")
 #: the resolver's columns that screening uses
 RESOLVED_COLUMNS = (
@@ -138,8 +151,21 @@ def _profile_errors(sites: SiteArrays, roofs) -> None:
     sites.error[todo] = [f"roof: unknown profile {v!r}; accepted: {accepted}" for v in names[todo]]
 
 
-def run_screen(
-    sites,
+@dataclass
+class ScreenPlan:
+    """What a screening run checked and loaded before reading any site (shared by chunks)."""
+
+    layers: list
+    roofs: object
+    explicit: object
+    engine: str
+    kwargs: dict
+    resolver: object
+    geocoding: dict
+    max_rows: int | None = None
+
+
+def plan_screen(
     *,
     layers=None,
     dem=None,
@@ -157,23 +183,12 @@ def run_screen(
     progress: bool = False,
     elevation_source: str = "larger",
     standard=None,
-) -> ScreenRun:
-    """Screen sites; return the results with their summary (see :func:`screen`).
-
-    ``standard``: the standard of the roof loads (an id or name of
-    :mod:`neve.engine.standards`; the default one when omitted).
-    """
+) -> ScreenPlan:
+    """Check the options and load the layers and roofs of a run (see :func:`run_screen`)."""
     from neve.engine.choices import choose_key
     from neve.engine.standards import get_standard
 
     explicit = get_standard(standard) if standard is not None else None  # unknown: refused now
-
-    t0 = time.perf_counter()
-    timings: dict[str, float] = {}
-
-    def lap(name: str) -> None:
-        timings[name] = round(time.perf_counter() - t0 - sum(timings.values()), 3)
-
     engine = choose_key("engine", engine, ENGINES)
     from neve.geo.layers.model import dem_argument
 
@@ -191,35 +206,6 @@ def run_screen(
         layers = demo_layers_for(explicit)  # --standard asce7-22: the 7-22 demo layers
     layer_list = _layers(layers)
     roofs = _roofs(roof)
-    lap("layers")
-    site = load_sites(sites)
-    if max_rows is not None and len(site) > max_rows:
-        raise InputError(
-            "output",
-            f"{len(site):,} sites do not fit in the chosen output ({max_rows:,} rows at most)",
-            "a .csv, .gpkg or .parquet output for large portfolios",
-        )
-    _profile_errors(site, roofs)
-    from neve.geo.screen.editions import has_per_risk, resolve_by_risk, row_risk, w2_columns
-
-    risk, risk_cell = row_risk(site, roofs)  # before the look-up: a bad risk cell is a row error
-    lap("read")
-    if site.address is not None and (site.address != "").any():
-        from neve.geo.screen.geocode_rows import geocode_sites
-
-        geocode_sites(
-            site,
-            geocoder,
-            gazetteer=gazetteer,
-            url=geocoder_url,
-            cache_path=geocode_cache,
-            progress=progress,
-        )
-        lap("geocode")
-    valid = (site.error == "") & np.isfinite(site.lat) & np.isfinite(site.lon)
-    idx = np.flatnonzero(valid)
-    elev = site.elevation_ft[idx]
-    elev_arg = elev if np.isfinite(elev).any() else None
     kwargs = dict(
         layers=layer_list,
         dem=dem,
@@ -235,6 +221,32 @@ def run_screen(
                                        staging=staging, **kw)  # fmt: skip
     else:
         resolver = resolve_local_result
+    geocoding = dict(geocoder=geocoder, gazetteer=gazetteer, url=geocoder_url,
+                     cache_path=geocode_cache, progress=progress)  # fmt: skip
+    return ScreenPlan(layer_list, roofs, explicit, engine, kwargs, resolver, geocoding, max_rows)
+
+
+def screen_sites(plan: ScreenPlan, site: SiteArrays, lap=None) -> pd.DataFrame:
+    """The results of parsed sites under a plan: every row, in order (see :func:`run_screen`)."""
+    lap = lap or (lambda name: None)
+    layer_list, roofs, explicit = plan.layers, plan.roofs, plan.explicit
+    _profile_errors(site, roofs)
+    from neve.geo.screen.editions import has_per_risk, resolve_by_risk, row_risk, w2_columns
+
+    risk, risk_cell = row_risk(site, roofs)  # before the look-up: a bad risk cell is a row error
+    lap("read")
+    if site.address is not None and (site.address != "").any():
+        from neve.geo.screen.geocode_rows import geocode_sites
+
+        geocode_sites(site, plan.geocoding["geocoder"], **{
+            k: v for k, v in plan.geocoding.items() if k != "geocoder"})  # fmt: skip
+        lap("geocode")
+    valid = (site.error == "") & np.isfinite(site.lat) & np.isfinite(site.lon)
+    idx = np.flatnonzero(valid)
+    elev = site.elevation_ft[idx]
+    elev_arg = elev if np.isfinite(elev).any() else None
+    kwargs = dict(plan.kwargs)
+    resolver = plan.resolver
     if len(idx) == 0:
         resolved = None
     elif has_per_risk(layer_list):  # per-risk layers (ASCE 7-22): once per risk category
@@ -257,16 +269,42 @@ def run_screen(
     out = {**_result_columns(res, site), **w2_cols, **roof_cols, **record_cols}  # text: the edge
     results = _join_input(site.frame, out)
     lap("roof_and_assemble")
+    return results
+
+
+def run_screen(sites, **options) -> ScreenRun:
+    """Screen sites; return the results with their summary (see :func:`screen`).
+
+    Takes the options of :func:`plan_screen`; ``standard``: the standard of the
+    roof loads (an id or name of :mod:`neve.engine.standards`; the default one
+    when omitted).
+    """
+    t0 = time.perf_counter()
+    timings: dict[str, float] = {}
+
+    def lap(name: str) -> None:
+        timings[name] = round(time.perf_counter() - t0 - sum(timings.values()), 3)
+
+    plan = plan_screen(**options)
+    lap("layers")
+    site = load_sites(sites)
+    if plan.max_rows is not None and len(site) > plan.max_rows:
+        raise InputError(
+            "output",
+            f"{len(site):,} sites do not fit in the chosen output ({plan.max_rows:,} rows at most)",
+            "a .csv, .gpkg or .parquet output for large portfolios",
+        )
+    results = screen_sites(plan, site, lap)
     summary = summarize(
         results,
-        layer_list,
-        engine=engine,
+        plan.layers,
+        engine=plan.engine,
         seconds=time.perf_counter() - t0,
         input_info=site.input_info,
     )
     summary["timings_s"] = timings
     geometry = getattr(site, "geometry", None)
-    return ScreenRun(results, summary, geometry, layer_list)
+    return ScreenRun(results, summary, geometry, plan.layers)
 
 
 def screen(sites, *, layers=None, dem=None, dem_units=None, roof=None, engine="local", **kw):
@@ -329,33 +367,71 @@ def _widen_approximate(resolved, site, idx, elev_arg, risk, layer_list, resolver
     Rows of one radius (one address: the look-ups are cached) are resolved
     together with every layer's boundary tolerance raised to that radius
     (:meth:`neve.geo.layers.model.Layer.widened`), as ``neve site`` does; rows
-    at a ZIP code or place centroid get ``location_approximate``.
+    at a ZIP code or place centroid get ``location_approximate``.  With a DEM,
+    rows without a given elevation are worked at the minimum and maximum DEM
+    elevation over their circle (:func:`neve.geo.site.circle.resolve_over_circle`:
+    the more demanding governs, ``elevation_rule_within_radius`` where they
+    differ); the minimum and maximum go to ``site.location_elevation_min_ft`` /
+    ``_max_ft``.
     """
     from neve.geo.screen.editions import has_per_risk, resolve_by_risk
+    from neve.geo.site.circle import elevation_over_circle, resolve_over_circle
 
     radius = site.location_radius_m[idx]
     precision = site.location_precision[idx]
     approx = np.isin(precision, ("postal_code", "place"))
+    n = len(site)
+    site.location_elevation_min_ft = np.full(n, np.nan)
+    site.location_elevation_max_ft = np.full(n, np.nan)
     if approx.any():
         resolved.flags[approx] |= np.uint64(BIT["location_approximate"])
+    dem = kwargs.get("dem")
+    per_risk = has_per_risk(layer_list)
+
+    def run(rows, el, widened, **kw):
+        kw = dict(kwargs, progress=False, **kw)
+        kw.pop("layers", None)
+        if per_risk:
+            return resolve_by_risk(resolver, site.lat[rows], site.lon[rows], el, risk[rows],
+                                   widened, **kw)  # fmt: skip
+        return resolver(site.lat[rows], site.lon[rows], el, layers=widened, **kw)
+
     wide = np.isfinite(radius) & (radius > 0)
     for r in np.unique(radius[wide]):
         pos = np.flatnonzero(wide & (radius == r))
         rows = idx[pos]
         widened = [ly.widened(float(r)) for ly in layer_list]
-        if all(w is ly for w, ly in zip(widened, layer_list, strict=True)):
-            continue  # every layer's own tolerance already covers the circle
         el = None if elev_arg is None else elev_arg[pos]
-        kw = dict(kwargs, progress=False)
-        if has_per_risk(layer_list):
-            kw.pop("layers", None)
-            part = resolve_by_risk(resolver, site.lat[rows], site.lon[rows], el, risk[rows],
-                                   widened, **kw)  # fmt: skip
-        else:
-            kw["layers"] = widened
-            part = resolver(site.lat[rows], site.lon[rows], el, **kw)
-        part.flags |= resolved.flags[pos] & np.uint64(BIT["location_approximate"])
-        _assign(resolved, pos, part)
+        circle = np.zeros(pos.size, dtype=bool)
+        over = None
+        if dem is not None:  # ZIP code and place rows (an address's 50 m is taken as exact)
+            no_el = np.ones(pos.size, bool) if el is None else ~np.isfinite(el)
+            no_el &= approx[pos]
+            if no_el.any():
+                at = np.flatnonzero(no_el)
+                over = elevation_over_circle(site.lat[rows[at]], site.lon[rows[at]], float(r),
+                                             dem, kwargs.get("dem_units"))  # fmt: skip
+                found = np.isfinite(over["min_ft"])
+                circle[at[found]] = True
+                over = {k: v[found] for k, v in over.items()}
+        plain = ~circle
+        if plain.any() and not all(w is ly for w, ly in zip(widened, layer_list, strict=True)):
+            sub = pos[plain]
+            part = run(idx[sub], None if el is None else el[plain], widened)
+            part.flags |= resolved.flags[sub] & np.uint64(BIT["location_approximate"])
+            _assign(resolved, sub, part)
+        if circle.any():
+            sub = pos[circle]
+
+            def at_elevation(la, lo, e, _rows=idx[sub], _layers=widened, **_kw):
+                return run(_rows, e, _layers, dem=None, dem_units=None)
+
+            part, _, _ = resolve_over_circle(site.lat[idx[sub]], site.lon[idx[sub]], float(r),
+                                             over, resolver=at_elevation)  # fmt: skip
+            part.flags |= resolved.flags[sub] & np.uint64(BIT["location_approximate"])
+            _assign(resolved, sub, part)
+            site.location_elevation_min_ft[idx[sub]] = over["min_ft"]
+            site.location_elevation_max_ft[idx[sub]] = over["max_ft"]
     if approx.any():
         resolved.message[approx] = [
             f"{m} Located at a {'ZIP code' if p == 'postal_code' else 'place'} centroid, "
@@ -402,6 +478,12 @@ def _rows_result(
     return res
 
 
+def _circle_column(site: SiteArrays, which: str) -> np.ndarray:
+    """The DEM's minimum or maximum [ft] over each row's location circle (NaN where none)."""
+    got = getattr(site, f"location_elevation_{which}_ft", None)
+    return np.full(len(site), np.nan) if got is None else got
+
+
 def _missing_if_empty(text: np.ndarray) -> np.ndarray:
     """Text per row with "" (no zone, no layer) as a missing value."""
     empty = text == ""
@@ -415,12 +497,15 @@ def _missing_if_empty(text: np.ndarray) -> np.ndarray:
 def _result_columns(res: Resolution, site: SiteArrays) -> dict:
     """The result columns of every row (:data:`RESULT_COLUMNS`): the edge where codes and
     bits become text."""
-    pg = res.value("pg")
+    q = ground_quantity_of(res)
+    pg = res.value(q)  # [psf]
+    ground = {"pg_psf": pg, "pg_kpa": pg * KPA_PER_PSF}
+    if q in SI_FIRST:  # sk layers: sk_kpa beside sk_psf
+        ground = {f"{q}_kpa": pg * KPA_PER_PSF, f"{q}_psf": pg}
     elev = res.elevation_ft
     return {
         "status": res.status_text(),
-        "pg_psf": pg,
-        "pg_kpa": pg * KPA_PER_PSF,
+        **ground,
         "zone_id": _missing_if_empty(res.zone_id),
         "flags": flags_text(res.flags),
         "message": res.message,
@@ -437,6 +522,8 @@ def _result_columns(res: Resolution, site: SiteArrays) -> dict:
             else {
                 "location_precision": _missing_if_empty(site.location_precision),
                 "location_radius_m": site.location_radius_m,
+                "location_elevation_min_ft": _circle_column(site, "min"),
+                "location_elevation_max_ft": _circle_column(site, "max"),
             }
         ),
     }
@@ -464,8 +551,10 @@ def _roof_columns(
 
     explicit = get_standard(standard) if standard is not None else None
     n = len(site)
-    psf = {name: np.full(n, np.nan) for name in ROOF_LOADS}
-    pg = res.value("pg")
+    q = ground_quantity_of(res)
+    names = SK_ROOF_LOADS if q in SI_FIRST else ROOF_LOADS
+    psf = {name: np.full(n, np.nan) for name in names}
+    pg = res.value(q)  # [psf]
     w2 = res.value("w2")
     usable = np.isin(res.status, (OK, PROVISIONAL)) & np.isfinite(pg)
     groups, mismatch, unsupported = row_standards(res, layers, explicit)
@@ -489,16 +578,19 @@ def _roof_columns(
                 if not mask.any():
                     continue
                 res.flags[mask] |= bits_of(std.screening_flags(this))
-                quantities = {"pg": pg[mask]}
+                # the standard's load unit: ASCE 7 takes psf, EN 1991-1-3 kPa
+                kpa = std.units.get("load") == "kPa"
+                quantities = {q: pg[mask] * KPA_PER_PSF if kpa else pg[mask]}
                 if "w2" in std.quantities:
                     quantities["w2"] = w2[mask]
                 loads = std.uniform(quantities, this)
-                for name in ROOF_LOADS:
-                    psf[name][mask] = np.asarray(loads[name], dtype=float)
+                for name in names:
+                    v = np.asarray(loads[name], dtype=float)
+                    psf[name][mask] = v / KPA_PER_PSF if kpa else v
     out = {}
-    for name in ROOF_LOADS:  # psf beside kPa
-        out[f"{name}_psf"] = psf[name]
-        out[f"{name}_kpa"] = psf[name] * KPA_PER_PSF
+    for name in names:  # psf beside kPa (kPa first for sk)
+        pair = {f"{name}_psf": psf[name], f"{name}_kpa": psf[name] * KPA_PER_PSF}
+        out.update(dict(reversed(pair.items())) if q in SI_FIRST else pair)
     return out
 
 

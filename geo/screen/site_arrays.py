@@ -50,6 +50,9 @@ class SiteArrays:
         Filled by the geocoding of address rows: each row's location precision
         (:data:`neve.geo.site.places.PRECISIONS`, ``""`` for a row not located)
         and its uncertainty radius [m]; None for a file without addresses.
+    location_elevation_min_ft, location_elevation_max_ft : numpy.ndarray or None
+        With a DEM: the DEM's minimum and maximum [ft] over each approximate
+        row's location circle (NaN elsewhere); set by the screening run.
     """
 
     frame: pd.DataFrame
@@ -69,6 +72,8 @@ class SiteArrays:
     on_record_psf: np.ndarray | None = None
     location_precision: np.ndarray | None = None
     location_radius_m: np.ndarray | None = None
+    location_elevation_min_ft: np.ndarray | None = None
+    location_elevation_max_ft: np.ndarray | None = None
 
     def __len__(self) -> int:
         return len(self.frame)

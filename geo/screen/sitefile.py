@@ -384,7 +384,7 @@ def find_columns(frame: pd.DataFrame, has_geometry: bool) -> dict:
     return found
 
 
-def parse_sites(frame: pd.DataFrame, geometry=None) -> SiteArrays:
+def parse_sites(frame: pd.DataFrame, geometry=None, *, duplicates=None) -> SiteArrays:
     """Parse a site table into coordinate and elevation arrays with per-row errors.
 
     Parameters
@@ -393,6 +393,10 @@ def parse_sites(frame: pd.DataFrame, geometry=None) -> SiteArrays:
         The site table (see :func:`read_sites`).
     geometry : geopandas.GeoSeries, optional
         Point geometry in WGS 84, used when there are no lat/lon columns.
+    duplicates : numpy.ndarray, optional
+        The rows whose site id is repeated, when the caller knows them (a chunk
+        of a larger file: :mod:`neve.geo.screen.stream`); found in the table
+        itself when omitted.
 
     Returns
     -------
@@ -460,7 +464,9 @@ def parse_sites(frame: pd.DataFrame, geometry=None) -> SiteArrays:
         r = frame[cols["roof"]]
         roof = r.astype(object).where(r.notna(), "").astype(str).str.strip().to_numpy(dtype=object)
     duplicate = np.zeros(n, dtype=bool)
-    if cols["site_id"] is not None:
+    if duplicates is not None:
+        duplicate = np.asarray(duplicates, dtype=bool)
+    elif cols["site_id"] is not None:
         ids = frame[cols["site_id"]]
         codes, _ = pd.factorize(ids)  # missing ids get code -1
         counts = np.bincount(codes[codes >= 0], minlength=1)

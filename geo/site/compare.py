@@ -259,7 +259,8 @@ def _ground_ref(ground: Mapping) -> str:
 def differences(editions: Sequence[tuple[str, Mapping]]) -> list[dict]:
     """The comparable quantities of ``editions`` (``[(standard id, site JSON)]``), side by side.
 
-    Each entry: ``quantity`` (``pg``, ``pf``, ``ps``, ``pm``, ``rain_on_snow``,
+    Each entry: ``quantity`` (``pg``; ``sk`` where an edition's ground is sk;
+    ``pf``, ``ps``, ``pm``, ``rain_on_snow``,
     ``design_uniform`` or a
     case's key such as ``pd``), ``case`` and ``name`` (null for the site and
     roof quantities), ``values`` (standard id -> value or null), ``difference``
@@ -272,6 +273,10 @@ def differences(editions: Sequence[tuple[str, Mapping]]) -> list[dict]:
     roofs = [d.get("roof") or {} for _, d in editions]
     out = [_entry("pg", None, None, ids, [g.get("pg") for g in grounds],
                   [_ground_ref(g) for g in grounds])]  # fmt: skip
+    if any(g.get("quantity") == "sk" for g in grounds):  # an EN 1991-1-3 edition: its sk
+        out.append(_entry("sk", None, None, ids, [g.get("sk") for g in grounds],
+                          [_ground_ref(g) if g.get("quantity") == "sk" else ""
+                           for g in grounds]))  # fmt: skip
     for key in ROOF_LOADS:
         vals = [(r.get("loads") or {}).get(key) for r in roofs]
         out.append(_entry(key, None, None, ids, vals, [_ref(s, f"load.{key}") for s in ids]))
@@ -375,6 +380,14 @@ def comparison_text(data: Mapping) -> str:
         lines.append("DEMO DATA: invented layers; these results are never for design.")
     where = site.get("name") or site.get("input")
     lines.append(f"Edition comparison at {where} ({site['lat']:g}, {site['lon']:g})")
+    precision = site.get("location_precision")
+    if precision and precision != "coordinates":
+        radius = (site.get("location_radius") or {}).get("m") or 0.0
+        source = site.get("location_source") or "-"
+        lines.append(f"  location: {precision}, uncertain within {radius:,.0f} m (from {source})")
+        if precision in ("postal_code", "place"):
+            lines.append("  approximate: zones, study areas and elevation rules within that circle "
+                         "were considered in every edition and the larger value governs")  # fmt: skip
     for r in data["results"]:
         g = r.get("ground") or {}
         layer = (g.get("layer") or {}).get("name") or "no layer"

@@ -8,7 +8,8 @@ the unit of a DEM that states none; it never overrides a stated unit: a
 ``dem_units`` that contradicts the DEM is refused, naming both.  A DEM with
 no unit at all is refused rather than guessed.  Sampling is vectorized: the
 sites are transformed to the DEM's CRS once, one window covering them is
-read, and cells are picked with ``rasterio.transform.rowcol`` (the cell that
+read, and cells are picked by the inverse geotransform, as
+``rasterio.transform.rowcol`` picks them (:func:`rowcol_floor`: the cell that
 contains the site, as ``DatasetReader.sample`` picks it).  Nodata and sites
 outside the grid give NaN, which the resolver flags as ``dem_nodata``.
 
@@ -22,6 +23,7 @@ value the DEM does not declare as nodata, or a unit mistake.
 from __future__ import annotations
 
 import math
+import threading
 from pathlib import Path
 
 import numpy as np
@@ -164,8 +166,11 @@ def check_dem_options(dem, dem_units: str | None = None) -> float | None:
                 "--dem-units together with --dem DEM.tif (the unit of that DEM)",
             )
         return None
-    with _open_dem(dem) as ds:
-        return vertical_factor(ds, Path(dem).name, dem_units)
+    p = Path(dem)
+    if not p.is_file():
+        with _open_dem(p) as ds:  # its own message for a missing file
+            return vertical_factor(ds, p.name, dem_units)
+    return _reader(p, dem_units).factor  # opened once, kept for the run (or the server)
 
 
 def plausible_dem(dem_ft) -> tuple[np.ndarray, np.ndarray]:
@@ -202,6 +207,92 @@ def _open_dem(dem):
     return ds
 
 
+#: a DEM of at most this many cells is read whole, once, and kept while it is used [cells]
+WHOLE_DEM_CELLS = 16_000_000
+#: DEM readers kept open (a run samples one DEM over many chunks)
+_OPEN_DEMS = 2
+_READERS: dict = {}
+_READERS_LOCK = threading.Lock()
+
+
+def rowcol_floor(inverse: np.ndarray, x: np.ndarray, y: np.ndarray):
+    """Row and column of the cells holding points, by the inverse geotransform.
+
+    The same arithmetic as ``rasterio.transform.rowcol(transform, x, y, op=math.floor)``
+    (the inverse affine as a 3 x 3 matrix times the points, then the floor), in
+    numpy: rasterio maps ``math.floor`` over the points one by one in Python.
+    Coordinates that do not transform (inf, NaN) give a cell outside any grid.
+
+    Parameters
+    ----------
+    inverse : numpy.ndarray
+        The inverse of the DEM's affine transform as a 3 x 3 matrix (``~transform``).
+    x, y : numpy.ndarray
+        Point coordinates in the DEM's CRS.
+    """
+    m = np.empty((3, len(x)))
+    m[0], m[1], m[2] = x, y, 1.0
+    far = float(2**62)
+    with np.errstate(invalid="ignore", over="ignore"):
+        inverse.dot(m, out=m)
+        cols = np.nan_to_num(np.floor(m[0]), nan=-far, posinf=far, neginf=-far)
+        rows = np.nan_to_num(np.floor(m[1]), nan=-far, posinf=far, neginf=-far)
+    return np.clip(rows, -far, far).astype(np.int64), np.clip(cols, -far, far).astype(np.int64)
+
+
+class _DemReader:
+    """An open DEM with its unit factor, inverse transform and (a small DEM) its band.
+
+    Kept between calls (:func:`_reader`), so that a run sampling many chunks
+    opens, reads and checks the DEM once.  Reads are serialised by a lock
+    (a rasterio dataset is not to be read from two threads at once).
+    """
+
+    def __init__(self, p: Path, dem_units: str | None):
+        ds = _open_dem(p)
+        try:
+            self.factor = vertical_factor(ds, p.name, dem_units)
+        except Exception:
+            ds.close()
+            raise
+        self.ds = ds
+        self.crs = ds.crs
+        self.height, self.width = ds.height, ds.width
+        self.inverse = np.array(tuple(~ds.transform), dtype=float).reshape(3, 3)
+        self.lock = threading.Lock()
+        self.band = None
+
+    def whole(self):
+        """The whole band (masked, as stored) when the DEM is small enough, else None."""
+        if self.height * self.width > WHOLE_DEM_CELLS:
+            return None
+        with self.lock:
+            if self.band is None:
+                self.band = self.ds.read(1, masked=True)
+        return self.band
+
+    def window(self, win):
+        with self.lock:
+            return self.ds.read(1, window=win, masked=True)
+
+    def close(self) -> None:
+        self.ds.close()
+
+
+def _reader(p: Path, dem_units: str | None) -> _DemReader:
+    """The open reader of a DEM file (reopened when the file changed)."""
+    st = p.stat()
+    key = (str(p.resolve()), st.st_mtime_ns, st.st_size, dem_units)
+    with _READERS_LOCK:
+        reader = _READERS.pop(key, None)
+        if reader is None:
+            reader = _DemReader(p, dem_units)
+        _READERS[key] = reader  # the newest last
+        while len(_READERS) > _OPEN_DEMS:
+            _READERS.pop(next(iter(_READERS))).close()
+    return reader
+
+
 def sample_dem(dem: str | Path, lon, lat, dem_units: str | None = None) -> np.ndarray:
     """DEM elevation at many sites [ft]; NaN at nodata or outside the grid.
 
@@ -227,34 +318,46 @@ def sample_dem(dem: str | Path, lon, lat, dem_units: str | None = None) -> np.nd
     InputError
         When the vertical unit is neither in the file nor given, or when the
         given one contradicts the DEM's own.
+
+    Notes
+    -----
+    The DEM stays open between calls (a run samples it chunk by chunk); a DEM of
+    at most :data:`WHOLE_DEM_CELLS` cells is read whole on first use and kept, a
+    larger one is read by windows around the sites.  Only the sampled cells are
+    converted to floating point.
     """
-    from pyproj import Transformer
-    from rasterio.transform import rowcol
     from rasterio.windows import Window
+
+    from neve.geo.layers.transform import transformer
 
     lon = np.atleast_1d(np.asarray(lon, dtype=float))
     lat = np.atleast_1d(np.asarray(lat, dtype=float))
     out = np.full(lon.shape, np.nan)
     p = Path(dem)
-    with _open_dem(p) as ds:
-        factor = vertical_factor(ds, p.name, dem_units)
-        ok = np.flatnonzero(np.isfinite(lon) & np.isfinite(lat))
-        if ok.size == 0:
-            return out
-        x, y = Transformer.from_crs(4326, ds.crs, always_xy=True).transform(lon[ok], lat[ok])
-        rows, cols = (np.asarray(a) for a in rowcol(ds.transform, x, y, op=math.floor))
-        inside = (rows >= 0) & (rows < ds.height) & (cols >= 0) & (cols < ds.width)
-        sel = ok[inside]
-        rows, cols = rows[inside], cols[inside]
-        if sel.size == 0:
-            return out
-        for part in _tiles(rows, cols):
-            r, c = rows[part], cols[part]
-            r0, c0 = int(r.min()), int(c.min())
-            win = Window(c0, r0, int(c.max()) - c0 + 1, int(r.max()) - r0 + 1)
-            band = ds.read(1, window=win, masked=True)
-            vals = np.ma.filled(band.astype(float), np.nan)[r - r0, c - c0]
-            out[sel[part]] = vals * factor
+    if not p.is_file():
+        raise InputError("dem", f"file {str(p)!r} not found", "a GeoTIFF of elevations")
+    reader = _reader(p, dem_units)
+    factor = reader.factor
+    ok = np.flatnonzero(np.isfinite(lon) & np.isfinite(lat))
+    if ok.size == 0:
+        return out
+    x, y = transformer(4326, reader.crs).transform(lon[ok], lat[ok])
+    rows, cols = rowcol_floor(reader.inverse, np.asarray(x, float), np.asarray(y, float))
+    inside = (rows >= 0) & (rows < reader.height) & (cols >= 0) & (cols < reader.width)
+    sel = ok[inside]
+    rows, cols = rows[inside], cols[inside]
+    if sel.size == 0:
+        return out
+    band = reader.whole()
+    if band is not None:
+        out[sel] = np.ma.filled(band[rows, cols].astype(float), np.nan) * factor
+        return out
+    for part in _tiles(rows, cols):
+        r, c = rows[part], cols[part]
+        r0, c0 = int(r.min()), int(c.min())
+        win = Window(c0, r0, int(c.max()) - c0 + 1, int(r.max()) - r0 + 1)
+        vals = reader.window(win)[r - r0, c - c0]
+        out[sel[part]] = np.ma.filled(vals.astype(float), np.nan) * factor
     return out
 
 

@@ -23,7 +23,7 @@ from neve.geo.layers.explain import explain
 from neve.geo.layers.model import as_layers, dem_argument
 from neve.geo.site.coords import check_range
 from neve.geo.site.elevation import MISMATCH_M, check_dem_options, parse_elevation
-from neve.geo.site.resolve import ELEVATION_SOURCES, resolve
+from neve.geo.site.resolve import ELEVATION_SOURCES, ground_quantity, resolve
 from neve.geo.site.result import (
     BIT,
     ELEVATION_ORIGINS,
@@ -88,9 +88,22 @@ class SiteResult:
 
 
 def _steps(layer, hits, pg: float, elev_ft: float, source: str) -> list[dict]:
-    """The derivation of one site's ground value in ``layer`` (``hits`` of that one site)."""
+    """The derivation of one site's ground value in ``layer`` (``hits`` of that one site).
+
+    ``pg``: the resolved value [psf] (of the layer's quantity: pg, or sk, whose
+    steps end in kPa).
+    """
+    q = layer.quantity
+    si = q in SI_FIRST  # an sk layer: the steps end in kPa
+    shown = (lambda psf: psf * KPA_PER_PSF) if si else (lambda psf: psf)
+    unit = "kPa" if si else "psf"
     steps: list[Step] = []
-    if np.isfinite(elev_ft):
+    if np.isfinite(elev_ft) and si:  # the site altitude of EN 1991-1-3, in metres
+        steps.append(
+            Step("A", f"site altitude ({source})", "A", f"{fmt(elev_ft)} ft",
+                 elev_ft / FT_PER_M, "m", f"site elevation from {source}")
+        )  # fmt: skip
+    elif np.isfinite(elev_ft):
         steps.append(
             Step("A", f"site elevation ({source})", "A", f"{fmt(elev_ft / FT_PER_M)} m",
                  elev_ft, "ft", f"site elevation from {source}")
@@ -106,39 +119,58 @@ def _steps(layer, hits, pg: float, elev_ft: float, source: str) -> list[dict]:
         base = hits.base_psf[0]
         if np.isfinite(base):
             raw = base / layer.to_psf
-            steps.append(Step("pg", f"grid cell value of {layer.name}", "pg = cell value",
-                              f"pg = {fmt(raw)} {meta['value_units']}", raw,
+            steps.append(Step(q, f"grid cell value of {layer.name}", f"{q} = cell value",
+                              f"{q} = {fmt(raw)} {meta['value_units']}", raw,
                               meta["value_units"], ref))  # fmt: skip
     elif j >= 0:
         scale = 1.0 if meta["elevation_units"] == "ft" else 1.0 / FT_PER_M
         steps.extend(explain(layer.zones, j, elev_ft * scale, meta, ref))
     base = hits.base_psf[0]
-    if meta["value_units"] == "kPa" and np.isfinite(base):
+    if si and meta["value_units"] == "psf" and np.isfinite(base):
+        steps.append(Step(q, "converted to kPa", f"{q} [kPa] = {q} [psf] x 0.0479",
+                          f"{fmt(base)} x {fmt(KPA_PER_PSF)}", base * KPA_PER_PSF, "kPa",
+                          "NIST SP 811 Appendix B (1 psf = 0.0478803 kPa)"))  # fmt: skip
+    elif not si and meta["value_units"] == "kPa" and np.isfinite(base):
         steps.append(Step("pg", "converted to psf", "pg [psf] = pg [kPa] / 0.0479",
                           f"{fmt(base * KPA_PER_PSF)} / {fmt(KPA_PER_PSF)}", base, "psf",
                           "NIST SP 811 Appendix B (1 psf = 0.0478803 kPa)"))  # fmt: skip
     valued = int(hits.state[0]) in (R.OK, R.UNCHECKED) and np.isfinite(base)
     if hits.zone_ids[0] != zid and not valued and int(hits.state[0]) in (R.STUDY, R.ABOVE):
         where = "overlapping zones" if hits.overlap[0] else "a shared edge of zones"
-        steps.append(Step("pg", f"{where}: a zone that requires a site-specific case study "
+        steps.append(Step(q, f"{where}: a zone that requires a site-specific case study "
                           "precedes the mapped values of the others",
                           "study required where any zone of the site requires one",
-                          hits.zone_ids[0].replace(";", ", "), None, "psf",
+                          hits.zone_ids[0].replace(";", ", "), None, unit,
                           f"{layer.name} ({where}; README, site resolution)"))  # fmt: skip
     elif hits.overlap[0] and valued:
-        steps.append(Step("pg", "overlapping zones: the larger value governs",
-                          "pg = max(pg of each zone)", hits.zone_ids[0], base, "psf",
+        steps.append(Step(q, "overlapping zones: the larger value governs",
+                          f"{q} = max({q} of each zone)", hits.zone_ids[0], shown(base), unit,
                           f"{layer.name} (overlapping zones)"))  # fmt: skip
     if hits.raised[0] and valued:
-        steps.append(Step("pg", f"zone with a larger value within {layer.tolerance_m:g} m "
+        neigh = hits.neigh_vals[0]
+        if si:  # the neighbouring values travel in psf: shown in kPa
+            neigh = "; ".join(_kpa_text(v) for v in str(neigh).split(";"))
+        steps.append(Step(q, f"zone with a larger value within {layer.tolerance_m:g} m "
                           "of the site: the larger value governs",
-                          "pg = max(pg, neighbouring values)",
-                          f"max({fmt(base)}; {hits.neigh_vals[0]})", pg, "psf",
+                          f"{q} = max({q}, neighbouring values)",
+                          f"max({fmt(shown(base))}; {neigh})", shown(pg), unit,
                           f"{layer.name} (boundary tolerance)"))  # fmt: skip
     return [s.to_dict() for s in steps]
 
 
-def _site_at(res: Resolution, alt: bool) -> tuple:
+#: ground quantities shown SI first (kPa before psf): EN 1991-1-3's sk
+SI_FIRST = ("sk",)
+
+
+def _kpa_text(value: str) -> str:
+    """A neighbouring value [psf] of the look-up in kPa (a state such as ``study`` as it is)."""
+    try:
+        return fmt(float(value) * KPA_PER_PSF)
+    except ValueError:
+        return value
+
+
+def _site_at(res: Resolution, alt: bool, q: str = "pg") -> tuple:
     """(elevation source, elevation [ft], status, pg [psf], zone) of the one site of ``res``.
 
     ``alt``: the result at the elevation that does not govern.
@@ -148,20 +180,20 @@ def _site_at(res: Resolution, alt: bool) -> tuple:
             ELEVATION_ORIGINS[res.alt_source[0]],
             float(res.alt_elevation_ft[0]),
             STATUSES[res.alt_status[0]],
-            float(res.alt_values["pg"][0]),
+            float(res.alt_values.get(q, res.value(q))[0]),
             res.alt_zone_id[0],
         )
     return (ELEVATION_ORIGINS[res.elevation_source[0]], float(res.elevation_ft[0]),
-            STATUSES[res.status[0]], float(res.value("pg")[0]), res.zone_id[0])  # fmt: skip
+            STATUSES[res.status[0]], float(res.value(q)[0]), res.zone_id[0])  # fmt: skip
 
 
-def _elevation_step(res: Resolution, rule: str) -> dict:
+def _elevation_step(res: Resolution, rule: str, q: str = "pg") -> dict:
     """The step that records a given elevation and the DEM disagreeing, and what governs."""
-    _, elev_ft, status, pg, _ = _site_at(res, False)
-    alt_src, alt_ft, alt_status, alt_pg, _ = _site_at(res, True)
+    _, elev_ft, status, pg, _ = _site_at(res, False, q)
+    alt_src, alt_ft, alt_status, alt_pg, _ = _site_at(res, True, q)
     gov_src = "dem" if alt_src == "input" else "input"
-    here = _outcome_text(status, pg)
-    there = _outcome_text(alt_status, alt_pg)
+    here = _outcome_text(status, pg, q)
+    there = _outcome_text(alt_status, alt_pg, q)
     at = {gov_src: (elev_ft, here), alt_src: (alt_ft, there)}
     sub = "; ".join(
         f"{'given' if src == 'input' else 'DEM'} A = {fmt(at[src][0] * M_PER_FT)} m: {at[src][1]}"
@@ -181,18 +213,23 @@ def _elevation_step(res: Resolution, rule: str) -> dict:
     ).to_dict()  # fmt: skip
 
 
-def _outcome_text(status: str, psf) -> str:
+def _outcome_text(status: str, psf, q: str = "pg") -> str:
     if status in ("ok", "provisional") and _num(psf) is not None:
-        return f"pg = {fmt(float(psf))} psf ({status})"
+        if q in SI_FIRST:
+            return f"{q} = {fmt(float(psf) * KPA_PER_PSF)} kPa ({status})"
+        return f"{q} = {fmt(float(psf))} psf ({status})"
     return status
 
 
-def _alternatives(res: Resolution) -> list[dict]:
-    """Both elevations of a site whose given elevation and DEM disagree, with their results."""
+def _alternatives(res: Resolution, q: str = "pg") -> list[dict]:
+    """Both elevations of a site whose given elevation and DEM disagree, with their results.
+
+    The value is under the key of the ground quantity ``q`` (``pg``, ``sk``).
+    """
     if res.alt_source[0] < 0:
         return []
-    alt_src, alt_ft, alt_status, alt_pg, alt_zone = _site_at(res, True)
-    _, elev_ft, status, pg, zone = _site_at(res, False)
+    alt_src, alt_ft, alt_status, alt_pg, alt_zone = _site_at(res, True, q)
+    _, elev_ft, status, pg, zone = _site_at(res, False, q)
     gov_src = "dem" if alt_src == "input" else "input"
 
     def entry(src, ft, status, psf, zone, governs):
@@ -201,7 +238,7 @@ def _alternatives(res: Resolution) -> list[dict]:
             "source": src,
             "elevation": length_json(_num(ft)),
             "status": status,
-            "pg": load_json(float(psf)) if usable else None,
+            q: load_json(float(psf)) if usable else None,
             "zone_id": zone or None,
             "governs": governs,
         }
@@ -226,7 +263,7 @@ def _finite(obj):
     return obj, False
 
 
-def _neighbours(hits, tol_m: float) -> list[dict]:
+def _neighbours(hits, tol_m: float, q: str = "pg") -> list[dict]:
     p = hits.pairs
     if not p:
         return []
@@ -242,7 +279,7 @@ def _neighbours(hits, tol_m: float) -> list[dict]:
         out.append(
             {
                 "zone_id": zid,
-                "pg": load_json(psf) if math.isfinite(psf) else None,
+                q: load_json(psf) if math.isfinite(psf) else None,
                 "state": "value" if st in (R.OK, R.UNCHECKED) else "no value",
                 "distance": length_json(d * FT_PER_M),
                 "within_tolerance": d <= tol_m,
@@ -331,8 +368,11 @@ def resolve_site(
         The uncertainty radius of the location [m]: every layer's boundary
         tolerance is raised to it (:meth:`neve.geo.layers.model.Layer.widened`),
         so a zone of another value or a study area within the circle flags the
-        site and the larger value governs; with a DEM the elevation is sampled
-        over the circle and its maximum used (``ground.elevation_over_radius``).
+        site and the larger value governs; with a DEM and no ``elevation`` the
+        site is worked at the DEM's minimum and maximum over the circle, the more
+        demanding result governs, and where they differ the flag
+        ``elevation_rule_within_radius`` is set (:mod:`neve.geo.site.circle`;
+        ``ground.elevation_over_radius``; the elevation source is ``dem``).
     location_source : str, optional
         Where the location came from (reported in ``site.location_source``).
     on_record_psf : float, optional
@@ -370,7 +410,7 @@ def resolve_site(
     layers = [ly for ly in layers if ly.quantity != "w2"] + [
         ly for ly in layers if ly.quantity == "w2"
     ]
-    from neve.geo.site.places import PRECISIONS
+    from neve.geo.site.places import APPROXIMATE, PRECISIONS
 
     location_precision = choose_key("location-precision", location_precision, PRECISIONS)
     radius_m = float(location_radius_m or 0.0)
@@ -378,20 +418,24 @@ def resolve_site(
         raise InputError("location-radius", f"{location_radius_m!r} is not a radius", "metres >= 0")
     if radius_m > 0:
         layers = [ly.widened(radius_m) for ly in layers]
+    q = ground_quantity(layers)  # pg, or sk (EN 1991-1-3); a mixed stack is refused
     elev_in = parse_elevation(elevation)
-    over = None
-    if radius_m > 0 and dem_path is not None and math.isnan(elev_in):
-        over = _elevation_over_circle(lat, lon, radius_m, dem_path, dem_units)
-        if over is not None:
-            elev_in = over["used_ft"]
     look_kw = dict(elevation_ft=[elev_in], dem=dem_path, dem_units=dem_units, search_m=SEARCH_M,
                    elevation_source=elevation_source)  # fmt: skip
-    res = resolve([lat], [lon], layers=layers, keep_detail=True, **look_kw)
+    over = None
+    circle = location_precision in APPROXIMATE and radius_m > 0 and math.isnan(elev_in)
+    if circle and dem_path is not None:
+        over = _over_circle(lat, lon, radius_m, dem_path, dem_units, layers)
+    if over is None:
+        res = resolve([lat], [lon], layers=layers, keep_detail=True, **look_kw)
+    else:  # the DEM over the circle: worked at its minimum and maximum, the larger governs
+        res = over.pop("result")
+        look_kw = dict(elevation_ft=[float(res.elevation_ft[0])], search_m=SEARCH_M)
     look, _ = res.detail.governing(0)  # where the DEM elevation governs, its look-up
     g = int(res.layer[0])
     bits = int(res.flags[0])
     status = STATUSES[res.status[0]]
-    pg = float(res.value("pg")[0])  # the ground value, in the one container it travels in
+    pg = float(res.value(q)[0])  # the ground value [psf], in the one container it travels in
     message = res.message[0]
     gov_layer = layers[g] if g >= 0 else None
     steps: list[dict] = []
@@ -399,16 +443,18 @@ def resolve_site(
     if gov_layer is not None:
         hits = look.hits[g]
         source = ELEVATION_ORIGINS[res.elevation_source[0]]
+        if over is not None:
+            source = f"DEM, the {over['used_at']} over the location circle"
         steps = _steps(gov_layer, hits, pg, float(res.elevation_ft[0]), source)
         if res.alt_source[0] >= 0:
-            steps.insert(0, _elevation_step(res, elevation_source))
-        neighbours = _neighbours(hits, gov_layer.tolerance_m)
+            steps.insert(0, _elevation_step(res, elevation_source, q))
+        neighbours = _neighbours(hits, gov_layer.tolerance_m, q)
         zone = f"Zone {res.zone_id[0]} ({res.rule[0]})"
         if res.zone_ids[0] != res.zone_id[0]:
             zone += f", of overlapping zones {res.zone_ids[0].replace(';', ', ')}"
         message = f"{zone}. {message}"
     else:
-        near = [n for h in look.hits for n in _neighbours(h, math.inf)]
+        near = [n for h in look.hits for n in _neighbours(h, math.inf, q)]
         if near:
             n0 = min(near, key=lambda n: n["distance"]["m"])
             message += f" The nearest zone is {n0['zone_id']}, {n0['distance']['m']:.0f} m away."
@@ -425,7 +471,7 @@ def resolve_site(
             {
                 "name": layer.name,
                 "status": STATUSES[int(st[0])] if h.covered[0] else "no_data",
-                "pg": load_json(psf) if math.isfinite(psf) else None,
+                q: load_json(psf) if math.isfinite(psf) else None,
                 "zone_id": h.zone_id[0] or None,
                 "sha256": layer.sha256,
             }
@@ -465,7 +511,10 @@ def resolve_site(
             )
     elif roof is not None:
         if usable:
-            quantities = {quantity: pg}
+            # the standard's load unit: ASCE 7 takes pg in psf, EN 1991-1-3 sk in kPa
+            load_in = KPA_PER_PSF if roof_std.units.get("load") == "kPa" else 1.0
+            quantities = {quantity: pg * load_in}
+            roof = _with_site_altitude(roof, roof_std, float(res.elevation_ft[0]))
             if "w2" in roof_std.quantities:
                 quantities["w2"] = w2 if math.isfinite(w2) else None
             roof_result = roof_std.analyze(quantities, roof)
@@ -488,7 +537,9 @@ def resolve_site(
     zone_id, zone_ids = res.zone_id[0], res.zone_ids[0]
     ground = {
         "status": status,
-        "pg": load_json(pg) if usable else None,
+        "quantity": q,
+        "pg": load_json(pg) if usable and q == "pg" else None,
+        **({q: load_json(pg) if usable else None} if q != "pg" else {}),
         "zone_id": zone_id or None,
         "zone_ids": _zone_list(zone_id, zone_ids),
         "rule": res.rule[0] or None,
@@ -498,10 +549,8 @@ def resolve_site(
         "elevation_source": ELEVATION_ORIGINS[res.elevation_source[0]],
         "dem_elevation": length_json(_num(res.dem_elevation_ft[0])),
         "elevation_rule": elevation_source,
-        "elevation_alternatives": _alternatives(res),
-        "elevation_over_radius": None
-        if over is None
-        else {k: length_json(over[f"{k}_ft"]) for k in ("min", "max", "used")},
+        "elevation_alternatives": _alternatives(res, q),
+        "elevation_over_radius": None if over is None else _over_json(over),
         "distance_to_other": None if dist is None else length_json(dist * FT_PER_M),
         "neighbours": neighbours,
         "risk_category": risk,
@@ -544,6 +593,18 @@ def resolve_site(
     return SiteResult(
         site, ground, roof_json, list(layers), res.without_detail(), roof_result, on_record
     )
+
+
+def _with_site_altitude(roof, std, elev_ft: float):
+    """``roof`` with the site's elevation as its ``altitude`` where ``std`` takes one and none
+    was given (EN 1991-1-3: the site altitude of 6.3); unchanged otherwise."""
+    if not math.isfinite(elev_ft) or roof.option("altitude") is not None:
+        return roof
+    if not any(o.name == "altitude" for o in std.roof_options):
+        return roof
+    from dataclasses import replace
+
+    return replace(roof, extra={**dict(roof.extra), "altitude": elev_ft})
 
 
 def _risk_of(risk, roof) -> str:
@@ -617,27 +678,56 @@ def _zone_list(zone_id: str, zone_ids: str) -> list[str]:
     return [z for z in zone_ids.split(";") if z]
 
 
-def _elevation_over_circle(lat, lon, radius_m, dem_path, dem_units) -> dict | None:
-    """DEM elevations over the uncertainty circle: ``{min_ft, max_ft, used_ft}`` or None.
+def _over_circle(lat, lon, radius_m, dem_path, dem_units, layers) -> dict | None:
+    """The site resolved over its uncertainty circle (:mod:`neve.geo.site.circle`), or None.
 
-    Sampled at the centre and on rings at 1/3, 2/3 and 3/3 of the radius (8, 16
-    and 24 points: our choice); the maximum is used, as a higher site never has
-    a smaller ground snow load under an elevation rule (common practice).
+    None where no point of the circle has a DEM value (the site is then resolved
+    as without the circle, and flagged ``dem_nodata``).
     """
-    from neve.geo.site.elevation import sample_dem
+    from neve.geo.site.circle import elevation_over_circle, resolve_over_circle
 
-    pts = [(lat, lon)]
-    k = 111320.0  # metres per degree of latitude (common practice)
-    for ring, count in ((1, 8), (2, 16), (3, 24)):
-        r = radius_m * ring / 3
-        for a in np.linspace(0, 2 * np.pi, count, endpoint=False):
-            dlat = r * np.cos(a) / k
-            dlon = r * np.sin(a) / (k * max(math.cos(math.radians(lat)), 1e-6))
-            pts.append((lat + dlat, lon + dlon))
-    la = np.array([p[0] for p in pts])
-    lo = np.array([p[1] for p in pts])
-    ft = np.asarray(sample_dem(dem_path, lo, la, dem_units), dtype=float)
-    ft = ft[np.isfinite(ft)]
-    if ft.size == 0:
+    got = elevation_over_circle([lat], [lon], [radius_m], dem_path, dem_units)
+    if not np.isfinite(got["min_ft"][0]):
         return None
-    return {"min_ft": float(ft.min()), "max_ft": float(ft.max()), "used_ft": float(ft.max())}
+
+    def one(la, lo, elev, **kw):
+        return resolve(la, lo, elevation_ft=elev, **kw)
+
+    res, changed, max_governs = resolve_over_circle(
+        [lat], [lon], [radius_m], got, resolver=one, layers=layers, search_m=SEARCH_M,
+        keep_detail=True,
+    )  # fmt: skip
+    lo_ft, hi_ft = float(got["min_ft"][0]), float(got["max_ft"][0])
+    return {
+        "result": res,
+        "min_ft": lo_ft,
+        "max_ft": hi_ft,
+        "used_ft": hi_ft if max_governs[0] else lo_ft,
+        "used_at": "maximum" if max_governs[0] else "minimum",
+        "points": int(got["points"][0]),
+        "rule_change": bool(changed[0]),
+        "at_min": _circle_outcome(res, "min"),
+        "at_max": _circle_outcome(res, "max"),
+    }
+
+
+def _circle_outcome(res: Resolution, which: str) -> dict:
+    """``{status, pg}`` of the result at the circle's minimum or maximum elevation."""
+    status = STATUSES[int(res.extra[f"circle_{which}_status"][0])]
+    pg = float(res.extra[f"circle_{which}_pg"][0])
+    usable = status in ("ok", "provisional") and math.isfinite(pg)
+    return {"status": status, "pg": load_json(pg) if usable else None}
+
+
+def _over_json(over: dict) -> dict:
+    """``ground.elevation_over_radius`` (docs/contract.md, "JSON output")."""
+    return {
+        "min": length_json(over["min_ft"]),
+        "max": length_json(over["max_ft"]),
+        "used": length_json(over["used_ft"]),
+        "used_at": over["used_at"],
+        "points": over["points"],
+        "rule_change": over["rule_change"],
+        "at_min": over["at_min"],
+        "at_max": over["at_max"],
+    }

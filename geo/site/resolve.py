@@ -41,7 +41,7 @@ import numpy as np
 import pandas as pd
 
 from neve.engine.errors import InputError
-from neve.engine.units import M_PER_FT
+from neve.engine.units import KPA_PER_PSF, M_PER_FT
 from neve.geo.layers import rules as R
 from neve.geo.layers.model import as_layers, dem_argument
 from neve.geo.layers.vector import NONE, Hits, layer_hits
@@ -316,12 +316,15 @@ def _finish(d: dict, extra: np.ndarray, valid: np.ndarray) -> dict:
     return d
 
 
-def _outcome(status: np.ndarray, value: np.ndarray) -> np.ndarray:
-    """``pg 31.2 psf`` or the status name, per site."""
+def _outcome(status: np.ndarray, value: np.ndarray, quantity: str = "pg") -> np.ndarray:
+    """``pg 31.2 psf`` (``sk 1.46 kPa`` for an sk layer) or the status name, per site."""
     usable = np.isin(status, (OK, PROVISIONAL))
     txt = np.array(STATUSES, dtype=object)[status]
     if usable.any():
-        txt[usable] = [f"pg {v:.4g} psf" for v in value[usable]]
+        if quantity == "sk":  # EN 1991-1-3: kPa (the value travels in psf)
+            txt[usable] = [f"sk {v * KPA_PER_PSF:.3g} kPa" for v in value[usable]]
+        else:
+            txt[usable] = [f"{quantity} {v:.4g} psf" for v in value[usable]]
     return txt
 
 
@@ -444,6 +447,7 @@ def resolve(
     layers = as_layers(layers)
     if risk is not None:
         layers = [ly.for_risk(risk) for ly in layers]
+    ground_quantity(layers)  # one ground quantity per stack (pg or sk)
     ground = [k for k, ly in enumerate(layers) if ly.quantity != "w2"]
     wind = [k for k, ly in enumerate(layers) if ly.quantity == "w2"]
     if not ground:
@@ -608,8 +612,9 @@ def resolve_ground(
                                      main["value"][sub])  # fmt: skip
         else:
             use_dem = np.zeros(sub.size, dtype=bool)
-        out_in = _outcome(main["status"][sub], main["value"][sub])
-        out_dem = _outcome(a["status"], a["value"])
+        q = _alt_quantity(tuple(Provenance.of(layer) for layer in layers))
+        out_in = _outcome(main["status"][sub], main["value"][sub], q)
+        out_dem = _outcome(a["status"], a["value"], q)
         note[sub] = _mismatch_text(given[sub], dem_ft[sub], out_in, out_dem, use_dem,
                                    elevation_source)  # fmt: skip
         swap = sub[use_dem]
@@ -675,11 +680,39 @@ def resolve_ground(
         alt_source=alt_source,
         alt_elevation_ft=alt_elev,
         alt_status=alt_status,
-        alt_values={"pg": alt_value},
+        alt_values={_alt_quantity(prov): alt_value},
         alt_zone_id=alt_zone,
         layers=prov,
         detail=detail if keep_detail else None,
     )
+
+
+def _alt_quantity(prov: tuple) -> str:
+    """The quantity of the elevation alternative's value: the layers' one (``pg`` if mixed)."""
+    quantities = {p.quantity for p in prov}
+    return quantities.pop() if len(quantities) == 1 else "pg"
+
+
+def ground_quantity(layers) -> str:
+    """The one ground quantity of a stack's ground layers (``pg``; ``sk`` for EN 1991-1-3).
+
+    A stack that mixes ground quantities (a ``pg`` layer above an ``sk`` layer)
+    is refused: the first layer that covers a site governs, and a pg map and an
+    sk map are not values of one thing.
+    """
+    seen = {}
+    for ly in layers:
+        q = getattr(ly, "quantity", "pg")
+        if q != "w2":
+            seen.setdefault(q, ly)
+    if len(seen) > 1:
+        raise InputError(
+            "layer",
+            "the ground layers map different quantities ("
+            + ", ".join(f"{q}: {ly.name!r}" for q, ly in seen.items()) + ")",
+            "layers of one ground quantity per run (all pg, or all sk), most local first",
+        )
+    return next(iter(seen), "pg")
 
 
 def _per_quantity(value: np.ndarray, gov: np.ndarray, prov: tuple) -> dict:

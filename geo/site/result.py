@@ -127,6 +127,14 @@ FLAG_TABLE: tuple[Flag, ...] = (
     Flag("demo_parameters", 46, "roof", "the parameter set is invented (demo)"),
     # issue 12 (curved roofs); bits from 52 down, so that other roof flags can take 39 up
     Flag("eave_abutment_unstated", 52, "roof", "curved roof: abutment at the eave not stated"),
+    # issue 14: an approximate location's circle crosses an elevation rule change (bits 41-46
+    # are taken by the EN 1991-1-3 roof flags on their branch; 52 by curved roofs)
+    Flag(
+        "elevation_rule_within_radius",
+        53,
+        "site",
+        "the zone's elevation rule gives another result within the location circle (DEM min-max)",
+    ),  # fmt: skip
     Flag("bad_coordinates", 56, "note", "coordinates missing or out of range: no look-up"),
     Flag("near_unknown", 57, "note", "a zone within the tolerance has no usable value"),
     Flag("near_valued", 58, "note", "a zone within the tolerance has another usable value"),
@@ -145,6 +153,7 @@ LIMITING = (
     | BIT["coordinates_suspect"]
     | BIT["elevation_mismatch"]
     | BIT["study_area_nearby"]
+    | BIT["elevation_rule_within_radius"]
 )
 #: shown flags in the order they are printed (by name)
 _BY_NAME = tuple(sorted((f for f in FLAG_TABLE if f.shown), key=lambda f: f.name))
@@ -204,8 +213,9 @@ COLUMNS = [
     "distance_to_other_m", "neighbour_values_psf", "layer_name", "layer_sha256", "other_layers",
     "alt_elevation_source", "alt_elevation_ft", "alt_status", "alt_pg_psf", "alt_zone_id",
 ]  # fmt: skip
-#: the unit of each quantity's values (the standard's units)
-UNITS = {"pg": "psf"}
+#: the unit each quantity's values travel in inside geo (loads in psf, EN 1991-1-3's sk too:
+#: the edges give them in kPa and hand the EN engine kPa)
+UNITS = {"pg": "psf", "sk": "psf", "w2": "fraction"}
 
 
 def blank_like(v: np.ndarray, n: int) -> np.ndarray:
@@ -432,7 +442,10 @@ class Resolution:
             "alt_status": lambda: _texts(STATUSES, self.alt_status),
             "alt_pg_psf": lambda: self.alt_values.get("pg", np.full(len(self), np.nan)),
             "alt_zone_id": lambda: self.alt_zone_id,
-            # on request only (not in COLUMNS): the W2 look-up (ASCE 7-22 W2 layers)
+            # on request only (not in COLUMNS): sk of EN 1991-1-3 layers (kPa first), and
+            "sk_kpa": lambda: self.value("sk") * KPA_PER_PSF,
+            "sk_psf": lambda: self.value("sk"),
+            # the W2 look-up (ASCE 7-22 W2 layers)
             "w2": lambda: self.value("w2"),
             "w2_zone_id": lambda: self.extra.get("w2_zone_id", np.full(len(self), "", object)),
             "w2_flags": lambda: flags_text(
@@ -442,7 +455,8 @@ class Resolution:
         unknown = [c for c in want if c not in make]
         if unknown:
             raise InputError("columns", f"no resolver column {unknown[0]!r}",
-                             ", ".join([*COLUMNS, "w2", "w2_zone_id", "w2_flags"]))  # fmt: skip
+                             ", ".join([*COLUMNS, "sk_kpa", "sk_psf", "w2", "w2_zone_id",
+                                        "w2_flags"]))  # fmt: skip
         # object columns stay object (no per-row conversion to string dtype for big portfolios)
         cols = {}
         for c in want:

@@ -12,18 +12,28 @@ DEMO_BANNER = "*** DEMO DATA — invented values, never for design ***"
 NONE = "—"
 
 
-def _load(x: dict | None) -> str:
+def _load(x: dict | None, si: bool = False) -> str:
     """A load of the summary: 0.1 psf and 0.01 kPa, ``35.1 psf (1.68 kPa)`` (psf first).
 
-    The figures the layer gives are in the ground value steps (three significant
+    ``si``: kPa first (an sk layer, EN 1991-1-3): ``0.85 kPa (17.8 psf)``.  The
+    figures the layer gives are in the ground value steps (three significant
     figures) and, unrounded, in the JSON output.
     """
-    return load_text(x, missing=NONE)
+    return load_text(x, missing=NONE, first="kPa" if si else None)
 
 
-def _length(x: dict | None) -> str:
-    """An elevation or a distance on the ground: ``1350 ft (411.5 m)``."""
-    return elevation_text(x, missing=NONE)
+def _length(x: dict | None, si: bool = False) -> str:
+    """An elevation or a distance on the ground: ``1350 ft (411.5 m)``; ``si``: metres first."""
+    return elevation_text(x, missing=NONE, first="m" if si else None)
+
+
+#: ground quantities shown SI first (EN 1991-1-3's sk)
+SI_FIRST = ("sk",)
+
+
+def _outcome(at: dict) -> str:
+    """``ok, pg 30.0 psf (1.44 kPa)`` or the status of a result at one elevation."""
+    return f"{at['status']}, pg {_load(at['pg'])}" if at.get("pg") else str(at["status"])
 
 
 def site_text(result, show_steps: bool = True) -> str:
@@ -48,7 +58,11 @@ def site_text(result, show_steps: bool = True) -> str:
     if s.get("name") or s.get("project"):
         lines.append(f"Name:        {s.get('name') or '—'}    Project: {s.get('project') or '—'}")
     lines.append(f"Status:      {g['status']}")
-    lines.append(f"Ground pg:   {_load(g['pg'])}")
+    q = g.get("quantity") or "pg"
+    si = q in SI_FIRST
+    load = lambda x: _load(x, si)  # noqa: E731
+    length = lambda x: _length(x, si)  # noqa: E731
+    lines.append(f"Ground {q}:   {load(g.get(q))}")
     by_risk = g.get("pg_by_risk")
     if by_risk:  # a per-risk layer (ASCE 7-22): the chosen category and all four
         lines.append(f"Risk:        category {g.get('risk_category')}; pg by category: "
@@ -64,23 +78,30 @@ def site_text(result, show_steps: bool = True) -> str:
         zone += f"  (overlapping: {', '.join(g['zone_ids'])})"
     lines.append(f"Zone:        {zone}    rule: {g['rule'] or '—'}")
     lines.append(f"Flags:       {', '.join(g['flags']) if g['flags'] else 'none'}")
-    lines.append(f"Elevation:   {_length(g['elevation'])}  source: {g['elevation_source']}")
+    lines.append(f"Elevation:   {length(g['elevation'])}  source: {g['elevation_source']}")
     over = g.get("elevation_over_radius")
     if over:
         lines.append(f"Over circle: DEM min {_length(over['min'])}, max {_length(over['max'])},"
-                     f" used {_length(over['used'])}")  # fmt: skip
+                     f" used {_length(over['used'])} (the {over.get('used_at', 'maximum')})")  # fmt: skip
+        if over.get("at_min") and over.get("at_max"):
+            change = ("an elevation rule change lies within the circle: elevation_rule_within_radius"
+                      if over.get("rule_change") else "the same result at both")  # fmt: skip
+            lines.append(f"             at min {_outcome(over['at_min'])}, at max "
+                         f"{_outcome(over['at_max'])}; {change}")  # fmt: skip
+        if g["dem_elevation"] is not None:
+            lines.append(f"             DEM at the centre {_length(g['dem_elevation'])}")
     if g["dem_elevation"] is not None and g["elevation_source"] != "dem":
-        lines.append(f"DEM:         {_length(g['dem_elevation'])}")
+        lines.append(f"DEM:         {length(g['dem_elevation'])}")
     for alt in g.get("elevation_alternatives") or []:  # given elevation and DEM disagree
         where = "given" if alt["source"] == "input" else "DEM"
         role = "governs" if alt["governs"] else "does not govern"
         lines.append(
-            f"  at {where:5} {_length(alt['elevation'])}: {alt['status']}, "
-            f"pg {_load(alt['pg'])} ({role})"
+            f"  at {where:5} {length(alt['elevation'])}: {alt['status']}, "
+            f"{q} {load(alt.get(q))} ({role})"
         )
     if g["distance_to_other"] is not None:
         lines.append(
-            f"Other value: nearest zone with another value {_length(g['distance_to_other'])}"
+            f"Other value: nearest zone with another value {length(g['distance_to_other'])}"
         )
     layer = g["layer"]
     if layer is not None:
@@ -89,7 +110,7 @@ def site_text(result, show_steps: bool = True) -> str:
         lines.append(f"             SHA-256 {layer['sha256']}")
     for other in g["other_layers"]:
         lines.append(
-            f"Also:        {other['name']}: {other['status']}, pg {_load(other['pg'])}, "
+            f"Also:        {other['name']}: {other['status']}, {q} {load(other.get(q))}, "
             f"zone {other['zone_id'] or '—'}"
         )
     lines.append("")

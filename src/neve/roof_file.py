@@ -131,19 +131,33 @@ def roof_mapping(roof_file: str | Path | None, options: Mapping | None = None) -
     ``ct`` replaces the file's ``thermal``, ``unventilated`` its
     ``ventilated = true``, and so on. None when neither describes a roof.
     """
-    data: dict = {}
-    if roof_file:
-        data = read_toml(roof_file, "roof")
-        if "profile" in data:
-            raise InputError(
-                "roof",
-                "this file defines profiles; name one in the site file's 'roof' column",
-                "a ROOF.toml without [profile.*] tables",
-            )
+    return _one_roof(read_toml(roof_file, "roof") if roof_file else {}, options)
+
+
+def _one_roof(data: Mapping, options: Mapping | None) -> dict | None:
+    """One roof's mapping (no profiles) with the given options over it; None if empty."""
+    if "profile" in data:
+        raise InputError(
+            "roof",
+            "this file defines profiles; name one in the site file's 'roof' column",
+            "a ROOF.toml without [profile.*] tables",
+        )
     given = given_options(options or {})
     if not data and not given:
         return None
-    return merge_roof_levels(data, given)
+    return merge_roof_levels(dict(data), given)
+
+
+def roof_from_data(data: Mapping | None, options: Mapping | None = None) -> Roof | None:
+    """The one roof a ROOF.toml's content as a mapping (e.g. a JSON object) and the options
+    describe, read as :func:`read_roof` reads the file; None if they describe none.
+
+    ``neve serve`` takes the ``roof`` object of a request and its roof keys this way.
+    """
+    if data is not None and not isinstance(data, Mapping):
+        raise InputError("roof", f"{type(data).__name__} given", "an object with ROOF.toml keys")
+    merged = _one_roof(data or {}, options)
+    return None if merged is None else Roof.from_mapping(merged)
 
 
 def read_roof(roof_file: str | Path | None, options: Mapping | None = None) -> Roof | None:

@@ -1,20 +1,29 @@
-"""Benchmark of ``neve screen`` against the bare read + join + write floor.
+"""Benchmark of ``neve screen`` against a bare floor: one table from one run.
 
 Run::
 
-    python tests/benchmarks/bench_screen.py            # 1,000,000 sites, 5,000 zones
-    python tests/benchmarks/bench_screen.py --sites 200000 --keep /tmp/bench
+    python tests/benchmarks/bench_screen.py                      # 10k, 100k, 1M sites
+    python tests/benchmarks/bench_screen.py --large              # and 10M (streamed)
+    python tests/benchmarks/bench_screen.py --sizes 10000,100000 --repeat 3
 
 It builds a synthetic portfolio in a temporary folder (invented data: random
 sites, 5,000 Voronoi zones of random values, a smooth synthetic DEM, one roof
-profile), then prints, from one run each:
+profile), then, for each size N, each output (Parquet, CSV) and each of "no
+roof" / "roof", runs ``neve screen`` and the floor as interleaved pairs (each
+in a fresh process under a wrapper that reports wall time, CPU time (user +
+system) and peak RSS) and prints one table: N, neve wall and CPU, floor wall
+and CPU, their ratios, sites per second and neve's peak RSS (medians over the
+pairs).  The Dask engine on a LocalCluster is measured on the Parquet + roof
+case of every N up to 1M.
 
-* ``neve screen`` wall time and peak memory (a subprocess; peak RSS from
-  ``resource.getrusage(RUSAGE_CHILDREN)`` measured by a wrapper process),
-* the floor: the same CSV read, ``geopandas.sjoin(points, zones, "within")``,
-  the DEM read by window and indexed as arrays, and a Parquet write,
-* a per-site loop (``neve.geo.site.resolve.resolve_points`` on one site at a time) timed
-  on a sample and extrapolated to the whole portfolio.
+The floor is what any screening must do at least, with the fastest calls we know:
+``pyarrow.csv.read_csv`` -> ``geopandas.sjoin(points, zones, "within")`` -> the DEM
+read once and indexed by the affine inverse -> (roof) the flat-roof formula
+pf = 0.7 Ce Ct Is pg (ASCE 7-16 Eq. 7.3-1) -> the same format written: Parquet
+with the same WKB point geometry and GeoParquet ``geo`` metadata, or CSV through
+Arrow.  It skips what neve adds: row checks, boundary and neighbour tests, rules,
+flags, messages, every input cell kept.  A per-site loop (``resolve_points`` on
+one site at a time) is timed on a sample and extrapolated.
 
 Not collected by pytest (``norecursedirs``) and not run by CI.
 """
@@ -67,31 +76,80 @@ _WRAPPER = textwrap.dedent(
     t = time.perf_counter()
     p = subprocess.run(sys.argv[1:], capture_output=True, text=True)
     wall = time.perf_counter() - t
-    peak = resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss * 1024
-    print(json.dumps({"rc": p.returncode, "wall_s": wall, "peak_bytes": peak,
+    use = resource.getrusage(resource.RUSAGE_CHILDREN)
+    print(json.dumps({"rc": p.returncode, "wall_s": wall, "cpu_s": use.ru_utime + use.ru_stime,
+                      "peak_bytes": use.ru_maxrss * 1024,
                       "stdout": p.stdout[-4000:], "stderr": p.stderr[-4000:]}))
     """
 )
 
 _FLOOR = textwrap.dedent(
     """
-    import sys, numpy as np, pandas as pd, geopandas as gpd, rasterio, rasterio.transform
-    sites, zones_path, dem_path, out = sys.argv[1:5]
-    df = pd.read_csv(sites, dtype={"site_id": str, "roof": str})
+    import json, sys, numpy as np, pandas as pd, geopandas as gpd, pyarrow as pa, pyproj, rasterio
+    import pyarrow.csv as pcsv, pyarrow.parquet as pq
+    sites, zones_path, dem_path, out, roof = sys.argv[1:6]
+    df = pcsv.read_csv(sites, convert_options=pcsv.ConvertOptions(
+        column_types={"site_id": pa.string(), "roof": pa.string()})).to_pandas()
+    lon, lat = df["lon"].to_numpy(), df["lat"].to_numpy()
     zones = gpd.read_file(zones_path)
-    pts = gpd.GeoDataFrame(df, geometry=gpd.points_from_xy(df["lon"], df["lat"]), crs=zones.crs)
+    pts = gpd.GeoDataFrame(geometry=gpd.points_from_xy(lon, lat), crs=zones.crs)
     joined = gpd.sjoin(pts, zones[["zone_id", "pg", "geometry"]], how="left", predicate="within")
     joined = joined[~joined.index.duplicated()]
     with rasterio.open(dem_path) as src:
         band = src.read(1)
-        r, c = rasterio.transform.rowcol(src.transform, df["lon"].to_numpy(), df["lat"].to_numpy())
-        r = np.clip(np.asarray(r), 0, band.shape[0] - 1); c = np.clip(np.asarray(c), 0, band.shape[1] - 1)
-        elev = band[r, c]
-    out_df = pd.DataFrame({"site_id": df["site_id"], "zone_id": joined["zone_id"].to_numpy(),
-                           "pg_psf": joined["pg"].to_numpy(), "elevation_m": elev})
-    out_df.to_parquet(out, index=False)
+        inv = np.array(tuple(~src.transform)).reshape(3, 3)
+    m = np.vstack([lon, lat, np.ones_like(lon)]); inv.dot(m, out=m)
+    r = np.clip(np.floor(m[1]).astype(int), 0, band.shape[0] - 1)
+    c = np.clip(np.floor(m[0]).astype(int), 0, band.shape[1] - 1)
+    pg = joined["pg"].to_numpy()
+    cols = {"site_id": df["site_id"], "lat": lat, "lon": lon, "zone_id": joined["zone_id"].to_numpy(),
+            "pg_psf": pg, "elevation_m": band[r, c].astype(float)}
+    if roof == "roof":  # ASCE 7-16 Eq. 7.3-1, Ce 1.0, Ct 1.0, Is 1.0
+        cols["pf_psf"] = 0.7 * 1.0 * 1.0 * 1.0 * pg
+    table = pa.table(pd.DataFrame(cols))
+    if out.endswith(".csv"):
+        pcsv.write_csv(table, out)
+    else:  # the same GeoParquet as neve's: WKB points, geo metadata with EPSG:4326
+        ok = np.isfinite(lon) & np.isfinite(lat)
+        rec = np.empty(int(ok.sum()), dtype=[("o", "u1"), ("t", "<u4"), ("x", "<f8"), ("y", "<f8")])
+        rec["o"], rec["t"], rec["x"], rec["y"] = 1, 1, lon[ok], lat[ok]
+        off = np.zeros(len(ok) + 1, np.int32); np.cumsum(np.where(ok, 21, 0), out=off[1:])
+        wkb = pa.Array.from_buffers(pa.binary(), len(ok), [None, pa.py_buffer(off), pa.py_buffer(rec)])
+        table = table.append_column("geometry", wkb)
+        geo = {"version": "1.0.0", "primary_column": "geometry", "columns": {"geometry": {
+            "encoding": "WKB", "geometry_types": ["Point"],
+            "crs": pyproj.CRS.from_epsg(4326).to_json_dict()}}}
+        table = table.replace_schema_metadata({**table.schema.metadata, b"geo": json.dumps(geo)})
+        pq.write_table(table, out)
     """
 )
+
+
+def make_layers(folder: Path, n_zones: int, seed: int = 7) -> dict:
+    """Write the synthetic zones, DEM and roof file; return their paths."""
+    paths = make_portfolio(folder, 0, n_zones, seed)
+    return {k: v for k, v in paths.items() if k != "sites"}
+
+
+def make_sites(folder: Path, n_sites: int, seed: int = 11) -> Path:
+    """Write ``n_sites`` random sites (CSV, in blocks: 10M fit in little memory)."""
+    import pandas as pd
+
+    rng = np.random.default_rng(seed)
+    path = folder / f"sites_{n_sites}.csv"
+    block = 1_000_000
+    with open(path, "w", encoding="utf-8") as fh:
+        for start in range(0, n_sites, block):
+            n = min(block, n_sites - start)
+            pd.DataFrame(
+                {
+                    "site_id": [f"B{i:08d}" for i in range(start, start + n)],
+                    "lat": rng.uniform(SOUTH, NORTH, n).round(6),
+                    "lon": rng.uniform(WEST, EAST, n).round(6),
+                    "roof": "bench",
+                }
+            ).to_csv(fh, index=False, header=start == 0)
+    return path
 
 
 def make_portfolio(folder: Path, n_sites: int, n_zones: int, seed: int = 7) -> dict:
@@ -163,9 +221,12 @@ def make_portfolio(folder: Path, n_sites: int, n_zones: int, seed: int = 7) -> d
     return {"sites": sites_path, "zones": zones_path, "dem": dem_path, "roof": roof_path}
 
 
-def measured(cmd: list[str]) -> dict:
-    """Run ``cmd`` under a wrapper process; wall time [s] and peak RSS [bytes]."""
-    out = subprocess.run([sys.executable, "-c", _WRAPPER, *cmd], capture_output=True, text=True)
+def measured(cmd: list[str], env: dict | None = None) -> dict:
+    """Run ``cmd`` under a wrapper process: wall and CPU time [s], peak RSS [bytes]."""
+    import os
+
+    out = subprocess.run([sys.executable, "-c", _WRAPPER, *cmd], capture_output=True, text=True,
+                         env={**os.environ, **(env or {})})  # fmt: skip
     if out.returncode != 0:
         raise RuntimeError(out.stderr)
     res = json.loads(out.stdout)
@@ -174,7 +235,7 @@ def measured(cmd: list[str]) -> dict:
     return res
 
 
-def per_site_loop(paths: dict, sample: int) -> float:
+def per_site_loop(paths: dict, sites: Path, sample: int) -> float:
     """Seconds per site when neve's resolver is called one site at a time."""
     import pandas as pd
 
@@ -182,7 +243,7 @@ def per_site_loop(paths: dict, sample: int) -> float:
     from neve.geo.site.resolve import resolve_points
 
     layer = load_layer(paths["zones"])
-    df = pd.read_csv(paths["sites"], nrows=sample)
+    df = pd.read_csv(sites, nrows=sample)
     lat, lon = df["lat"].to_numpy(), df["lon"].to_numpy()
     resolve_points(lat[:1], lon[:1], layers=[layer], dem=str(paths["dem"]), dem_units="m")
     t = time.perf_counter()
@@ -193,63 +254,105 @@ def per_site_loop(paths: dict, sample: int) -> float:
     return (time.perf_counter() - t) / sample
 
 
+def _median(values):
+    return float(np.median(values))
+
+
+def measure_case(paths, sites, folder, n, fmt, roof, engine, repeat) -> dict:
+    """Interleaved pairs of neve and the floor on one case; medians of each figure."""
+    neve = shutil.which("neve") or "neve"
+    out = folder / f"results.{fmt}"
+    floor_out = folder / f"floor.{fmt}"
+    summary = folder / "summary.json"
+    runs, floors = [], []
+    for _ in range(max(1, repeat)):
+        for p in (out, summary, floor_out):
+            p.unlink(missing_ok=True)
+        cmd = [neve, "screen", str(sites), "-o", str(out), "--layer", str(paths["zones"]),
+               "--dem", str(paths["dem"]), "--dem-units", "m", "--quiet", "--engine", engine,
+               "--summary-json", str(summary)]  # fmt: skip
+        if roof:
+            cmd += ["--roof", str(paths["roof"])]
+        runs.append(measured(cmd))
+        runs[-1]["timings"] = json.loads(summary.read_text())["timings_s"]
+        floors.append(measured([sys.executable, "-c", _FLOOR, str(sites), str(paths["zones"]),
+                                str(paths["dem"]), str(floor_out), "roof" if roof else "-"]))  # fmt: skip
+    row = {"n": n, "fmt": fmt, "roof": roof, "engine": engine}
+    for key in ("wall_s", "cpu_s", "peak_bytes"):
+        row[f"neve_{key}"] = _median([r[key] for r in runs])
+        row[f"floor_{key}"] = _median([r[key] for r in floors])
+    row["timings"] = runs[len(runs) // 2]["timings"]
+    return row
+
+
+def print_table(rows: list[dict], loop_per_site: float | None) -> None:
+    gib = 1024**3
+    head = ("| N | output | roof | engine | neve wall [s] | neve CPU [s] | floor wall [s] | "
+            "floor CPU [s] | wall ratio | CPU ratio | sites/s | peak RSS [GiB] |")  # fmt: skip
+    print(head)
+    print("|" + "---|" * (head.count("|") - 1))
+    for r in rows:
+        print(
+            f"| {r['n']:,} | {r['fmt']} | {'yes' if r['roof'] else 'no'} | {r['engine']} | "
+            f"{r['neve_wall_s']:.2f} | {r['neve_cpu_s']:.2f} | {r['floor_wall_s']:.2f} | "
+            f"{r['floor_cpu_s']:.2f} | {r['neve_wall_s'] / r['floor_wall_s']:.2f} | "
+            f"{r['neve_cpu_s'] / r['floor_cpu_s']:.2f} | {r['n'] / r['neve_wall_s']:,.0f} | "
+            f"{r['neve_peak_bytes'] / gib:.2f} |"
+        )
+    if loop_per_site:
+        big = max(rows, key=lambda r: (r["n"], -r["neve_wall_s"]))
+        loop = loop_per_site * big["n"]
+        print(f"\nper-site loop: {loop_per_site * 1000:.2f} ms per site; at {big['n']:,} sites "
+              f"{loop:,.0f} s, {loop / big['neve_wall_s']:,.0f}x neve's wall time")  # fmt: skip
+    print("\nneve phases [s] (median run; the rest is start-up and the summary):")
+    for r in rows:
+        phases = ", ".join(f"{k} {v:.2f}" for k, v in r["timings"].items())
+        print(
+            f"  {r['n']:,} {r['fmt']} {'roof' if r['roof'] else 'no roof'} {r['engine']}: {phases}"
+        )
+
+
 def main(argv=None) -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    ap.add_argument("--sites", type=int, default=1_000_000)
+    ap.add_argument("--sizes", default="10000,100000,1000000",
+                    help="comma-separated N (default 10k, 100k, 1M)")  # fmt: skip
+    ap.add_argument("--large", action="store_true", help="add 10M sites (Parquet + roof, once)")
     ap.add_argument("--zones", type=int, default=5_000)
     ap.add_argument("--loop-sample", type=int, default=300)
-    ap.add_argument("--engine", default="local", choices=["local", "dask"])
+    ap.add_argument("--no-dask", action="store_true", help="leave out the Dask rows")
     ap.add_argument("--keep", type=Path, help="build in this folder and keep it")
-    ap.add_argument(
-        "--repeat", type=int, default=1, help="runs of neve and of the floor; the fastest is shown"
-    )
+    ap.add_argument("--repeat", type=int, default=1, help="interleaved pairs per case (median)")
     args = ap.parse_args(argv)
+    sizes = [int(v) for v in args.sizes.split(",") if v.strip()]
     folder = args.keep or Path(tempfile.mkdtemp(prefix="neve-bench-"))
     folder.mkdir(parents=True, exist_ok=True)
     try:
         t = time.perf_counter()
-        paths = make_portfolio(folder, args.sites, args.zones)
-        print(f"portfolio: {args.sites:,} sites, {args.zones:,} zones, DEM, 1 roof profile "
-              f"(built in {time.perf_counter() - t:.1f} s in {folder})")  # fmt: skip
-        neve = shutil.which("neve") or "neve"
-        out = folder / "results.parquet"
-        summary_path = folder / "summary.json"
-        runs, floors = [], []
-        for _ in range(max(1, args.repeat)):
-            out.unlink(missing_ok=True)
-            summary_path.unlink(missing_ok=True)
-            cmd = [neve, "screen", str(paths["sites"]), "-o", str(out), "--layer", str(paths["zones"]),
-                   "--dem", str(paths["dem"]), "--dem-units", "m", "--roof", str(paths["roof"]),
-                   "--quiet", "--engine", args.engine, "--summary-json", str(summary_path)]  # fmt: skip
-            runs.append(measured(cmd))
-            runs[-1]["timings"] = json.loads(summary_path.read_text())["timings_s"]
-            floors.append(measured([sys.executable, "-c", _FLOOR, str(paths["sites"]),
-                                    str(paths["zones"]), str(paths["dem"]),
-                                    str(folder / "floor.parquet")]))  # fmt: skip
-        run = min(runs, key=lambda r: r["wall_s"])
-        floor = min(floors, key=lambda r: r["wall_s"])
-        if len(runs) > 1:
-            print("neve runs [s]: " + ", ".join(f"{r['wall_s']:.1f}" for r in runs))
-            print("floor runs [s]: " + ", ".join(f"{r['wall_s']:.1f}" for r in floors))
-        per_site = per_site_loop(paths, args.loop_sample)
-        loop_total = per_site * args.sites
-        ratio = run["wall_s"] / floor["wall_s"]
-        gib = 1024**3
-        print(
-            f"neve screen ({args.engine}):   {run['wall_s']:8.1f} s   peak {run['peak_bytes'] / gib:5.2f} GiB"
+        paths = make_layers(folder, args.zones)
+        print(f"layers: {args.zones:,} zones, DEM, 1 roof profile "
+              f"(built in {time.perf_counter() - t:.1f} s in {folder})", flush=True)  # fmt: skip
+        rows = []
+        site_files = {}
+        for n in sizes + ([10_000_000] if args.large else []):
+            site_files[n] = make_sites(folder, n)
+            cases = [(f, r) for f in ("parquet", "csv") for r in (False, True)]
+            if n >= 10_000_000:
+                cases = [("parquet", True)]  # 10M: one case, once
+            for fmt, roof in cases:
+                rep = 1 if n >= 10_000_000 else args.repeat
+                rows.append(measure_case(paths, site_files[n], folder, n, fmt, roof, "local", rep))
+                print(f"  measured {n:,} {fmt} roof={roof}", file=sys.stderr, flush=True)
+            if not args.no_dask and n <= 1_000_000:
+                rows.append(measure_case(paths, site_files[n], folder, n, "parquet", True, "dask",
+                                         args.repeat))  # fmt: skip
+                print(f"  measured {n:,} dask", file=sys.stderr, flush=True)
+        loop = (
+            per_site_loop(paths, site_files[sizes[0]], args.loop_sample)
+            if args.loop_sample
+            else None
         )
-        print(
-            f"floor (read+join+DEM+write): {floor['wall_s']:8.1f} s   peak {floor['peak_bytes'] / gib:5.2f} GiB"
-        )
-        print(f"per-site loop (extrapolated from {args.loop_sample} sites): {loop_total:,.0f} s "
-              f"({per_site * 1000:.2f} ms per site)")  # fmt: skip
-        print(
-            f"neve / floor: {ratio:.2f}x (target <= 2x); loop / neve: {loop_total / run['wall_s']:,.0f}x"
-        )
-        print(f"peak memory target < 3 GiB: {'met' if run['peak_bytes'] < 3 * gib else 'NOT met'}")
-        phases = ", ".join(f"{k} {v:.2f}" for k, v in run["timings"].items())
-        print(f"neve phases [s] (the rest is start-up, summary and writing): {phases}")
-        print("neve summary:\n" + textwrap.indent(run["stdout"].strip(), "  "))
+        print()
+        print_table(rows, loop)
     finally:
         if not args.keep:
             shutil.rmtree(folder, ignore_errors=True)

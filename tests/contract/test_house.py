@@ -200,6 +200,45 @@ def test_no_library_module_imports_the_cli():
     assert offenders == []
 
 
+#: what the web room (neve.web, issue 15) may import of neve: the engine, geo, maps, the
+#: public API and the two shared modules; never the CLI
+WEB_MAY_IMPORT = ("neve.engine", "neve.geo", "neve.maps", "neve.safe_write", "neve.roof_file")
+
+
+def test_only_the_cli_imports_the_web_room():
+    """neve.web is a front end: nothing but ``neve serve`` (neve.cli.serve) imports it."""
+    offenders = [
+        f"{name}:{line} imports {target}"
+        for name in modules()
+        if not (name.startswith("neve.web") or name.startswith("neve.cli"))
+        for target, line in imports_of(name)
+        if target == "neve.web" or target.startswith("neve.web.")
+    ]
+    assert offenders == []
+    importers = {
+        name
+        for name in modules()
+        if name.startswith("neve.cli")
+        for target, _ in imports_of(name)
+        if target.startswith("neve.web")
+    }
+    assert importers == {"neve.cli.serve"}  # the check sees the one importer there is
+
+
+def test_the_web_room_imports_only_the_library():
+    offenders = []
+    for name in modules():
+        if not name.startswith("neve.web"):
+            continue
+        for target, line in imports_of(name):
+            if not target.startswith("neve.") or target.startswith("neve.web"):
+                continue
+            if not target.startswith(WEB_MAY_IMPORT):
+                offenders.append(f"{name}:{line} imports {target}")
+    assert offenders == []
+    assert "neve.web.app" in modules()  # the room is there (a check that can fail)
+
+
 def test_the_engine_imports_none_of_the_other_rooms_and_no_io_library():
     stdlib = set(sys.stdlib_module_names)
     offenders = []
@@ -438,6 +477,8 @@ _DEM_UNITS = ("dem_units", ("--dem-units",), "DemUnitType", None, False, False)
 _ELEV_SOURCE = ("elevation_source", ("--elevation-source",), "Choice('larger', 'input')",
                 "larger", False, False)  # fmt: skip
 _LAYERS = ("layers", ("--layer",), _PATH, None, True, False)
+# issue 17: the sidecars of zone layers read from PostGIS
+_LAYER_META = ("layer_meta", ("--layer-meta",), _PATH, None, True, False)
 _TILES = ("tiles", ("--tiles",), "Choice('none', 'osm')", "none", False, False)
 # issue 11: the basemap under the zones (--tiles stays, the older spelling)
 _BASEMAP = ("basemap", ("--basemap",), "StringParamType", "auto", False, False)
@@ -476,6 +517,7 @@ EXPECTED_OPTIONS = {
             _DEM_UNITS,
             _ELEV_SOURCE,
             _LAYERS,
+            _LAYER_META,
             _TILES,
             _BASEMAP,
             _BASEMAP_ATTR,
@@ -504,6 +546,7 @@ EXPECTED_OPTIONS = {
             _DEM_UNITS,
             _ELEV_SOURCE,
             _LAYERS,
+            _LAYER_META,
             _TILES,
             _BASEMAP,
             _BASEMAP_ATTR,
@@ -542,9 +585,11 @@ EXPECTED_OPTIONS = {
             _DEM_UNITS,
             _ELEV_SOURCE,
             _LAYERS,
+            _LAYER_META,
             _OVERWRITE,
             _GAZETTEER,
             _GEOCODER_URL,
+            *_NARROW,  # issue 14: the offline gazetteer, as in neve site
             ("address", ("--address",), "StringParamType", None, False, False),
             ("at", ("--at",), "StringParamType", None, False, False),
             ("elevation", ("--elevation",), "StringParamType", None, False, False),
@@ -568,6 +613,25 @@ EXPECTED_OPTIONS = {
             _OVERWRITE,
             ("map_path", ("--map",), _PATH, None, False, True),
             ("layer_path", ("layer_path",), _PATH, None, False, True),
+        ]
+    ),  # fmt: skip
+    # issue 15: neve serve, the pages and the JSON API (neve.web)
+    ("serve",): sorted(
+        [
+            _DEM,
+            _DEM_UNITS,
+            _LAYERS,
+            _LAYER_META,
+            _BASEMAP,
+            _BASEMAP_ATTR,
+            _GAZETTEER,
+            _GEOCODER_URL,
+            ("host", ("--host",), "StringParamType", "127.0.0.1", False, False),
+            ("port", ("--port",), "IntRange", 8750, False, False),
+            ("layers_dir", ("--layers-dir",), _PATH, None, False, False),
+            ("workdir", ("--workdir",), _PATH, None, False, False),
+            ("token", ("--token",), "StringParamType", None, False, False),
+            ("max_upload_mb", ("--max-upload-mb",), "FloatParamType", 50.0, False, False),
         ]
     ),  # fmt: skip
 }

@@ -155,7 +155,12 @@ def test_interrupted_write_leaves_no_file(tmp_path, sites, grid, monkeypatch):
         tmp.write_text("partial", encoding="utf-8")
         raise RuntimeError("disk full (simulated)")
 
+    def broken_part(df, fh, **kw):  # the streamed writer (issue 16) appends to an open file
+        fh.write(b"partial")
+        raise RuntimeError("disk full (simulated)")
+
     monkeypatch.setattr(neve.geo.screen.outputs, "_write_csv", broken)
+    monkeypatch.setattr(neve.geo.screen.outputs, "write_csv_part", broken_part)
     out = tmp_path / "o.csv"
     res = screen(str(sites), "-o", str(out), "--layer", grid)
     assert res.exit_code == 1  # unexpected failure (docs/contract.md, "Exit codes")

@@ -116,3 +116,66 @@ def test_a_stated_unit_neve_does_not_know_is_refused(tmp_path):
         sample_dem(odd, [lon], [lat])
     with pytest.raises(InputError, match="contradicts"):
         sample_dem(odd, [lon], [lat], dem_units="m")
+
+
+# --- issue 16: the DEM sampled by the inverse geotransform, kept open between calls ---
+
+
+@pytest.mark.parametrize(
+    "transform",
+    [
+        (0.0025, 0.0, -112.0, 0.0, -0.0025, 46.0),  # north-up degrees
+        (30.0, 0.0, 500000.0, 0.0, -30.0, 5000000.0),  # metres
+        (10.0, 2.0, 1000.0, 1.5, -10.0, 9000.0),  # rotated
+    ],
+)
+def test_rowcol_floor_matches_rasterio(transform):
+    """Reference: rasterio.transform.rowcol(..., op=math.floor), cell edges included."""
+    import math
+
+    from affine import Affine
+    from rasterio.transform import rowcol
+
+    from neve.geo.site.elevation import rowcol_floor
+
+    t = Affine(*transform)
+    rng = np.random.default_rng(3)
+    cols = rng.integers(-5, 400, 2000) + rng.choice([0.0, 0.5, 1e-12, 1 - 1e-12], 2000)
+    rows = rng.integers(-5, 300, 2000) + rng.choice([0.0, 0.5, 1e-12, 1 - 1e-12], 2000)
+    x, y = t * (cols, rows)  # points on and beside cell edges
+    x, y = np.asarray(x, float), np.asarray(y, float)
+    want_r, want_c = rowcol(t, x, y, op=math.floor)
+    got_r, got_c = rowcol_floor(np.array(tuple(~t), float).reshape(3, 3), x, y)
+    assert got_r.tolist() == [int(v) for v in want_r]
+    assert got_c.tolist() == [int(v) for v in want_c]
+
+
+def test_rowcol_floor_of_points_that_do_not_transform():
+    from neve.geo.site.elevation import rowcol_floor
+
+    r, c = rowcol_floor(np.eye(3), np.array([np.inf, np.nan, 2.5]), np.array([1.0, -np.inf, 3.5]))
+    assert r[2] == 3 and c[2] == 2
+    assert abs(r[:2]).min() > 1e15 and abs(c[:2]).min() > 1e15  # outside any grid
+
+
+def test_a_rewritten_dem_is_read_again(tmp_path):
+    """The open DEM is keyed by the file's size and time: a new file is a new DEM."""
+    import os
+
+    from neve.geo.site.elevation import sample_dem
+
+    path = tmp_path / "d.tif"
+    _write_dem(path, 100.0)
+    assert sample_dem(path, [-110.5], [44.5], "m")[0] == pytest.approx(100.0 / 0.3048)
+    _write_dem(path, 200.0)
+    os.utime(path, ns=(1, 10**18))  # a different time even on a coarse clock
+    assert sample_dem(path, [-110.5], [44.5], "m")[0] == pytest.approx(200.0 / 0.3048)
+
+
+def _write_dem(path, value: float) -> None:
+    import rasterio
+    from affine import Affine
+
+    with rasterio.open(path, "w", driver="GTiff", width=4, height=4, count=1, dtype="float32",
+                       crs="EPSG:4326", transform=Affine(0.5, 0, -111.0, 0, -0.5, 45.0)) as dst:  # fmt: skip
+        dst.write(np.full((1, 4, 4), value, dtype=np.float32))

@@ -11,8 +11,19 @@ from neve.geo.layers.model import demo_dem_path, demo_layers, load_layer
 
 from .conftest import FIXTURE_META, centre, fixture_rows, toml_text, write_layer
 
-VIEW_COLUMNS = ["zone_id", "rule", "pg", "pg_psf", "elev_max", "note", "source", "study",
-                "pg_lo", "pg_hi", "geometry"]  # fmt: skip  (issue 11: the range a rule gives)
+VIEW_COLUMNS = [
+    "zone_id",
+    "rule",
+    "pg",
+    "pg_psf",
+    "elev_max",
+    "note",
+    "source",
+    "study",
+    "pg_lo",
+    "pg_hi",
+    "geometry",
+]  # fmt: skip  (issue 11: the range a rule gives)
 
 
 @pytest.mark.parametrize("suffix", [".gpkg", ".geojson", ".shp", ".fgb"])
@@ -33,7 +44,8 @@ def test_sha256_is_of_the_file(grid_layer):
 
 def test_view_contract(grid_layer):
     v = load_layer(grid_layer).view()
-    assert set(v) == {"name", "meta", "sha256", "demo", "value_units", "zones"}
+    assert set(v) == {"name", "meta", "sha256", "demo", "value_units", "quantity", "zones"}
+    assert v["quantity"] == "pg"
     z = v["zones"]
     rows = z.set_index("zone_id")
     table = rows[rows["rule"] == "elevation_table"]
@@ -83,3 +95,24 @@ def test_view_of_a_kpa_layer_converts_to_psf():
     assert town.meta["value_units"] == "kPa"
     assert z.loc["PH-1", "pg"] == 1.45  # invented demo value, kPa
     assert z.loc["PH-1", "pg_psf"] == pytest.approx(1.45 / KPA_PER_PSF)
+
+
+@pytest.mark.parametrize("seed", range(6))
+def test_own_zone_pairs_match_pair_keys(seed):
+    """Regression guard (issue 16): the index look-up gives what np.isin on pair keys gave."""
+    import numpy as np
+
+    from neve.geo.layers.vector import _own_zone
+
+    rng = np.random.default_rng(seed)
+    n_sites, n_zones = 200, 30
+    qi = rng.integers(0, n_sites, 260)  # some sites in two or more zones
+    cz = rng.integers(0, n_zones, 260)
+    qn_site = rng.integers(0, n_sites, 900)
+    nz = np.where(
+        rng.random(900) < 0.4, cz[rng.integers(0, 260, 900)], rng.integers(0, n_zones, 900)
+    )
+    nz[:200] = cz[:200]
+    qn_site[:200] = qi[:200]
+    want = np.isin(qn_site * n_zones + nz, qi * n_zones + cz)
+    assert (_own_zone(qi, cz, qn_site, nz, n_sites, n_zones) == want).all()

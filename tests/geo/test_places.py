@@ -253,5 +253,233 @@ def test_elevation_is_sampled_over_the_circle(grid_layer, tmp_path):
     assert over["used"] == over["max"]
     assert 70.0 <= over["max"]["m"] - over["min"]["m"] <= 90.0
     assert r.ground["elevation"]["m"] == pytest.approx(over["max"]["m"], abs=0.01)
+    assert r.ground["elevation_source"] == "dem"  # the DEM's, sampled over the circle
     exact = resolve_site(lat, lon, layers=[grid_layer], dem=dem)
     assert exact.ground["elevation_over_radius"] is None
+
+
+# ---------------------------------------------------------------- elevation over the circle
+def _circle_max_ft(lat, lon, radius_m, dem):
+    """The largest DEM value over the circle's sample points, read with rasterio's own
+    ``DatasetReader.sample`` (the reference library) after pyproj's transform."""
+    import numpy as np
+    import rasterio
+    from pyproj import Transformer
+
+    from neve.engine.units import FT_PER_M
+    from neve.geo.site.circle import circle_points
+
+    la, lo = circle_points([lat], [lon], [radius_m])
+    with rasterio.open(dem) as ds:
+        x, y = Transformer.from_crs(4326, ds.crs, always_xy=True).transform(lo.ravel(), la.ravel())
+        vals = np.array([v[0] for v in ds.sample(zip(x, y, strict=True), masked=True)], float)
+        vals = vals[vals != ds.nodata]
+    return float(vals.max()) * FT_PER_M, float(vals.min()) * FT_PER_M
+
+
+def test_an_elevation_dependent_value_within_the_circle_is_flagged_and_the_larger_governs(
+    grid_layer, tmp_path
+):
+    """Z4 interpolates its invented table [[0, 20], [1000, 40]] (ft, psf): over a 400 m circle
+    the DEM spans about 80 m, so the value at the maximum elevation governs and the flag is set.
+    Reference for pg: the piecewise-linear interpolation of the fixture's own table (docs/
+    contract.md, rule elevation_table) at the maximum read by rasterio's sample()."""
+    from neve.geo.site.one import resolve_site
+    from tests.geo.conftest import write_dem
+
+    dem = write_dem(tmp_path / "dem.tif")
+    lat, lon = centre(0, 1)
+    hi_ft, lo_ft = _circle_max_ft(lat, lon, 400.0, dem)
+    r = resolve_site(lat, lon, layers=[grid_layer], dem=dem, location_precision="place",
+                     location_radius_m=400.0)  # fmt: skip
+    g = r.ground
+    over = g["elevation_over_radius"]
+    assert "elevation_rule_within_radius" in g["flags"] and over["rule_change"] is True
+    assert g["status"] == "provisional"
+    assert over["max"]["ft"] == pytest.approx(hi_ft, abs=1e-3)
+    assert over["min"]["ft"] == pytest.approx(lo_ft, abs=1e-3)
+    assert over["used_at"] == "maximum" and over["used"] == over["max"]
+    assert g["pg"]["psf"] == pytest.approx(20.0 + 20.0 * hi_ft / 1000.0, abs=1e-3)
+    assert over["at_min"]["pg"]["psf"] == pytest.approx(20.0 + 20.0 * lo_ft / 1000.0, abs=1e-3)
+    # honest labels: the elevation is the DEM's (over the circle), never "input", and is not
+    # compared with the DEM at the centre as if it had been given
+    assert g["elevation_source"] == "dem"
+    assert "elevation_mismatch" not in g["flags"] and g["elevation_alternatives"] == []
+    assert "maximum over the location circle" in g["steps"][0]["description"]
+    text = r.to_text()
+    assert "elevation_rule_within_radius" in text and "at min ok" in text
+
+
+def test_an_elevation_limit_within_the_circle_requires_the_study(tmp_path):
+    """An invented zone (25 psf, elev_max three quarters of the way from the circle's DEM minimum
+    to its maximum, above the DEM at the centre):
+    at the minimum it maps 25 psf, at the maximum a study is required; the study governs."""
+    from shapely.geometry import box
+
+    from neve.geo.site.one import resolve_site
+    from tests.geo.conftest import LAT0, LON0, write_dem
+
+    dem = write_dem(tmp_path / "dem.tif")
+    lat, lon = centre(0, 0)
+    hi_ft, lo_ft = _circle_max_ft(lat, lon, 400.0, dem)
+    nan = float("nan")
+    row = {"zone_id": "L", "rule": "fixed", "pg": 25.0, "elev_max": lo_ft + 0.75 * (hi_ft - lo_ft),
+           "table": None, "expr": None, "Z": nan, "pg_min": nan,
+           "geometry": box(LON0, LAT0, LON0 + 0.03, LAT0 + 0.02)}  # fmt: skip
+    layer = write_layer(tmp_path / "limit.gpkg", [row])
+    r = resolve_site(lat, lon, layers=[layer], dem=dem, location_precision="postal_code",
+                     location_radius_m=400.0)  # fmt: skip
+    g = r.ground
+    over = g["elevation_over_radius"]
+    assert g["status"] == "study_required" and g["pg"] is None
+    assert {"elevation_rule_within_radius", "above_elevation_limit"} <= set(g["flags"])
+    assert over["at_min"] == {"status": "ok", "pg": {"psf": 25.0, "kPa": pytest.approx(1.197, abs=1e-3)}}
+    assert over["at_max"]["status"] == "study_required"
+    # at the exact coordinates (no circle), the DEM at the site is below the limit: 25 psf
+    exact = resolve_site(lat, lon, layers=[layer], dem=dem)
+    assert exact.ground["pg"]["psf"] == pytest.approx(25.0)
+    assert "elevation_rule_within_radius" not in exact.ground["flags"]
+
+
+def test_a_fixed_value_over_the_circle_is_not_flagged(grid_layer, tmp_path):
+    """Z1 maps 20 psf at every elevation: the circle's relief changes nothing."""
+    from neve.geo.site.one import resolve_site
+    from tests.geo.conftest import write_dem
+
+    dem = write_dem(tmp_path / "dem.tif")
+    lat, lon = centre(0, 0)
+    r = resolve_site(lat, lon, layers=[grid_layer], dem=dem, location_precision="place",
+                     location_radius_m=300.0)  # fmt: skip
+    g = r.ground
+    assert g["status"] == "ok" and g["pg"]["psf"] == pytest.approx(20.0)
+    assert "elevation_rule_within_radius" not in g["flags"]
+    assert g["elevation_over_radius"]["rule_change"] is False
+    assert g["elevation_source"] == "dem"
+
+
+# ---------------------------------------------------------------- neve compare, as neve site
+def test_compare_by_address_carries_the_location_of_neve_site():
+    """`neve compare --address` locates through the same code as `neve site --address`: the
+    same coordinates (the zipcodes record), precision, radius, source and flag."""
+    z = _zip_record("05401")
+    eds = ["--standard", "asce7-16", "--standard", "asce7-22"]
+    r = CliRunner().invoke(main, ["compare", "--address", "05401", *eds, "--format", "json"])
+    assert r.exit_code == 0, r.output
+    out = json.loads(r.output)
+    one = json.loads(CliRunner().invoke(main, ["site", "--address", "05401", "--format",
+                                               "json"]).output)  # fmt: skip
+    keys = ("lat", "lon", "address", "location_precision", "location_radius", "location_source")
+    assert {k: out["site"][k] for k in keys} == {k: one["site"][k] for k in keys}
+    assert out["site"]["location_precision"] == "postal_code"
+    assert (out["site"]["lat"], out["site"]["lon"]) == (
+        pytest.approx(float(z["lat"])), pytest.approx(float(z["long"])))  # fmt: skip
+    for res in out["results"]:
+        assert "location_approximate" in res["ground"]["flags"]
+    text = CliRunner().invoke(main, ["compare", "--address", "05401", *eds]).output
+    assert "location: postal_code" in text
+
+
+def test_compare_by_an_ambiguous_name_lists_candidates_and_region_narrows_it():
+    eds = ["--standard", "asce7-16", "--standard", "asce7-22"]
+    r = CliRunner().invoke(main, ["compare", "--address", "Springfield", *eds])
+    assert r.exit_code == 2, r.output
+    assert "Springfield, IL, US" in r.output and "Springfield, MA, US" in r.output
+    assert r.exception is None or isinstance(r.exception, SystemExit)
+    il = _city("Springfield", "IL")
+    r = CliRunner().invoke(main, ["compare", "--address", "Springfield", "--region", "IL",
+                                  "--country", "US", *eds, "--format", "json"])  # fmt: skip
+    assert r.exit_code == 0, r.output
+    site = json.loads(r.output)["site"]
+    assert site["location_precision"] == "place"
+    assert (site["lat"], site["lon"]) == (pytest.approx(il["latitude"]), pytest.approx(il["longitude"]))
+
+
+@pytest.mark.parametrize(
+    "text", ["", "x" * 5000, "{{7*7}}", "{% raw %}", "${7*7}", "<img src=x onerror=alert(1)>",
+             "Москва Denver 北京", "\u202eevil", "99999"],
+)  # fmt: skip
+def test_compare_hostile_addresses_exit_2_without_a_traceback(text):
+    eds = ["--standard", "asce7-16", "--standard", "asce7-22"]
+    r = CliRunner().invoke(main, ["compare", "--address", text, *eds])
+    assert r.exit_code == 2, r.output
+    assert r.exception is None or isinstance(r.exception, SystemExit)
+    assert "Traceback" not in r.output
+
+
+def test_screen_works_each_approximate_row_over_its_circle(grid_layer, tmp_path):
+    """neve screen, per row, as neve site: rows located at a 'place' (an invented geocoder
+    answering with the fixture's cell centres and a 400 m radius) over the fixture DEM."""
+    import pandas as pd
+
+    from neve.geo.screen.run import screen
+    from neve.geo.site.one import resolve_site
+    from tests.geo.conftest import write_dem
+
+    dem = write_dem(tmp_path / "dem.tif")
+    cells = {"table": centre(0, 1), "fixed": centre(0, 0)}
+
+    def geocoder(address):
+        lat, lon = cells[address]
+        return places.Located(lat, lon, address, "test geocoder (invented)", "place", 400.0)
+
+    sites = pd.DataFrame({"site_id": ["t", "f", "given"], "address": ["table", "fixed", "table"],
+                          "elevation": ["", "", "100m"]})  # fmt: skip
+    out = screen(sites, layers=[grid_layer], dem=dem, geocoder=geocoder).set_index("site_id")
+    one = resolve_site(*cells["table"], layers=[grid_layer], dem=dem, location_precision="place",
+                       location_radius_m=400.0).ground  # fmt: skip
+    t = out.loc["t"]
+    assert "elevation_rule_within_radius" in t["flags"] and t["status"] == "provisional"
+    assert t["pg_psf"] == pytest.approx(one["pg"]["psf"], abs=1e-3)
+    assert t["site_elevation_source"] == "dem"
+    assert t["location_elevation_max_ft"] == pytest.approx(one["elevation_over_radius"]["max"]["ft"], abs=1e-2)
+    assert t["location_elevation_min_ft"] == pytest.approx(one["elevation_over_radius"]["min"]["ft"], abs=1e-2)
+    f = out.loc["f"]
+    assert "elevation_rule_within_radius" not in f["flags"] and f["pg_psf"] == pytest.approx(20.0)
+    # a row that gives its elevation keeps it: no circle sampling
+    g = out.loc["given"]
+    assert g["site_elevation_source"] == "input" and math.isnan(g["location_elevation_max_ft"])
+    assert "elevation_rule_within_radius" not in g["flags"]
+
+
+def test_the_map_panel_and_the_package_state_the_elevations_over_the_circle(grid_layer, tmp_path):
+    from neve.engine.jsonsafe import finite_copy
+    from neve.geo.site.one import resolve_site
+    from neve.maps.site_map import circle_elevation_text, write_site_map
+    from tests.geo.conftest import write_dem
+
+    dem = write_dem(tmp_path / "dem.tif")
+    r = resolve_site(*centre(0, 1), layers=[grid_layer], dem=dem, location_precision="place",
+                     location_radius_m=400.0)  # fmt: skip
+    data = finite_copy(r.to_json())
+    line = circle_elevation_text(data["ground"], 400.0)
+    assert "used the maximum" in line and "elevation_rule_within_radius" in line
+    write_site_map(data, r.views(), tmp_path / "m.html", self_contained=True)
+    page = (tmp_path / "m.html").read_text(encoding="utf-8")
+    assert "DEM over the 400 m location circle" in page
+    from neve.maps.package import write_package
+
+    write_package(data, r.views(), tmp_path / "pkg", project="P", site_name="S")
+    report = (tmp_path / "pkg" / "report.html").read_text(encoding="utf-8")
+    assert "DEM over the 400 m location circle" in report
+    assert "elevation_rule_within_radius" in report
+    # no circle (exact coordinates): no line
+    assert circle_elevation_text(finite_copy(resolve_site(*centre(0, 1), layers=[grid_layer],
+                                                          dem=dem).to_json())["ground"], 0) == ""
+
+
+@pytest.mark.parametrize(
+    "text", ["", "x" * 5000, "{% for x in y %}{% endfor %}", "${7*7}", "{{ config }}",
+             "<b onmouseover=alert(1)>x</b>", "Москва Denver 北京", "\u202ertl", "Zürich\x00"],
+)  # fmt: skip
+def test_screen_hostile_addresses_are_error_rows(text, tmp_path):
+    """Each hostile address is its own row's error; the other row is still screened."""
+    import pandas as pd
+
+    sites = tmp_path / "s.csv"
+    pd.DataFrame({"site_id": ["bad", "good"], "address": [text, "05401"]}).to_csv(sites, index=False)
+    out = tmp_path / "r.csv"
+    r = CliRunner().invoke(main, ["screen", str(sites), "-o", str(out), "--quiet"])
+    assert r.exit_code == 0, r.output
+    res = pd.read_csv(out, keep_default_na=False).set_index("site_id")
+    assert res.loc["bad", "status"] == "error"
+    assert res.loc["good", "location_precision"] == "postal_code"

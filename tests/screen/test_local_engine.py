@@ -155,3 +155,24 @@ def test_names_stay_importable_from_their_old_modules():
                  "ACCEPTED_COORDS"):  # fmt: skip
         assert getattr(sf, name) is getattr(sr, name), name
     assert callable(gs.screen) and callable(gs.run_screen) and callable(sf.load_sites)
+
+
+def test_the_prefilter_union_is_built_once_for_every_thread(grid_layer, monkeypatch):
+    """Issue 16: copies of a layer (one per thread) share the grown union, each prepared
+    on its own (a copy of the geometry: GEOS prepared geometries are not shared)."""
+    import shapely
+
+    from neve.geo.layers.model import load_layer
+    from neve.geo.screen.local import portable_layer
+
+    calls = []
+    union_all = shapely.union_all
+    monkeypatch.setattr(shapely, "union_all", lambda g, **kw: calls.append(1) or union_all(g, **kw))
+    layer = load_layer(grid_layer)
+    copies = [portable_layer(layer) for _ in range(3)]
+    covers = [ly.coverage_m(250.0) for ly in [layer, *copies]]
+    assert len(calls) == 1
+    assert len({id(c) for c in covers}) == 4  # each its own prepared geometry
+    assert all(shapely.equals_exact(c, covers[0], tolerance=0.0) for c in covers)
+    shrunk = [ly.shrunk_m(250.0) for ly in [layer, *copies]]
+    assert all(shapely.equals_exact(s, shrunk[0], tolerance=0.0).all() for s in shrunk)

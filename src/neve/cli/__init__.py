@@ -21,6 +21,7 @@ _COMMANDS = {
     "screen": ("neve.cli.screen", "screen", "Screen a portfolio of sites."),
     "layer": ("neve.cli.layer", "layer", "Check or show a zone layer."),
     "verify": ("neve.cli.verify", "verify", "Run the verification cases of the standards."),
+    "serve": ("neve.cli.serve", "serve", "The site and portfolio pages and the JSON API."),
     "compare": (
         "neve.cli.compare",
         "compare",
@@ -66,8 +67,23 @@ def _version() -> str:
         return "0+unknown"
 
 
+def _print_version(ctx: click.Context, _param, value: bool) -> None:
+    """``--version``: the installed version, looked up only when asked (issue 16)."""
+    if not value or ctx.resilient_parsing:
+        return
+    click.echo(f"neve, version {_version()}")
+    ctx.exit()
+
+
 @click.group(cls=_LazyGroup)
-@click.version_option(_version(), prog_name="neve")
+@click.option(
+    "--version",
+    is_flag=True,
+    expose_value=False,
+    is_eager=True,
+    callback=_print_version,
+    help="Show the version and exit.",
+)
 def cli() -> None:
     """neve: design snow loads from a site's ground snow load to its roof load cases.
 

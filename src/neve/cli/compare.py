@@ -25,10 +25,10 @@ from neve.engine.roof_shapes import SHAPE_KEYS
 #: the parameters of ``neve site`` that ``neve compare`` takes as they are
 SITE_PARAMS = (
     "at", "address", "elevation", "dem", "dem_units", "elevation_source", "layers",
-    "roof_file", "shape", "slope", "surface", "ct", "thermal", "ce", "terrain", "exposure",
+    "layer_meta", "roof_file", "shape", "slope", "surface", "ct", "thermal", "ce", "terrain", "exposure",
     "risk", "eave_to_ridge", "r_value", "ventilated", "unobstructed", "prismatic",
     "site_name", "project", "package_dir", "overwrite", "fmt", "gazetteer", "geocoder_url",
-    "user_agent", "geocoder_timeout",
+    "user_agent", "geocoder_timeout", "country", "region",  # issue 14: the offline gazetteer
     "job", "prepared_by", "checked_by", "revision",  # the package's title block (issue 11)
     *SHAPE_KEYS,  # curved, dome and multi-span roofs (issue 12)
 )  # fmt: skip
@@ -76,21 +76,15 @@ def _run(**kw) -> None:
         )
     roof = roof_from_options(kw)
     _check_output(kw["package_dir"], "package", kw["overwrite"], is_dir=True)
-    address = None
+    from neve.cli.site import locate_address
+
+    address, located = None, {}
     if kw["at"]:
         lat, lon = parse_latlon(kw["at"])
         given = kw["at"]
-    else:
-        from neve.geo.site.geocode import geocode
-
-        hit = geocode(
-            kw["address"],
-            gazetteer=kw["gazetteer"],
-            url=kw["geocoder_url"],
-            user_agent=kw["user_agent"],
-            timeout=kw["geocoder_timeout"],
-        )
-        lat, lon, address, given = hit.lat, hit.lon, hit.address, kw["address"]
+    else:  # as neve site: gazetteer or server (exact), else the shipped gazetteer
+        lat, lon, address, located = locate_address(kw)
+        given = kw["address"]
     cmp = compare_site(
         lat,
         lon,
@@ -105,6 +99,7 @@ def _run(**kw) -> None:
         address=address,
         given=given,
         elevation_source=kw["elevation_source"],
+        **located,
     )
     data = cmp.to_json()
     if kw["package_dir"]:

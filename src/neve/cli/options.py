@@ -19,6 +19,7 @@ import click
 
 from neve.engine.errors import InputError
 from neve.engine.roof_spec import Roof
+from neve.engine.standards import Standard
 from neve.roof_file import ROOF_KEYS, read_toml, roof_mapping  # noqa: F401  (re-exported)
 
 #: roof option names as they appear in kwargs (and ROOF.toml keys)
@@ -76,16 +77,9 @@ def sk_option(f):
 
 def _w2(ctx, param, value):
     """``--w2``: a plain number from 0 to 1 (the winter wind parameter W2), or None."""
-    if value is None:
-        return None
-    accepted = "a plain number from 0 to 1, e.g. 0.45 (the winter wind parameter W2)"
-    try:
-        w2 = float(str(value).strip())
-    except ValueError:
-        raise InputError("w2", f"{value!r} is not a number", accepted) from None
-    if not (0.0 <= w2 <= 1.0):  # also refuses nan
-        raise InputError("w2", f"{value!r} is outside 0 to 1", accepted)
-    return w2
+    from neve.engine.roof import parse_w2
+
+    return parse_w2(value, "w2")
 
 
 def w2_option(f):
@@ -226,15 +220,54 @@ def roofs_from_options(kwargs: dict):
 # --- zone layers and elevation -----------------------------------------------------
 
 
+def _layer_meta_given(ctx, param, value):
+    ctx.meta["neve_layer_meta"] = tuple(value or ())
+    return value
+
+
+def _layers_with_meta(ctx, param, value):
+    """Pair each ``--layer-meta`` with a database ``--layer`` URL, in order."""
+    metas = ctx.meta.get("neve_layer_meta", ())
+    if not metas:
+        return value
+    from neve.geo.postgis import is_db_url, with_layer_meta
+
+    urls = [i for i, v in enumerate(value) if is_db_url(v)]
+    if len(metas) != len(urls):
+        raise InputError(
+            "layer-meta",
+            f"{len(metas)} given for {len(urls)} database layer(s)",
+            "one --layer-meta FILE.toml per postgresql:// --layer, in the same order",
+        )
+    out = list(value)
+    for i, meta in zip(urls, metas, strict=True):
+        out[i] = with_layer_meta(out[i], meta)
+    return tuple(out)
+
+
 def layers_option(f):
-    """``--layer`` (repeatable): the zone layers, most local first."""
-    return click.option(
+    """``--layer`` (repeatable): the zone layers, most local first; ``--layer-meta`` for
+    the sidecars of layers read from PostGIS."""
+    f = click.option(
         "--layer",
         "layers",
         multiple=True,
         type=click.Path(dir_okay=False),
-        help="Zone layer (repeat, most local first). Default: the embedded, invented DEMO "
+        callback=_layers_with_meta,
+        help="Zone layer (repeat, most local first): a file, or a PostGIS table "
+        "postgresql://USER@HOST/DB?table=SCHEMA.ZONES. Default: the embedded, invented DEMO "
         "layers (never for design).",
+    )(f)
+    return click.option(
+        "--layer-meta",
+        "layer_meta",
+        multiple=True,
+        type=click.Path(dir_okay=False),
+        is_eager=True,
+        expose_value=False,
+        callback=_layer_meta_given,
+        help="Sidecar TOML of a PostGIS --layer (repeat, one per database layer, in order); "
+        "without it the sidecar is read from the table neve_layer_meta.",
     )(f)
 
 
@@ -642,7 +675,8 @@ def command_echo() -> str:
                 elif v:
                     words.append(param.opts[0])
                 continue
-            text = str(v)
+            # a --standard parsed to its registry entry is echoed by its id, never its repr
+            text = str(v.id) if isinstance(v, Standard) else str(v)
             if name in _PATH_PARAMS and text != "demo":
                 text = PureWindowsPath(text).name if "\\" in text else Path(text).name
             words.extend([param.opts[0], text] if isinstance(param, click.Option) else [text])
@@ -658,3 +692,29 @@ def roof_file_echo(kw: dict) -> tuple[str, str] | None:
         return Path(path).name, Path(path).read_text(encoding="utf-8")
     except (OSError, UnicodeDecodeError):  # already read (and checked) by the roof reader
         return Path(path).name, ""
+
+
+# --- neve serve (issue 15) -------------------------------------------------------------
+
+
+#: ``neve serve``'s own options: where it listens, what it may read and write
+serve_options = _stack(
+    click.option("--host", default="127.0.0.1", show_default=True,
+                 help="Address to listen on. Anything but this machine (127.0.0.1, ::1, "
+                 "localhost) needs --token."),
+    click.option("--port", type=click.IntRange(1, 65535), default=8750, show_default=True,
+                 help="Port to listen on."),
+    click.option("--layers-dir", "layers_dir", type=click.Path(file_okay=False),
+                 help="Folder of zone layers (each file with its sidecar <file>.toml) that "
+                 "requests may name; the default stack when no --layer is given."),
+    click.option("--workdir", type=click.Path(file_okay=False),
+                 help="Folder of the jobs (uploads, results, packages), one random folder "
+                 "each. Default: a new temporary folder."),
+    click.option("--token", envvar="NEVE_SERVE_TOKEN", metavar="SECRET",
+                 help="Secret every request must carry (open the printed address once, or "
+                 "send 'Authorization: Bearer SECRET'); required with a --host other than "
+                 "this machine. Also read from NEVE_SERVE_TOKEN."),
+    click.option("--max-upload-mb", "max_upload_mb", type=float, default=50.0,
+                 show_default=True, help="Largest site file a portfolio upload may be [MB]."),
+)  # fmt: skip
+serve_options.__doc__ = "Decorate ``neve serve`` with its own options (host, port, folders, token)."

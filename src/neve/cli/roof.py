@@ -13,10 +13,8 @@ from neve.cli.options import (
     standard_option,
     w2_option,
 )
-from neve.engine.errors import InputError
 from neve.engine.jsonsafe import dumps
 from neve.engine.printable import printable
-from neve.engine.roof_spec import Roof, parse_pg
 from neve.engine.roof_text import roof_text  # noqa: F401  (re-exported: its old home)
 
 
@@ -48,20 +46,9 @@ def roof(pg, sk, w2, fmt, no_steps, standard, **kwargs):
     (--standard en1991-1-3) give the characteristic ground snow load --sk
     (e.g. 0.65kPa); lengths are best given in m.
     """
-    from neve.engine.roof import analyze_roof
-    from neve.engine.standards import get_standard
+    from neve.engine.roof import roof_answer
 
-    std = get_standard(standard)
-    ground = _ground_load(std, pg, sk)
-    if w2 is not None and "w2" not in std.quantities:
-        raise InputError(
-            "w2",
-            f"{std.title} takes no winter wind parameter",
-            "--w2 only with a standard that uses W2: " + ", ".join(s for s in _w2_standards()),
-        )
-    roof_ = roof_from_options(kwargs) or Roof.from_mapping({})
-    result = analyze_roof(ground, roof_, standard=std, w2=w2)
-    data = result.to_json()
+    data, roof_ = roof_answer(pg, roof_from_options(kwargs), sk=sk, standard=standard, w2=w2)
     if fmt == "json":
         click.echo(dumps(data, indent=2))
     else:
@@ -71,32 +58,3 @@ def roof(pg, sk, w2, fmt, no_steps, standard, **kwargs):
         text = roof_text(shown, show_steps=not no_steps, pitch=roof_.slope_pitch)
         extra = _extra_text(data)
         click.echo(printable(text + ("\n\n" + extra if extra else "")))
-
-
-def _ground_load(std, pg, sk) -> float:
-    """The ground snow load the standard takes, in its load unit: --pg (psf) or --sk (kPa).
-
-    The option of the other quantity, or neither, exits 2 naming what the standard takes.
-    """
-    from neve.engine.units import psf_to_kpa
-
-    wanted = std.quantities[0]
-    given = {"pg": pg, "sk": sk}
-    for name, value in given.items():
-        if value is not None and name != wanted:
-            raise InputError(
-                name, f"{std.title} takes no {name}: its ground snow load is {wanted}",
-                f"--{wanted} with a load and its unit",
-            )  # fmt: skip
-    if given.get(wanted) is None:
-        raise InputError(wanted, f"missing: {std.title} needs the ground snow load {wanted}",
-                         f"--{wanted} with a load and its unit, e.g. "
-                         + ("0.65kPa" if wanted == "sk" else "35psf"))  # fmt: skip
-    value = parse_pg(given[wanted], wanted)
-    return psf_to_kpa(value) if std.units.get("load") == "kPa" else value
-
-
-def _w2_standards() -> list[str]:
-    from neve.engine.standards import standards
-
-    return [s.id for s in standards() if "w2" in s.quantities]

@@ -32,7 +32,7 @@ def _terminate(signum, frame):  # pragma: no cover - exercised through a subproc
 
 
 @click.command("screen")
-@click.argument("sites", type=click.Path(dir_okay=False))
+@click.argument("sites", type=click.Path(dir_okay=False))  # or a postgresql:// URL
 @output_option(
     "Results file: .csv, .xlsx (with a summary sheet), .gpkg or .parquet.", required=True
 )
@@ -110,21 +110,34 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
     """
     import json
 
+    from neve.geo.postgis import is_db_url
     from neve.geo.screen.outputs import XLSX_MAX_ROWS, check_distinct, result_format, write_results
     from neve.geo.screen.run import format_summary, run_screen
     from neve.safe_write import check_target, write_text
 
     # check every target before any work, so a refusal costs nothing
-    fmt = result_format(output)
+    to_db = is_db_url(output)  # a PostGIS results table (neve.geo.postgis)
+    fmt = "postgis" if to_db else result_format(output)
+    file_inputs = [x for x in (sites, *layers) if not is_db_url(x)]
     check_distinct(
-        {"output": output, "summary-json": summary_json, "map": map_path,
+        {"output": None if to_db else output, "summary-json": summary_json, "map": map_path,
          "geocode-cache": geocode_cache},
-        {"sites": sites, "gazetteer": gazetteer, "layer": list(layers), "dem": dem,
+        {"sites": None if is_db_url(sites) else sites, "gazetteer": gazetteer,
+         "layer": [x for x in layers if x in file_inputs], "dem": dem,
          "roof": roof_kw.get("roof_file")},
     )  # fmt: skip
     if csv_raw and fmt != "csv":
         raise InputError("csv-raw", f"given for a .{fmt} output", "--csv-raw with a .csv output")
-    check_target(output, overwrite=overwrite, field="output")
+    if to_db:
+        from neve.geo.postgis import check_db_target, same_table
+
+        for name, given in [("sites", sites), *(("layer", x) for x in layers)]:
+            if is_db_url(given) and same_table(given, output):
+                raise InputError("output", f"the results table is the {name} input of this run; "
+                                 "it would be replaced", "another table for the results")  # fmt: skip
+        check_db_target(output, overwrite)
+    else:
+        check_target(output, overwrite=overwrite, field="output")
     if map_path:
         if Path(map_path).suffix.lower() not in (".html", ".htm"):
             raise InputError("map", f"{map_path!r} is not an .html path", "a path ending in .html")
@@ -157,6 +170,38 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
     except ValueError:  # not the main thread: leave signals alone
         previous = None
     try:
+        from neve.geo.screen.stream import STREAMED_FORMATS, stream_screen
+
+        if (
+            fmt in STREAMED_FORMATS
+            and not is_db_url(sites)  # a PostGIS source is read whole (neve.geo.postgis)
+            and not map_path
+            and compare is None
+            and engine.lower() == "local"
+        ):
+            # the site file read in chunks, the results written as each is done (issue 16)
+            summary = stream_screen(
+                sites,
+                output,
+                overwrite=overwrite,
+                csv_raw=csv_raw,
+                progress=progress,
+                layers=list(layers) or None,
+                dem=dem,
+                dem_units=dem_units,
+                elevation_source=elevation_source,
+                roof=roof,
+                gazetteer=gazetteer,
+                geocoder_url=geocoder_url,
+                geocode_cache=geocode_cache,
+                standard=standard,
+            )
+            if summary_json:
+                text = json.dumps(summary, indent=2)
+                write_text(summary_json, text, overwrite=overwrite, field="summary-json")
+            click.echo(format_summary(summary))
+            click.echo(f"results: {output}")
+            return
         screen_run = run_screen
         if compare is not None:  # each edition screened, then joined (geo/screen/compare.py)
             from functools import partial
@@ -191,14 +236,19 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
                 "'ratio' given, but the site file has no snow_load_on_record column",
                 RATIO_NEEDS,
             )  # refused before any output is written
-        write_results(
-            run.results,
-            output,
-            overwrite=overwrite,
-            summary=run.summary,
-            geometry=run.geometry,
-            csv_raw=csv_raw,
-        )
+        if to_db:
+            from neve.geo.postgis import write_db_results
+
+            write_db_results(run.results, output, overwrite=overwrite)
+        else:
+            write_results(
+                run.results,
+                output,
+                overwrite=overwrite,
+                summary=run.summary,
+                geometry=run.geometry,
+                csv_raw=csv_raw,
+            )
         if map_path:
             _write_map(
                 map_run, map_path, overwrite, tiles=tiles, self_contained=self_contained,
@@ -216,7 +266,12 @@ def screen(sites, output, layers, dem, dem_units, elevation_source, map_path, ti
         click.echo(format_compare_summary(run.summary))
     else:
         click.echo(format_summary(run.summary))
-    click.echo(f"results: {output}")
+    if to_db:
+        from neve.geo.postgis import masked
+
+        click.echo(f"results: {masked(output)}")
+    else:
+        click.echo(f"results: {output}")
     if map_path:
         click.echo(f"map: {map_path}")
 
@@ -253,25 +308,9 @@ def _write_map(
 
 def _zone_views(layers, results) -> list[dict]:
     """The views of the layers used, around the screened sites (for the portfolio map)."""
-    import math
+    from neve.geo.screen.views import zone_views
 
-    import numpy as np
-
-    lat = np.asarray(results["lat"], dtype=float)
-    lon = np.asarray(results["lon"], dtype=float)
-    ok = np.isfinite(lat) & np.isfinite(lon)
-    if not ok.any():
-        return []
-    s, n, w, e = lat[ok].min(), lat[ok].max(), lon[ok].min(), lon[ok].max()
-    centre = ((s + n) / 2, (w + e) / 2)
-    half = max(n - s, (e - w) * math.cos(math.radians(centre[0]))) / 2 * 111_320.0
-    radius = min(half * 1.3 + 5_000.0, 3_000_000.0)
-    views = []
-    for layer in layers:
-        if getattr(layer, "quantity", "pg") not in (None, "pg"):
-            continue  # a W2 layer is not a load: not drawn under the load bands
-        views.append(layer.view(center=centre, radius_m=radius))
-    return views
+    return zone_views(layers, results)
 
 
 def map_frame(results):

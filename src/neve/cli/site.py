@@ -25,7 +25,7 @@ from neve.cli.options import (
     title_block_options,
 )
 from neve.engine.errors import InputError
-from neve.engine.jsonsafe import dumps, finite_copy
+from neve.engine.jsonsafe import dumps
 
 
 def _check_output(path: str | None, field: str, overwrite: bool, is_dir: bool = False) -> None:
@@ -40,6 +40,26 @@ def _check_output(path: str | None, field: str, overwrite: bool, is_dir: bool = 
     from neve.safe_write import check_target
 
     check_target(path, overwrite=overwrite, field=field, parents=True)
+
+
+def locate_address(kw: dict) -> tuple[float, float, str, dict]:
+    """``--address`` located: lat, lon, the address found, and the ``location_*`` keywords
+    of :func:`neve.geo.site.one.resolve_site` (:func:`neve.geo.site.ask.locate_site`).
+
+    Shared by ``neve site`` (through :func:`~neve.geo.site.ask.ask_site`) and
+    ``neve compare``, so both locate an address alike.
+    """
+    from neve.geo.site.ask import locate_site
+
+    return locate_site(
+        kw["address"],
+        gazetteer=kw.get("gazetteer"),
+        geocoder_url=kw.get("geocoder_url"),
+        country=kw.get("country"),
+        region=kw.get("region"),
+        user_agent=kw.get("user_agent"),
+        geocoder_timeout=kw.get("geocoder_timeout") or 10.0,
+    )
 
 
 @click.command("site")
@@ -74,10 +94,9 @@ def site(**kw) -> None:
     Results are an aid to a licensed design professional; confirm ground snow loads
     with the authority having jurisdiction; flagged sites need a site-specific study.
     """
-    from neve.geo.site.coords import parse_latlon
-    from neve.geo.site.one import resolve_site
+    from neve.geo.site.ask import ask_site, site_json
 
-    if bool(kw["at"]) == bool(kw["address"]):
+    if bool(kw["at"]) == bool(kw["address"]):  # before any output is checked
         raise InputError(
             "at", "give exactly one of --at LAT,LON or --address TEXT", "--at 47.5,-140"
         )
@@ -86,44 +105,27 @@ def site(**kw) -> None:
     _check_output(kw["package_dir"], "package", kw["overwrite"], is_dir=True)
     if kw["map_path"] or kw["package_dir"]:
         resolve_basemap(kw, demo_data=False)  # a bad --basemap is refused before any work
-    address = None
-    located = {}
-    if kw["at"]:
-        lat, lon = parse_latlon(kw["at"])
-        given = kw["at"]
-    else:
-        from neve.geo.site.places import locate
-
-        hit = locate(
-            kw["address"],
-            gazetteer=kw["gazetteer"],
-            url=kw["geocoder_url"],
-            country=kw["country"],
-            region=kw["region"],
-            user_agent=kw["user_agent"],
-            timeout=kw["geocoder_timeout"],
-        )
-        lat, lon, address, given = hit.lat, hit.lon, hit.address, kw["address"]
-        located = dict(location_precision=hit.precision, location_radius_m=hit.radius_m,
-                       location_source=hit.source)  # fmt: skip
-    result = resolve_site(
-        lat,
-        lon,
+    result = ask_site(
+        at=kw["at"],
+        address=kw["address"],
+        gazetteer=kw["gazetteer"],
+        geocoder_url=kw["geocoder_url"],
+        country=kw["country"],
+        region=kw["region"],
+        user_agent=kw["user_agent"],
+        geocoder_timeout=kw["geocoder_timeout"],
+        site_name=kw["site_name"],
         elevation=kw["elevation"],
         dem=kw["dem"],
         dem_units=kw["dem_units"],
         layers=list(kw["layers"]) or None,
         roof=roof,
-        name=kw["site_name"],
         project=kw["project"],
-        address=address,
-        given=given,
         elevation_source=kw["elevation_source"],
         standard=kw["standard"],
         on_record_psf=kw.get("on_record"),
-        **located,
     )
-    data = finite_copy(result.to_json())  # no NaN or infinity in any output: null + a flag
+    data = site_json(result)  # no NaN or infinity in any output: null + a flag
     if kw["map_path"] or kw["package_dir"]:
         views = result.views()
         from neve.maps.site_map import is_demo
