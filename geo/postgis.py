@@ -394,19 +394,40 @@ def check_db_target(url: str, overwrite: bool, where: str = "output") -> DbSourc
     return src
 
 
-def _copy_frame(conn, schema, name: str, frame: pd.DataFrame) -> None:
-    """Fill a table with ``frame``'s rows through COPY (CSV text from pandas' C writer)."""
+def _csv_bytes(frame: pd.DataFrame) -> bytes:
+    """``frame`` as CSV for COPY, by pyarrow's writer: every text quoted, a null unquoted empty.
+
+    So a text cell that reads ``\\N`` or is empty stays that text, and only a missing
+    value becomes NULL (COPY's CSV default).  A column of mixed Python objects is
+    written as their text.
+    """
     import io
 
-    buf = io.StringIO()
-    frame.to_csv(buf, index=False, header=False, na_rep="\\N")
-    buf.seek(0)
+    import pyarrow as pa
+    import pyarrow.csv as pacsv
+
+    try:
+        table = pa.Table.from_pandas(frame, preserve_index=False)
+    except (pa.ArrowInvalid, pa.ArrowTypeError, pa.ArrowNotImplementedError):
+        frame = frame.copy()
+        for col in [c for c in frame.columns if frame[c].dtype.kind == "O"]:
+            frame[col] = [None if v is None or (isinstance(v, float) and np.isnan(v)) else str(v)
+                          for v in frame[col]]  # fmt: skip
+        table = pa.Table.from_pandas(frame, preserve_index=False)
+    buf = io.BytesIO()
+    pacsv.write_csv(table, buf, pacsv.WriteOptions(include_header=False))
+    return buf.getvalue()
+
+
+def _copy_frame(conn, schema, name: str, frame: pd.DataFrame) -> None:
+    """Fill a table with ``frame``'s rows through COPY (CSV from :func:`_csv_bytes`)."""
+    data = memoryview(_csv_bytes(frame))
     prep = conn.dialect.identifier_preparer
     cols = ", ".join(prep.quote_identifier(str(k)) for k in frame.columns)
-    sql = f"COPY {_qualified(conn, schema, name)} ({cols}) FROM STDIN WITH (FORMAT csv, NULL '\\N')"
+    sql = f"COPY {_qualified(conn, schema, name)} ({cols}) FROM STDIN WITH (FORMAT csv)"
     with conn.connection.driver_connection.cursor() as cur, cur.copy(sql) as cp:
-        while chunk := buf.read(1 << 20):
-            cp.write(chunk)
+        for start in range(0, len(data), 1 << 20):
+            cp.write(data[start : start + (1 << 20)])
 
 
 def write_db_results(df: pd.DataFrame, url: str, *, overwrite: bool = False, _hook=None) -> str:

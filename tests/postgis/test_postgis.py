@@ -71,7 +71,8 @@ def _portfolio(n: int, seed: int = 3) -> pd.DataFrame:
         "lat": lat.round(6),
         "lon": lon.round(6),
         "elevation_ft": rng.uniform(100, 4000, n).round(0),
-        "note": [("north wing", "{{ 7*7 }}", "<b>x</b>", "=1+1", None)[i % 5] for i in range(n)],
+        "note": [("north wing", "{{ 7*7 }}", "<b>x</b>", "=1+1", None, "\\N", "")[i % 7]
+                 for i in range(n)],  # fmt: skip
     })  # fmt: skip
 
 
@@ -88,10 +89,10 @@ def _load_table(server, frame, table, *, srid=4326, geometry=True, schema=None):
     else:  # the table from pandas, the rows through psql's own \\copy (not neve's COPY)
         frame.head(0).to_sql(table, eng, schema=schema, if_exists="replace", index=False)
         csv = Path(tempfile.mkdtemp()) / "rows.csv"
-        frame.to_csv(csv, index=False, header=False)
+        frame.to_csv(csv, index=False, header=False, na_rep="NEVE-TEST-NULL")
         name = f"{schema}.{table}" if schema else table
         subprocess.run([*server["psql"], "-d", server["db"], "-c",
-                        f"\\copy {name} FROM '{csv}' WITH (FORMAT csv)"],
+                        f"\\copy {name} FROM '{csv}' WITH (FORMAT csv, NULL 'NEVE-TEST-NULL')"],
                        env=dict(os.environ, PGPASSWORD=server["password"]), check=True)  # fmt: skip
     eng.dispose()
 
@@ -135,6 +136,24 @@ def test_masking_and_url_keys():
         parse_db_url("postgresql://a@h/db?query=SELECT 1", "output", want="output")
 
 
+def test_copy_text_keeps_every_cell_and_only_missing_is_null():
+    # COPY's CSV rules (PostgreSQL docs, COPY: an unquoted empty value is NULL, a quoted
+    # empty string is an empty string); Python's csv module reads the text back
+    import csv
+    import io
+
+    from neve.geo.postgis import _csv_bytes
+
+    frame = pd.DataFrame({"t": ["x", "", None, "\\N", 'q"u', "a\nb"], "n": [1.5, np.nan, 2, 3, 4, 5],
+                          "m": [1, "x", None, 2.5, b"z", True]})  # fmt: skip
+    text = _csv_bytes(frame).decode()
+    rows = list(csv.reader(io.StringIO(text)))
+    assert [r[0] for r in rows] == ["x", "", "", "\\N", 'q"u', "a\nb"]
+    lines = text.splitlines()
+    assert lines[1].startswith('"",') and lines[2].startswith(",")  # "" quoted, None not
+    assert [r[2] for r in rows][:4] == ["1", "x", "", "2.5"]
+
+
 # --- with a server --------------------------------------------------------------------
 
 
@@ -165,7 +184,10 @@ def test_round_trip_100k_identical_to_the_csv_path(pg_env, tmp_path):
         else:
             assert list(a.fillna("").astype(str)) == list(b.fillna("").astype(str)), col
     # every input cell as given: hostile text stays literal
-    assert set(got["note"].dropna()) == {"north wing", "{{ 7*7 }}", "<b>x</b>", "=1+1"}
+    # (a cell reading \\N, or empty, stays that text; only a missing cell is NULL)
+    expect = frame.set_index("site_id")["note"].reindex(got["site_id"]).tolist()
+    assert got["note"].tolist() == [None if v is None else v for v in expect]
+    assert set(got["note"].dropna()) == {"north wing", "{{ 7*7 }}", "<b>x</b>", "=1+1", "\\N", ""}
     # a point geometry in EPSG:4326 with a spatial index
     srid = _sql(pg_env, "SELECT Find_SRID('public', 'results100k', 'geom')")[0][0]
     assert srid == 4326
