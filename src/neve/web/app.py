@@ -62,6 +62,48 @@ def _body_schema(keys, required=()) -> dict:
                             "content": {"application/json": {"schema": schema}}}}  # fmt: skip
 
 
+class Guard:
+    """ASGI middleware: turn away what ``refused`` names, answer ``failed`` for an exception,
+    and give every response neve's security headers (CSP, nosniff, no referrer, frames,
+    no caching), as set by :data:`PAGE_CSP`."""
+
+    def __init__(self, app, refused, failed):
+        self.app, self.refused, self.failed = app, refused, failed
+
+    async def __call__(self, scope, receive, send):
+        if scope["type"] != "http":
+            await self.app(scope, receive, send)
+            return
+        from starlette.datastructures import MutableHeaders
+
+        request = Request(scope)
+        started = False
+
+        async def send_with_headers(message):
+            nonlocal started
+            if message["type"] == "http.response.start":
+                started = True
+                headers = MutableHeaders(scope=message)
+                headers.setdefault("Content-Security-Policy", PAGE_CSP)
+                headers["X-Content-Type-Options"] = "nosniff"
+                headers["Referrer-Policy"] = "no-referrer"
+                headers.setdefault("X-Frame-Options", "SAMEORIGIN")
+                headers.setdefault("Cache-Control", "no-store")
+            await send(message)
+
+        answer = self.refused(request)
+        if answer is not None:
+            await answer(scope, receive, send_with_headers)
+            return
+        try:
+            await self.app(scope, receive, send_with_headers)
+        except Exception:
+            if started:  # the answer is on its way: nothing else can be sent
+                LOG.exception("failure after the response started on %s", request.url.path)
+                return
+            await self.failed(request)(scope, receive, send_with_headers)
+
+
 def create_app(config):
     """The ASGI application serving ``config`` (a :class:`neve.web.config.ServeConfig`)."""
     from concurrent.futures import ThreadPoolExecutor
@@ -97,8 +139,8 @@ def create_app(config):
 
     # --- the guard: token, origin, body size, headers -------------------------------
 
-    @app.middleware("http")
-    async def guard(request: Request, call_next):
+    def refused(request: Request):
+        """The answer to a request the guard turns away (token, origin, size), or None."""
         if config.token:
             given = request.query_params.get("token")
             if given is not None and secrets.compare_digest(given, config.token):
@@ -123,20 +165,19 @@ def create_app(config):
         limit = config.max_upload_bytes + FORM_LIMIT if upload else FORM_LIMIT
         if length and (not length.isdigit() or int(length) > limit):
             return _error(request, 413, "body: larger than this server takes", "a smaller request")
+        return None
+
+    def failed(request: Request):
+        """The answer to a request whose handler raised: never a traceback to the browser."""
+        LOG.exception("unexpected failure on %s", request.url.path)
         try:
-            response = await call_next(request)
-        except Exception:  # never a traceback to the browser
-            LOG.exception("unexpected failure on %s", request.url.path)
-            try:
-                response = _error(request, 500, UNEXPECTED)
-            except Exception:  # even the error page failed: one plain line
-                response = Response(UNEXPECTED, status_code=500, media_type="text/plain")
-        response.headers.setdefault("Content-Security-Policy", PAGE_CSP)
-        response.headers["X-Content-Type-Options"] = "nosniff"
-        response.headers["Referrer-Policy"] = "no-referrer"
-        response.headers.setdefault("X-Frame-Options", "SAMEORIGIN")
-        response.headers.setdefault("Cache-Control", "no-store")
-        return response
+            return _error(request, 500, UNEXPECTED)
+        except Exception:  # even the error page failed: one plain line
+            return Response(UNEXPECTED, status_code=500, media_type="text/plain")
+
+    # the guard: token, origin, body size, headers -- a plain ASGI middleware (a
+    # BaseHTTPMiddleware cost 10-20 % of the requests per second: tests/benchmarks/bench_serve.py)
+    app.add_middleware(Guard, refused=refused, failed=failed)
 
     def _error(request, status: int, message: str, accepted: str | None = None):
         text = message + (f"; accepted: {accepted}" if accepted else "")
