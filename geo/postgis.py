@@ -248,8 +248,8 @@ def _table_exists(conn, schema: str | None, name: str) -> bool:
 # --- sites in -------------------------------------------------------------------------
 
 
-def _geometry_columns(conn, select_sql: str) -> list[str]:
-    """The columns of ``select_sql`` whose type is PostGIS geometry (or geography)."""
+def _columns(conn, select_sql: str) -> list[tuple[str, bool]]:
+    """``(name, is geometry or geography)`` of every column of ``select_sql`` (no row read)."""
     from sqlalchemy import text
 
     oids = {r[0] for r in conn.execute(
@@ -257,9 +257,14 @@ def _geometry_columns(conn, select_sql: str) -> list[str]:
     cur = conn.connection.driver_connection.cursor()
     try:
         cur.execute(f"SELECT * FROM ({select_sql}) AS neve_q LIMIT 0")
-        return [d.name for d in cur.description if d.type_code in oids]
+        return [(d.name, d.type_code in oids) for d in cur.description]
     finally:
         cur.close()
+
+
+def _geometry_columns(conn, select_sql: str) -> list[str]:
+    """The columns of ``select_sql`` whose type is PostGIS geometry (or geography)."""
+    return [name for name, geo in _columns(conn, select_sql) if geo]
 
 
 def _order_by(conn, src: DbSource) -> str:
@@ -300,7 +305,8 @@ def read_db_sites(url: str, where: str = "sites") -> tuple[pd.DataFrame, object]
                 base = f"SELECT * FROM {_qualified(conn, schema, name)}"
             else:
                 base = src.query
-            geoms = _geometry_columns(conn, base)
+            columns = _columns(conn, base)
+            geoms = [name for name, geo in columns if geo]
             if src.geometry is not None and src.geometry not in geoms:
                 raise InputError(where, f"{src.shown}: no geometry column {src.geometry!r}",
                                  ", ".join(geoms) or "a table with a geometry column")  # fmt: skip
@@ -320,7 +326,7 @@ def read_db_sites(url: str, where: str = "sites") -> tuple[pd.DataFrame, object]
                     f"SELECT count(*) FROM ({base}) AS neve_q "
                     f"WHERE {g} IS NOT NULL AND ST_SRID({g}::geometry) = 0")).scalar()  # fmt: skip
                 if nosrid:
-                    cols = _plain_columns(conn, base)
+                    cols = {name.lower() for name, _ in columns}
                     if not ({"lat", "latitude"} & cols and {"lon", "lng", "longitude"} & cols):
                         raise InputError(
                             where,
@@ -349,15 +355,6 @@ def read_db_sites(url: str, where: str = "sites") -> tuple[pd.DataFrame, object]
     values = [None if v is None else bytes(v) for v in wkb]
     geometry = gpd.GeoSeries.from_wkb(values, crs="EPSG:4326").reset_index(drop=True)
     return frame.reset_index(drop=True), geometry
-
-
-def _plain_columns(conn, select_sql: str) -> set[str]:
-    cur = conn.connection.driver_connection.cursor()
-    try:
-        cur.execute(f"SELECT * FROM ({select_sql}) AS neve_q LIMIT 0")
-        return {d.name.lower() for d in cur.description}
-    finally:
-        cur.close()
 
 
 # --- results out ----------------------------------------------------------------------

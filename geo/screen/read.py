@@ -134,8 +134,9 @@ def read_sites(path: str | Path) -> tuple[pd.DataFrame, object]:
     if is_db_url(path):  # a PostGIS table or query (neve.geo.postgis)
         from neve.geo.postgis import parse_db_url, read_db_sites
 
+        shown = parse_db_url(str(path), "sites").shown  # the URL as messages show it
         frame, geometry = read_db_sites(str(path))
-        return _finish(frame, geometry, notes, "postgis", parse_db_url(str(path), "sites").shown)
+        return _finish(frame, geometry, notes, "postgis", shown)
     p = Path(path)
     if not p.is_file():
         raise InputError("sites", f"file {str(p)!r} not found", "a CSV, XLSX, GPKG or Parquet file")
