@@ -429,7 +429,7 @@ def evaluate(zt: ZoneTable, zone: np.ndarray, elev: np.ndarray) -> tuple[np.ndar
     state[rule == RULE_CODE["study"]] = STUDY
     # elevation tables, one unique zone at a time (tables differ in length)
     m = np.flatnonzero(rule == RULE_CODE["elevation_table"])
-    by_zone = m[np.argsort(zone[m], kind="stable")]  # the pairs of each zone side by side
+    by_zone = m[np.argsort(zone[m], stable=True)]  # the pairs of each zone side by side
     zs = zone[by_zone]
     cuts = np.flatnonzero(zs[1:] != zs[:-1]) + 1
     for sel in np.split(by_zone, cuts) if by_zone.size else ():

@@ -107,7 +107,7 @@ class BoxGrid:
         rep = np.repeat(np.arange(zones.size), per)
         local = np.arange(total) - np.repeat(np.cumsum(per) - per, per)
         cell = (iy0[rep] + local // wide[rep]) * nx + ix0[rep] + local % wide[rep]
-        order = np.argsort(cell, kind="stable")  # within a cell: zones in file order
+        order = np.argsort(cell, stable=True)  # within a cell: zones in file order
         self.zone = zones[rep[order]]
         self.start = np.zeros(nx * ny + 1, dtype=np.intp)
         np.cumsum(np.bincount(cell, minlength=nx * ny), out=self.start[1:])
