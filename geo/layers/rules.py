@@ -428,10 +428,12 @@ def evaluate(zt: ZoneTable, zone: np.ndarray, elev: np.ndarray) -> tuple[np.ndar
     # study
     state[rule == RULE_CODE["study"]] = STUDY
     # elevation tables, one unique zone at a time (tables differ in length)
-    m = rule == RULE_CODE["elevation_table"]
-    for j in np.unique(zone[m]):
-        sel = m & (zone == j)
-        e, v = zt.tables[int(j)]
+    m = np.flatnonzero(rule == RULE_CODE["elevation_table"])
+    by_zone = m[np.argsort(zone[m], stable=True)]  # the pairs of each zone side by side
+    zs = zone[by_zone]
+    cuts = np.flatnonzero(zs[1:] != zs[:-1]) + 1
+    for sel in np.split(by_zone, cuts) if by_zone.size else ():
+        e, v = zt.tables[int(zone[sel[0]])]
         a = elev[sel]
         out = np.interp(a, e, v)
         st = np.where(~np.isfinite(a), NEED_ELEV, np.where(a > e[-1], ABOVE, OK))

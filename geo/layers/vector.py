@@ -50,16 +50,119 @@ PREFILTER_MIN_SITES = 2000
 FEW_ZONES = 64
 
 
+#: the zone-box grid of :class:`BoxGrid` aims at about this many cells per zone
+GRID_CELLS_PER_ZONE = 4
+#: a grid whose (zone, cell) entries would exceed this many per zone (a few zones much larger
+#: than the rest) is not built: the layer's STRtree is queried instead
+GRID_MAX_ENTRIES_PER_ZONE = 64
+
+
+class BoxGrid:
+    """A uniform grid over a layer's zone bounding boxes, for point look-ups in numpy.
+
+    Every zone is entered in each grid cell its bounding box touches; a point's
+    candidates are the zones entered in its cell whose box holds it: the same
+    pairs as an STRtree query of the point (a superset of the zones that hold it),
+    found without building point geometries.  Cell indices are ``floor`` of the
+    offset over the cell size, for the boxes and the points alike, so a point on
+    a box's edge finds that box (``floor`` is monotonic).
+
+    Parameters
+    ----------
+    bounds : numpy.ndarray
+        ``(n, 4)`` zone bounds ``minx, miny, maxx, maxy`` (layer CRS); NaN rows
+        (empty geometries) are never candidates.
+    """
+
+    def __init__(self, bounds: np.ndarray):
+        b = np.asarray(bounds, dtype=float).reshape(-1, 4)
+        self.bounds = b
+        ok = np.isfinite(b).all(axis=1)
+        self.usable = bool(ok.any())
+        if not self.usable:
+            return
+        zones = np.flatnonzero(ok)
+        x0, y0 = b[ok, 0].min(), b[ok, 1].min()
+        x1, y1 = b[ok, 2].max(), b[ok, 3].max()
+        w, h = x1 - x0, y1 - y0
+        cells = max(1, GRID_CELLS_PER_ZONE * zones.size)
+        if w > 0 and h > 0:
+            nx = int(np.clip(np.ceil(np.sqrt(cells * w / h)), 1, 4096))
+            ny = int(np.clip(np.ceil(cells / nx), 1, 4096))
+        else:  # all boxes on one line (or one point)
+            nx = int(min(cells, 4096)) if w > 0 else 1
+            ny = int(min(cells, 4096)) if h > 0 else 1
+        self.x0, self.y0, self.x1, self.y1 = x0, y0, x1, y1
+        self.nx, self.ny = nx, ny
+        self.cw = w / nx if w > 0 else 1.0
+        self.ch = h / ny if h > 0 else 1.0
+        ix0, iy0 = self._cell_x(b[zones, 0]), self._cell_y(b[zones, 1])
+        ix1, iy1 = self._cell_x(b[zones, 2]), self._cell_y(b[zones, 3])
+        wide = ix1 - ix0 + 1
+        per = wide * (iy1 - iy0 + 1)
+        total = int(per.sum())
+        if total > GRID_MAX_ENTRIES_PER_ZONE * zones.size:
+            self.usable = False
+            return
+        rep = np.repeat(np.arange(zones.size), per)
+        local = np.arange(total) - np.repeat(np.cumsum(per) - per, per)
+        cell = (iy0[rep] + local // wide[rep]) * nx + ix0[rep] + local % wide[rep]
+        order = np.argsort(cell, stable=True)  # within a cell: zones in file order
+        self.zone = zones[rep[order]]
+        self.start = np.zeros(nx * ny + 1, dtype=np.intp)
+        np.cumsum(np.bincount(cell, minlength=nx * ny), out=self.start[1:])
+
+    def _cell_x(self, x):
+        return np.clip(np.floor((x - self.x0) / self.cw), 0, self.nx - 1).astype(np.intp)
+
+    def _cell_y(self, y):
+        return np.clip(np.floor((y - self.y0) / self.ch), 0, self.ny - 1).astype(np.intp)
+
+    def candidates(self, x: np.ndarray, y: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """(site, zone) pairs whose zone box holds the site, by site, zones in file order."""
+        with np.errstate(invalid="ignore"):
+            inside = (x >= self.x0) & (x <= self.x1) & (y >= self.y0) & (y <= self.y1)
+        sites = np.flatnonzero(inside)
+        cell = self._cell_y(y[sites]) * self.nx + self._cell_x(x[sites])
+        first = self.start[cell]
+        count = self.start[cell + 1] - first
+        si = np.repeat(sites, count)
+        pos = np.arange(si.size) - np.repeat(np.cumsum(count) - count - first, count)
+        zi = self.zone[pos]
+        b = self.bounds
+        xs, ys = x[si], y[si]
+        hold = (xs >= b[zi, 0]) & (xs <= b[zi, 2]) & (ys >= b[zi, 1]) & (ys <= b[zi, 3])
+        return si[hold], zi[hold]
+
+
+def box_grid(layer) -> BoxGrid:
+    """The layer's :class:`BoxGrid` (built on first use, kept in the layer's cache)."""
+    grid = layer._cache.get("box_grid")
+    if grid is None:
+        import shapely
+
+        grid = layer._cache["box_grid"] = BoxGrid(shapely.bounds(layer.prepared()))
+    return grid
+
+
 def bbox_candidates(layer, x: np.ndarray, y: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """(site, zone) pairs whose zone bounding box holds the site (layer CRS coordinates).
 
-    For a few zones the boxes are compared with numpy directly (no point
-    geometries to build); otherwise the layer's STRtree is queried.
+    Each site's zones come in file order (the order that breaks ties between
+    zones of equal value, :func:`neve.geo.layers.hits.reduce_hits`).  For a few zones
+    the boxes are compared with numpy directly; otherwise the layer's
+    :class:`BoxGrid` is asked (no point geometries to build), or its STRtree when
+    the zones are too uneven in size for a grid.
     """
     import shapely
 
     if len(layer.zones) > FEW_ZONES:
-        return layer.tree().query(shapely.points(x, y))
+        grid = box_grid(layer)
+        if grid.usable:
+            return grid.candidates(x, y)
+        si, zi = layer.tree().query(shapely.points(x, y))
+        order = np.lexsort((zi, si))
+        return si[order], zi[order]
     b = shapely.bounds(layer.prepared())
     si, zi = [], []
     for j, (x0, y0, x1, y1) in enumerate(b):
@@ -140,9 +243,12 @@ def layer_hits(layer, lon, lat, elev_ft, search_m: float | None = None) -> Hits:
     geoms_m, tree_m = layer.tree_m()
     band = np.ones(idx.size, dtype=bool)
     prefilter = search > 0 and idx.size >= PREFILTER_MIN_SITES
-    if prefilter:  # sites farther than the radius from every zone have no neighbour
-        band = shapely.contains_xy(layer.coverage_m(search), xm, ym)
-    if prefilter and qi.size:
+    if prefilter:  # a site outside every zone: in the band if within the radius of one
+        out = np.ones(idx.size, dtype=bool)
+        out[qi] = False
+        oi = np.flatnonzero(out)
+        band[oi] = shapely.contains_xy(layer.coverage_m(search), xm[oi], ym[oi])
+    if prefilter and qi.size:  # a site in a zone: in the band unless deep inside it
         deep = shapely.contains_xy(layer.shrunk_m(search)[cz], xm[qi], ym[qi])
         band[qi[deep]] = False
         band[qi[~deep]] = True  # a site in two zones, one deep, stays in the band

@@ -103,15 +103,24 @@ def _repeated_ids(columns):
 
     parts = [_arrow_ids(ids) for ids in columns]
     types = {p.type for p in parts if not pa.types.is_null(p.type)}
-    if len(types) > 1:
-        parts = [p.cast(pa.string()) for p in parts]
-    ids = pa.chunked_array(parts, type=parts[0].type if len(types) <= 1 else pa.string())
-    if len(types) == 1:
-        ids = ids.cast(types.pop())
-    counts = pc.value_counts(ids)
-    values, n = counts.field("values"), counts.field("counts")
-    many = pc.and_(pc.greater(n, 1), pc.is_valid(values))
-    return pc.filter(values, many)
+    kind = types.pop() if len(types) == 1 else (pa.string() if types else pa.null())
+    chunks = []  # the Arrow arrays of every part (a part may come as a ChunkedArray)
+    for p in parts:
+        p = p if p.type == kind else p.cast(kind)
+        chunks.extend(p.chunks if isinstance(p, pa.ChunkedArray) else [p])
+    ids = pa.chunked_array(chunks, type=kind)
+    if pa.types.is_null(ids.type):
+        return pa.array([], type=pa.null())
+    if pa.types.is_string(ids.type) or pa.types.is_binary(ids.type):
+        ids = ids.cast(pa.large_string() if pa.types.is_string(ids.type) else pa.large_binary())
+    # sorted, each id beside its equals: a fraction of the time and memory of counting
+    # ten million distinct ids in a hash table (pyarrow's value_counts)
+    arr = ids.combine_chunks()
+    if len(arr) < 2:
+        return arr.slice(0, 0)
+    ranked = arr.take(pc.array_sort_indices(arr, null_placement="at_end"))
+    same = pc.fill_null(pc.equal(ranked.slice(1), ranked.slice(0, len(arr) - 1)), False)
+    return pc.unique(pc.filter(ranked.slice(1), same))
 
 
 def _is_repeated(ids: pd.Series, repeated) -> np.ndarray:

@@ -1,4 +1,4 @@
-"""neve.geo.layers.vector.layer_hits on a layer of many zones (the STRtree path) and the points it builds.
+"""neve.geo.layers.vector.layer_hits on a layer of many zones (the zone-box grid) and the points it builds.
 
 The layer is an invented 12 x 12 grid of square zones with made-up values in
 an imaginary basin; none of it is any jurisdiction's map.  Answers are checked
@@ -67,8 +67,12 @@ def _interior(n: int, seed: int = 3) -> tuple[np.ndarray, np.ndarray]:
     return SOUTH + (j + fy) * STEP, WEST + (i + fx) * STEP
 
 
-def test_the_fixture_takes_the_tree_path(many_zones):
-    assert len(load_layer(many_zones).zones) == CELLS * CELLS > FEW_ZONES
+def test_the_fixture_takes_the_grid_path(many_zones):
+    from neve.geo.layers.vector import box_grid
+
+    layer = load_layer(many_zones)
+    assert len(layer.zones) == CELLS * CELLS > FEW_ZONES
+    assert box_grid(layer).usable
 
 
 def test_zones_match_shapely_point_in_polygon(many_zones):
@@ -127,7 +131,6 @@ def test_points_are_built_once_per_site_per_crs(many_zones, monkeypatch):
     monkeypatch.setattr(shapely, "points", counting)
     h = layer_hits(layer, lon, lat, np.full(lat.size, np.nan))
     assert h.near[:300].all()
-    # one build in the layer's CRS (all sites) and one in World Mercator (the band only)
-    assert len(built) == 2
-    assert built[0] == lat.size
-    assert 300 <= built[1] < lat.size
+    # none in the layer's CRS (the zone-box grid needs none), one in World Mercator (the band)
+    assert len(built) == 1
+    assert 300 <= built[0] < lat.size

@@ -290,3 +290,28 @@ def test_a_streamed_run_shows_its_progress(tmp_path, grid_layer, capsys):
     err = capsys.readouterr().err
     assert "screening" in err and "0/30" in err  # sites counted against the file's rows
     assert summary["chunks"] == 5 and summary["rows"] == 30
+
+
+def test_repeated_ids_of_the_first_pass_match_pandas_value_counts():
+    """The whole-file repeated ids (found by sorting) against pandas' value_counts
+    (a general-purpose reference), over parts of several types, with missing ids."""
+    import numpy as np
+    import pandas as pd
+
+    from neve.geo.screen.stream import _repeated_ids
+
+    rng = np.random.default_rng(16)
+    for trial in range(40):
+        parts, every = [], []
+        for _ in range(rng.integers(1, 5)):
+            n = int(rng.integers(0, 30))
+            vals = [None if rng.random() < 0.1 else f"id{rng.integers(0, 25)}" for _ in range(n)]
+            parts.append(pd.Series(vals, dtype="string[pyarrow]" if trial % 2 else object))
+            every += vals
+        counts = pd.Series(every, dtype=object).value_counts(dropna=True)
+        want = sorted(counts[counts > 1].index)
+        got = sorted(v for v in _repeated_ids(parts).to_pylist() if v is not None)
+        assert got == want, (trial, got, want)
+    mixed = [pd.Series([1, 2, 3]), pd.Series(["3", "4", "4"])]  # numbers and text: as text
+    assert sorted(_repeated_ids(mixed).to_pylist()) == ["3", "4"]
+    assert len(_repeated_ids([pd.Series([None, None], dtype=object)])) == 0

@@ -117,6 +117,10 @@ def create_app(config):
     async def lifespan(app):
         yield
         screens.shutdown(wait=False, cancel_futures=True)
+        if config.own_work:  # neve's own temporary folder (no --workdir): the jobs go with it
+            import shutil
+
+            shutil.rmtree(config.work, ignore_errors=True)
 
     app = FastAPI(
         lifespan=lifespan,

@@ -95,6 +95,8 @@ class ServeConfig:
     allowed_hosts: tuple[str, ...] | None = None
     #: the zone outlines of the site form's map, made on first use (``/map/zones.geojson``)
     zones_cache: str | None = field(default=None, repr=False)
+    #: the work folder is neve's own temporary folder (no ``--workdir``): removed at shutdown
+    own_work: bool = False
 
     @property
     def demo(self) -> bool:
@@ -223,4 +225,5 @@ def load_config(
         geocoder_url=geocoder_url,
         max_upload_bytes=int(float(max_upload_mb) * 1024 * 1024),
         default_count=default_count,
+        own_work=workdir is None,
     )

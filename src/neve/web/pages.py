@@ -107,6 +107,15 @@ def _standards() -> list[dict]:
     return [{"id": s.id, "title": s.title} for s in standards()]
 
 
+#: the form's labels of the standards' roof options (others: the option's name, capitalised)
+_ROOF_LABELS = {
+    "surface": "Roof surface", "ct": "Ct (given directly)", "thermal": "Thermal condition",
+    "ce": "Ce (given directly)", "terrain": "Surface roughness", "exposure": "Roof exposure",
+    "risk": "Risk category", "r_value": "Roof R-value", "ventilated": "Ventilated roof",
+    "unobstructed": "Eaves unobstructed", "prismatic": "Prismatic members",
+}  # fmt: skip
+
+
 def _roof_fields() -> list[dict]:
     """The roof options of the form: the shared geometry, then the default standard's options."""
     from neve.engine.roof_spec import RISKS
@@ -130,7 +139,8 @@ def _roof_fields() -> list[dict]:
     for opt in get_standard().roof_options:
         kind = {"choice": "choice", "yes/no": "yes/no"}.get(opt.kind, "text")
         choices = RISKS if opt.name == "risk" else opt.choices
-        fields.append({"name": opt.name, "kind": kind, "label": opt.name.replace("_", " "),
+        label = _ROOF_LABELS.get(opt.name) or opt.name.replace("_", " ").capitalize()
+        fields.append({"name": opt.name, "kind": kind, "label": label,
                        "choices": choices, "help": opt.help})  # fmt: skip
     return fields
 
