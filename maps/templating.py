@@ -21,13 +21,19 @@ from __future__ import annotations
 import functools
 
 
-@functools.lru_cache(maxsize=1)
-def environment():
-    """The Jinja2 environment: package templates, HTML autoescape always on."""
-    from jinja2 import ChainableUndefined, Environment, PackageLoader
+@functools.cache
+def environment(*packages: str):
+    """The Jinja2 environment: package templates, HTML autoescape always on.
+
+    ``packages``: other packages whose ``templates`` folder is searched first
+    (``neve serve`` passes ``"neve.web"``); the maps' templates are always there.
+    """
+    from jinja2 import ChainableUndefined, ChoiceLoader, Environment, PackageLoader
 
     env = Environment(
-        loader=PackageLoader("neve.maps", "templates"),
+        loader=ChoiceLoader(
+            [PackageLoader(p, "templates") for p in (*packages, "neve.maps")]
+        ),  # fmt: skip
         autoescape=True,
         undefined=ChainableUndefined,
         trim_blocks=True,

@@ -349,18 +349,6 @@ def screen(sites, *, layers=None, dem=None, dem_units=None, roof=None, engine="l
     return run.results
 
 
-def _assign(res: Resolution, pos: np.ndarray, part: Resolution) -> None:
-    """Put ``part``'s sites into ``res`` at positions ``pos`` (the same layers)."""
-    for name, value in part._arrays():
-        target = getattr(res, name)
-        if isinstance(value, dict):
-            for q, v in value.items():
-                if q in target:
-                    target[q][pos] = v
-        else:
-            target[pos] = value
-
-
 def _widen_approximate(resolved, site, idx, elev_arg, risk, layer_list, resolver, kwargs) -> None:
     """Re-resolve rows located with an uncertainty radius, the layers widened to it.
 
@@ -419,7 +407,7 @@ def _widen_approximate(resolved, site, idx, elev_arg, risk, layer_list, resolver
             sub = pos[plain]
             part = run(idx[sub], None if el is None else el[plain], widened)
             part.flags |= resolved.flags[sub] & np.uint64(BIT["location_approximate"])
-            _assign(resolved, sub, part)
+            resolved.assign(sub, part)
         if circle.any():
             sub = pos[circle]
 
@@ -429,7 +417,7 @@ def _widen_approximate(resolved, site, idx, elev_arg, risk, layer_list, resolver
             part, _, _ = resolve_over_circle(site.lat[idx[sub]], site.lon[idx[sub]], float(r),
                                              over, resolver=at_elevation)  # fmt: skip
             part.flags |= resolved.flags[sub] & np.uint64(BIT["location_approximate"])
-            _assign(resolved, sub, part)
+            resolved.assign(sub, part)
             site.location_elevation_min_ft[idx[sub]] = over["min_ft"]
             site.location_elevation_max_ft[idx[sub]] = over["max_ft"]
     if approx.any():

@@ -172,14 +172,7 @@ def resolve_over_circle(lat, lon, radius_m, over: dict, *, resolver, **kw):
     res = hi
     if use_min.any():
         pos = np.flatnonzero(use_min)
-        for name, value in lo.take(pos)._arrays():
-            target = getattr(res, name)
-            if isinstance(value, dict):
-                for q, v in value.items():
-                    if q in target:
-                        target[q][pos] = v
-            else:
-                target[pos] = value
+        res.assign(pos, lo.take(pos))
         if use_min.all():  # one site's derivation: the look-up of the result that governs
             res.detail = lo.detail
     res.extra.update(

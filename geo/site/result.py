@@ -395,6 +395,17 @@ class Resolution:
                 target[rows] = value
         return out
 
+    def assign(self, pos: np.ndarray, part: Resolution) -> None:
+        """Put ``part``'s sites into this result at positions ``pos`` (the same layers)."""
+        for name, value in part._arrays():
+            target = getattr(self, name)
+            if isinstance(value, dict):
+                for q, v in value.items():
+                    if q in target:
+                        target[q][pos] = v
+            else:
+                target[pos] = value
+
     def without_detail(self) -> Resolution:
         """The same result without the look-up detail (what travels between processes)."""
         return Resolution(**dict(self._arrays()), layers=self.layers)

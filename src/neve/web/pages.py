@@ -42,26 +42,11 @@ def media_type(name: str) -> str:
     return "application/octet-stream"
 
 
-@functools.lru_cache(maxsize=1)
 def environment():
     """neve serve's templates, with the maps' templates (steps table) beside them."""
-    from jinja2 import ChainableUndefined, ChoiceLoader, Environment, PackageLoader
+    from neve.maps.templating import environment as maps_environment
 
-    from neve.maps import style
-
-    env = Environment(
-        loader=ChoiceLoader(
-            [PackageLoader("neve.web", "templates"), PackageLoader("neve.maps", "templates")]
-        ),  # fmt: skip
-        autoescape=True,
-        undefined=ChainableUndefined,
-        trim_blocks=True,
-        lstrip_blocks=True,
-    )
-    env.filters["load_text"] = style.load_text
-    env.filters["len_text"] = style.length_text
-    env.filters["num"] = style.num
-    return env
+    return maps_environment("neve.web")
 
 
 def _page(name: str, code: int = 200, /, **context):
