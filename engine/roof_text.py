@@ -203,16 +203,7 @@ def _si_roof_text(result: Mapping, show_steps: bool, show_cautions: bool, pitch)
             lines.append(f"      not combined with: {case['not_combined_with']}")
         if show_steps:
             lines += [_step_line(s) for s in case["steps"]]
-    if result.get("not_required"):
-        lines += ["", "Not required"]
-        for item in result["not_required"]:
-            name = f" '{item['name']}'" if item.get("name") else ""
-            lines.append(f"  [{item['case']}]{name}: {item['reason']}")
-    lines += ["", "Flags: " + (", ".join(result["flags"]) if result["flags"] else "none")]
-    if show_cautions:
-        lines += ["", "Cautions"]
-        lines += [f"  ! {c}" for c in result["cautions"]]
-    return "\n".join(lines)
+    return "\n".join(lines + _closing_lines(result, show_cautions))
 
 
 def roof_text(
@@ -269,6 +260,12 @@ def roof_text(
             lines.append(f"      not combined with: {case['not_combined_with']}")
         if show_steps:
             lines += [_step_line(s, absent.values()) for s in case["steps"]]
+    return "\n".join(lines + _closing_lines(result, show_cautions))
+
+
+def _closing_lines(result: dict, show_cautions: bool) -> list[str]:
+    """The end of a roof's text: the cases not required, the flags and the cautions."""
+    lines = []
     if result.get("not_required"):
         lines += ["", "Not required"]
         for item in result["not_required"]:
@@ -278,4 +275,4 @@ def roof_text(
     if show_cautions:
         lines += ["", "Cautions"]
         lines += [f"  ! {c}" for c in result["cautions"]]
-    return "\n".join(lines)
+    return lines
